@@ -1,0 +1,144 @@
+/**
+ * The requirements model: what the engineer enters. Plain serialisable data in base SI
+ * units (see units.ts). Ids are short stable strings chosen by the store or the importer.
+ */
+import type { Amps, Celsius, Hertz, Ratio, Volts, Watts } from './units.ts';
+
+export type Id = string;
+
+/** How a domain's ground relates to the input source. `none` = galvanically connected. */
+export type IsolationClass = 'none' | 'functional' | 'basic' | 'reinforced';
+export const ISOLATION_CLASSES: readonly IsolationClass[] = ['none', 'functional', 'basic', 'reinforced'];
+
+/**
+ * Noise class of a load: how much switching residue it tolerates beyond its ripple limit.
+ * `rugged` (logic, drivers), `standard` (I/O, interfaces), `quiet` (analog, references).
+ * Loads of different classes never share a rail unless the user overrides it.
+ */
+export type NoiseClass = 'rugged' | 'standard' | 'quiet';
+export const NOISE_CLASSES: readonly NoiseClass[] = ['rugged', 'standard', 'quiet'];
+
+/** Converter kinds the planner may use. */
+export type StageKind = 'buck' | 'cwbuck' | 'ldo' | 'iso-module' | 'load-switch';
+export const STAGE_KINDS: readonly StageKind[] = ['buck', 'cwbuck', 'ldo', 'iso-module', 'load-switch'];
+
+export interface Source {
+  id: Id;
+  name: string;
+  vNom: Volts;
+  vMin: Volts;
+  vMax: Volts;
+  /** Maximum current the source may deliver. */
+  currentLimit: Amps;
+}
+
+export interface Domain {
+  id: Id;
+  name: string;
+  isolation: IsolationClass;
+  /** Working voltage across the barrier to the source side (RMS or DC, per the standard used). */
+  workingVoltage: Volts;
+}
+
+export interface OperatingMode {
+  id: Id;
+  name: string;
+  /** Share of operating time, 0..1; the shares of a project sum to 1. */
+  share: Ratio;
+}
+
+export interface Load {
+  id: Id;
+  name: string;
+  domainId: Id;
+  /** Signed nominal voltage (negative rails are allowed). */
+  voltage: Volts;
+  /** Symmetric tolerance as a ratio, 0.05 = ±5 %. */
+  tolerance: Ratio;
+  /** Current drawn in each operating mode, keyed by mode id. A missing mode means 0 A. */
+  current: Record<Id, Amps>;
+  /** Largest acceptable peak-to-peak ripple and noise on the load's supply. */
+  rippleLimit: Volts;
+  noiseClass: NoiseClass;
+  /** Manual rail assignment: loads with the same non-empty key share one rail. */
+  railKey?: string;
+}
+
+export interface DesignLimits {
+  ambient: Celsius;
+  /** Junction temperature that no part may exceed. */
+  tjMax: Celsius;
+  /** Required margin below tjMax (K). */
+  tjMargin: number;
+  /** Fraction of a ceramic capacitor's rated voltage it may see (0.6 = 60 %). */
+  ceramicDerating: Ratio;
+  /** Fraction of an aluminium/polymer capacitor's rated voltage it may see. */
+  electrolyticDerating: Ratio;
+  /** Fraction of a resistor's or semiconductor's rated power it may dissipate. */
+  powerDerating: Ratio;
+}
+
+export interface PlannerPreferences {
+  /** Weights of the objectives in the balanced score (need not sum to 1). */
+  weights: { loss: number; cost: number; parts: number };
+  /** Most secondaries one coupled-winding magnetic may carry. */
+  maxSecondaries: number;
+  allowedKinds: StageKind[];
+  /** Switching frequency the planner uses for switching stages. */
+  switchingFrequency: Hertz;
+  /** Planner time budget for large instances (ms). */
+  budgetMs: number;
+}
+
+export interface ProjectMeta {
+  name: string;
+  description: string;
+  /** Increases on every change to requirements; plans remember the revision they used. */
+  revision: number;
+}
+
+export interface Requirements {
+  meta: ProjectMeta;
+  sources: Source[];
+  domains: Domain[];
+  modes: OperatingMode[];
+  loads: Load[];
+  limits: DesignLimits;
+  preferences: PlannerPreferences;
+}
+
+export const DEFAULT_LIMITS: DesignLimits = {
+  ambient: 40 as Celsius,
+  tjMax: 125 as Celsius,
+  tjMargin: 15,
+  ceramicDerating: 0.6 as Ratio,
+  electrolyticDerating: 0.8 as Ratio,
+  powerDerating: 0.5 as Ratio,
+};
+
+export const DEFAULT_PREFERENCES: PlannerPreferences = {
+  weights: { loss: 1, cost: 1, parts: 0.2 },
+  maxSecondaries: 3,
+  allowedKinds: ['buck', 'cwbuck', 'ldo'],
+  switchingFrequency: 400e3 as Hertz,
+  budgetMs: 10_000,
+};
+
+/** A rail: loads that share one supply net. Derived by grouping (rails.ts). */
+export interface Rail {
+  id: Id;
+  name: string;
+  domainId: Id;
+  voltage: Volts;
+  /** Tightest tolerance of its loads. */
+  tolerance: Ratio;
+  /** Smallest ripple limit of its loads. */
+  rippleLimit: Volts;
+  /** Strictest noise class of its loads. */
+  noiseClass: NoiseClass;
+  loadIds: Id[];
+  /** Sum of load currents per mode. */
+  current: Record<Id, Amps>;
+}
+
+export type PowerPerMode = Record<Id, Watts>;

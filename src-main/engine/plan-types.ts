@@ -1,0 +1,100 @@
+/**
+ * The shape of a power tree as the planner returns it and as the roll-up, BOM, drawing,
+ * exports and window consume it. Plain serialisable data. Changes here are additive only.
+ */
+import type { Id, Rail, StageKind } from './model.ts';
+import type { Volts, Watts } from './units.ts';
+
+/** A node of the tree that is not a requirement rail: a winding tap or an intermediate bus. */
+export interface InternalNode {
+  id: Id;
+  name: string;
+  domainId: Id;
+  voltage: Volts;
+  kind: 'tap' | 'bus';
+}
+
+export type OutputRole = 'output' | 'primary' | 'secondary';
+
+export interface PlanOutput {
+  /** The rail id or internal node id this output feeds. */
+  nodeId: Id;
+  role: OutputRole;
+  /** Turns of this winding (coupled-winding stages only). */
+  turns?: number;
+}
+
+/** A galvanic barrier a stage carries (coupled-winding secondaries into another domain). */
+export interface Barrier {
+  fromDomainId: Id;
+  toDomainId: Id;
+  isolation: 'functional' | 'basic' | 'reinforced';
+  workingVoltage: Volts;
+}
+
+export interface PlanStage {
+  id: Id;
+  kind: StageKind;
+  name: string;
+  /** Source id, rail id or internal node id this stage draws from. */
+  inputNodeId: Id;
+  outputs: PlanOutput[];
+  barriers: Barrier[];
+  /**
+   * The stage design the engine evaluated (kind-specific; see engine/stages). Kept so the
+   * roll-up, BOM and netlist exports recompute from exactly what the planner chose.
+   */
+  design: unknown;
+}
+
+/** A decision and why, for a reviewer. `data` carries the numbers the sentence quotes. */
+export interface Reason {
+  code: string;
+  /** The rail, stage or node the reason is about. */
+  subjectId: Id;
+  text: string;
+  data?: Record<string, number | string | boolean>;
+}
+
+export interface PlanScore {
+  /** Time-weighted total loss over operating modes. */
+  loss: Watts;
+  /** Estimated BOM cost in the part library's currency units. */
+  cost: number;
+  parts: number;
+  /** Weighted objective (lower is better) under the project's preferences. */
+  weighted: number;
+}
+
+export type PlanLabel = 'best' | 'lowest-loss' | 'lowest-cost' | 'fewest-parts' | 'balanced' | 'alternative';
+
+export interface Plan {
+  id: Id;
+  labels: PlanLabel[];
+  stages: PlanStage[];
+  internalNodes: InternalNode[];
+  score: PlanScore;
+  reasons: Reason[];
+}
+
+/** Why no plan exists: which rail, which constraint, by how much, and what would help. */
+export interface Infeasibility {
+  railId: Id;
+  constraint: string;
+  /** How far the best candidate missed, in the constraint's unit (e.g. volts or K). */
+  shortfall: number;
+  unit: string;
+  text: string;
+  remedies: string[];
+}
+
+export interface PlanResult {
+  /** Requirements revision the plan was computed from; stale when the project moves on. */
+  revision: number;
+  rails: Rail[];
+  best: Plan | null;
+  /** Pareto alternatives (including the best), each complete. */
+  alternatives: Plan[];
+  infeasible: Infeasibility[];
+  stats: { explored: number; provedOptimal: boolean; elapsedMs: number; cancelled: boolean };
+}
