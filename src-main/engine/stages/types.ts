@@ -1,0 +1,108 @@
+/**
+ * Contract between the stage models and their users (planner, roll-up, BOM, exports).
+ * The planner asks for a stage with a StageSpec; a designer returns a StageDesign (every
+ * chosen value: turns, inductance, capacitors, divider...); evaluateStage computes one
+ * operating point; stageWindow computes the worst-case output windows over corners.
+ * Changes here are additive only.
+ */
+import type { Amps, Celsius, Hertz, KelvinPerWatt, Ratio, Volts, Watts } from '../units.ts';
+import type { Id, StageKind } from '../model.ts';
+
+/** One output the planner wants from a stage. */
+export interface OutputSpec {
+  /** Rail or internal node this output feeds. */
+  nodeId: Id;
+  /** Signed target voltage. */
+  voltage: Volts;
+  /** Allowed ± deviation as a ratio of |voltage|. */
+  tolerance: Ratio;
+  /** Smallest and largest load current over all modes (min may be 0). */
+  currentMin: Amps;
+  currentMax: Amps;
+  /** Peak-to-peak ripple limit. */
+  rippleLimit: Volts;
+}
+
+/** What the planner asks a designer for. */
+export interface StageSpec {
+  kind: StageKind;
+  vinMin: Volts;
+  vinNom: Volts;
+  vinMax: Volts;
+  /** Worst-case (largest) input ripple, for LDO PSRR and dropout checks. */
+  vinRipple?: Volts;
+  /** For coupled-winding stages: outputs[0] is the regulated primary. */
+  outputs: OutputSpec[];
+  fsw: Hertz;
+  ambient: Celsius;
+  tjMax: Celsius;
+  ceramicDerating: Ratio;
+}
+
+/** Severity `error` makes a stage infeasible; `warning` is shown but allowed. */
+export interface StageFlag {
+  code: string;
+  severity: 'error' | 'warning';
+  text: string;
+  data?: Record<string, number | string>;
+}
+
+/** A part that dissipates heat, for the thermal table. */
+export interface DissipatingPart {
+  /** Role in the stage, e.g. "high-side switch", "LDO", "rectifier D2". */
+  role: string;
+  power: Watts;
+  thetaJA: KelvinPerWatt;
+  /** Where θJA came from: part library data, or a default from memory. */
+  thetaSource: 'library' | 'default-from-memory';
+  /** Junction (or hot-spot) temperature at the given ambient. */
+  tj: Celsius;
+}
+
+export interface OutputResult {
+  nodeId: Id;
+  /** Output voltage at this operating point (signed). */
+  voltage: Volts;
+  current: Amps;
+  ripplePP: Volts;
+}
+
+/** One evaluated operating point. Energy balance: pin = pout + loss. */
+export interface StageEvaluation {
+  kind: StageKind;
+  vin: Volts;
+  iin: Amps;
+  pin: Watts;
+  pout: Watts;
+  loss: Watts;
+  efficiency: Ratio;
+  duty?: Ratio;
+  /** Each loss term separately (names are stable keys, e.g. "hs-conduction"). */
+  lossBreakdown: Record<string, Watts>;
+  parts: DissipatingPart[];
+  outputs: OutputResult[];
+  flags: StageFlag[];
+}
+
+/** Worst-case window of one output over the corner set (and Monte Carlo, if asked). */
+export interface OutputWindow {
+  nodeId: Id;
+  target: Volts;
+  min: Volts;
+  max: Volts;
+  /** Allowed band from the spec. */
+  allowedMin: Volts;
+  allowedMax: Volts;
+  inside: boolean;
+  /** Which corner produced the min and the max, readable. */
+  minCorner: string;
+  maxCorner: string;
+}
+
+/** The operating point at which to evaluate: input voltage and each output's current. */
+export interface OperatingPoint {
+  vin: Volts;
+  /** Current of each output, in the order of the design's outputs. */
+  iout: Amps[];
+  ambient: Celsius;
+}
