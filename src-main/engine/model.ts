@@ -142,3 +142,16 @@ export interface Rail {
 }
 
 export type PowerPerMode = Record<Id, Watts>;
+
+/**
+ * One row of a project's part library, as the project file stores it. `params` is an
+ * opaque JSON object whose meaning the BOM defines; the store keeps it verbatim.
+ */
+export interface PartLibraryRow {
+  id: Id;
+  partClass: string;
+  name: string;
+  /** Estimated unit cost in the library's currency units. */
+  cost: number;
+  params: Record<string, unknown>;
+}
