@@ -1,0 +1,326 @@
+/**
+ * The part library: generic part classes with the parameters the engine needs and an
+ * estimated unit cost. Rows are plain data (the store keeps the project's editable copy as
+ * `{ id, partClass, name, cost, params }`); this module defines what `params` means for each
+ * class, validates rows, converts to and from the CSV table shape (cells as strings, parsed
+ * and written elsewhere), and looks parts up. Every row is generic: no vendor, no part
+ * number. The default rows (db/default-library.csv) carry invented cost estimates.
+ */
+
+import type { PartLibraryRow } from './model.ts';
+
+export type PartClass =
+  | 'controller'
+  | 'switch'
+  | 'ldo'
+  | 'rectifier'
+  | 'cap-ceramic'
+  | 'cap-aluminium'
+  | 'cap-polymer'
+  | 'resistor'
+  | 'inductor'
+  | 'magnetic-custom';
+
+export const PART_CLASSES: readonly PartClass[] = [
+  'controller', 'switch', 'ldo', 'rectifier', 'cap-ceramic', 'cap-aluminium', 'cap-polymer', 'resistor', 'inductor', 'magnetic-custom',
+];
+
+export type ParamValue = number | string;
+
+export interface LibraryRow {
+  id: string;
+  partClass: PartClass;
+  name: string;
+  /** Estimated unit cost in the library's currency units (default rows: invented estimates). */
+  cost: number;
+  params: Record<string, ParamValue>;
+}
+
+interface ParamSpec {
+  key: string;
+  kind: 'number' | 'string';
+  /** Unit the number is stored in (base SI), for documentation and headers. */
+  unit?: string;
+  required: boolean;
+  min?: number;
+  max?: number;
+  doc: string;
+}
+
+const num = (key: string, unit: string, doc: string, min = 0, max = Infinity, required = true): ParamSpec =>
+  ({ key, kind: 'number', unit, required, min, max, doc });
+const str = (key: string, doc: string, required = true): ParamSpec => ({ key, kind: 'string', required, doc });
+const pkg = str('package', 'package name (generic outline)');
+
+/** What each class's params mean. Numbers are base SI (V, A, Ω, F, H, s, W, K/W). */
+export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
+  controller: [
+    pkg,
+    num('iMax', 'A', 'largest output current it is rated for', 0.001, 1000),
+    num('vinMax', 'V', 'highest input voltage', 1, 2000),
+    num('iq', 'A', 'quiescent current from Vin', 0, 1),
+    num('tonMin', 's', 'minimum on-time', 0, 1e-3),
+    num('dMax', '', 'maximum duty cycle', 0.05, 1),
+    num('integrated', '', '1 = switches inside (no external switches), 0 = drives external switches', 0, 1),
+    num('forcedPwm', '', '1 = can run forced PWM with a synchronous low-side switch (needed by coupled-winding stages)', 0, 1),
+    num('rdsHs', 'Ω', 'integrated high-side on-resistance at 25 °C (integrated = 1)', 0, 10, false),
+    num('rdsLs', 'Ω', 'integrated low-side on-resistance at 25 °C (integrated = 1)', 0, 10, false),
+    num('negLimit', 'A', 'low-side negative current limit', 0, 100, false),
+    num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance', 1, 1000),
+  ],
+  switch: [
+    pkg,
+    num('vds', 'V', 'drain-source voltage rating', 1, 2000),
+    num('id', 'A', 'continuous drain current rating', 0.01, 1000),
+    num('rdsOn', 'Ω', 'on-resistance at 25 °C', 1e-5, 100),
+    num('qg', 'C', 'total gate charge', 0, 1e-6),
+    num('coss', 'F', 'output capacitance', 0, 1e-8),
+    num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance', 1, 1000),
+  ],
+  ldo: [
+    pkg,
+    num('iMax', 'A', 'rated output current', 0.001, 100),
+    num('vinMax', 'V', 'highest input voltage', 1, 1000),
+    num('dropout', 'V', 'dropout at rated current', 0, 5),
+    num('iq', 'A', 'quiescent current', 0, 0.1),
+    num('psrrDb', 'dB', 'ripple rejection at a few hundred kHz', 0, 120),
+    num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance (JEDEC JESD51-2 style figure)', 1, 1000),
+    num('negative', '', '1 = negative-voltage regulator', 0, 1, false),
+  ],
+  rectifier: [
+    pkg,
+    num('vr', 'V', 'reverse voltage rating', 1, 5000),
+    num('if', 'A', 'average forward current rating', 0.001, 1000),
+    num('vf', 'V', 'forward drop at rated current', 0.05, 5),
+    num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance', 1, 1000),
+  ],
+  'cap-ceramic': [
+    pkg,
+    str('dielectric', 'dielectric code (class 1 or class 2)'),
+    num('vRated', 'V', 'rated voltage', 1, 10000),
+    num('cMin', 'F', 'smallest value offered in this package and rating', 0, 1),
+    num('cMax', 'F', 'largest value offered in this package and rating', 0, 1),
+    num('esr', 'Ω', 'typical ESR', 0, 100, false),
+  ],
+  'cap-aluminium': [
+    pkg,
+    num('vRated', 'V', 'rated voltage', 1, 1000),
+    num('cMin', 'F', 'smallest value offered', 0, 10),
+    num('cMax', 'F', 'largest value offered', 0, 10),
+    num('esr', 'Ω', 'typical ESR', 0, 100),
+    num('iRipple', 'A', 'ripple current rating', 0, 100, false),
+  ],
+  'cap-polymer': [
+    pkg,
+    num('vRated', 'V', 'rated voltage', 1, 1000),
+    num('cMin', 'F', 'smallest value offered', 0, 10),
+    num('cMax', 'F', 'largest value offered', 0, 10),
+    num('esr', 'Ω', 'typical ESR', 0, 100),
+    num('iRipple', 'A', 'ripple current rating', 0, 100, false),
+  ],
+  resistor: [
+    pkg,
+    num('power', 'W', 'rated power', 0.001, 1000),
+    num('tolerance', '', 'tolerance as a ratio (0.01 = 1 %)', 0, 0.5),
+  ],
+  inductor: [
+    pkg,
+    num('lMin', 'H', 'smallest inductance offered in this size', 0, 1),
+    num('lMax', 'H', 'largest inductance offered in this size', 0, 1),
+    num('iSat', 'A', 'saturation current at the largest value (scales as √(lMax/L) below it)', 0.001, 1000),
+    num('dcr', 'Ω', 'DC resistance at the largest value (scales as √(L/lMax))', 0, 100),
+  ],
+  'magnetic-custom': [
+    pkg,
+    num('maxWindings', '', 'most windings (primary included) the former takes', 2, 12),
+    num('pMax', 'W', 'largest throughput power', 0.1, 10000),
+    num('costPerWinding', '', 'estimated cost added per winding beyond the primary', 0, 1e6),
+    num('isolation', '', 'best isolation class the construction supports: 0 functional, 1 basic, 2 reinforced', 0, 2),
+  ],
+};
+
+export interface RowProblem {
+  /** 0-based row index in the input (header excluded). */
+  row: number;
+  field: string;
+  message: string;
+}
+
+/** Check one row; returns every problem with the field it concerns. */
+export function validateRow(r: LibraryRow, index = 0): RowProblem[] {
+  const out: RowProblem[] = [];
+  const p = (field: string, message: string) => out.push({ row: index, field, message });
+  if (typeof r.id !== 'string' || !/^[A-Za-z0-9._:-]{1,64}$/.test(r.id)) p('id', 'must be 1–64 letters, digits or . _ : -');
+  if (!PART_CLASSES.includes(r.partClass)) { p('class', `unknown part class "${String(r.partClass)}" (one of ${PART_CLASSES.join(', ')})`); return out; }
+  if (typeof r.name !== 'string' || r.name.trim() === '' || r.name.length > 200) p('name', 'must be 1–200 characters');
+  if (typeof r.cost !== 'number' || !Number.isFinite(r.cost) || r.cost < 0 || r.cost > 1e6) p('cost', 'must be a number from 0 to 1e6');
+  const specs = CLASS_PARAMS[r.partClass];
+  for (const s of specs) {
+    const v = r.params?.[s.key];
+    if (v === undefined || v === '') {
+      if (s.required) p(s.key, `is required for class ${r.partClass}`);
+      continue;
+    }
+    if (s.kind === 'number') {
+      if (typeof v !== 'number' || !Number.isFinite(v)) { p(s.key, 'must be a number'); continue; }
+      if (s.min !== undefined && v < s.min) p(s.key, `must be at least ${s.min}${s.unit ? ' ' + s.unit : ''}`);
+      if (s.max !== undefined && v > s.max) p(s.key, `must be at most ${s.max}${s.unit ? ' ' + s.unit : ''}`);
+    } else if (typeof v !== 'string') {
+      p(s.key, 'must be text');
+    }
+  }
+  for (const k of Object.keys(r.params ?? {})) {
+    if (k === COST_NOTE) { if (typeof r.params[k] !== 'string') p('cost_note', 'must be text'); continue; }
+    if (!specs.some((s) => s.key === k)) p(k, `is not a parameter of class ${r.partClass}`);
+  }
+  const pr = r.params ?? {};
+  for (const [lo, hi] of [['cMin', 'cMax'], ['lMin', 'lMax']] as const) {
+    if (typeof pr[lo] === 'number' && typeof pr[hi] === 'number' && (pr[lo] as number) > (pr[hi] as number)) p(lo, `must not exceed ${hi}`);
+  }
+  return out;
+}
+
+export function validateLibrary(rows: LibraryRow[]): RowProblem[] {
+  const out = rows.flatMap((r, i) => validateRow(r, i));
+  const seen = new Map<string, number>();
+  rows.forEach((r, i) => {
+    const j = seen.get(r.id);
+    if (j !== undefined) out.push({ row: i, field: 'id', message: `duplicates the id of row ${j + 1}` });
+    else seen.set(r.id, i);
+  });
+  return out;
+}
+
+// ---------------------------------------------------------------------------------------
+// Table shape (for CSV): id, class, name, cost_estimate, params ("key=value; key=value")
+
+export const LIBRARY_HEADER = ['id', 'class', 'name', 'cost_estimate', 'cost_note', 'params'] as const;
+
+/** Param key (any class) holding where the cost comes from, e.g. "invented estimate". */
+export const COST_NOTE = 'costNote';
+export const INVENTED = 'invented estimate';
+
+export function costNote(r: LibraryRow): string {
+  const v = r.params[COST_NOTE];
+  return typeof v === 'string' ? v : '';
+}
+
+function paramText(params: Record<string, ParamValue>, cls: PartClass): string {
+  const order = CLASS_PARAMS[cls]?.map((s) => s.key) ?? [];
+  const keys = Object.keys(params).filter((k) => k !== COST_NOTE).sort((a, b) => {
+    const ia = order.indexOf(a);
+    const ib = order.indexOf(b);
+    return (ia < 0 ? 999 : ia) - (ib < 0 ? 999 : ib) || a.localeCompare(b);
+  });
+  return keys.map((k) => `${k}=${String(params[k])}`).join('; ');
+}
+
+export function rowsToTable(rows: LibraryRow[]): string[][] {
+  return [
+    [...LIBRARY_HEADER],
+    ...rows.map((r) => [r.id, r.partClass, r.name, String(r.cost), costNote(r), paramText(r.params, r.partClass)]),
+  ];
+}
+
+const NUMERIC = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/;
+
+/**
+ * Table (first row the header) → rows, with every problem named by row and field. Nothing
+ * is returned as valid unless the whole table is valid: an import changes all or nothing.
+ */
+export function tableToRows(table: string[][]): { ok: true; rows: LibraryRow[] } | { ok: false; problems: RowProblem[] } {
+  const problems: RowProblem[] = [];
+  const header = table[0]?.map((h) => h.trim().toLowerCase());
+  if (!header) return { ok: false, problems: [{ row: -1, field: 'header', message: 'the file is empty' }] };
+  const col: Record<string, number> = {};
+  for (const h of LIBRARY_HEADER) {
+    const i = header.indexOf(h);
+    if (i < 0 && h === 'cost_note') { col[h] = -1; continue; }
+    if (i < 0) problems.push({ row: -1, field: h, message: `column "${h}" is missing from the header` });
+    col[h] = i;
+  }
+  if (problems.length) return { ok: false, problems };
+  const rows: LibraryRow[] = [];
+  table.slice(1).forEach((cells, i) => {
+    const get = (h: string) => (cells[col[h]!] ?? '').trim();
+    const params: Record<string, ParamValue> = {};
+    const ptext = get('params');
+    if (ptext !== '') {
+      for (const part of ptext.split(';')) {
+        const t = part.trim();
+        if (t === '') continue;
+        const eq = t.indexOf('=');
+        if (eq <= 0) { problems.push({ row: i, field: 'params', message: `"${t}" is not key=value` }); continue; }
+        const k = t.slice(0, eq).trim();
+        const v = t.slice(eq + 1).trim();
+        params[k] = NUMERIC.test(v) ? Number(v) : v;
+      }
+    }
+    const note = col.cost_note! >= 0 ? get('cost_note') : '';
+    if (note !== '') params[COST_NOTE] = note;
+    const costText = get('cost_estimate');
+    const cost = NUMERIC.test(costText) ? Number(costText) : NaN;
+    const row: LibraryRow = { id: get('id'), partClass: get('class') as PartClass, name: get('name'), cost, params };
+    problems.push(...validateRow(row, i));
+    rows.push(row);
+  });
+  const ids = new Map<string, number>();
+  rows.forEach((r, i) => {
+    const j = ids.get(r.id);
+    if (j !== undefined) problems.push({ row: i, field: 'id', message: `duplicates the id of row ${j + 1}` });
+    else ids.set(r.id, i);
+  });
+  return problems.length ? { ok: false, problems } : { ok: true, rows };
+}
+
+export function describeProblem(p: RowProblem): string {
+  return p.row < 0 ? `${p.field}: ${p.message}` : `row ${p.row + 1}, ${p.field}: ${p.message}`;
+}
+
+// ---------------------------------------------------------------------------------------
+// Look-ups
+
+export function numParam(r: LibraryRow, key: string, fallback = NaN): number {
+  const v = r.params[key];
+  return typeof v === 'number' ? v : fallback;
+}
+
+export function strParam(r: LibraryRow, key: string, fallback = ''): string {
+  const v = r.params[key];
+  return typeof v === 'string' ? v : v === undefined ? fallback : String(v);
+}
+
+/** The cheapest row of a class that passes `fits`; ties broken by id for stable results. */
+export function cheapest(library: LibraryRow[], cls: PartClass, fits: (r: LibraryRow) => boolean): LibraryRow | null {
+  let best: LibraryRow | null = null;
+  for (const r of library) {
+    if (r.partClass !== cls || !fits(r)) continue;
+    if (!best || r.cost < best.cost || (r.cost === best.cost && r.id < best.id)) best = r;
+  }
+  return best;
+}
+
+// ---------------------------------------------------------------------------------------
+// Store rows (params opaque JSON) ↔ typed rows
+
+/** Check rows as the project store keeps them; all or nothing, every problem named. */
+export function fromStoreRows(rows: PartLibraryRow[]): { ok: true; rows: LibraryRow[] } | { ok: false; problems: RowProblem[] } {
+  const out: LibraryRow[] = [];
+  const problems: RowProblem[] = [];
+  rows.forEach((r, i) => {
+    const params: Record<string, ParamValue> = {};
+    const raw = r.params && typeof r.params === 'object' && !Array.isArray(r.params) ? r.params : null;
+    if (!raw) problems.push({ row: i, field: 'params', message: 'must be an object' });
+    for (const [k, v] of Object.entries(raw ?? {})) {
+      if (typeof v === 'number' || typeof v === 'string') params[k] = v;
+      else problems.push({ row: i, field: k, message: 'must be a number or text' });
+    }
+    out.push({ id: r.id, partClass: r.partClass as PartClass, name: r.name, cost: r.cost, params });
+  });
+  problems.push(...validateLibrary(out));
+  return problems.length ? { ok: false, problems } : { ok: true, rows: out };
+}
+
+export function toStoreRows(rows: LibraryRow[]): PartLibraryRow[] {
+  return rows.map((r) => ({ id: r.id, partClass: r.partClass, name: r.name, cost: r.cost, params: { ...r.params } }));
+}
