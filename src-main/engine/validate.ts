@@ -1,0 +1,182 @@
+/**
+ * Semantic checks of a Requirements value: everything a well-typed project can still get
+ * wrong. Returns one problem per mistake, each with the path of the field (as the JSON
+ * format writes it, e.g. `loads[3].tolerance`) and a sentence saying what is wrong.
+ * Pure; the store, the importer, the CLI and the window all call it.
+ */
+import { ISOLATION_CLASSES, NOISE_CLASSES, STAGE_KINDS, type Requirements } from './model.ts';
+import { formatQuantity, formatTolerance } from './notation.ts';
+
+export interface Problem {
+  path: string;
+  message: string;
+}
+
+/** Tolerance on the sum of mode shares (they are ratios typed by people). */
+export const SHARE_SUM_TOLERANCE = 1e-6;
+/** Voltages closer than this are the same rail voltage (as rails.ts groups them). */
+const SAME_VOLTAGE = 0.5e-3;
+
+const isNum = (x: unknown): x is number => typeof x === 'number' && Number.isFinite(x);
+
+export function validateRequirements(req: Requirements): Problem[] {
+  const out: Problem[] = [];
+  const add = (path: string, message: string) => out.push({ path, message });
+  const v = (x: number) => formatQuantity(x, 'voltage', 4);
+
+  const uniqueIds = (items: { id: string }[], path: string, what: string) => {
+    const seen = new Map<string, number>();
+    items.forEach((it, i) => {
+      if (typeof it.id !== 'string' || it.id.trim() === '') {
+        add(`${path}[${i}].id`, `${what} id is empty`);
+        return;
+      }
+      const prev = seen.get(it.id);
+      if (prev !== undefined) add(`${path}[${i}].id`, `${what} id "${it.id}" is already used by ${path}[${prev}]`);
+      else seen.set(it.id, i);
+    });
+  };
+  const named = (items: { name: string }[], path: string, what: string) => {
+    items.forEach((it, i) => {
+      if (typeof it.name !== 'string' || it.name.trim() === '') add(`${path}[${i}].name`, `${what} name is empty`);
+    });
+  };
+
+  // Sources.
+  if (req.sources.length === 0) add('sources', 'the project needs at least one source');
+  uniqueIds(req.sources, 'sources', 'source');
+  named(req.sources, 'sources', 'source');
+  req.sources.forEach((s, i) => {
+    const p = `sources[${i}]`;
+    let finite = true;
+    for (const k of ['vNom', 'vMin', 'vMax', 'currentLimit'] as const) {
+      if (!isNum(s[k])) { add(`${p}.${k}`, `${k} is not a finite number`); finite = false; }
+    }
+    if (!finite) return;
+    for (const k of ['vMin', 'vNom', 'vMax'] as const) {
+      if (s[k] <= 0) add(`${p}.${k}`, `${k} must be above 0 V (got ${v(s[k])}); negative or zero sources are not supported`);
+    }
+    if (s.vMin > s.vNom) add(`${p}.vMin`, `vMin (${v(s.vMin)}) is above vNom (${v(s.vNom)})`);
+    if (s.vNom > s.vMax) add(`${p}.vMax`, `vMax (${v(s.vMax)}) is below vNom (${v(s.vNom)})`);
+    if (s.currentLimit <= 0) add(`${p}.currentLimit`, `current limit must be above 0 A (got ${formatQuantity(s.currentLimit, 'current')})`);
+  });
+
+  // Domains.
+  if (req.domains.length === 0) add('domains', 'the project needs at least one domain');
+  uniqueIds(req.domains, 'domains', 'domain');
+  named(req.domains, 'domains', 'domain');
+  req.domains.forEach((d, i) => {
+    const p = `domains[${i}]`;
+    if (!ISOLATION_CLASSES.includes(d.isolation)) {
+      add(`${p}.isolation`, `isolation class "${String(d.isolation)}" is not one of ${ISOLATION_CLASSES.join(', ')}`);
+    }
+    if (!isNum(d.workingVoltage) || d.workingVoltage < 0) {
+      add(`${p}.workingVoltage`, 'working voltage must be a finite number ≥ 0 V');
+    } else if (d.isolation !== 'none' && d.workingVoltage <= 0) {
+      add(`${p}.workingVoltage`, `an isolated domain (${d.isolation}) needs a working voltage above 0 V`);
+    }
+  });
+
+  // Operating modes.
+  if (req.modes.length === 0) add('modes', 'the project needs at least one operating mode');
+  uniqueIds(req.modes, 'modes', 'mode');
+  named(req.modes, 'modes', 'mode');
+  let shareSum = 0;
+  let sharesFinite = true;
+  req.modes.forEach((m, i) => {
+    if (!isNum(m.share) || m.share < 0 || m.share > 1) {
+      add(`modes[${i}].share`, `share of time must be between 0 and 1 (got ${String(m.share)})`);
+      sharesFinite = sharesFinite && isNum(m.share);
+    }
+    if (isNum(m.share)) shareSum += m.share;
+  });
+  if (req.modes.length > 0 && sharesFinite && Math.abs(shareSum - 1) > SHARE_SUM_TOLERANCE) {
+    add('modes', `shares of time sum to ${Number(shareSum.toPrecision(6))}, they must sum to 1`);
+  }
+
+  // Loads.
+  uniqueIds(req.loads, 'loads', 'load');
+  named(req.loads, 'loads', 'load');
+  const domainIds = new Set(req.domains.map((d) => d.id));
+  const modeIds = new Set(req.modes.map((m) => m.id));
+  req.loads.forEach((l, i) => {
+    const p = `loads[${i}]`;
+    if (!domainIds.has(l.domainId)) add(`${p}.domainId`, `domain "${l.domainId}" does not exist`);
+    if (!isNum(l.voltage)) add(`${p}.voltage`, 'voltage is not a finite number');
+    else if (Math.abs(l.voltage) < 1e-3) add(`${p}.voltage`, `voltage must not be 0 V (got ${v(l.voltage)})`);
+    if (!isNum(l.tolerance) || l.tolerance <= 0 || l.tolerance >= 0.5) {
+      add(`${p}.tolerance`, `tolerance must be above 0 and below ±50 % (got ${isNum(l.tolerance) ? formatTolerance(l.tolerance) : String(l.tolerance)})`);
+    }
+    if (!isNum(l.rippleLimit) || l.rippleLimit <= 0) add(`${p}.rippleLimit`, 'ripple limit must be above 0 V');
+    if (!NOISE_CLASSES.includes(l.noiseClass)) {
+      add(`${p}.noiseClass`, `noise class "${String(l.noiseClass)}" is not one of ${NOISE_CLASSES.join(', ')}`);
+    }
+    for (const [modeId, a] of Object.entries(l.current ?? {})) {
+      const cp = `${p}.current.${modeId}`;
+      if (!modeIds.has(modeId)) add(cp, `mode "${modeId}" does not exist`);
+      if (!isNum(a)) add(cp, 'current is not a finite number');
+      else if (a < 0) add(cp, `current must not be negative (got ${formatQuantity(a, 'current')})`);
+    }
+  });
+
+  // Manual rail keys: loads sharing a key must agree on domain and voltage.
+  const byKey = new Map<string, number[]>();
+  req.loads.forEach((l, i) => {
+    const k = typeof l.railKey === 'string' ? l.railKey.trim() : '';
+    if (k === '') return;
+    const g = byKey.get(k);
+    if (g) g.push(i); else byKey.set(k, [i]);
+  });
+  for (const [key, idx] of byKey) {
+    const first = req.loads[idx[0]!]!;
+    for (const i of idx.slice(1)) {
+      const l = req.loads[i]!;
+      if (l.domainId !== first.domainId) {
+        add(`loads[${i}].railKey`, `rail "${key}" joins loads of different domains ("${first.domainId}" and "${l.domainId}")`);
+      } else if (isNum(l.voltage) && isNum(first.voltage) && Math.abs(l.voltage - first.voltage) >= SAME_VOLTAGE) {
+        add(`loads[${i}].railKey`, `rail "${key}" joins loads at different voltages (${v(first.voltage)} and ${v(l.voltage)})`);
+      }
+    }
+  }
+
+  // Design limits.
+  const lim = req.limits;
+  for (const k of ['ambient', 'tjMax', 'tjMargin'] as const) {
+    if (!isNum(lim[k])) add(`limits.${k}`, `${k} is not a finite number`);
+  }
+  if (isNum(lim.ambient) && isNum(lim.tjMax) && isNum(lim.tjMargin)) {
+    if (lim.tjMargin < 0) add('limits.tjMargin', 'junction temperature margin must not be negative');
+    if (lim.tjMax - lim.tjMargin <= lim.ambient) {
+      add('limits.tjMax', `tjMax minus its margin (${lim.tjMax - lim.tjMargin} °C) must be above the ambient (${lim.ambient} °C)`);
+    }
+  }
+  for (const k of ['ceramicDerating', 'electrolyticDerating', 'powerDerating'] as const) {
+    if (!isNum(lim[k]) || lim[k] <= 0 || lim[k] > 1) add(`limits.${k}`, `${k} must be above 0 and at most 1 (got ${String(lim[k])})`);
+  }
+
+  // Planner preferences.
+  const pref = req.preferences;
+  const w = pref.weights ?? { loss: NaN, cost: NaN, parts: NaN };
+  for (const k of ['loss', 'cost', 'parts'] as const) {
+    if (!isNum(w[k]) || w[k] < 0) add(`preferences.weights.${k}`, 'weight must be a finite number ≥ 0');
+  }
+  if ([w.loss, w.cost, w.parts].every((x) => x === 0)) add('preferences.weights', 'at least one weight must be above 0');
+  if (!Number.isInteger(pref.maxSecondaries) || pref.maxSecondaries < 1 || pref.maxSecondaries > 8) {
+    add('preferences.maxSecondaries', `secondaries per magnetic must be a whole number from 1 to 8 (got ${String(pref.maxSecondaries)})`);
+  }
+  if (!Array.isArray(pref.allowedKinds) || pref.allowedKinds.length === 0) {
+    add('preferences.allowedKinds', 'at least one stage kind must be allowed');
+  } else {
+    pref.allowedKinds.forEach((k, i) => {
+      if (!STAGE_KINDS.includes(k)) add(`preferences.allowedKinds[${i}]`, `stage kind "${String(k)}" is not one of ${STAGE_KINDS.join(', ')}`);
+      else if (pref.allowedKinds.indexOf(k) !== i) add(`preferences.allowedKinds[${i}]`, `stage kind "${k}" is listed twice`);
+    });
+  }
+  if (!isNum(pref.switchingFrequency) || pref.switchingFrequency < 1e3 || pref.switchingFrequency > 50e6) {
+    add('preferences.switchingFrequency', 'switching frequency must be between 1 kHz and 50 MHz');
+  }
+  if (!isNum(pref.budgetMs) || pref.budgetMs < 10 || pref.budgetMs > 3_600_000) {
+    add('preferences.budgetMs', 'planner time budget must be between 10 ms and 1 h');
+  }
+  return out;
+}

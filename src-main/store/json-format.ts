@@ -1,0 +1,320 @@
+/**
+ * JSON interchange: a whole project as one JSON document (docs/project-json.md).
+ * Export writes base SI numbers; import accepts SI numbers or engineering-notation strings
+ * (parsed with engine/notation.ts) and reports every problem with its path and reason.
+ * The same schema, in strict mode (numbers only), guards what the store accepts.
+ */
+import { z } from 'zod';
+import {
+  DEFAULT_LIMITS, DEFAULT_PREFERENCES, ISOLATION_CLASSES, NOISE_CLASSES, STAGE_KINDS,
+  type PartLibraryRow, type Requirements,
+} from '../engine/model.ts';
+import type { PlanResult } from '../engine/plan-types.ts';
+import type { QuantityKind } from '../engine/units.ts';
+import { parseQuantity, parseTolerance } from '../engine/notation.ts';
+import { validateRequirements, type Problem } from '../engine/validate.ts';
+
+export const FORMAT_TAG = 'railwright-project';
+export const FORMAT_VERSION = 1;
+
+/** A saved plan result with the requirements revision it was computed from. */
+export interface StoredPlan {
+  revision: number;
+  /** ISO 8601 time the plan was computed. */
+  computedAt: string;
+  result: PlanResult;
+}
+
+/** Everything a project file holds, as plain data. */
+export interface ProjectDocument {
+  requirements: Requirements;
+  /** ISO 8601 times kept by the store (absent for a document never saved). */
+  created?: string;
+  modified?: string;
+  plan?: StoredPlan;
+  library?: PartLibraryRow[];
+}
+
+export type { Problem };
+
+type Mode = 'import' | 'strict';
+
+/** `loads[3].current.run` from a zod path. */
+export function formatPath(path: readonly PropertyKey[]): string {
+  let out = '';
+  for (const p of path) {
+    if (typeof p === 'number') out += `[${p}]`;
+    else out += out === '' ? String(p) : `.${String(p)}`;
+  }
+  return out;
+}
+
+function quantity(kind: QuantityKind, mode: Mode) {
+  if (mode === 'strict') return z.number();
+  return z.union([z.number(), z.string()]).transform((v, ctx) => {
+    if (typeof v === 'number') return v;
+    const r = parseQuantity(v, kind, '');
+    if (!r.ok) {
+      ctx.addIssue({ code: 'custom', message: r.message });
+      return z.NEVER;
+    }
+    return r.value;
+  });
+}
+
+function tolerance(mode: Mode) {
+  if (mode === 'strict') return z.number();
+  return z.union([z.number(), z.string()]).transform((v, ctx) => {
+    if (typeof v === 'number') return v;
+    const r = parseTolerance(v, '');
+    if (!r.ok) {
+      ctx.addIssue({ code: 'custom', message: r.message });
+      return z.NEVER;
+    }
+    return r.value;
+  });
+}
+
+const idSchema = z.string().min(1, 'id must not be empty').max(200, 'id is longer than 200 characters');
+const nameSchema = z.string().max(500, 'name is longer than 500 characters');
+
+function requirementsShape(mode: Mode) {
+  const imp = mode === 'import';
+  const source = z.looseObject({
+    id: idSchema,
+    name: nameSchema,
+    vNom: quantity('voltage', mode),
+    vMin: quantity('voltage', mode),
+    vMax: quantity('voltage', mode),
+    currentLimit: quantity('current', mode),
+  });
+  const domain = z.looseObject({
+    id: idSchema,
+    name: nameSchema,
+    isolation: z.enum(ISOLATION_CLASSES as [string, ...string[]]),
+    workingVoltage: quantity('voltage', mode),
+  });
+  const opMode = z.looseObject({
+    id: idSchema,
+    name: nameSchema,
+    share: quantity('ratio', mode),
+  });
+  const load = z.looseObject({
+    id: idSchema,
+    name: nameSchema,
+    domainId: idSchema,
+    voltage: quantity('voltage', mode),
+    tolerance: tolerance(mode),
+    current: z.record(z.string(), quantity('current', mode)),
+    rippleLimit: quantity('voltage', mode),
+    noiseClass: imp
+      ? z.enum(NOISE_CLASSES as [string, ...string[]]).default('standard')
+      : z.enum(NOISE_CLASSES as [string, ...string[]]),
+    railKey: z.string().max(200).optional(),
+  });
+  const limitsFields = {
+    ambient: quantity('temperature', mode),
+    tjMax: quantity('temperature', mode),
+    tjMargin: quantity('temperature', mode),
+    ceramicDerating: quantity('ratio', mode),
+    electrolyticDerating: quantity('ratio', mode),
+    powerDerating: quantity('ratio', mode),
+  };
+  const prefFields = {
+    weights: z.strictObject({ loss: z.number(), cost: z.number(), parts: z.number() }),
+    maxSecondaries: z.number().int(),
+    allowedKinds: z.array(z.enum(STAGE_KINDS as [string, ...string[]])),
+    switchingFrequency: quantity('frequency', mode),
+    budgetMs: z.number(),
+  };
+  return {
+    meta: z.looseObject({
+      name: nameSchema,
+      description: imp ? z.string().max(20_000).default('') : z.string().max(20_000),
+      revision: imp ? z.number().int().min(0).default(0) : z.number().int().min(0),
+    }),
+    sources: z.array(source),
+    domains: z.array(domain),
+    modes: z.array(opMode),
+    loads: z.array(load),
+    // On import, missing limits or preferences take the defaults field by field.
+    limits: imp ? z.looseObject(limitsFields).partial().default({}) : z.looseObject(limitsFields),
+    preferences: imp ? z.looseObject(prefFields).partial().default({}) : z.looseObject(prefFields),
+  };
+}
+
+const planSchema = z.strictObject({
+  revision: z.number().int().min(0),
+  computedAt: z.string(),
+  result: z.looseObject({
+    revision: z.number().int().min(0),
+    rails: z.array(z.unknown()),
+    best: z.unknown(),
+    alternatives: z.array(z.unknown()),
+    infeasible: z.array(z.unknown()),
+    stats: z.looseObject({}),
+  }),
+});
+
+const libraryRowSchema = z.strictObject({
+  id: idSchema,
+  partClass: z.string().min(1, 'part class must not be empty'),
+  name: nameSchema,
+  cost: z.number().min(0, 'cost must not be negative'),
+  params: z.record(z.string(), z.unknown()),
+});
+
+function documentSchema() {
+  const r = requirementsShape('import');
+  return z.strictObject({
+    format: z.literal(FORMAT_TAG, { error: `format must be "${FORMAT_TAG}"` }),
+    version: z.number().int().min(1).max(FORMAT_VERSION, {
+      error: `format version is newer than this program understands (${FORMAT_VERSION}): made by a newer Railwright`,
+    }),
+    meta: r.meta.extend({ created: z.string().optional(), modified: z.string().optional() }),
+    sources: r.sources,
+    domains: r.domains,
+    modes: r.modes,
+    loads: r.loads,
+    limits: r.limits,
+    preferences: r.preferences,
+    plan: planSchema.optional(),
+    library: z.array(libraryRowSchema).optional(),
+  });
+}
+
+const strictRequirements = z.strictObject(requirementsShape('strict'));
+let docSchemaCache: ReturnType<typeof documentSchema> | null = null;
+
+function describeInput(x: unknown): string {
+  if (x === undefined) return 'nothing';
+  if (x === null) return 'null';
+  if (typeof x === 'string') return `"${x.length > 40 ? x.slice(0, 40) + '…' : x}"`;
+  if (typeof x === 'number') return String(x);
+  if (Array.isArray(x)) return 'a list';
+  return `a ${typeof x}`;
+}
+
+/** zod issues → our problems, one per issue, with readable reasons. */
+function toProblems(issues: readonly z.core.$ZodIssue[]): Problem[] {
+  const out: Problem[] = [];
+  for (const is of issues) {
+    const path = formatPath(is.path);
+    const input = (is as { input?: unknown }).input;
+    let message = is.message;
+    if (is.code === 'invalid_type') {
+      message = input === undefined ? 'required field is missing' : `expected ${is.expected}, got ${describeInput(input)}`;
+    } else if (is.code === 'unrecognized_keys') {
+      for (const k of is.keys) out.push({ path: path ? `${path}.${k}` : k, message: 'unknown field' });
+      continue;
+    } else if (is.code === 'invalid_value') {
+      message = `${describeInput(input)} is not one of ${is.values.map((v) => JSON.stringify(v)).join(', ')}`;
+      if (is.path.length === 1 && is.path[0] === 'format') message = `not a Railwright project document (format must be "${FORMAT_TAG}")`;
+    } else if (is.code === 'invalid_union') {
+      message = `expected a number or a text like "3V3", got ${describeInput(input)}`;
+    }
+    out.push({ path: path || '(document)', message });
+  }
+  return out;
+}
+
+/** Check that a value is a structurally sound Requirements in SI numbers (for the store). */
+export function checkRequirementsShape(value: unknown): Problem[] {
+  const r = strictRequirements.safeParse(value, { reportInput: true });
+  if (r.success) return [];
+  // Extra fields on the entities are allowed (additive model changes); the top level is strict.
+  return toProblems(r.error.issues);
+}
+
+export type ImportResult =
+  | { ok: true; doc: ProjectDocument; problems: Problem[] }
+  | { ok: false; problems: Problem[] };
+
+/**
+ * Import a project document from JSON text. Structural problems (bad JSON, wrong types,
+ * unreadable quantities) make the import fail with every problem listed; a structurally
+ * sound document is returned with the semantic problems of validate.ts in `problems`.
+ */
+export function importProjectJson(text: string): ImportResult {
+  let data: unknown;
+  try {
+    data = JSON.parse(text);
+  } catch (e) {
+    return { ok: false, problems: [{ path: '(document)', message: `not valid JSON: ${(e as Error).message}` }] };
+  }
+  return importProjectValue(data);
+}
+
+export function importProjectValue(data: unknown): ImportResult {
+  if (typeof data !== 'object' || data === null || Array.isArray(data)) {
+    return { ok: false, problems: [{ path: '(document)', message: 'expected a JSON object' }] };
+  }
+  docSchemaCache ??= documentSchema();
+  const r = docSchemaCache.safeParse(data, { reportInput: true });
+  if (!r.success) return { ok: false, problems: toProblems(r.error.issues) };
+  const d = r.data;
+  const { created, modified, ...metaRest } = d.meta;
+  const requirements = {
+    meta: metaRest,
+    sources: d.sources,
+    domains: d.domains,
+    modes: d.modes,
+    loads: d.loads.map((l) => {
+      const { railKey, ...rest } = l;
+      return railKey === undefined ? rest : { ...rest, railKey };
+    }),
+    limits: { ...DEFAULT_LIMITS, ...d.limits },
+    preferences: { ...DEFAULT_PREFERENCES, ...d.preferences },
+  } as unknown as Requirements;
+  const doc: ProjectDocument = { requirements };
+  if (created !== undefined) doc.created = created;
+  if (modified !== undefined) doc.modified = modified;
+  if (d.plan) doc.plan = d.plan as unknown as StoredPlan;
+  if (d.library) doc.library = d.library as PartLibraryRow[];
+  return { ok: true, doc, problems: validateRequirements(requirements) };
+}
+
+/** The JSON value of a project document (SI numbers, stable key order). */
+export function exportProjectValue(doc: ProjectDocument): Record<string, unknown> {
+  const r = doc.requirements;
+  const meta: Record<string, unknown> = { ...r.meta };
+  if (doc.created !== undefined) meta.created = doc.created;
+  if (doc.modified !== undefined) meta.modified = doc.modified;
+  const out: Record<string, unknown> = {
+    format: FORMAT_TAG,
+    version: FORMAT_VERSION,
+    meta,
+    sources: r.sources,
+    domains: r.domains,
+    modes: r.modes,
+    loads: r.loads,
+    limits: r.limits,
+    preferences: r.preferences,
+  };
+  if (doc.plan) out.plan = doc.plan;
+  if (doc.library) out.library = doc.library;
+  return out;
+}
+
+export function exportProjectJson(doc: ProjectDocument): string {
+  return JSON.stringify(exportProjectValue(doc), null, 2) + '\n';
+}
+
+/** Check a stored plan ({ revision, computedAt, result }) before the store keeps it. */
+export function checkPlanShape(value: unknown): Problem[] {
+  const r = planSchema.safeParse(value, { reportInput: true });
+  return r.success ? [] : toProblems(r.error.issues).map((p) => ({ ...p, path: `plan.${p.path}` }));
+}
+
+/** Check part library rows (shape and unique ids) before the store keeps them. */
+export function checkLibraryShape(value: unknown): Problem[] {
+  const r = z.array(libraryRowSchema).safeParse(value, { reportInput: true });
+  if (!r.success) return toProblems(r.error.issues).map((p) => ({ ...p, path: `library${p.path.startsWith('[') ? '' : '.'}${p.path}` }));
+  const seen = new Set<string>();
+  const out: Problem[] = [];
+  r.data.forEach((row, i) => {
+    if (seen.has(row.id)) out.push({ path: `library[${i}].id`, message: `part id "${row.id}" is used twice` });
+    seen.add(row.id);
+  });
+  return out;
+}

@@ -1,0 +1,500 @@
+/**
+ * The project store. A project file (extension PROJECT_EXTENSION) is one SQLite database.
+ * The open document lives in an in-memory database; Save writes a complete, self-contained
+ * copy to a temporary file in the target's folder, flushes it to disk and renames it over
+ * the target in one step, so a crash during a save leaves the previous saved state intact
+ * and no side files are ever needed. Open reads the file's bytes and checks them without
+ * writing: the file on disk changes only on Save.
+ */
+import Database from 'better-sqlite3';
+import {
+  closeSync, fsyncSync, openSync, readFileSync, renameSync, statSync, unlinkSync, writeSync,
+} from 'node:fs';
+import { basename, dirname, join } from 'node:path';
+import { PROJECT_EXTENSION } from '../../electron.config.ts';
+import {
+  DEFAULT_LIMITS, DEFAULT_PREFERENCES, type PartLibraryRow, type Requirements,
+} from '../engine/model.ts';
+import type { PlanResult } from '../engine/plan-types.ts';
+import type { Problem } from '../engine/validate.ts';
+import {
+  checkLibraryShape, checkPlanShape, checkRequirementsShape, type ProjectDocument, type StoredPlan,
+} from './json-format.ts';
+import { APPLICATION_ID, expectedTables, migrate, schemaVersion, userVersion } from './migrations.ts';
+
+export { PROJECT_EXTENSION, APPLICATION_ID };
+
+export type OpenErrorKind =
+  | 'not-found' | 'not-a-file' | 'unreadable' | 'too-large' | 'empty' | 'not-sqlite'
+  | 'truncated' | 'corrupt' | 'foreign' | 'newer' | 'incomplete';
+
+/** Why a file cannot be opened: one kind and one clear sentence. The file is untouched. */
+export class OpenError extends Error {
+  constructor(readonly kind: OpenErrorKind, message: string, readonly path: string) {
+    super(message);
+    this.name = 'OpenError';
+  }
+}
+
+/** Bad input to the store (wrong shape, no file name): nothing was changed. */
+export class StoreError extends Error {
+  constructor(message: string, readonly problems: Problem[] = []) {
+    super(problems.length ? `${message}: ${problems.map((p) => `${p.path}: ${p.message}`).join('; ')}` : message);
+    this.name = 'StoreError';
+  }
+}
+
+export interface StoreOptions {
+  /** Clock for created/modified/computed times (tests pass a fixed one). */
+  clock?: () => Date;
+}
+
+/** A saved plan result as the store returns it. */
+export interface SavedPlan extends StoredPlan {
+  /** True when the requirements have changed since the plan was computed. */
+  stale: boolean;
+}
+
+/** Largest project file we read (far above any real project). */
+const MAX_FILE_BYTES = 1024 * 1024 * 1024;
+const SQLITE_MAGIC = Buffer.from('SQLite format 3\0', 'latin1');
+
+/** The starting content of a new project: one source, one domain, one mode, no loads. */
+export function newRequirements(): Requirements {
+  return {
+    meta: { name: 'Untitled project', description: '', revision: 0 },
+    sources: [{ id: 'src-1', name: 'Input', vNom: 12, vMin: 10.8, vMax: 13.2, currentLimit: 1 } as Requirements['sources'][number]],
+    domains: [{ id: 'dom-1', name: 'Main', isolation: 'none', workingVoltage: 0 } as Requirements['domains'][number]],
+    modes: [{ id: 'mode-1', name: 'Run', share: 1 } as Requirements['modes'][number]],
+    loads: [],
+    limits: { ...DEFAULT_LIMITS },
+    preferences: { ...DEFAULT_PREFERENCES, weights: { ...DEFAULT_PREFERENCES.weights }, allowedKinds: [...DEFAULT_PREFERENCES.allowedKinds] },
+  };
+}
+
+type Row = Record<string, unknown>;
+
+function parseJson(text: unknown, where: string): unknown {
+  try {
+    return JSON.parse(String(text));
+  } catch {
+    throw new Error(`damaged value in ${where}`);
+  }
+}
+
+/** Known fields first (in model order), then the extras kept from newer model versions. */
+function withExtra(known: Row, extraText: unknown, where: string): Row {
+  const extra = parseJson(extraText, where) as Row;
+  return { ...known, ...extra, ...known };
+}
+
+function splitExtra(obj: Row, known: readonly string[]): string {
+  const extra: Row = {};
+  for (const [k, v] of Object.entries(obj)) if (!known.includes(k) && v !== undefined) extra[k] = v;
+  return JSON.stringify(extra);
+}
+
+let saveCounter = 0;
+
+export class ProjectStore {
+  private db: Database.Database;
+  private filePath: string | null;
+  private isDirty = false;
+  private readonly clock: () => Date;
+
+  private constructor(db: Database.Database, path: string | null, opts: StoreOptions) {
+    this.db = db;
+    this.filePath = path;
+    this.clock = opts.clock ?? (() => new Date());
+  }
+
+  /** A new, unsaved project in memory. */
+  static create(opts: StoreOptions = {}): ProjectStore {
+    const db = new Database(':memory:');
+    const store = new ProjectStore(db, null, opts);
+    migrate(db, { now: store.clock });
+    const now = store.clock().toISOString();
+    store.writeRequirements(newRequirements(), 0);
+    store.setMetaValue('created', now);
+    store.setMetaValue('modified', now);
+    return store;
+  }
+
+  /** A new, unsaved project holding a whole document (JSON import, demo). */
+  static fromDocument(doc: ProjectDocument, opts: StoreOptions = {}): ProjectStore {
+    const store = ProjectStore.create(opts);
+    try {
+      store.setRequirements(doc.requirements, { keepRevision: true });
+      if (doc.created !== undefined) store.setMetaValue('created', doc.created);
+      if (doc.modified !== undefined) store.setMetaValue('modified', doc.modified);
+      if (doc.plan) store.setPlanResult(doc.plan.result, doc.plan.computedAt);
+      store.setLibrary(doc.library ?? []);
+    } catch (e) {
+      store.close();
+      throw e;
+    }
+    store.isDirty = true;
+    return store;
+  }
+
+  /**
+   * Open a project file. Checks it without writing (exists, readable, SQLite header, ours,
+   * not newer, intact, required tables); an older schema is migrated in memory only.
+   * Throws OpenError with one clear message.
+   */
+  static open(path: string, opts: StoreOptions = {}): ProjectStore {
+    const bytes = readProjectBytes(path);
+    return ProjectStore.fromBytes(bytes, path, opts);
+  }
+
+  /** Open a project from the bytes of a project file (recovery copies use this). */
+  static fromBytes(bytes: Buffer, path: string | null, opts: StoreOptions = {}, shownAs = path ?? 'the data'): ProjectStore {
+    checkHeader(bytes, shownAs);
+    let db: Database.Database;
+    try {
+      db = new Database(bytes);
+    } catch (e) {
+      throw new OpenError('corrupt', `${shownAs} is damaged and cannot be read (${(e as Error).message})`, shownAs);
+    }
+    try {
+      let check: unknown;
+      try {
+        check = db.pragma('quick_check', { simple: true });
+      } catch (e) {
+        throw new OpenError('corrupt', `${shownAs} is damaged and cannot be read (${(e as Error).message})`, shownAs);
+      }
+      if (check !== 'ok') throw new OpenError('corrupt', `${shownAs} is damaged: the database integrity check failed (${String(check)})`, shownAs);
+      const version = userVersion(db);
+      const tables = new Set((db.prepare("SELECT name FROM sqlite_master WHERE type = 'table'").all() as { name: string }[]).map((r) => r.name));
+      const missing = expectedTables(version).filter((t) => !tables.has(t));
+      if (missing.length) {
+        throw new OpenError('incomplete', `${shownAs} is not a complete Railwright project: table ${missing.join(', ')} is missing`, shownAs);
+      }
+      const store = new ProjectStore(db, path, opts);
+      if (version < schemaVersion()) migrate(db, { now: store.clock });
+      try {
+        store.getRequirements();
+        store.getPlanResult();
+        store.getLibrary();
+      } catch (e) {
+        throw new OpenError('corrupt', `${shownAs} is damaged: ${(e as Error).message}`, shownAs);
+      }
+      return store;
+    } catch (e) {
+      db.close();
+      throw e;
+    }
+  }
+
+  get path(): string | null {
+    return this.filePath;
+  }
+
+  /** True when the document has changes not yet saved. */
+  get dirty(): boolean {
+    return this.isDirty;
+  }
+
+  get revision(): number {
+    return Number(this.getMetaValue('revision') ?? 0);
+  }
+
+  get created(): string {
+    return String(this.getMetaValue('created') ?? '');
+  }
+
+  get modified(): string {
+    return String(this.getMetaValue('modified') ?? '');
+  }
+
+  /** Schema version of the open document (after any in-memory migration). */
+  get schemaVersion(): number {
+    return userVersion(this.db);
+  }
+
+  private getMetaValue(key: string): unknown {
+    const row = this.db.prepare('SELECT value FROM meta WHERE key = ?').get(key) as { value: string } | undefined;
+    return row ? parseJson(row.value, `meta.${key}`) : undefined;
+  }
+
+  private setMetaValue(key: string, value: unknown): void {
+    this.db.prepare('INSERT INTO meta (key, value) VALUES (?, ?) ON CONFLICT(key) DO UPDATE SET value = excluded.value')
+      .run(key, JSON.stringify(value));
+  }
+
+  getRequirements(): Requirements {
+    const db = this.db;
+    const metaRows = db.prepare('SELECT key, value FROM meta ORDER BY rowid').all() as { key: string; value: string }[];
+    const meta: Row = { name: '', description: '', revision: 0 };
+    for (const r of metaRows) {
+      if (r.key === 'created' || r.key === 'modified') continue;
+      meta[r.key] = parseJson(r.value, `meta.${r.key}`);
+    }
+    const sources = (db.prepare('SELECT * FROM sources ORDER BY pos').all() as Row[]).map((r) => withExtra({
+      id: r.id, name: r.name, vNom: r.v_nom, vMin: r.v_min, vMax: r.v_max, currentLimit: r.current_limit,
+    }, r.extra, `source ${String(r.id)}`));
+    const domains = (db.prepare('SELECT * FROM domains ORDER BY pos').all() as Row[]).map((r) => withExtra({
+      id: r.id, name: r.name, isolation: r.isolation, workingVoltage: r.working_voltage,
+    }, r.extra, `domain ${String(r.id)}`));
+    const modes = (db.prepare('SELECT * FROM modes ORDER BY pos').all() as Row[]).map((r) => withExtra({
+      id: r.id, name: r.name, share: r.share,
+    }, r.extra, `mode ${String(r.id)}`));
+    const currents = new Map<string, Row>();
+    for (const c of db.prepare('SELECT load_id, mode_id, current FROM load_currents ORDER BY load_id, pos').all() as Row[]) {
+      const id = String(c.load_id);
+      let m = currents.get(id);
+      if (!m) currents.set(id, (m = {}));
+      m[String(c.mode_id)] = c.current;
+    }
+    const loads = (db.prepare('SELECT * FROM loads ORDER BY pos').all() as Row[]).map((r) => {
+      const known: Row = {
+        id: r.id, name: r.name, domainId: r.domain_id, voltage: r.voltage, tolerance: r.tolerance,
+        current: currents.get(String(r.id)) ?? {}, rippleLimit: r.ripple_limit, noiseClass: r.noise_class,
+      };
+      if (r.rail_key !== null) known.railKey = r.rail_key;
+      return withExtra(known, r.extra, `load ${String(r.id)}`);
+    });
+    const kv = (table: 'limits' | 'preferences') => {
+      const o: Row = {};
+      for (const r of db.prepare(`SELECT key, value FROM ${table} ORDER BY rowid`).all() as { key: string; value: string }[]) {
+        o[r.key] = parseJson(r.value, `${table}.${r.key}`);
+      }
+      return o;
+    };
+    return {
+      meta, sources, domains, modes, loads, limits: kv('limits'), preferences: kv('preferences'),
+    } as unknown as Requirements;
+  }
+
+  /**
+   * Replace the requirements. Refuses (StoreError, nothing changed) a value of the wrong
+   * shape; semantic problems are allowed (a design in progress) and reported by
+   * validateRequirements. Bumps the revision when anything changed, unless `keepRevision`
+   * (import) takes the revision from the value. Returns the revision.
+   */
+  setRequirements(req: Requirements, opts: { keepRevision?: boolean } = {}): number {
+    const problems = checkRequirementsShape(req);
+    if (problems.length) throw new StoreError('requirements refused', problems);
+    const current = this.getRequirements();
+    const strip = (r: Requirements) => JSON.stringify({ ...r, meta: { ...r.meta, revision: 0 } });
+    if (opts.keepRevision) {
+      if (strip(current) === strip(req) && current.meta.revision === req.meta.revision) return req.meta.revision;
+      this.writeRequirements(req, req.meta.revision);
+    } else {
+      if (strip(current) === strip(req)) return current.meta.revision;
+      this.writeRequirements(req, current.meta.revision + 1);
+    }
+    this.isDirty = true;
+    return this.revision;
+  }
+
+  private writeRequirements(req: Requirements, revision: number): void {
+    const db = this.db;
+    db.transaction(() => {
+      for (const t of ['sources', 'domains', 'modes', 'load_currents', 'loads', 'limits', 'preferences']) db.exec(`DELETE FROM ${t}`);
+      db.exec("DELETE FROM meta WHERE key NOT IN ('created', 'modified')");
+      for (const [k, v] of Object.entries({ ...req.meta, revision })) {
+        if (k === 'created' || k === 'modified' || v === undefined) continue;
+        this.setMetaValue(k, v);
+      }
+      const insS = db.prepare('INSERT INTO sources (id, pos, name, v_nom, v_min, v_max, current_limit, extra) VALUES (?, ?, ?, ?, ?, ?, ?, ?)');
+      req.sources.forEach((s, i) => insS.run(s.id, i, s.name, s.vNom, s.vMin, s.vMax, s.currentLimit,
+        splitExtra(s as unknown as Row, ['id', 'name', 'vNom', 'vMin', 'vMax', 'currentLimit'])));
+      const insD = db.prepare('INSERT INTO domains (id, pos, name, isolation, working_voltage, extra) VALUES (?, ?, ?, ?, ?, ?)');
+      req.domains.forEach((d, i) => insD.run(d.id, i, d.name, d.isolation, d.workingVoltage,
+        splitExtra(d as unknown as Row, ['id', 'name', 'isolation', 'workingVoltage'])));
+      const insM = db.prepare('INSERT INTO modes (id, pos, name, share, extra) VALUES (?, ?, ?, ?, ?)');
+      req.modes.forEach((m, i) => insM.run(m.id, i, m.name, m.share, splitExtra(m as unknown as Row, ['id', 'name', 'share'])));
+      const insL = db.prepare(`INSERT INTO loads (id, pos, name, domain_id, voltage, tolerance, ripple_limit, noise_class, rail_key, extra)
+        VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`);
+      const insC = db.prepare('INSERT INTO load_currents (load_id, mode_id, pos, current) VALUES (?, ?, ?, ?)');
+      req.loads.forEach((l, i) => {
+        insL.run(l.id, i, l.name, l.domainId, l.voltage, l.tolerance, l.rippleLimit, l.noiseClass, l.railKey ?? null,
+          splitExtra(l as unknown as Row, ['id', 'name', 'domainId', 'voltage', 'tolerance', 'current', 'rippleLimit', 'noiseClass', 'railKey']));
+        Object.entries(l.current).forEach(([mode, a], j) => insC.run(l.id, mode, j, a));
+      });
+      const insLim = db.prepare('INSERT INTO limits (key, value) VALUES (?, ?)');
+      for (const [k, v] of Object.entries(req.limits)) if (v !== undefined) insLim.run(k, JSON.stringify(v));
+      const insP = db.prepare('INSERT INTO preferences (key, value) VALUES (?, ?)');
+      for (const [k, v] of Object.entries(req.preferences)) if (v !== undefined) insP.run(k, JSON.stringify(v));
+    })();
+  }
+
+  /** The saved plan result, marked stale when the requirements moved on; null if none. */
+  getPlanResult(): SavedPlan | null {
+    const row = this.db.prepare('SELECT revision, computed_at, result FROM plan_results WHERE slot = 1').get() as
+      { revision: number; computed_at: string; result: string } | undefined;
+    if (!row) return null;
+    const result = parseJson(row.result, 'plan result') as PlanResult;
+    return { revision: row.revision, computedAt: row.computed_at, result, stale: row.revision !== this.revision };
+  }
+
+  /** Save a plan result; it remembers `result.revision`, the requirements it was made from. */
+  setPlanResult(result: PlanResult, computedAt: string = this.clock().toISOString()): void {
+    const problems = checkPlanShape({ revision: result?.revision, computedAt, result });
+    if (problems.length) throw new StoreError('plan result refused', problems);
+    this.db.prepare(`INSERT INTO plan_results (slot, revision, computed_at, result) VALUES (1, ?, ?, ?)
+      ON CONFLICT(slot) DO UPDATE SET revision = excluded.revision, computed_at = excluded.computed_at, result = excluded.result`)
+      .run(result.revision, computedAt, JSON.stringify(result));
+    this.isDirty = true;
+  }
+
+  clearPlanResult(): void {
+    if (this.db.prepare('DELETE FROM plan_results').run().changes > 0) this.isDirty = true;
+  }
+
+  getLibrary(): PartLibraryRow[] {
+    return (this.db.prepare('SELECT id, part_class, name, cost, params FROM part_library ORDER BY pos').all() as Row[]).map((r) => ({
+      id: String(r.id), partClass: String(r.part_class), name: String(r.name), cost: Number(r.cost),
+      params: parseJson(r.params, `part library row ${String(r.id)}`) as Record<string, unknown>,
+    }));
+  }
+
+  /** Replace the project's part library (ids unique; params kept verbatim). */
+  setLibrary(rows: PartLibraryRow[]): void {
+    const problems = checkLibraryShape(rows);
+    if (problems.length) throw new StoreError('part library refused', problems);
+    const before = JSON.stringify(this.getLibrary());
+    if (before === JSON.stringify(rows)) return;
+    const db = this.db;
+    db.transaction(() => {
+      db.exec('DELETE FROM part_library');
+      const ins = db.prepare('INSERT INTO part_library (id, pos, part_class, name, cost, params) VALUES (?, ?, ?, ?, ?, ?)');
+      rows.forEach((r, i) => ins.run(r.id, i, r.partClass, r.name, r.cost, JSON.stringify(r.params)));
+    })();
+    this.isDirty = true;
+  }
+
+  /** The whole project as plain data (for JSON export). */
+  toDocument(): ProjectDocument {
+    const doc: ProjectDocument = {
+      requirements: this.getRequirements(),
+      created: this.created,
+      modified: this.modified,
+      library: this.getLibrary(),
+    };
+    const plan = this.getPlanResult();
+    if (plan) doc.plan = { revision: plan.revision, computedAt: plan.computedAt, result: plan.result };
+    return doc;
+  }
+
+  /** A complete project file image of the working copy (recovery uses it). */
+  serialize(): Buffer {
+    return this.db.serialize();
+  }
+
+  /**
+   * Write the project to `path` (Save As) or to its own path (Save). The bytes go to a
+   * temporary file in the same folder, are flushed to disk, and replace the target by an
+   * atomic rename; on any failure the previous file is untouched and the temp is removed.
+   */
+  save(path?: string): void {
+    const target = path ?? this.filePath;
+    if (!target) throw new StoreError('the project has no file name yet: choose one (Save As)');
+    const prevModified = this.getMetaValue('modified');
+    this.setMetaValue('modified', this.clock().toISOString());
+    let bytes: Buffer;
+    try {
+      bytes = this.db.serialize();
+      writeFileAtomic(target, bytes);
+    } catch (e) {
+      this.setMetaValue('modified', prevModified);
+      throw new StoreError(`could not save to ${target}: ${(e as Error).message}`);
+    }
+    this.filePath = target;
+    this.isDirty = false;
+  }
+
+  close(): void {
+    if (this.db.open) this.db.close();
+  }
+}
+
+/**
+ * Write bytes to `target` so that readers see either the old file or the complete new one:
+ * temp file in the same folder (same file system), fsync, rename, fsync the folder.
+ */
+export function writeFileAtomic(target: string, bytes: Uint8Array): void {
+  const dir = dirname(target);
+  const tmp = join(dir, `.${basename(target)}.${process.pid}-${++saveCounter}.saving`);
+  let fd: number | null = null;
+  try {
+    fd = openSync(tmp, 'wx', 0o644);
+    let off = 0;
+    while (off < bytes.length) off += writeSync(fd, bytes, off, bytes.length - off);
+    fsyncSync(fd);
+    closeSync(fd);
+    fd = null;
+    renameSync(tmp, target);
+  } catch (e) {
+    if (fd !== null) try { closeSync(fd); } catch { /* already failing */ }
+    try { unlinkSync(tmp); } catch { /* not created */ }
+    throw e;
+  }
+  // Make the rename itself durable where the platform allows syncing a directory.
+  try {
+    const dfd = openSync(dir, 'r');
+    try { fsyncSync(dfd); } finally { closeSync(dfd); }
+  } catch { /* not supported here (e.g. Windows); the rename is still atomic */ }
+}
+
+/** Read a project file's bytes, refusing what cannot be a project. Never writes. */
+export function readProjectBytes(path: string): Buffer {
+  let st;
+  try {
+    st = statSync(path);
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    if (code === 'ENOENT' || code === 'ENOTDIR') throw new OpenError('not-found', `${path} does not exist`, path);
+    throw new OpenError('unreadable', `${path} cannot be read (${code ?? (e as Error).message})`, path);
+  }
+  if (!st.isFile()) throw new OpenError('not-a-file', `${path} is not a file`, path);
+  if (st.size > MAX_FILE_BYTES) throw new OpenError('too-large', `${path} is larger than 1 GiB: not a Railwright project`, path);
+  try {
+    return readFileSync(path);
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new OpenError('unreadable', `${path} cannot be read (${code ?? (e as Error).message})`, path);
+  }
+}
+
+/** Check the 100-byte SQLite header (file format, application id, schema version). */
+function checkHeader(b: Buffer, shown: string): void {
+  if (b.length === 0) throw new OpenError('empty', `${shown} is empty (0 bytes): not a Railwright project`, shown);
+  const magicLen = Math.min(b.length, SQLITE_MAGIC.length);
+  if (!b.subarray(0, magicLen).equals(SQLITE_MAGIC.subarray(0, magicLen))) {
+    throw new OpenError('not-sqlite', `${shown} is not a Railwright project (not an SQLite database file)`, shown);
+  }
+  if (b.length < 100) throw new OpenError('truncated', `${shown} is truncated (${b.length} bytes): the file is incomplete`, shown);
+  const rawPage = b.readUInt16BE(16);
+  const pageSize = rawPage === 1 ? 65536 : rawPage;
+  if (pageSize < 512 || (pageSize & (pageSize - 1)) !== 0) {
+    throw new OpenError('corrupt', `${shown} is damaged (invalid page size ${rawPage} in the header)`, shown);
+  }
+  const appId = b.readUInt32BE(68);
+  if (appId !== APPLICATION_ID) {
+    throw new OpenError('foreign', `${shown} is an SQLite database of another program, not a Railwright project`, shown);
+  }
+  const version = b.readUInt32BE(60);
+  const ours = schemaVersion();
+  if (version > ours) {
+    throw new OpenError('newer', `${shown} was made by a newer Railwright (file schema ${version}, this program reads up to ${ours}); update Railwright to open it`, shown);
+  }
+  if (version < 1) throw new OpenError('incomplete', `${shown} is not a complete Railwright project (no schema)`, shown);
+  if (b.length % pageSize !== 0) {
+    throw new OpenError('truncated', `${shown} is truncated (${b.length} bytes is not a whole number of ${pageSize}-byte pages)`, shown);
+  }
+  // The in-header page count is valid when the change counter matches "version valid for".
+  const pages = b.readUInt32BE(28);
+  if (b.readUInt32BE(24) === b.readUInt32BE(92) && pages > 0 && pages * pageSize > b.length) {
+    throw new OpenError('truncated', `${shown} is truncated (${b.length} of ${pages * pageSize} bytes)`, shown);
+  }
+  if (b[18] === 2 || b[19] === 2) {
+    throw new OpenError('corrupt', `${shown} is in write-ahead-log mode, which Railwright never writes; it may depend on a side file`, shown);
+  }
+}
+
+/** Whether a path has the project file extension. */
+export function hasProjectExtension(path: string): boolean {
+  return path.toLowerCase().endsWith(PROJECT_EXTENSION);
+}
