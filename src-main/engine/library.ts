@@ -253,7 +253,8 @@ export function tableToRows(table: string[][]): { ok: true; rows: LibraryRow[] }
         if (eq <= 0) { problems.push({ row: i, field: 'params', message: `"${t}" is not key=value` }); continue; }
         const k = t.slice(0, eq).trim();
         const v = t.slice(eq + 1).trim();
-        params[k] = NUMERIC.test(v) ? Number(v) : v;
+        const spec = CLASS_PARAMS[get('class') as PartClass]?.find((q) => q.key === k);
+        params[k] = spec?.kind !== 'string' && NUMERIC.test(v) ? Number(v) : v;
       }
     }
     const note = col.cost_note! >= 0 ? get('cost_note') : '';

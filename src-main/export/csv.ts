@@ -61,6 +61,7 @@ export function readCsv(text: string): string[][] {
   let line = 1;
   let quoted = false;
   let fieldStarted = false;
+  let quoteLine = 1;
   const endField = () => { row.push(field); field = ''; fieldStarted = false; };
   const endRow = () => {
     endField();
@@ -86,6 +87,7 @@ export function readCsv(text: string): string[][] {
     if (c === '"') {
       if (fieldStarted || field !== '') throw new CsvError('quote inside an unquoted field', line);
       quoted = true;
+      quoteLine = line;
       fieldStarted = true;
       i++;
       continue;
@@ -97,7 +99,7 @@ export function readCsv(text: string): string[][] {
     fieldStarted = true;
     i++;
   }
-  if (quoted) throw new CsvError('a quoted field is not closed', line);
+  if (quoted) throw new CsvError('a quoted field opened here is not closed', quoteLine);
   if (field !== '' || row.length > 0) endRow();
   return rows;
 }
