@@ -1,4 +1,7 @@
 /** The command modules the CLI routes to, one per feature. */
 import type { CliCommand } from './command.ts';
+import { projectCommands } from './project.ts';
 
-export const commandModules: CliCommand[][] = [];
+export const commandModules: CliCommand[][] = [
+  projectCommands,
+];

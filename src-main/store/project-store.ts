@@ -405,6 +405,11 @@ export class ProjectStore {
     this.isDirty = false;
   }
 
+  /** Mark the document as changed (a restored recovery copy is unsaved work). */
+  markDirty(): void {
+    this.isDirty = true;
+  }
+
   close(): void {
     if (this.db.open) this.db.close();
   }

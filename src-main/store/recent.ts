@@ -1,0 +1,54 @@
+/**
+ * The recent-files list. It lives outside projects, in a small JSON file in a settings
+ * folder the host passes in. A missing or damaged list reads as empty; writes are atomic.
+ */
+import { mkdirSync, readFileSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import { writeFileAtomic } from './project-store.ts';
+
+export const RECENT_FILE = 'recent-files.json';
+export const RECENT_MAX = 10;
+
+export interface RecentEntry {
+  path: string;
+  /** ISO 8601 time the file was last opened or saved. */
+  openedAt: string;
+}
+
+/** Read the list, newest first. Never throws: a damaged list reads as empty. */
+export function readRecent(configDir: string): RecentEntry[] {
+  try {
+    const data = JSON.parse(readFileSync(join(configDir, RECENT_FILE), 'utf8')) as unknown;
+    const list = (data as { files?: unknown })?.files;
+    if (!Array.isArray(list)) return [];
+    return list.filter((e): e is RecentEntry =>
+      typeof e === 'object' && e !== null && typeof (e as RecentEntry).path === 'string' && typeof (e as RecentEntry).openedAt === 'string',
+    ).slice(0, RECENT_MAX);
+  } catch {
+    return [];
+  }
+}
+
+function write(configDir: string, list: RecentEntry[]): void {
+  mkdirSync(configDir, { recursive: true });
+  writeFileAtomic(join(configDir, RECENT_FILE), Buffer.from(JSON.stringify({ files: list }, null, 2) + '\n'));
+}
+
+/** Put `path` at the top of the list (absolute path, no duplicates, at most RECENT_MAX). */
+export function addRecent(configDir: string, path: string, now: Date = new Date()): RecentEntry[] {
+  const abs = resolve(path);
+  const list = [{ path: abs, openedAt: now.toISOString() }, ...readRecent(configDir).filter((e) => e.path !== abs)].slice(0, RECENT_MAX);
+  write(configDir, list);
+  return list;
+}
+
+export function removeRecent(configDir: string, path: string): RecentEntry[] {
+  const abs = resolve(path);
+  const list = readRecent(configDir).filter((e) => e.path !== abs);
+  write(configDir, list);
+  return list;
+}
+
+export function clearRecent(configDir: string): void {
+  write(configDir, []);
+}
