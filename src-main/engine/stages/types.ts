@@ -6,7 +6,7 @@
  * Changes here are additive only.
  */
 import type { Amps, Celsius, Hertz, KelvinPerWatt, Ratio, Volts, Watts } from '../units.ts';
-import type { Id, StageKind } from '../model.ts';
+import type { Id, IsolationClass, StageKind } from '../model.ts';
 
 /** One output the planner wants from a stage. */
 export interface OutputSpec {
@@ -37,6 +37,12 @@ export interface StageSpec {
   ambient: Celsius;
   tjMax: Celsius;
   ceramicDerating: Ratio;
+  /** Coupled-winding stages: most secondaries one magnetic may carry (default 3). */
+  maxSecondaries?: number;
+  /** Coupled-winding stages: coupling factor of the magnetic (default from stages/defaults.ts). */
+  coupling?: number;
+  /** Coupled-winding stages: the barrier the windings cross, carried onto the magnetic's spec. */
+  isolation?: { class: IsolationClass; workingVoltage: Volts } | null;
 }
 
 /** Severity `error` makes a stage infeasible; `warning` is shown but allowed. */
@@ -97,6 +103,8 @@ export interface OutputWindow {
   /** Which corner produced the min and the max, readable. */
   minCorner: string;
   maxCorner: string;
+  /** Seeded Monte Carlo spread, when asked for (uniform draws inside every tolerance). */
+  monteCarlo?: { min: Volts; max: Volts; runs: number; seed: number };
 }
 
 /** The operating point at which to evaluate: input voltage and each output's current. */

@@ -1,0 +1,271 @@
+/**
+ * Synchronous buck in continuous conduction (forced PWM).
+ * Equations: Erickson & Maksimović, *Fundamentals of Power Electronics* (duty from
+ * volt-second balance, inductor ripple, capacitor ripple, input-capacitor RMS); loss terms
+ * are common practice (DESIGN.md §4), each reported separately.
+ */
+import type { Amps, Celsius, Henries, Hertz, Ohms, Ratio, Volts, Watts } from '../units.ts';
+import type { OperatingPoint, OutputSpec, StageEvaluation, StageFlag, StageSpec } from './types.ts';
+import { bestDivider, nearest, type DividerChoice } from '../eseries.ts';
+import { GENERIC_DEFAULTS, diodeVf, type ControllerParams, type DiodeModel, type SwitchParams } from './defaults.ts';
+import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from './common.ts';
+
+export interface ThermalParams {
+  highSide: number;
+  lowSide: number;
+  controller: number;
+  inductor: number;
+}
+
+export interface BuckDesign {
+  kind: 'buck';
+  vinMin: Volts;
+  vinNom: Volts;
+  vinMax: Volts;
+  /** One output (index 0). */
+  outputs: OutputSpec[];
+  fsw: Hertz;
+  inductance: Henries;
+  /** Inductor winding resistance. */
+  dcr: Ohms;
+  /** Required saturation current (peak at Vin max, full load, with margin). */
+  isat: Amps;
+  /** κ of the labelled core-loss model P = κ·½·L·ΔI²·fsw. */
+  coreLossFraction: number;
+  cout: CapacitorChoice;
+  cin: CapacitorChoice;
+  divider: DividerChoice;
+  highSide: SwitchParams;
+  lowSide: SwitchParams;
+  /** Hot/cold Rds(on) ratio used for conduction losses. */
+  rdsHotFactor: number;
+  bodyDiode: DiodeModel;
+  controller: ControllerParams;
+  thetaJA: ThermalParams;
+  tjMax: Celsius;
+}
+
+/** Internal numbers of one buck operating point, shared with the netlist writer. */
+export interface BuckPoint {
+  vout: number;
+  io: number;
+  duty: number;
+  /** Share of the period taken by the two dead times. */
+  deadShare: number;
+  rhs: number;
+  rls: number;
+  ripple: number;
+  ipk: number;
+  ivalley: number;
+  irms: number;
+}
+
+export function buckPoint(d: BuckDesign, vin: number, io: number, vout = d.divider.vout): BuckPoint {
+  const rhs = d.highSide.rdsOn * d.rdsHotFactor;
+  const rls = d.lowSide.rdsOn * d.rdsHotFactor;
+  const deadShare = 2 * d.controller.deadTime * d.fsw;
+  const vfb = diodeVf(d.bodyDiode, Math.abs(io));
+  // Volt-second balance on L with the switch, dead-time and winding drops (averaged model):
+  // D·(Vin − Io·Rhs) − (1 − D − δ)·Io·Rls − δ·Vf = Vout + Io·DCR
+  const duty = (vout + io * d.dcr + (1 - deadShare) * io * rls + deadShare * vfb) / (vin - io * rhs + io * rls);
+  // ΔIL = (Vin − Vout)·D/(L·fsw)  [Erickson & Maksimović, ch. 2]
+  const ripple = ((vin - vout) * duty) / (d.inductance * d.fsw);
+  const irms = Math.sqrt(io * io + (ripple * ripple) / 12);
+  return { vout, io, duty, deadShare, rhs, rls, ripple, ipk: io + ripple / 2, ivalley: io - ripple / 2, irms };
+}
+
+export function evaluateBuck(d: BuckDesign, op: OperatingPoint): StageEvaluation {
+  const vin = op.vin as number;
+  const io = Math.max(0, (op.iout[0] ?? 0) as number);
+  const p = buckPoint(d, vin, io);
+  const { duty, deadShare, rhs, rls, ripple, irms } = p;
+  const vfb = diodeVf(d.bodyDiode, Math.max(Math.abs(p.ipk), Math.abs(p.ivalley)));
+  const fsw = d.fsw as number;
+  const td = d.controller.deadTime;
+  const icinRms = io * Math.sqrt(Math.max(0, duty * (1 - duty)));
+  const loss: Record<string, number> = {
+    'hs-conduction': irms * irms * rhs * duty,
+    'ls-conduction': irms * irms * rls * Math.max(0, 1 - duty - deadShare),
+    // ½·Vin·Io·(tr+tf)·fsw  [common practice]
+    'hs-switching': 0.5 * vin * io * (d.highSide.tr + d.highSide.tf) * fsw,
+    'output-capacitance': 0.5 * (d.highSide.coss + d.lowSide.coss) * vin * vin * fsw,
+    'dead-time': vfb * (Math.abs(p.ipk) + Math.abs(p.ivalley)) * td * fsw,
+    'gate-drive': (d.highSide.qg + d.lowSide.qg) * d.controller.vDrive * fsw,
+    'inductor-copper': irms * irms * d.dcr,
+    'inductor-core': d.coreLossFraction * 0.5 * d.inductance * ripple * ripple * fsw,
+    'output-capacitor-esr': ((ripple * ripple) / 12) * d.cout.esr,
+    'input-capacitor-esr': icinRms * icinRms * d.cin.esr,
+    quiescent: vin * d.controller.iq,
+  };
+  const lossTotal = Object.values(loss).reduce((a, b) => a + b, 0);
+  const pout = p.vout * io;
+  const pin = pout + lossTotal;
+  // ΔVout ≈ ΔIL·ESR + ΔIL/(8·fsw·C)  [Erickson & Maksimović]
+  const ripplePP = ripple * d.cout.esr + ripple / (8 * fsw * d.cout.effective);
+  const ta = op.ambient as number;
+  const parts = [
+    part('high-side switch', loss['hs-conduction']! + loss['hs-switching']! + loss['output-capacitance']! / 2, d.thetaJA.highSide, ta),
+    part('low-side switch', loss['ls-conduction']! + loss['dead-time']! + loss['output-capacitance']! / 2, d.thetaJA.lowSide, ta),
+    part('controller', loss['gate-drive']! + loss.quiescent!, d.thetaJA.controller, ta),
+    part('inductor', loss['inductor-copper']! + loss['inductor-core']!, d.thetaJA.inductor, ta),
+  ];
+  const outputs = [{ nodeId: d.outputs[0]!.nodeId, voltage: p.vout as Volts, current: io as Amps, ripplePP: ripplePP as Volts }];
+  const flags: StageFlag[] = [...switchingFlags(d, vin, duty, p.ipk, p.ivalley), ...thermalFlags(parts, d.tjMax), ...rippleFlags(outputs, d.outputs)];
+  return {
+    kind: 'buck',
+    vin: vin as Volts,
+    iin: (pin / vin) as Amps,
+    pin: pin as Watts,
+    pout: pout as Watts,
+    loss: lossTotal as Watts,
+    efficiency: (pin > 0 ? pout / pin : 0) as Ratio,
+    duty: duty as Ratio,
+    lossBreakdown: loss as Record<string, Watts>,
+    parts,
+    outputs,
+    flags,
+  };
+}
+
+/** On-time, duty, saturation and reverse-current checks at one point. */
+export function switchingFlags(
+  d: { fsw: Hertz; controller: ControllerParams; isat: Amps },
+  vin: number, duty: number, ipk: number, ineg: number,
+): StageFlag[] {
+  const out: StageFlag[] = [];
+  const ton = duty / d.fsw;
+  if (ton < d.controller.minOnTime) {
+    out.push(flag('min-on-time', 'error',
+      `on-time ${r3(ton * 1e9)} ns at Vin ${r3(vin)} V is below the controller's minimum ${r3(d.controller.minOnTime * 1e9)} ns: lower fsw or the input range`,
+      { onTime: ton, minOnTime: d.controller.minOnTime, vin }));
+  }
+  if (duty > d.controller.maxDuty || !(duty > 0)) {
+    out.push(flag('max-duty', 'error',
+      `duty ${r3(duty)} at Vin ${r3(vin)} V is outside 0…${d.controller.maxDuty} (maximum duty): the input is too low for this output`,
+      { duty, maxDuty: d.controller.maxDuty, vin }));
+  }
+  if (ipk > d.isat) {
+    out.push(flag('saturation', 'error', `peak current ${r3(ipk)} A exceeds the magnetic's saturation rating ${r3(d.isat)} A`, { ipk, isat: d.isat }));
+  }
+  if (ineg < -d.controller.negCurrentLimit) {
+    out.push(flag('negative-peak', 'error',
+      `low-side negative peak ${r3(ineg)} A is beyond the controller's limit −${r3(d.controller.negCurrentLimit)} A`,
+      { negativePeak: ineg, limit: -d.controller.negCurrentLimit }));
+  }
+  return out;
+}
+
+/** Validation shared by the designers: every number finite, the ranges ordered. */
+export function specErrors(spec: StageSpec): StageFlag[] {
+  const out: StageFlag[] = [];
+  const num = (name: string, v: unknown, positive: boolean) => {
+    if (typeof v !== 'number' || !Number.isFinite(v) || (positive && !(v > 0))) {
+      out.push(flag('bad-input', 'error', `${name}: must be a ${positive ? 'positive ' : ''}finite number (got ${String(v)})`, { field: name }));
+    }
+  };
+  num('vinMin', spec.vinMin, false);
+  num('vinNom', spec.vinNom, false);
+  num('vinMax', spec.vinMax, false);
+  num('fsw', spec.fsw, spec.kind !== 'ldo');
+  num('ambient', spec.ambient, false);
+  num('tjMax', spec.tjMax, false);
+  num('ceramicDerating', spec.ceramicDerating, true);
+  if (out.length === 0 && !(spec.vinMin <= spec.vinNom && spec.vinNom <= spec.vinMax)) {
+    out.push(flag('bad-input', 'error', `vinMin ≤ vinNom ≤ vinMax is required (got ${spec.vinMin}, ${spec.vinNom}, ${spec.vinMax})`, { field: 'vinNom' }));
+  }
+  if (out.length === 0 && spec.ceramicDerating > 1) {
+    out.push(flag('bad-input', 'error', `ceramicDerating: a share of the rating, 0…1 (got ${spec.ceramicDerating})`, { field: 'ceramicDerating' }));
+  }
+  if (!Array.isArray(spec.outputs) || spec.outputs.length === 0) {
+    out.push(flag('bad-input', 'error', 'outputs: at least one output is required', { field: 'outputs' }));
+    return out;
+  }
+  spec.outputs.forEach((o, i) => {
+    num(`outputs[${i}].voltage`, o.voltage, false);
+    num(`outputs[${i}].tolerance`, o.tolerance, true);
+    num(`outputs[${i}].currentMin`, o.currentMin, false);
+    num(`outputs[${i}].currentMax`, o.currentMax, false);
+    num(`outputs[${i}].rippleLimit`, o.rippleLimit, true);
+    if (typeof o.currentMin === 'number' && typeof o.currentMax === 'number' && (o.currentMin < 0 || o.currentMin > o.currentMax)) {
+      out.push(flag('bad-input', 'error', `outputs[${i}]: need 0 ≤ currentMin ≤ currentMax (got ${o.currentMin}, ${o.currentMax})`, { field: `outputs[${i}].currentMin` }));
+    }
+    if (o.voltage === 0) out.push(flag('bad-input', 'error', `outputs[${i}].voltage: must not be 0`, { field: `outputs[${i}].voltage` }));
+  });
+  return out;
+}
+
+export function designBuck(spec: StageSpec): { ok: true; design: BuckDesign; reasons: string[]; flags: StageFlag[] } | { ok: false; flags: StageFlag[] } {
+  const bad = specErrors(spec);
+  if (bad.length) return { ok: false, flags: bad };
+  if (spec.outputs.length !== 1) return { ok: false, flags: [flag('bad-input', 'error', `a buck has exactly one output (got ${spec.outputs.length})`, { field: 'outputs' })] };
+  const o = spec.outputs[0]!;
+  const vout = o.voltage as number;
+  const reasons: string[] = [];
+  if (!(vout > 0)) return { ok: false, flags: [flag('negative-output', 'error', `a buck makes a positive output; ${vout} V needs an inverting stage or a reversed winding`, { vout })] };
+  if (vout >= spec.vinMin) {
+    return { ok: false, flags: [flag('no-headroom', 'error', `output ${r3(vout)} V is not below the lowest input ${r3(spec.vinMin)} V`, { vout, vinMin: spec.vinMin })] };
+  }
+  const ctl: ControllerParams = { ...GENERIC_DEFAULTS.controller };
+  const divider = bestDivider(vout, ctl.vref);
+  if (!divider) return { ok: false, flags: [flag('below-reference', 'error', `output ${r3(vout)} V is not above the ${ctl.vref} V reference`, { vout, vref: ctl.vref })] };
+  reasons.push(`feedback divider ${divider.rTop} Ω / ${divider.rBottom} Ω (E96) gives ${r3(divider.vout)} V, error ${r3(divider.error * 100)} %`);
+  const fsw = spec.fsw as number;
+  const imax = Math.max(o.currentMax as number, 0.05);
+  const target = GENERIC_DEFAULTS.rippleTarget;
+  const dMax = vout / spec.vinMax;
+  const lCalc = ((spec.vinMax - vout) * dMax) / (target * imax * fsw);
+  const L = nearest('E12', lCalc);
+  reasons.push(`L = ${r3(L * 1e6)} µH (E12) for ${target * 100} % ripple of ${r3(imax)} A at Vin ${r3(spec.vinMax)} V (calculated ${r3(lCalc * 1e6)} µH)`);
+  const ripple = ((spec.vinMax - vout) * dMax) / (L * fsw);
+  const ipk = imax + ripple / 2;
+  const isat = ipk * (1 + GENERIC_DEFAULTS.saturationMargin);
+  const dcr = (GENERIC_DEFAULTS.inductorDcrCoeff * Math.sqrt(L / 1e-6)) / Math.sqrt(isat);
+  const rippleLimit = o.rippleLimit as number;
+  const esr = GENERIC_DEFAULTS.ceramicEsr;
+  const budget = Math.max(rippleLimit * 0.5 - ripple * esr, rippleLimit * 0.1);
+  // ΔV = ΔI/(8·fsw·C)  [Erickson & Maksimović] solved for C; at least 10 µF [common practice]
+  const coutNeed = Math.max(ripple / (8 * fsw * budget), 10e-6);
+  const cout = chooseCeramic('output', coutNeed, vout * (1 + o.tolerance), spec.ceramicDerating);
+  reasons.push(`output capacitor ${cout.count} × ${r3(cout.value * 1e6)} µF ${cout.ratedVoltage} V ceramic (${r3(cout.effective * 1e6)} µF left at ${r3(vout)} V) for half the ${r3(rippleLimit * 1e3)} mV ripple limit`);
+  // Cin ≥ Io·D(1−D)/(fsw·ΔVin) with D(1−D) ≤ ¼, ΔVin = 1 % of Vin min [common practice]
+  const cinNeed = Math.max((imax * 0.25) / (fsw * 0.01 * spec.vinMin), 1e-6);
+  const cin = chooseCeramic('input', cinNeed, spec.vinMax, spec.ceramicDerating);
+  const icinRms = imax * 0.5;
+  reasons.push(`input capacitor ${cin.count} × ${r3(cin.value * 1e6)} µF ${cin.ratedVoltage} V ceramic; RMS current up to ${r3(icinRms)} A (Io·√(D(1−D)))`);
+  const design: BuckDesign = {
+    kind: 'buck',
+    vinMin: spec.vinMin, vinNom: spec.vinNom, vinMax: spec.vinMax,
+    outputs: [{ ...o }],
+    fsw: spec.fsw,
+    inductance: L as Henries,
+    dcr: dcr as Ohms,
+    isat: isat as Amps,
+    coreLossFraction: GENERIC_DEFAULTS.coreLossFraction,
+    cout, cin, divider,
+    highSide: { ...GENERIC_DEFAULTS.highSide },
+    lowSide: { ...GENERIC_DEFAULTS.lowSide },
+    rdsHotFactor: GENERIC_DEFAULTS.rdsHotFactor,
+    bodyDiode: { ...GENERIC_DEFAULTS.bodyDiode },
+    controller: ctl,
+    thetaJA: { highSide: GENERIC_DEFAULTS.switchThetaJA, lowSide: GENERIC_DEFAULTS.switchThetaJA, controller: GENERIC_DEFAULTS.controllerThetaJA, inductor: GENERIC_DEFAULTS.inductorThetaJA },
+    tjMax: spec.tjMax,
+  };
+  const flags = feasibility(design, spec.ambient as number, [o.currentMax as number]);
+  if (flags.some((f) => f.severity === 'error')) return { ok: false, flags };
+  return { ok: true, design, reasons, flags };
+}
+
+/** Evaluate at Vin min and max with the largest currents; collect unique flags. */
+export function feasibility(d: { vinMin: Volts; vinMax: Volts; kind: string }, ambient: number, imax: number[], evaluate?: (vin: number) => StageEvaluation): StageFlag[] {
+  const ev = evaluate ?? ((vin: number) => evaluateBuck(d as BuckDesign, { vin: vin as Volts, iout: imax as Amps[], ambient: ambient as Celsius }));
+  const seen = new Set<string>();
+  const out: StageFlag[] = [];
+  for (const vin of [d.vinMin as number, d.vinMax as number]) {
+    for (const f of ev(vin).flags) {
+      if (seen.has(f.code + f.text)) continue;
+      seen.add(f.code + f.text);
+      out.push(f);
+    }
+  }
+  return out;
+}

@@ -1,0 +1,101 @@
+/** Pieces the stage designers share: capacitor choice with derating, flags, thermal parts. */
+import { atLeast, nearest } from '../eseries.ts';
+import type { DissipatingPart, StageFlag } from './types.ts';
+import type { Celsius, KelvinPerWatt, Watts } from '../units.ts';
+import { GENERIC_DEFAULTS } from './defaults.ts';
+
+/** A capacitor bank: `count` equal ceramic parts in parallel. */
+export interface CapacitorChoice {
+  role: string;
+  /** Nominal value of one part (E6). */
+  value: number;
+  count: number;
+  /** Rated voltage of one part. */
+  ratedVoltage: number;
+  /** Largest DC voltage the bank sees. */
+  workingVoltage: number;
+  dielectric: 'ceramic';
+  /** ESR of the whole bank. */
+  esr: number;
+  /** Capacitance left at the working voltage (DC-bias derating), whole bank. */
+  effective: number;
+  /** Working voltage / rated voltage. */
+  stress: number;
+}
+
+export function ceramicRetained(working: number, rated: number): number {
+  return Math.max(0.2, 1 - GENERIC_DEFAULTS.ceramicBiasLoss * (working / rated));
+}
+
+/**
+ * A ceramic bank holding at least `needEffective` farads at `working` volts, with the rating
+ * chosen so working ≤ derating·rated (derating 0.6 = use at most 60 % of the rating).
+ */
+export function chooseCeramic(role: string, needEffective: number, working: number, derating: number, minValue = 1e-6): CapacitorChoice {
+  const w = Math.abs(working);
+  const rated = GENERIC_DEFAULTS.ceramicRatings.find((r) => w <= derating * r + 1e-12)
+    ?? GENERIC_DEFAULTS.ceramicRatings[GENERIC_DEFAULTS.ceramicRatings.length - 1]!;
+  const keep = ceramicRetained(w, rated);
+  const needNominal = Math.max(minValue, needEffective / keep);
+  const unitMax = GENERIC_DEFAULTS.ceramicMaxUnit;
+  let value: number;
+  let count: number;
+  if (needNominal <= unitMax) {
+    value = atLeast('E6', needNominal);
+    count = 1;
+  } else {
+    value = nearest('E6', unitMax);
+    count = Math.ceil(needNominal / value - 1e-9);
+  }
+  return {
+    role, value, count, ratedVoltage: rated, workingVoltage: w, dielectric: 'ceramic',
+    esr: GENERIC_DEFAULTS.ceramicEsr / count,
+    effective: value * count * keep,
+    stress: w / rated,
+  };
+}
+
+export function part(role: string, power: number, thetaJA: number, ambient: number, source: DissipatingPart['thetaSource'] = 'default-from-memory'): DissipatingPart {
+  return { role, power: power as Watts, thetaJA: thetaJA as KelvinPerWatt, thetaSource: source, tj: (ambient + power * thetaJA) as Celsius };
+}
+
+export function flag(code: string, severity: StageFlag['severity'], text: string, data?: Record<string, number | string>): StageFlag {
+  return data ? { code, severity, text, data } : { code, severity, text };
+}
+
+/** Round for messages: 3 significant figures. */
+export function r3(x: number): number {
+  return Number.parseFloat(x.toPrecision(3));
+}
+
+/** Thermal flags for every part whose Tj passes the limit. */
+export function thermalFlags(parts: DissipatingPart[], tjMax: number): StageFlag[] {
+  return parts.filter((p) => p.tj > tjMax).map((p) =>
+    flag('tj-over-limit', 'error', `${p.role}: junction ${r3(p.tj)} °C exceeds the ${tjMax} °C limit (${r3(p.power)} W × ${p.thetaJA} K/W above ambient)`,
+      { role: p.role, tj: r3(p.tj), limit: tjMax, power: r3(p.power) }));
+}
+
+/** Deterministic PRNG (mulberry32) for the seeded Monte Carlo. */
+export function mulberry32(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+/** Warn for every output whose ripple passes its limit. */
+export function rippleFlags(outputs: { nodeId: string; ripplePP: number }[], specs: { rippleLimit: number }[]): StageFlag[] {
+  const out: StageFlag[] = [];
+  outputs.forEach((o, i) => {
+    const lim = specs[i]?.rippleLimit;
+    if (lim !== undefined && o.ripplePP > lim) {
+      out.push(flag('ripple-over-limit', 'warning', `${o.nodeId}: ripple ${r3(o.ripplePP * 1e3)} mV peak-to-peak exceeds the ${r3(lim * 1e3)} mV limit`,
+        { nodeId: o.nodeId, ripple: r3(o.ripplePP), limit: lim }));
+    }
+  });
+  return out;
+}

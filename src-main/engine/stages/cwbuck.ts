@@ -1,0 +1,468 @@
+/**
+ * Coupled-winding buck (isolated buck): a synchronous buck whose magnetic carries extra
+ * secondary windings, each rectified into its own output. Only the primary output is in
+ * the feedback loop; the secondaries follow the turns ratio while the low-side switch
+ * conducts (DESIGN.md §4; derived from the coupled-inductor model, checked against ngspice).
+ *
+ * Magnetic model. The primary winding is the magnetizing inductance Lp (no primary
+ * leakage); each secondary has turns ratio n = Ns/Np and coupling k to the primary, so its
+ * self inductance is Ls = n²·Lp/k² and its leakage, seen from the secondary with the
+ * primary clamped, is Llk = n²·Lp·(1 − k²)/k². Secondary-to-secondary coupling is k_i·k_j,
+ * which leaves the secondaries independent of each other once the primary is clamped (the
+ * netlist writer uses exactly these values).
+ *
+ * Loaded secondary. During the off-time the winding drives n·Voff into leakage, winding
+ * resistance, rectifier and output: a first-order RL loop starting from zero current, so
+ *   i(t) = (E/Rt)(1 − e^(−t/τ)),  τ = Llk/Rt,  E = n·Voff − Vsec − V0,
+ * with the rectifier linearised as V0 + rd·i around its conduction current. Its average
+ * must equal the load current. For τ ≫ Toff this gives E = 2·Llk·fsw·Isec/(1−D)² (the
+ * leakage term), for τ ≪ Toff E = Rt·Isec/(1−D) (the resistive term): the two limits of
+ * Vsec ≈ n·Vpri − Vf − 2·Llk·fsw·Isec/(1−D)² − R·Isec/(1−D).
+ */
+import type { Amps, Celsius, Henries, Hertz, Ohms, Ratio, Volts, Watts } from '../units.ts';
+import type { OperatingPoint, OutputResult, OutputSpec, StageEvaluation, StageFlag, StageSpec } from './types.ts';
+import type { IsolationClass } from '../model.ts';
+import { bestDivider, nearest, type DividerChoice } from '../eseries.ts';
+import { GENERIC_DEFAULTS, VT, diodeVf, type ControllerParams, type DiodeModel, type SwitchParams } from './defaults.ts';
+import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from './common.ts';
+import { feasibility, specErrors, switchingFlags } from './buck.ts';
+
+export interface SecondaryWinding {
+  nodeId: string;
+  /** Signed turns: a negative count is a reversed winding with its rectifier reversed. */
+  turns: number;
+  /** Coupling factor to the primary (0 < k < 1). */
+  coupling: number;
+  /** Winding resistance. */
+  resistance: Ohms;
+  rectifier: DiodeModel;
+  /** Reverse voltage the rectifier sees at Vin max. */
+  rectifierReverseVoltage: Volts;
+  cout: CapacitorChoice;
+  /** Preload resistor across the output, or null. */
+  preload: { resistance: Ohms; current: Amps } | null;
+  thetaJA: number;
+}
+
+export interface CoupledBuckDesign {
+  kind: 'cwbuck';
+  vinMin: Volts;
+  vinNom: Volts;
+  vinMax: Volts;
+  /** outputs[0] is the regulated primary, outputs[1..] the secondaries in winding order. */
+  outputs: OutputSpec[];
+  fsw: Hertz;
+  primaryTurns: number;
+  /** Magnetizing (primary) inductance. */
+  inductance: Henries;
+  primaryResistance: Ohms;
+  isat: Amps;
+  coreLossFraction: number;
+  secondaries: SecondaryWinding[];
+  cout: CapacitorChoice;
+  cin: CapacitorChoice;
+  divider: DividerChoice;
+  highSide: SwitchParams;
+  lowSide: SwitchParams;
+  rdsHotFactor: number;
+  bodyDiode: DiodeModel;
+  controller: ControllerParams;
+  thetaJA: { highSide: number; lowSide: number; controller: number; inductor: number };
+  tjMax: Celsius;
+  /** Preferences the flags compare against. */
+  maxSecondaries: number;
+  powerLimit: Watts;
+  dutyWarn: Ratio;
+  /** Barrier the windings cross, from the domain (null: not isolated). */
+  isolation: { class: IsolationClass; workingVoltage: Volts } | null;
+}
+
+export interface CoupledEvalOptions {
+  /** Evaluate with the primary at this voltage instead of the divider's setpoint. */
+  vPrimary?: number;
+  /** Scale every rectifier drop (1 ± spread for the windows). */
+  vfScale?: number;
+}
+
+/** Internal numbers of one operating point, shared with the netlist writer and tests. */
+export interface CoupledPoint {
+  vpri: number;
+  duty: number;
+  /** Magnetizing current: average, ripple, peak, valley. */
+  im: number;
+  dim: number;
+  impk: number;
+  /** Primary-winding current at the end of the off-time (the low-side negative peak when < 0). */
+  iend: number;
+  voff: number;
+  von: number;
+  toff: number;
+  sec: SecondaryPoint[];
+}
+
+export interface SecondaryPoint {
+  n: number;
+  llk: number;
+  /** Load plus preload current. */
+  isec: number;
+  iload: number;
+  ipre: number;
+  vsec: number;
+  ipk: number;
+  irms: number;
+  /** Steady-state current I∞ = E/Rt and time constant of the RL loop. */
+  iinf: number;
+  tau: number;
+  /** Average rectifier loss. */
+  pRect: number;
+}
+
+function dt(d: CoupledBuckDesign): number {
+  return d.controller.deadTime * d.fsw;
+}
+
+/** Solve one secondary for its voltage given the off-time winding drive. */
+function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff: number, von: number, toff: number, iload: number, vfScale: number, vguess: number): SecondaryPoint {
+  const n = Math.abs(w.turns) / d.primaryTurns;
+  const k = w.coupling;
+  const llk = (n * n * d.inductance * (1 - k * k)) / (k * k);
+  const T = 1 / d.fsw;
+  const vf = (i: number) => vfScale * diodeVf(w.rectifier, i);
+  let vsec = vguess;
+  let sp: SecondaryPoint | null = null;
+  for (let it = 0; it < 6; it++) {
+    const ipre = w.preload ? Math.max(0, vsec) / w.preload.resistance : 0;
+    const isec = iload + ipre;
+    if (!(isec > 0)) {
+      sp = { n, llk, isec: 0, iload, ipre: 0, vsec: n * voff, ipk: 0, irms: 0, iinf: 0, tau: 0, pRect: 0 };
+      vsec = sp.vsec;
+      continue;
+    }
+    const ic = (isec * T) / toff;
+    const rd = vfScale * ((w.rectifier.n * VT) / ic + w.rectifier.rs);
+    const v0 = vf(ic) - rd * ic;
+    const rt = rd + (w.resistance as number);
+    const tau = llk / rt;
+    const x = toff / tau;
+    const shape = toff - tau * -Math.expm1(-x);
+    let qdec = 0;
+    let E = 0;
+    let iinf = 0;
+    let iend = 0;
+    for (let j = 0; j < 4; j++) {
+      E = ((isec * T - qdec) * rt) / shape;
+      iinf = E / rt;
+      iend = iinf * -Math.expm1(-x);
+      // After the high side turns on the winding reverses; the current decays through the
+      // leakage at (n·Von + Vsec + V0)/Llk and still charges the output meanwhile.
+      const vrev = Math.max(n * von + vsec + v0, 1e-3);
+      qdec = Math.min((iend * iend * llk) / (2 * vrev), 0.5 * isec * T);
+    }
+    vsec = n * voff - v0 - E;
+    // RMS and rectifier loss by sampling the waveform (the exponential rise).
+    const N = 32;
+    let s2 = 0;
+    let pr = 0;
+    for (let m = 0; m < N; m++) {
+      const t = ((m + 0.5) / N) * toff;
+      const i = iinf * -Math.expm1(-t / tau);
+      s2 += i * i;
+      pr += vf(i) * i;
+    }
+    const ms = (s2 / N) * (toff / T);
+    const vrev = Math.max(n * von + vsec + v0, 1e-3);
+    const tdec = (iend * llk) / vrev;
+    const irms = Math.sqrt(ms + (iend * iend * tdec) / (3 * T));
+    const pRect = (pr / N) * (toff / T) + vf(iend / 2) * (iend / 2) * (tdec / T);
+    sp = { n, llk, isec, iload, ipre, vsec, ipk: iend, irms, iinf, tau, pRect };
+  }
+  return sp!;
+}
+
+export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], opts: CoupledEvalOptions = {}): CoupledPoint {
+  const vpri = opts.vPrimary ?? d.divider.vout;
+  const vfScale = opts.vfScale ?? 1;
+  const ipri = Math.max(0, Math.abs(iout[0] ?? 0));
+  const rhs = d.highSide.rdsOn * d.rdsHotFactor;
+  const rls = d.lowSide.rdsOn * d.rdsHotFactor;
+  const rp = d.primaryResistance as number;
+  const tdf = dt(d);
+  let duty = vpri / vin;
+  let sec: SecondaryPoint[] = d.secondaries.map((w) => ({
+    n: Math.abs(w.turns) / d.primaryTurns, llk: 0, isec: 0, iload: 0, ipre: 0,
+    vsec: (Math.abs(w.turns) / d.primaryTurns) * vpri - 0.4, ipk: 0, irms: 0, iinf: 0, tau: 0, pRect: 0,
+  }));
+  let im = ipri, dim = 0, iend = 0, voff = vpri, von = vin - vpri, toff = (1 - duty) / d.fsw;
+  for (let it = 0; it < 8; it++) {
+    const sumN = sec.reduce((a, s) => a + s.n * s.isec, 0);
+    im = ipri + sumN;
+    const ioff = ipri - (sumN * duty) / (1 - duty);
+    voff = vpri + ioff * (rls + rp);
+    von = vin - vpri - im * (rhs + rp);
+    const vfb = diodeVf(d.bodyDiode, Math.abs(im));
+    const v1 = -(vpri + vfb);
+    const v2 = iend < 0 ? vin + vfb - vpri : -(vpri + vfb);
+    // Volt-second balance on Lp: D·Von − (1 − D − 2td)·Voff + td·(v1 + v2) = 0
+    duty = ((1 - 2 * tdf) * voff - tdf * (v1 + v2)) / (von + voff);
+    dim = (von * duty) / (d.inductance * d.fsw);
+    toff = (1 - duty - (iend < 0 ? tdf : 0)) / d.fsw;
+    sec = d.secondaries.map((w, i) => solveSecondary(d, w, voff, von, toff, Math.abs(iout[i + 1] ?? 0), vfScale, sec[i]!.vsec));
+    iend = im - dim / 2 - sec.reduce((a, s) => a + s.n * s.ipk, 0);
+  }
+  return { vpri, duty, im, dim, impk: im + dim / 2, iend, voff, von, toff, sec };
+}
+
+export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, opts: CoupledEvalOptions = {}): StageEvaluation {
+  const vin = op.vin as number;
+  const p = coupledPoint(d, vin, op.iout as number[], opts);
+  const fsw = d.fsw as number;
+  const T = 1 / fsw;
+  const rhs = d.highSide.rdsOn * d.rdsHotFactor;
+  const rls = d.lowSide.rdsOn * d.rdsHotFactor;
+  const rp = d.primaryResistance as number;
+  const ipri = Math.max(0, Math.abs(op.iout[0] ?? 0));
+  const msOn = p.im * p.im + (p.dim * p.dim) / 12;
+  // Primary-winding current during the off-time, sampled: magnetizing ramp minus reflected secondaries.
+  const N = 32;
+  let s1 = 0, s2 = 0;
+  const slope = p.dim / p.toff;
+  for (let m = 0; m < N; m++) {
+    const t = ((m + 0.5) / N) * p.toff;
+    let i = p.impk - slope * t;
+    for (const s of p.sec) if (s.tau > 0) i -= s.n * s.iinf * -Math.expm1(-t / s.tau);
+    s1 += i;
+    s2 += i * i;
+  }
+  const offShare = p.toff * fsw;
+  const msOff = s2 / N;
+  const td = d.controller.deadTime;
+  const vfb = diodeVf(d.bodyDiode, Math.max(Math.abs(p.impk), Math.abs(p.iend)));
+  const hsRmsSq = msOn * p.duty;
+  const icinRms = Math.sqrt(Math.max(0, hsRmsSq - (p.im * p.duty) ** 2));
+  const loss: Record<string, number> = {
+    'hs-conduction': hsRmsSq * rhs,
+    'ls-conduction': msOff * rls * Math.max(0, 1 - p.duty - 2 * td * fsw),
+    // ½·Vin·I·t·fsw at each hard edge; the turn-on edge is soft when the current is negative.
+    'hs-switching': 0.5 * vin * fsw * (d.highSide.tf * p.impk + d.highSide.tr * Math.max(0, p.iend)),
+    'output-capacitance': 0.5 * (d.highSide.coss + d.lowSide.coss) * vin * vin * fsw,
+    'dead-time': vfb * (Math.abs(p.impk) + Math.abs(p.iend)) * td * fsw,
+    'gate-drive': (d.highSide.qg + d.lowSide.qg) * d.controller.vDrive * fsw,
+    'primary-copper': (hsRmsSq + msOff * offShare) * rp,
+    'secondary-copper': p.sec.reduce((a, s, i) => a + s.irms * s.irms * (d.secondaries[i]!.resistance as number), 0),
+    rectifiers: p.sec.reduce((a, s) => a + s.pRect, 0),
+    'magnetic-core': d.coreLossFraction * 0.5 * d.inductance * p.dim * p.dim * fsw,
+    'output-capacitor-esr': (p.dim * p.dim / 12) * d.cout.esr
+      + p.sec.reduce((a, s, i) => a + Math.max(0, s.irms * s.irms - s.isec * s.isec) * d.secondaries[i]!.cout.esr, 0),
+    'input-capacitor-esr': icinRms * icinRms * d.cin.esr,
+    preload: p.sec.reduce((a, s) => a + s.vsec * s.ipre, 0),
+    quiescent: vin * d.controller.iq,
+  };
+  void s1;
+  void T;
+  const lossTotal = Object.values(loss).reduce((a, b) => a + b, 0);
+  const pout = p.vpri * ipri + p.sec.reduce((a, s) => a + s.vsec * s.iload, 0);
+  const pin = pout + lossTotal;
+  const sumN = p.sec.reduce((a, s) => a + s.n * s.isec, 0);
+  // Primary ripple [common practice estimate]: the on-time surplus Σn·Isec·D·T charges the
+  // primary capacitor, plus the magnetizing ripple ΔIm/(8·fsw·C) and the ESR step.
+  const priPP = (sumN * p.duty) / (fsw * d.cout.effective) + p.dim / (8 * fsw * d.cout.effective)
+    + d.cout.esr * (p.dim + sumN / Math.max(1 - p.duty, 1e-3));
+  const outputs: OutputResult[] = [
+    { nodeId: d.outputs[0]!.nodeId, voltage: p.vpri as Volts, current: ipri as Amps, ripplePP: priPP as Volts },
+    ...p.sec.map((s, i) => {
+      const w = d.secondaries[i]!;
+      // Secondary capacitor carries the load through the on-time: ΔV = Isec·D/(fsw·C) + ESR·Ipk [common practice]
+      const pp = (s.isec * p.duty) / (fsw * w.cout.effective) + w.cout.esr * s.ipk;
+      return { nodeId: w.nodeId, voltage: (Math.sign(w.turns) * s.vsec) as Volts, current: s.iload as Amps, ripplePP: pp as Volts };
+    }),
+  ];
+  const ta = op.ambient as number;
+  const parts = [
+    part('high-side switch', loss['hs-conduction']! + loss['hs-switching']! + loss['output-capacitance']! / 2, d.thetaJA.highSide, ta),
+    part('low-side switch', loss['ls-conduction']! + loss['dead-time']! + loss['output-capacitance']! / 2, d.thetaJA.lowSide, ta),
+    part('controller', loss['gate-drive']! + loss.quiescent!, d.thetaJA.controller, ta),
+    part('coupled magnetic', loss['primary-copper']! + loss['secondary-copper']! + loss['magnetic-core']!, d.thetaJA.inductor, ta),
+    ...p.sec.map((s, i) => part(`rectifier D${i + 1}`, s.pRect, d.secondaries[i]!.thetaJA, ta)),
+  ];
+  const flags: StageFlag[] = [...switchingFlags(d, vin, p.duty, p.impk, p.iend), ...thermalFlags(parts, d.tjMax), ...rippleFlags(outputs, d.outputs)];
+  if (p.duty > d.dutyWarn) {
+    flags.push(flag('duty-high-for-secondaries', 'warning',
+      `duty ${r3(p.duty)} at Vin ${r3(vin)} V is above ${d.dutyWarn}: secondary regulation degrades as (1−D)² shrinks; a higher input or a lower primary voltage helps`,
+      { duty: r3(p.duty), limit: d.dutyWarn, vin }));
+  }
+  if (pout > d.powerLimit) {
+    flags.push(flag('power-above-range', 'warning', `output power ${r3(pout)} W is above the ${d.powerLimit} W a coupled-winding buck suits`, { pout: r3(pout), limit: d.powerLimit }));
+  }
+  if (d.secondaries.length > d.maxSecondaries) {
+    flags.push(flag('too-many-windings', 'warning', `${d.secondaries.length} secondaries exceed the preferred ${d.maxSecondaries} per magnetic`, { secondaries: d.secondaries.length, limit: d.maxSecondaries }));
+  }
+  return {
+    kind: 'cwbuck',
+    vin: vin as Volts,
+    iin: (pin / vin) as Amps,
+    pin: pin as Watts,
+    pout: pout as Watts,
+    loss: lossTotal as Watts,
+    efficiency: (pin > 0 ? pout / pin : 0) as Ratio,
+    duty: p.duty as Ratio,
+    lossBreakdown: loss as Record<string, Watts>,
+    parts,
+    outputs,
+    flags,
+  };
+}
+
+/** Preload current a secondary needs (DESIGN.md §4 [C]: specify a minimum load). */
+function preloadFor(o: OutputSpec): number {
+  return Math.max(GENERIC_DEFAULTS.preloadShare * (o.currentMax as number), GENERIC_DEFAULTS.preloadFloor);
+}
+
+export interface CoupledSpecExtras {
+  maxSecondaries?: number;
+  isolation?: { class: IsolationClass; workingVoltage: Volts } | null;
+  coupling?: number;
+}
+
+export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: true; design: CoupledBuckDesign; reasons: string[]; flags: StageFlag[] } | { ok: false; flags: StageFlag[] } {
+  const bad = specErrors(spec);
+  if (bad.length) return { ok: false, flags: bad };
+  if (spec.outputs.length < 2) return { ok: false, flags: [flag('bad-input', 'error', 'a coupled-winding buck needs the primary output and at least one secondary', { field: 'outputs' })] };
+  const pri = spec.outputs[0]!;
+  const vpri = pri.voltage as number;
+  if (!(vpri > 0) || vpri >= spec.vinMin) {
+    return { ok: false, flags: [flag('no-headroom', 'error', `primary ${r3(vpri)} V must be positive and below the lowest input ${r3(spec.vinMin)} V`, { vpri, vinMin: spec.vinMin })] };
+  }
+  const k = spec.coupling ?? GENERIC_DEFAULTS.coupling;
+  if (!(k > 0.5 && k < 1)) return { ok: false, flags: [flag('bad-input', 'error', `coupling: must be between 0.5 and 1 (got ${k})`, { field: 'coupling' })] };
+  const reasons: string[] = [];
+  const ctl: ControllerParams = { ...GENERIC_DEFAULTS.controller };
+  const divider = bestDivider(vpri, ctl.vref);
+  if (!divider) return { ok: false, flags: [flag('below-reference', 'error', `primary ${r3(vpri)} V is not above the ${ctl.vref} V reference`, { vpri, vref: ctl.vref })] };
+  reasons.push(`feedback divider ${divider.rTop} Ω / ${divider.rBottom} Ω (E96) sets the primary to ${r3(divider.vout)} V, error ${r3(divider.error * 100)} %`);
+  const fsw = spec.fsw as number;
+  const secs = spec.outputs.slice(1);
+  const rect = { ...GENERIC_DEFAULTS.rectifier };
+  // Magnetizing current at full load with ideal ratios, for the ripple target.
+  const n0 = secs.map((o) => (Math.abs(o.voltage) + diodeVf(rect, o.currentMax as number)) / vpri);
+  const imFull = Math.max((pri.currentMax as number) + secs.reduce((a, o, i) => a + n0[i]! * (o.currentMax as number), 0), 0.05);
+  const target = GENERIC_DEFAULTS.rippleTarget;
+  const dAtMax = vpri / spec.vinMax;
+  const lCalc = ((spec.vinMax - vpri) * dAtMax) / (target * imFull * fsw);
+  const Lp = nearest('E12', lCalc);
+  reasons.push(`Lp = ${r3(Lp * 1e6)} µH (E12) for ${target * 100} % ripple of the ${r3(imFull)} A magnetizing current at Vin ${r3(spec.vinMax)} V`);
+  const ripple = ((spec.vinMax - vpri) * dAtMax) / (Lp * fsw);
+  const isat = (imFull + ripple / 2) * (1 + GENERIC_DEFAULTS.saturationMargin);
+  const rp = (GENERIC_DEFAULTS.inductorDcrCoeff * Math.sqrt(Lp / 1e-6)) / Math.sqrt(isat);
+  const dMaxEst = Math.min(0.95, vpri / spec.vinMin);
+  const template = (turnsP: number, turnsS: number[]): CoupledBuckDesign => ({
+    kind: 'cwbuck',
+    vinMin: spec.vinMin, vinNom: spec.vinNom, vinMax: spec.vinMax,
+    outputs: spec.outputs.map((o) => ({ ...o })),
+    fsw: spec.fsw,
+    primaryTurns: turnsP,
+    inductance: Lp as Henries,
+    primaryResistance: rp as Ohms,
+    isat: isat as Amps,
+    coreLossFraction: GENERIC_DEFAULTS.coreLossFraction,
+    secondaries: secs.map((o, i) => {
+      const ns = turnsS[i]!;
+      const n = Math.abs(ns) / turnsP;
+      const ipk = (2 * (o.currentMax as number)) / Math.max(1 - dMaxEst, 0.05);
+      const esr = GENERIC_DEFAULTS.ceramicEsr;
+      const budget = Math.max((o.rippleLimit as number) * 0.5 - esr * ipk, (o.rippleLimit as number) * 0.1);
+      // Cout ≥ Isec·D/(fsw·ΔV) [common practice], at least 4.7 µF
+      const need = Math.max(((o.currentMax as number) * dMaxEst) / (fsw * budget), 4.7e-6);
+      const ipre = preloadFor(o);
+      const preload = (o.currentMin as number) < ipre
+        ? { resistance: nearest('E24', Math.abs(o.voltage) / ipre) as Ohms, current: 0 as Amps }
+        : null;
+      if (preload) preload.current = (Math.abs(o.voltage) / preload.resistance) as Amps;
+      return {
+        nodeId: o.nodeId,
+        turns: ns,
+        coupling: k,
+        resistance: (rp * n * n) as Ohms,
+        rectifier: { ...rect },
+        rectifierReverseVoltage: (n * (spec.vinMax - vpri) + Math.abs(o.voltage)) as Volts,
+        cout: chooseCeramic(`secondary ${i + 1} output`, need, Math.abs(o.voltage) * (1 + o.tolerance) * 1.1, spec.ceramicDerating),
+        preload,
+        thetaJA: GENERIC_DEFAULTS.switchThetaJA * 1.5,
+      };
+    }),
+    // Primary capacitor: the on-time surplus Σn·Isec·D/fsw plus ΔIm/(8·fsw), within half the
+    // ripple limit after the ESR step [common practice]; at least 10 µF.
+    cout: chooseCeramic('primary output', Math.max(10e-6,
+      (secs.reduce((a, o, i) => a + n0[i]! * (o.currentMax as number), 0) * dMaxEst + ripple / 8)
+        / (fsw * Math.max((pri.rippleLimit as number) * 0.5 - GENERIC_DEFAULTS.ceramicEsr * (ripple + imFull), (pri.rippleLimit as number) * 0.1))),
+      vpri * (1 + pri.tolerance), spec.ceramicDerating),
+    cin: chooseCeramic('input', Math.max((imFull * 0.25) / (fsw * 0.01 * spec.vinMin), 1e-6), spec.vinMax, spec.ceramicDerating),
+    divider,
+    highSide: { ...GENERIC_DEFAULTS.highSide },
+    lowSide: { ...GENERIC_DEFAULTS.lowSide },
+    rdsHotFactor: GENERIC_DEFAULTS.rdsHotFactor,
+    bodyDiode: { ...GENERIC_DEFAULTS.bodyDiode },
+    controller: ctl,
+    thetaJA: { highSide: GENERIC_DEFAULTS.switchThetaJA, lowSide: GENERIC_DEFAULTS.switchThetaJA, controller: GENERIC_DEFAULTS.controllerThetaJA, inductor: GENERIC_DEFAULTS.inductorThetaJA },
+    tjMax: spec.tjMax,
+    maxSecondaries: spec.maxSecondaries ?? GENERIC_DEFAULTS.maxSecondaries,
+    powerLimit: GENERIC_DEFAULTS.coupledPowerLimit as Watts,
+    dutyWarn: GENERIC_DEFAULTS.coupledDutyWarn as Ratio,
+    isolation: spec.isolation ?? null,
+  });
+  // Turns: the smallest Np (from 3, common practice for a defined leakage and flux) whose
+  // integer secondaries all land within 40 % of their tolerance at mid load, nominal Vin,
+  // after the rectifier drop; relax to 70 % and then 100 % before giving up.
+  const mid = [pri, ...secs].map((o) => ((o.currentMin as number) + (o.currentMax as number)) / 2);
+  const errorsFor = (turnsP: number, turnsS: number[]) => {
+    const dsg = template(turnsP, turnsS);
+    const ev = coupledPoint(dsg, spec.vinNom as number, mid);
+    return ev.sec.map((s, i) => (s.vsec - Math.abs(secs[i]!.voltage)) / Math.abs(secs[i]!.voltage));
+  };
+  let chosen: { np: number; ns: number[]; err: number[] } | null = null;
+  const NP_MAX = 40;
+  for (const share of [0.4, 0.7, 1.0]) {
+    for (let np = 3; np <= NP_MAX && !chosen; np++) {
+      const ns = n0.map((n, i) => Math.max(1, Math.round(n * np)) * Math.sign(secs[i]!.voltage));
+      // Refine each secondary by ±1 turn using the full model.
+      let err = errorsFor(np, ns);
+      for (let i = 0; i < ns.length; i++) {
+        for (const step of [-1, 1]) {
+          const trial = [...ns];
+          const mag = Math.abs(trial[i]!) + step;
+          if (mag < 1) continue;
+          trial[i] = mag * Math.sign(secs[i]!.voltage);
+          const e2 = errorsFor(np, trial);
+          if (Math.abs(e2[i]!) < Math.abs(err[i]!)) { ns[i] = trial[i]!; err = e2; }
+        }
+      }
+      if (err.every((e, i) => Math.abs(e) <= share * (secs[i]!.tolerance as number))) chosen = { np, ns, err };
+    }
+    if (chosen) break;
+  }
+  if (!chosen) {
+    const err = errorsFor(NP_MAX, n0.map((n, i) => Math.round(n * NP_MAX) * Math.sign(secs[i]!.voltage)));
+    return {
+      ok: false,
+      flags: secs.map((o, i) => flag('turns-no-fit', 'error',
+        `no integer turns up to Np = ${NP_MAX} put ${o.nodeId} (${r3(o.voltage)} V ±${r3(o.tolerance * 100)} %) within tolerance at mid load; best error ${r3(err[i]! * 100)} %`,
+        { nodeId: o.nodeId, error: r3(err[i]!) })),
+    };
+  }
+  const design = template(chosen.np, chosen.ns);
+  reasons.push(`turns ${chosen.np}:${chosen.ns.join(':')} (primary:secondaries, sign = winding sense) put the secondaries at ${chosen.err.map((e) => `${r3(e * 100)} %`).join(', ')} of target at mid load, Vin ${r3(spec.vinNom)} V`);
+  reasons.push(`coupling k = ${k} (leakage ${design.secondaries.map((w) => `${r3(((w.turns / chosen!.np) ** 2 * Lp * (1 - k * k)) / (k * k) * 1e9)} nH`).join(', ')} seen from the secondaries)`);
+  for (const w of design.secondaries) {
+    if (w.preload) reasons.push(`${w.nodeId}: preload ${r3(w.preload.resistance)} Ω (${r3(w.preload.current * 1e3)} mA) because a lightly loaded secondary rises above its target`);
+  }
+  // Full load at Vin min and max, and the primary at its lightest with the secondaries at
+  // full load (the deepest low-side negative peak).
+  const full = spec.outputs.map((o) => o.currentMax);
+  const lightPri = [pri.currentMin, ...secs.map((o) => o.currentMax)];
+  const flags = feasibility(design, spec.ambient as number, full as number[], (vin) => {
+    const a = evaluateCoupledBuck(design, { vin: vin as Volts, iout: full, ambient: spec.ambient });
+    const b = evaluateCoupledBuck(design, { vin: vin as Volts, iout: lightPri, ambient: spec.ambient });
+    return { ...a, flags: [...a.flags, ...b.flags] };
+  });
+  if (flags.some((f) => f.severity === 'error')) return { ok: false, flags };
+  return { ok: true, design, reasons, flags };
+}

@@ -1,0 +1,75 @@
+/**
+ * The stage engine's entry points, used by the planner, the roll-up, the BOM and the
+ * exports: designStage (choose every value), evaluateStage (one operating point) and
+ * stageWindows (worst-case output windows over a corner set).
+ */
+import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from './types.ts';
+import { designBuck, evaluateBuck, type BuckDesign } from './buck.ts';
+import { designCoupledBuck, evaluateCoupledBuck, type CoupledBuckDesign, type CoupledEvalOptions } from './cwbuck.ts';
+import { designLdo, evaluateLdo, type LdoDesign } from './ldo.ts';
+import { stageWindows as windows, type WindowCorners, type WindowOptions } from './windows.ts';
+import type { OutputWindow } from './types.ts';
+import { flag } from './common.ts';
+
+export type { BuckDesign } from './buck.ts';
+export type { CoupledBuckDesign, SecondaryWinding, CoupledEvalOptions } from './cwbuck.ts';
+export type { LdoDesign } from './ldo.ts';
+export type { CapacitorChoice } from './common.ts';
+export type { WindowCorners, WindowOptions } from './windows.ts';
+export { GENERIC_DEFAULTS } from './defaults.ts';
+
+export type StageDesign = BuckDesign | CoupledBuckDesign | LdoDesign;
+
+export type DesignResult =
+  | { ok: true; design: StageDesign; reasons: string[]; /** Warnings (never errors). */ flags: StageFlag[] }
+  | { ok: false; flags: StageFlag[] };
+
+/** Bad arguments to evaluateStage/stageWindows: the message names the field and the reason. */
+export class StageInputError extends RangeError {}
+
+export function designStage(spec: StageSpec): DesignResult {
+  if (!spec || typeof spec !== 'object') return { ok: false, flags: [flag('bad-input', 'error', 'spec: an object is required')] };
+  try {
+    switch (spec.kind) {
+      case 'buck': return designBuck(spec);
+      case 'cwbuck': return designCoupledBuck(spec);
+      case 'ldo': return designLdo(spec);
+      default:
+        return { ok: false, flags: [flag('unsupported-kind', 'error', `kind: "${String(spec.kind)}" has no stage model (buck, cwbuck, ldo)`, { field: 'kind' })] };
+    }
+  } catch (e) {
+    return { ok: false, flags: [flag('bad-input', 'error', `spec: ${(e as Error).message}`)] };
+  }
+}
+
+function checkOp(design: StageDesign, op: OperatingPoint): void {
+  if (!op || typeof op !== 'object') throw new StageInputError('operating point: an object {vin, iout, ambient} is required');
+  if (typeof op.vin !== 'number' || !Number.isFinite(op.vin) || op.vin === 0) throw new StageInputError(`vin: must be a non-zero finite number (got ${String(op.vin)})`);
+  if (design.kind !== 'ldo' && !(op.vin > 0)) throw new StageInputError(`vin: a switching stage needs a positive input (got ${op.vin})`);
+  if (!Array.isArray(op.iout) || op.iout.length !== design.outputs.length) {
+    throw new StageInputError(`iout: need one current per output (${design.outputs.length}), got ${Array.isArray(op.iout) ? op.iout.length : 'none'}`);
+  }
+  op.iout.forEach((i, k) => {
+    if (typeof i !== 'number' || !Number.isFinite(i)) throw new StageInputError(`iout[${k}]: must be a finite number (got ${String(i)})`);
+  });
+  if (typeof op.ambient !== 'number' || !Number.isFinite(op.ambient)) throw new StageInputError(`ambient: must be a finite number (got ${String(op.ambient)})`);
+}
+
+export function evaluateStage(design: StageDesign, op: OperatingPoint, opts?: CoupledEvalOptions): StageEvaluation {
+  checkOp(design, op);
+  switch (design.kind) {
+    case 'buck': return evaluateBuck(design, op);
+    case 'cwbuck': return evaluateCoupledBuck(design, op, opts);
+    case 'ldo': return evaluateLdo(design, op);
+    default: throw new StageInputError(`kind: "${String((design as { kind: unknown }).kind)}" has no stage model`);
+  }
+}
+
+export function stageWindows(design: StageDesign, corners: WindowCorners, opts?: WindowOptions): OutputWindow[] {
+  try {
+    return windows(design, corners, opts);
+  } catch (e) {
+    if (e instanceof RangeError) throw new StageInputError(e.message);
+    throw e;
+  }
+}

@@ -1,0 +1,161 @@
+/**
+ * Linear regulator (LDO), positive or negative (DESIGN.md §4 [C]):
+ * P = (Vin − Vout)·Iout + Vin·Iq, η = Pout/Pin, dropout checked at the input's ripple
+ * trough, ripple out = ripple in × 10^(−PSRR/20) with PSRR fading near dropout, and
+ * Tj = Ta + P·θJA (θJA as JEDEC JESD51-2 defines it: a package comparison figure).
+ */
+import type { Amps, Celsius, Ratio, Volts, Watts } from '../units.ts';
+import type { OperatingPoint, OutputSpec, StageEvaluation, StageFlag, StageSpec } from './types.ts';
+import { GENERIC_DEFAULTS, type LdoPackage } from './defaults.ts';
+import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from './common.ts';
+import { specErrors } from './buck.ts';
+
+export interface LdoDesign {
+  kind: 'ldo';
+  vinMin: Volts;
+  vinNom: Volts;
+  vinMax: Volts;
+  /** Peak-to-peak ripple riding on the input (from the stage feeding it). */
+  vinRipple: Volts;
+  outputs: OutputSpec[];
+  /** Frequency of the input ripple (the feeding stage's switching frequency; 0 = none). */
+  rippleFrequency: number;
+  ratedCurrent: Amps;
+  /** Dropout = dropoutFloor + dropoutAtRated·I/ratedCurrent. */
+  dropoutAtRated: Volts;
+  dropoutFloor: Volts;
+  iq: Amps;
+  /** Output accuracy over line, load and temperature (±). */
+  accuracy: Ratio;
+  psrrDb: number;
+  /** Headroom above dropout below which the rejection fades linearly to 0 dB. */
+  psrrKnee: Volts;
+  headroomMargin: Volts;
+  package: LdoPackage;
+  thetaSource: 'library' | 'default-from-memory';
+  cin: CapacitorChoice;
+  cout: CapacitorChoice;
+  tjMax: Celsius;
+}
+
+export function ldoDropout(d: LdoDesign, i: number): number {
+  return d.dropoutFloor + (d.dropoutAtRated * Math.abs(i)) / d.ratedCurrent;
+}
+
+/** Output magnitude, rejection and headroom at an input magnitude and current. */
+export function ldoPoint(d: LdoDesign, vinMag: number, i: number, setpoint = Math.abs(d.outputs[0]!.voltage)) {
+  const trough = vinMag - d.vinRipple / 2;
+  const vdo = ldoDropout(d, i);
+  const headroom = trough - setpoint - vdo;
+  const vout = Math.min(setpoint, trough - vdo);
+  const fade = Math.max(0, Math.min(1, headroom / d.psrrKnee));
+  const psrr = d.psrrDb * fade;
+  const ripple = d.rippleFrequency > 0 ? d.vinRipple * 10 ** (-psrr / 20) : 0;
+  return { trough, vdo, headroom, vout: Math.max(0, vout), psrr, ripple };
+}
+
+export function evaluateLdo(d: LdoDesign, op: OperatingPoint): StageEvaluation {
+  const sign = Math.sign(d.outputs[0]!.voltage) || 1;
+  const vinMag = Math.abs(op.vin);
+  const i = Math.abs(op.iout[0] ?? 0);
+  const p = ldoPoint(d, vinMag, i);
+  const flags: StageFlag[] = [];
+  if (Math.sign(op.vin) !== sign && op.vin !== 0) {
+    flags.push(flag('input-polarity', 'error', `input ${r3(op.vin)} V and output ${r3(d.outputs[0]!.voltage)} V have opposite signs`, { vin: op.vin }));
+  }
+  if (p.headroom < 0) {
+    flags.push(flag('dropout', 'error',
+      `in dropout: input trough ${r3(p.trough)} V is below ${r3(Math.abs(d.outputs[0]!.voltage))} V + ${r3(p.vdo)} V dropout at ${r3(i)} A (short by ${r3(-p.headroom)} V)`,
+      { trough: r3(p.trough), dropout: r3(p.vdo), shortfall: r3(-p.headroom) }));
+  } else if (p.headroom < d.headroomMargin) {
+    flags.push(flag('low-headroom', 'warning',
+      `only ${r3(p.headroom * 1e3)} mV above dropout at the input trough (margin ${r3(d.headroomMargin * 1e3)} mV); ripple rejection is ${r3(p.psrr)} dB`,
+      { headroom: r3(p.headroom), psrr: r3(p.psrr) }));
+  }
+  const pass = (vinMag - p.vout) * i;
+  const quiescent = vinMag * d.iq;
+  const pout = p.vout * i;
+  const loss = pass + quiescent;
+  const pin = pout + loss;
+  const parts = [part('LDO', loss, d.package.thetaJA, op.ambient as number, d.thetaSource)];
+  flags.push(...thermalFlags(parts, d.tjMax));
+  const outputs = [{ nodeId: d.outputs[0]!.nodeId, voltage: (sign * p.vout) as Volts, current: i as Amps, ripplePP: p.ripple as Volts }];
+  flags.push(...rippleFlags(outputs, d.outputs));
+  return {
+    kind: 'ldo',
+    vin: op.vin,
+    iin: (pin / Math.max(vinMag, 1e-12)) as Amps,
+    pin: pin as Watts,
+    pout: pout as Watts,
+    loss: loss as Watts,
+    efficiency: (pin > 0 ? pout / pin : 0) as Ratio,
+    lossBreakdown: { 'pass-element': pass as Watts, quiescent: quiescent as Watts },
+    parts,
+    outputs,
+    flags,
+  };
+}
+
+export function designLdo(spec: StageSpec): { ok: true; design: LdoDesign; reasons: string[]; flags: StageFlag[] } | { ok: false; flags: StageFlag[] } {
+  const bad = specErrors(spec);
+  if (bad.length) return { ok: false, flags: bad };
+  if (spec.outputs.length !== 1) return { ok: false, flags: [flag('bad-input', 'error', `an LDO has exactly one output (got ${spec.outputs.length})`, { field: 'outputs' })] };
+  const o = spec.outputs[0]!;
+  const sign = Math.sign(o.voltage);
+  if (Math.sign(spec.vinMin) !== sign || Math.sign(spec.vinMax) !== sign) {
+    return { ok: false, flags: [flag('input-polarity', 'error', `input ${r3(spec.vinMin)}…${r3(spec.vinMax)} V must have the sign of the ${r3(o.voltage)} V output`, { field: 'vinMin' })] };
+  }
+  // Work in magnitudes: for a negative regulator "min" is the least negative input.
+  const vinLo = Math.min(Math.abs(spec.vinMin), Math.abs(spec.vinMax));
+  const vinHi = Math.max(Math.abs(spec.vinMin), Math.abs(spec.vinMax));
+  const vout = Math.abs(o.voltage);
+  const imax = o.currentMax as number;
+  const L = GENERIC_DEFAULTS.ldo;
+  const reasons: string[] = [];
+  const rated = L.ratedCurrents.find((r) => r >= imax * 1.2);
+  if (rated === undefined) {
+    return { ok: false, flags: [flag('current-too-high', 'error', `${r3(imax)} A is beyond the largest generic LDO rating ${L.ratedCurrents.at(-1)} A (with 20 % margin)`, { imax })] };
+  }
+  const ripple = Math.max(0, (spec.vinRipple ?? 0) as number);
+  const pmax = (vinHi - vout) * imax + vinHi * L.iq;
+  const tjBudget = (spec.tjMax as number) - (spec.ambient as number);
+  const pkg = L.packages.find((p) => pmax * p.thetaJA <= tjBudget);
+  if (!pkg) {
+    const best = L.packages[L.packages.length - 1]!;
+    return { ok: false, flags: [flag('tj-over-limit', 'error',
+      `${r3(pmax)} W at Vin ${r3(vinHi)} V needs θJA ≤ ${r3(tjBudget / pmax)} K/W; the best generic package (${best.name}, ${best.thetaJA} K/W) reaches ${r3((spec.ambient as number) + pmax * best.thetaJA)} °C`,
+      { power: r3(pmax), thetaNeeded: r3(tjBudget / pmax) })] };
+  }
+  reasons.push(`${rated} A rating for ${r3(imax)} A (20 % margin); package ${pkg.name} (θJA ${pkg.thetaJA} K/W, default from memory) keeps ${r3(pmax)} W under ${spec.tjMax} °C`);
+  const design: LdoDesign = {
+    kind: 'ldo',
+    vinMin: spec.vinMin, vinNom: spec.vinNom, vinMax: spec.vinMax,
+    vinRipple: ripple as Volts,
+    outputs: [{ ...o }],
+    rippleFrequency: spec.fsw as number,
+    ratedCurrent: rated as Amps,
+    dropoutAtRated: L.dropoutAtRated as Volts,
+    dropoutFloor: L.dropoutFloor as Volts,
+    iq: L.iq as Amps,
+    accuracy: L.accuracy as Ratio,
+    psrrDb: L.psrrDb,
+    psrrKnee: L.psrrKnee as Volts,
+    headroomMargin: L.headroomMargin as Volts,
+    package: { ...pkg },
+    thetaSource: 'default-from-memory',
+    cin: chooseCeramic('LDO input', 1e-6, vinHi, spec.ceramicDerating),
+    cout: chooseCeramic('LDO output', 2.2e-6, vout * 1.1, spec.ceramicDerating),
+    tjMax: spec.tjMax,
+  };
+  const flags: StageFlag[] = [];
+  const seen = new Set<string>();
+  for (const vin of [vinLo, vinHi]) {
+    for (const f of evaluateLdo(design, { vin: (sign * vin) as Volts, iout: [imax as Amps], ambient: spec.ambient }).flags) {
+      if (!seen.has(f.code)) { seen.add(f.code); flags.push(f); }
+    }
+  }
+  if (flags.some((f) => f.severity === 'error')) return { ok: false, flags };
+  const p = ldoPoint(design, vinLo, imax);
+  reasons.push(`headroom ${r3(p.headroom)} V above dropout at the ${r3(p.trough)} V input trough; ripple rejection ${r3(p.psrr)} dB there`);
+  return { ok: true, design, reasons, flags };
+}

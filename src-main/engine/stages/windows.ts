@@ -1,0 +1,169 @@
+/**
+ * Worst-case output windows. The corner set (docs/stage-json.md):
+ *   every input voltage given (normally Vin min, nom, max)
+ * × every output at its smallest and its largest current (all 2^n combinations, so the
+ *   cross-regulation between windings is covered)
+ * × the tolerance extremes: reference and E96 divider resistors (setpoint low / high),
+ *   rectifier drop (1 ∓ spread) for coupled windings, LDO accuracy ±;
+ * and each output's value at a corner is its DC voltage ∓ half its peak-to-peak ripple.
+ * An optional seeded Monte Carlo draws every quantity uniformly inside its range.
+ */
+import type { Amps, Celsius, Volts } from '../units.ts';
+import type { OutputSpec, OutputWindow } from './types.ts';
+import type { DividerChoice } from '../eseries.ts';
+import { buckPoint, evaluateBuck, type BuckDesign } from './buck.ts';
+import { evaluateCoupledBuck, type CoupledBuckDesign } from './cwbuck.ts';
+import { ldoPoint, type LdoDesign } from './ldo.ts';
+import { mulberry32, r3 } from './common.ts';
+
+export type WindowDesign = BuckDesign | CoupledBuckDesign | LdoDesign;
+
+export interface WindowCorners {
+  vin: Volts[];
+  iout: { min: Amps; max: Amps }[];
+}
+
+export interface WindowOptions {
+  monteCarlo?: { runs: number; seed: number };
+  /** Ambient for the evaluations (does not move the voltages; default 25 °C). */
+  ambient?: Celsius;
+}
+
+/** Tolerance draws: each in [−1, 1], scaled by the design's own tolerances. */
+interface Draw {
+  vref: number;
+  rTop: number;
+  rBottom: number;
+  vf: number;
+  accuracy: number;
+}
+
+function setpoint(div: DividerChoice, vrefTol: number, x: Draw): number {
+  const vref = div.vref * (1 + vrefTol * x.vref);
+  const rt = div.rTop * (1 + div.tolerance * x.rTop);
+  const rb = div.rBottom * (1 + div.tolerance * x.rBottom);
+  return vref * (1 + rt / rb);
+}
+
+/** Signed output values (DC ∓ ripple/2 as [low, high] in magnitude) at one corner. */
+function outputsAt(d: WindowDesign, vin: number, iout: number[], x: Draw): { lo: number; hi: number }[] {
+  const ambient = 25 as Celsius;
+  if (d.kind === 'buck') {
+    const sp = setpoint(d.divider, d.controller.vrefTolerance, x);
+    const io = iout[0] ?? 0;
+    const ev = evaluateBuck(d, { vin: vin as Volts, iout: [io as Amps], ambient });
+    let v = sp;
+    const duty = buckPoint(d, vin, io, sp).duty;
+    if (duty > d.controller.maxDuty) {
+      // Out of regulation: the output follows the maximum duty.
+      const p = buckPoint(d, vin, io, sp);
+      const dm = d.controller.maxDuty;
+      v = dm * (vin - io * p.rhs) - (1 - dm - p.deadShare) * io * p.rls - io * d.dcr;
+    }
+    const rp = ev.outputs[0]!.ripplePP as number;
+    return [{ lo: v - rp / 2, hi: v + rp / 2 }];
+  }
+  if (d.kind === 'cwbuck') {
+    const sp = setpoint(d.divider, d.controller.vrefTolerance, x);
+    const vfScale = 1 + d.secondaries.reduce((a, w) => Math.max(a, w.rectifier.vfSpread), 0) * x.vf;
+    const ev = evaluateCoupledBuck(d, { vin: vin as Volts, iout: iout as Amps[], ambient }, { vPrimary: sp, vfScale });
+    return ev.outputs.map((o) => {
+      const m = Math.abs(o.voltage);
+      return { lo: m - o.ripplePP / 2, hi: m + o.ripplePP / 2 };
+    });
+  }
+  const set = Math.abs(d.outputs[0]!.voltage) * (1 + d.accuracy * x.accuracy);
+  const p = ldoPoint(d, Math.abs(vin), iout[0] ?? 0, set);
+  return [{ lo: p.vout - p.ripple / 2, hi: p.vout + p.ripple / 2 }];
+}
+
+function bandOf(o: OutputSpec): { min: number; max: number } {
+  const a = (o.voltage as number) * (1 - o.tolerance);
+  const b = (o.voltage as number) * (1 + o.tolerance);
+  return { min: Math.min(a, b), max: Math.max(a, b) };
+}
+
+export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: WindowOptions = {}): OutputWindow[] {
+  const n = d.outputs.length;
+  if (!Array.isArray(corners.vin) || corners.vin.length === 0 || corners.vin.some((v) => !Number.isFinite(v))) {
+    throw new RangeError('corners.vin: give at least one finite input voltage');
+  }
+  if (!Array.isArray(corners.iout) || corners.iout.length !== n) {
+    throw new RangeError(`corners.iout: need one {min, max} per output (${n}), got ${Array.isArray(corners.iout) ? corners.iout.length : 'none'}`);
+  }
+  corners.iout.forEach((c, i) => {
+    if (!(Number.isFinite(c.min) && Number.isFinite(c.max) && c.min >= 0 && c.max >= c.min)) {
+      throw new RangeError(`corners.iout[${i}]: need 0 ≤ min ≤ max (got ${c.min}, ${c.max})`);
+    }
+  });
+  const lo = new Array<number>(n).fill(Infinity);
+  const hi = new Array<number>(n).fill(-Infinity);
+  const loAt = new Array<string>(n).fill('');
+  const hiAt = new Array<string>(n).fill('');
+  const tolCases: { x: Draw; label: string }[] = [];
+  const hasVf = d.kind === 'cwbuck';
+  for (const s of [-1, 1]) {
+    for (const f of hasVf ? [-1, 1] : [0]) {
+      const x: Draw = { vref: s, rTop: s, rBottom: -s, vf: f, accuracy: s };
+      const label = `${d.kind === 'ldo' ? 'accuracy' : 'reference and divider'} ${s < 0 ? 'low' : 'high'}${hasVf ? `, rectifier drop ${f < 0 ? 'low' : 'high'}` : ''}`;
+      tolCases.push({ x, label });
+    }
+  }
+  for (const vin of corners.vin) {
+    for (let mask = 0; mask < 1 << n; mask++) {
+      const iout = corners.iout.map((c, i) => (mask & (1 << i) ? c.max : c.min) as number);
+      const loads = iout.map((_, i) => (mask & (1 << i) ? 'max' : 'min')).join('/');
+      for (const tc of tolCases) {
+        const vals = outputsAt(d, vin, iout, tc.x);
+        vals.forEach((v, i) => {
+          const where = `Vin ${r3(vin)} V, loads ${loads}, ${tc.label}`;
+          if (v.lo < lo[i]!) { lo[i] = v.lo; loAt[i] = where; }
+          if (v.hi > hi[i]!) { hi[i] = v.hi; hiAt[i] = where; }
+        });
+      }
+    }
+  }
+  let mc: { min: number[]; max: number[] } | null = null;
+  const runs = opts.monteCarlo ? Math.max(0, Math.min(1e6, Math.floor(opts.monteCarlo.runs))) : 0;
+  if (opts.monteCarlo && runs > 0) {
+    const rnd = mulberry32(opts.monteCarlo.seed);
+    const u = () => 2 * rnd() - 1;
+    const vmin = Math.min(...corners.vin), vmax = Math.max(...corners.vin);
+    mc = { min: new Array<number>(n).fill(Infinity), max: new Array<number>(n).fill(-Infinity) };
+    for (let r = 0; r < runs; r++) {
+      const vin = vmin + (vmax - vmin) * rnd();
+      const iout = corners.iout.map((c) => c.min + (c.max - c.min) * rnd());
+      const x: Draw = { vref: u(), rTop: u(), rBottom: u(), vf: hasVf ? u() : 0, accuracy: u() };
+      outputsAt(d, vin, iout, x).forEach((v, i) => {
+        mc!.min[i] = Math.min(mc!.min[i]!, v.lo);
+        mc!.max[i] = Math.max(mc!.max[i]!, v.hi);
+      });
+    }
+  }
+  return d.outputs.map((o, i) => {
+    const neg = (o.voltage as number) < 0;
+    const band = bandOf(o);
+    const min = neg ? -hi[i]! : lo[i]!;
+    const max = neg ? -lo[i]! : hi[i]!;
+    const w: OutputWindow = {
+      nodeId: o.nodeId,
+      target: o.voltage,
+      min: min as Volts,
+      max: max as Volts,
+      allowedMin: band.min as Volts,
+      allowedMax: band.max as Volts,
+      inside: min >= band.min - 1e-12 && max <= band.max + 1e-12,
+      minCorner: neg ? hiAt[i]! : loAt[i]!,
+      maxCorner: neg ? loAt[i]! : hiAt[i]!,
+    };
+    if (mc && opts.monteCarlo) {
+      w.monteCarlo = {
+        min: (neg ? -mc.max[i]! : mc.min[i]!) as Volts,
+        max: (neg ? -mc.min[i]! : mc.max[i]!) as Volts,
+        runs,
+        seed: opts.monteCarlo.seed,
+      };
+    }
+    return w;
+  });
+}
