@@ -1,0 +1,278 @@
+/**
+ * The one contract between the window and the handlers (types only).
+ *
+ * `Requests` maps each request name to `(args) => result`; `Events` maps each event name to
+ * its payload. Every payload is plain serialisable data (no classes, no functions), so the
+ * same contract travels over Electron IPC, the child-process backend pipe and HTTP.
+ * Every request answers with an `ApiResult`: either `{ ok: true, value }` or
+ * `{ ok: false, error: { field?, message } }`; handlers never throw across the contract.
+ */
+import type { Id, Rail, Requirements } from '../engine/model.ts';
+import type { Plan, PlanResult } from '../engine/plan-types.ts';
+
+export interface ApiError {
+  /** Dotted path of the offending argument or cell, e.g. `loads.L3.voltage`. */
+  field?: string;
+  message: string;
+}
+
+export type ApiResult<T> = { ok: true; value: T } | { ok: false; error: ApiError };
+
+/** Editable tables of the requirements and of the part library. */
+export type TableName = 'sources' | 'domains' | 'modes' | 'loads' | 'limits' | 'preferences' | 'library';
+
+export interface ProjectState {
+  /** File the project was opened from or saved to; null for a project never saved. */
+  path: string | null;
+  name: string;
+  dirty: boolean;
+  revision: number;
+  canUndo: boolean;
+  canRedo: boolean;
+  undoLabel: string | null;
+  redoLabel: string | null;
+  /** True when the project came back from an autosave after an unclean exit. */
+  recovered: boolean;
+  recent: string[];
+  /** The host the handlers run in; the window adapts file dialogs to it. */
+  host: 'electron' | 'web' | 'test';
+}
+
+/** One part of the editable part library as the window sees it (plain rows). */
+export type LibraryRow = Record<string, string | number | boolean | null>;
+
+export interface LibraryView {
+  /** Column keys in display order and their kind. */
+  columns: { key: string; label: string; kind: 'text' | 'number' | 'quantity' | 'enum'; unit?: string; options?: string[] }[];
+  rows: LibraryRow[];
+  currency: string;
+}
+
+/** Per-mode figures of one stage from the roll-up. */
+export interface StageFigures {
+  stageId: Id;
+  modeId: Id;
+  vin: number;
+  pin: number;
+  pout: number;
+  loss: number;
+  efficiency: number;
+  duty: number | null;
+  lossBreakdown: Record<string, number>;
+  parts: { role: string; power: number; tj: number; thetaJA: number; thetaSource: string; margin: number }[];
+  outputs: { nodeId: Id; voltage: number; current: number; ripplePP: number }[];
+  flags: { code: string; severity: 'error' | 'warning'; text: string }[];
+}
+
+export interface WindowFigures {
+  nodeId: Id;
+  target: number;
+  min: number;
+  max: number;
+  allowedMin: number;
+  allowedMax: number;
+  inside: boolean;
+  minCorner: string;
+  maxCorner: string;
+}
+
+export interface SystemFigures {
+  modeId: Id;
+  /** Efficiency and source current at the source's min, nominal and max voltage. */
+  efficiency: { vMin: number; vNom: number; vMax: number };
+  sourceCurrent: { vMin: number; vNom: number; vMax: number };
+  pin: number;
+  pout: number;
+  loss: number;
+}
+
+/** Everything the tree, inspector, budget and thermal views need about one plan. */
+export interface RollupView {
+  /** Requirements revision the figures were computed at. */
+  revision: number;
+  stages: StageFigures[];
+  windows: WindowFigures[];
+  system: SystemFigures[];
+  /** Time-weighted loss over the modes. */
+  weightedLoss: number;
+  messages: string[];
+}
+
+export interface LayoutNode {
+  id: Id;
+  kind: 'source' | 'stage' | 'rail' | 'internal' | 'load';
+  label: string;
+  sub: string[];
+  domainId: Id | null;
+  x: number;
+  y: number;
+  width: number;
+  height: number;
+}
+
+export interface LayoutEdge {
+  id: Id;
+  from: Id;
+  to: Id;
+  label: string;
+  /** Polyline points in absolute coordinates. */
+  points: { x: number; y: number }[];
+  crossesBarrier: boolean;
+}
+
+export interface LayoutGroup {
+  domainId: Id;
+  label: string;
+  isolation: string;
+  x: number;
+  y: number;
+  width: number;
+  height: number;
+}
+
+export interface LayoutView {
+  width: number;
+  height: number;
+  nodes: LayoutNode[];
+  edges: LayoutEdge[];
+  groups: LayoutGroup[];
+  /** Galvanic barriers as line segments between an isolated group and the rest. */
+  barriers: { x1: number; y1: number; x2: number; y2: number; label: string }[];
+}
+
+export interface BomLineView {
+  group: string;
+  stageId: Id | null;
+  role: string;
+  description: string;
+  value: string;
+  quantity: number;
+  unitCost: number;
+  extended: number;
+  estimate: boolean;
+}
+
+export interface BomView {
+  lines: BomLineView[];
+  total: number;
+  parts: number;
+  currency: string;
+}
+
+/** The plan-side picture the window draws: the chosen alternative, computed. */
+export interface PlanView {
+  result: PlanResult;
+  /** Id of the alternative currently shown (the best one unless the user picked another). */
+  selectedId: Id | null;
+  selected: Plan | null;
+  /** True when the requirements changed after planning (the plan may no longer fit). */
+  stale: boolean;
+  rollup: RollupView | null;
+  layout: LayoutView | null;
+  bom: BomView | null;
+  /** What could not be computed and why (a missing module, an evaluation error). */
+  notes: string[];
+}
+
+export interface Snapshot {
+  state: ProjectState;
+  requirements: Requirements;
+  rails: Rail[];
+  plan: PlanView | null;
+  /** Problems with the requirements as a whole (not one cell), each naming its subject. */
+  problems: ApiError[];
+}
+
+export interface CellEdit {
+  table: TableName;
+  /** Row id; `limits` and `preferences` use the row id `project`. */
+  rowId: Id;
+  /** Column key, e.g. `voltage`, `tolerance`, `current:<modeId>`. */
+  field: string;
+  /** What the user typed, in engineering notation (`3V3`, `250m`, `±5%`, `4u7`). */
+  text: string;
+}
+
+export type ExportKind =
+  | 'bom-csv' | 'bom-xlsx' | 'tree-svg' | 'tree-pdf' | 'report' | 'json' | 'spice' | 'magnetics';
+
+export interface ExportFile {
+  fileName: string;
+  mime: string;
+  /** Base64 of the bytes (so binary formats travel as plain JSON). */
+  base64: string;
+  /** Where it was written, when a path was given. */
+  writtenTo: string | null;
+}
+
+export interface PlanJob {
+  jobId: string;
+}
+
+export interface Requests {
+  'project.snapshot': (args: Record<string, never>) => Snapshot;
+  'project.new': (args: { discard?: boolean }) => Snapshot;
+  'project.open': (args: { path: string; discard?: boolean }) => Snapshot;
+  'project.openDemo': (args: { discard?: boolean }) => Snapshot;
+  'project.save': (args: { path?: string }) => ProjectState;
+  'project.importJson': (args: { text: string; discard?: boolean }) => Snapshot;
+  'project.rename': (args: { name: string }) => Snapshot;
+
+  'requirements.editCell': (args: CellEdit) => Snapshot;
+  'requirements.addRow': (args: { table: TableName }) => Snapshot & { rowId: Id };
+  'requirements.removeRow': (args: { table: TableName; rowId: Id }) => Snapshot;
+  'requirements.undo': (args: Record<string, never>) => Snapshot;
+  'requirements.redo': (args: Record<string, never>) => Snapshot;
+
+  'plan.start': (args: Record<string, never>) => PlanJob;
+  'plan.cancel': (args: { jobId: string }) => { cancelled: boolean };
+  'plan.select': (args: { planId: Id }) => Snapshot;
+
+  'library.get': (args: Record<string, never>) => LibraryView;
+
+  'export.file': (args: { kind: ExportKind; path?: string; stageId?: Id }) => ExportFile;
+}
+
+export type RequestName = keyof Requests;
+export type RequestArgs<K extends RequestName> = Parameters<Requests[K]>[0];
+export type RequestValue<K extends RequestName> = ReturnType<Requests[K]>;
+
+export interface PlanProgress {
+  jobId: string;
+  /** 0..1 where known, else null (anytime search without a bound). */
+  fraction: number | null;
+  explored: number;
+  bestLoss: number | null;
+  elapsedMs: number;
+  message: string;
+}
+
+export interface PlanFinished {
+  jobId: string;
+  outcome: 'done' | 'cancelled' | 'failed';
+  message: string;
+}
+
+export interface Events {
+  'plan.progress': PlanProgress;
+  'plan.finished': PlanFinished;
+  /** The project was replaced or changed outside the window's own request (menu, autosave). */
+  'project.changed': Snapshot;
+  /** Title-bar state: file name, unsaved mark, undo availability. */
+  'project.state': ProjectState;
+}
+
+export type EventName = keyof Events;
+
+/** The one object a host hands the window (`window.railwright`). */
+export interface RailwrightBridge {
+  host: 'electron' | 'web';
+  request<K extends RequestName>(name: K, args: RequestArgs<K>): Promise<ApiResult<RequestValue<K>>>;
+  on<E extends EventName>(event: E, listener: (payload: Events[E]) => void): () => void;
+  /**
+   * Native file dialog (desktop host only). Returns the chosen path, which the host then
+   * accepts in a request; null when the user cancelled. The web host has none: the window
+   * asks for a path itself.
+   */
+  choosePath?(purpose: 'open-project' | 'save-project' | 'export', suggestedName: string): Promise<string | null>;
+}

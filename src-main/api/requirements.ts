@@ -1,0 +1,263 @@
+/**
+ * Requirement editing handlers: one cell at a time in engineering notation, add and remove
+ * rows, undo and redo. Every edit is validated before it touches the project; a refused
+ * edit returns a message naming the table, the row and the column, and changes nothing.
+ */
+import { z } from 'zod';
+import type { Domain, Id, Load, OperatingMode, Requirements, Source } from '../engine/model.ts';
+import { ISOLATION_CLASSES, NOISE_CLASSES } from '../engine/model.ts';
+import { parseQuantity, parseTolerance } from '../engine/notation.ts';
+import type { Amps, Ratio, Volts } from '../engine/units.ts';
+import type { CellEdit, TableName } from './contract.ts';
+import { ApiFailure, handler, noArgs } from './registry.ts';
+import type { Session } from './session.ts';
+import { buildSnapshot } from './snapshot.ts';
+import { TABLE_COLUMNS, type ColumnDef } from './tables.ts';
+import { editLibraryCell, addLibraryRow, removeLibraryRow } from './library.ts';
+
+const tableName = z.enum(['sources', 'domains', 'modes', 'loads', 'limits', 'preferences', 'library']);
+const id = z.string().min(1).max(200);
+
+const cellEdit = z.object({
+  table: tableName,
+  rowId: id,
+  field: z.string().min(1).max(200),
+  text: z.string().max(500),
+}).strict();
+
+/** The row label used in messages: the row's name when it has one. */
+function rowLabel(req: Requirements, table: TableName, rowId: Id): string {
+  if (table === 'limits' || table === 'preferences') return table;
+  const rows = req[table as 'sources' | 'domains' | 'modes' | 'loads'] as { id: Id; name: string }[];
+  const r = rows.find((x) => x.id === rowId);
+  return `${table} › ${r?.name || rowId}`;
+}
+
+/** Parse one typed value for a column; throws ApiFailure naming `where`. */
+export function parseCell(col: ColumnDef, text: string, where: string, req: Requirements): unknown {
+  const k = col.kind;
+  const t = text.trim();
+  switch (k.type) {
+    case 'text': {
+      if (t === '' && !k.optional) throw new ApiFailure(`${where}: must not be empty`, where);
+      if (t.length > 120) throw new ApiFailure(`${where}: longer than 120 characters`, where);
+      return t;
+    }
+    case 'enum': {
+      const opts = k.options === 'domains' ? req.domains.map((d) => d.id) : k.options;
+      if (k.options === 'domains') {
+        const byName = req.domains.find((d) => d.name.toLowerCase() === t.toLowerCase() || d.id === t);
+        if (byName) return byName.id;
+        throw new ApiFailure(`${where}: "${t}" is not a domain of this project (have: ${req.domains.map((d) => d.name).join(', ')})`, where);
+      }
+      const hit = opts.find((o) => o.toLowerCase() === t.toLowerCase());
+      if (!hit) throw new ApiFailure(`${where}: "${t}" is not one of ${opts.join(', ')}`, where);
+      return hit;
+    }
+    case 'quantity': {
+      const r = parseQuantity(t, k.quantity, where);
+      if (!r.ok) throw new ApiFailure(r.message, where);
+      if (k.min !== undefined && r.value < k.min) throw new ApiFailure(`${where}: ${t} is below the smallest allowed value ${k.min}`, where);
+      if (k.max !== undefined && r.value > k.max) throw new ApiFailure(`${where}: ${t} is above the largest allowed value ${k.max}`, where);
+      return r.value;
+    }
+    case 'tolerance': {
+      const r = parseTolerance(t, where);
+      if (!r.ok) throw new ApiFailure(r.message, where);
+      if (r.value <= 0 || r.value > 0.5) throw new ApiFailure(`${where}: a tolerance must be above 0 and at most ±50 %`, where);
+      return r.value;
+    }
+    case 'fraction': {
+      const pct = /^([+]?\d+(?:\.\d*)?|\.\d+)\s*%$/.exec(t);
+      const v = pct ? Number(pct[1]) / 100 : /^[+]?(\d+(?:\.\d*)?|\.\d+)(e[+-]?\d+)?$/i.test(t) ? Number(t) : NaN;
+      if (!Number.isFinite(v)) throw new ApiFailure(`${where}: "${t}" is not a fraction (write 70% or 0.7)`, where);
+      if (v < k.min || v > k.max) throw new ApiFailure(`${where}: ${t} is outside ${k.min * 100}…${k.max * 100} %`, where);
+      return v;
+    }
+    case 'integer': {
+      if (!/^[+]?\d+$/.test(t)) throw new ApiFailure(`${where}: "${t}" is not a whole number`, where);
+      const v = Number(t);
+      if (v < k.min || v > k.max) throw new ApiFailure(`${where}: ${t} is outside ${k.min}…${k.max}`, where);
+      return v;
+    }
+    case 'number': {
+      const unit = k.unit ? k.unit.replace(/[.*+?^${}()|[\]\\]/g, '\\$&') : '';
+      const m = new RegExp(`^([+-]?(?:\\d+(?:\\.\\d*)?|\\.\\d+)(?:e[+-]?\\d+)?)\\s*${unit ? `(?:${unit})?` : ''}$`, 'i').exec(t);
+      const v = m ? Number(m[1]) : NaN;
+      if (!Number.isFinite(v)) throw new ApiFailure(`${where}: "${t}" is not a number${k.unit ? ` of ${k.unit}` : ''}`, where);
+      if (v < k.min || v > k.max) throw new ApiFailure(`${where}: ${t} is outside ${k.min}…${k.max}${k.unit ? ' ' + k.unit : ''}`, where);
+      return v;
+    }
+  }
+}
+
+/** Checks that involve more than one cell; messages name the row. */
+function checkRow(req: Requirements, table: TableName, rowId: Id): void {
+  if (table === 'sources') {
+    const s = req.sources.find((x) => x.id === rowId);
+    if (s && !(s.vMin <= s.vNom && s.vNom <= s.vMax)) {
+      throw new ApiFailure(`${rowLabel(req, table, rowId)}: needs V min ≤ V nominal ≤ V max (have ${s.vMin} ≤ ${s.vNom} ≤ ${s.vMax} V)`, `sources.${rowId}`);
+    }
+  }
+}
+
+/** Apply one cell edit to a copy of the requirements (throws on bad input). */
+export function applyCell(req: Requirements, e: CellEdit): void {
+  const where = `${rowLabel(req, e.table, e.rowId)} › ${e.field}`;
+  if (e.table === 'loads' && e.field.startsWith('current:')) {
+    const modeId = e.field.slice('current:'.length);
+    const mode = req.modes.find((m) => m.id === modeId);
+    if (!mode) throw new ApiFailure(`${where}: no operating mode "${modeId}"`, e.field);
+    const load = req.loads.find((l) => l.id === e.rowId);
+    if (!load) throw new ApiFailure(`loads: no row "${e.rowId}"`, 'rowId');
+    const label = `${rowLabel(req, 'loads', e.rowId)} › current in ${mode.name}`;
+    const r = parseQuantity(e.text.trim(), 'current', label);
+    if (!r.ok) throw new ApiFailure(r.message, e.field);
+    if (r.value < 0 || r.value > 1000) throw new ApiFailure(`${label}: must be between 0 and 1000 A`, e.field);
+    load.current[modeId] = r.value as Amps;
+    return;
+  }
+  const cols = TABLE_COLUMNS[e.table as Exclude<TableName, 'library'>];
+  const col = cols.find((c) => c.key === e.field);
+  if (!col) throw new ApiFailure(`${e.table}: no column "${e.field}"`, 'field');
+  const value = parseCell(col, e.text, where, req);
+  if (e.table === 'limits') {
+    (req.limits as unknown as Record<string, unknown>)[e.field] = value;
+    if (req.limits.tjMax - req.limits.tjMargin <= req.limits.ambient) {
+      throw new ApiFailure(`limits: Tj max minus the margin (${req.limits.tjMax - req.limits.tjMargin} °C) must stay above the ambient (${req.limits.ambient} °C)`, e.field);
+    }
+    return;
+  }
+  if (e.table === 'preferences') {
+    const p = req.preferences as unknown as Record<string, unknown>;
+    if (e.field.startsWith('weights.')) (req.preferences.weights as unknown as Record<string, unknown>)[e.field.slice(8)] = value;
+    else p[e.field] = value;
+    return;
+  }
+  const rows = req[e.table as 'sources' | 'domains' | 'modes' | 'loads'] as unknown as Record<string, unknown>[];
+  const row = rows.find((r) => r.id === e.rowId);
+  if (!row) throw new ApiFailure(`${e.table}: no row "${e.rowId}"`, 'rowId');
+  if (col.key === 'railKey' && value === '') delete row.railKey;
+  else row[col.key] = value;
+  if (col.key === 'name') {
+    const dup = rows.find((r) => r !== row && String(r.name).toLowerCase() === String(value).toLowerCase());
+    if (dup) throw new ApiFailure(`${where}: another row of ${e.table} is already called "${String(value)}"`, where);
+  }
+  checkRow(req, e.table, e.rowId);
+}
+
+function freshId(prefix: string, taken: { id: Id }[]): Id {
+  const ids = new Set(taken.map((t) => t.id));
+  for (let i = taken.length + 1; ; i++) if (!ids.has(`${prefix}${i}`)) return `${prefix}${i}`;
+}
+
+function freshName(base: string, taken: { name: string }[]): string {
+  const names = new Set(taken.map((t) => t.name.toLowerCase()));
+  for (let i = taken.length + 1; ; i++) if (!names.has(`${base} ${i}`.toLowerCase())) return `${base} ${i}`;
+}
+
+export function addRow(req: Requirements, table: TableName): Id {
+  switch (table) {
+    case 'sources': {
+      const s: Source = { id: freshId('src', req.sources), name: freshName('Input', req.sources), vNom: 12 as Volts, vMin: 10 as Volts, vMax: 14 as Volts, currentLimit: 2 as Amps };
+      req.sources.push(s);
+      return s.id;
+    }
+    case 'domains': {
+      const d: Domain = { id: freshId('dom', req.domains), name: freshName('Domain', req.domains), isolation: 'none', workingVoltage: 0 as Volts };
+      req.domains.push(d);
+      return d.id;
+    }
+    case 'modes': {
+      const m: OperatingMode = { id: freshId('mode', req.modes), name: freshName('Mode', req.modes), share: 0 as Ratio };
+      req.modes.push(m);
+      return m.id;
+    }
+    case 'loads': {
+      const dom = req.domains[0];
+      if (!dom) throw new ApiFailure('loads: add a domain first (every load belongs to one)', 'table');
+      const l: Load = {
+        id: freshId('load', req.loads), name: freshName('Load', req.loads), domainId: dom.id, voltage: 3.3 as Volts,
+        tolerance: 0.05 as Ratio, current: Object.fromEntries(req.modes.map((m) => [m.id, 0.1 as Amps])),
+        rippleLimit: 0.05 as Volts, noiseClass: 'standard',
+      };
+      req.loads.push(l);
+      return l.id;
+    }
+    default:
+      throw new ApiFailure(`${table}: rows cannot be added to this table`, 'table');
+  }
+}
+
+export function removeRow(req: Requirements, table: TableName, rowId: Id): void {
+  if (table === 'limits' || table === 'preferences' || table === 'library') throw new ApiFailure(`${table}: rows cannot be removed`, 'table');
+  const rows = req[table] as { id: Id; name: string }[];
+  const i = rows.findIndex((r) => r.id === rowId);
+  if (i < 0) throw new ApiFailure(`${table}: no row "${rowId}"`, 'rowId');
+  const name = rows[i]!.name;
+  if (table === 'domains') {
+    const users = req.loads.filter((l) => l.domainId === rowId);
+    if (users.length) throw new ApiFailure(`domains › ${name}: still used by ${users.length} load(s) (${users.slice(0, 3).map((l) => l.name).join(', ')}); move or remove them first`, 'rowId');
+  }
+  if (table === 'sources' && req.sources.length === 1) throw new ApiFailure(`sources › ${name}: a project needs at least one source`, 'rowId');
+  if (table === 'modes' && req.modes.length === 1) throw new ApiFailure(`modes › ${name}: a project needs at least one operating mode`, 'rowId');
+  rows.splice(i, 1);
+  if (table === 'modes') for (const l of req.loads) delete l.current[rowId];
+}
+
+/** Problems of the project as a whole (shown beside the grids, not blocking an edit). */
+export function projectProblems(req: Requirements): { field?: string; message: string }[] {
+  const out: { field?: string; message: string }[] = [];
+  const share = req.modes.reduce((a, m) => a + m.share, 0);
+  if (req.modes.length && Math.abs(share - 1) > 1e-6) out.push({ field: 'modes', message: `operating modes: shares of time add up to ${(share * 100).toFixed(1)} %, not 100 %` });
+  if (!req.sources.length) out.push({ field: 'sources', message: 'sources: the project has no source' });
+  if (!req.loads.length) out.push({ field: 'loads', message: 'loads: the project has no load' });
+  for (const l of req.loads) {
+    if (!req.domains.some((d) => d.id === l.domainId)) out.push({ field: `loads.${l.id}.domainId`, message: `loads › ${l.name}: domain "${l.domainId}" does not exist` });
+  }
+  return out;
+}
+
+function describe(e: CellEdit, req: Requirements): string {
+  return `Edit ${rowLabel(req, e.table, e.rowId)} › ${e.field}`;
+}
+
+export const requirementHandlers = {
+  'requirements.editCell': handler('requirements.editCell', cellEdit, async (s: Session, e) => {
+    if (e.table === 'library') {
+      s.edit(`Edit library › ${e.rowId} › ${e.field}`, (_req, lib) => ({ library: editLibraryCell(lib, e.rowId, e.field, e.text) }));
+    } else {
+      s.edit(describe(e, s.requirements), (req) => applyCell(req, e));
+    }
+    return buildSnapshot(s);
+  }),
+  'requirements.addRow': handler('requirements.addRow', z.object({ table: tableName }).strict(), async (s: Session, a) => {
+    let rowId = '';
+    s.edit(`Add a row to ${a.table}`, (req, lib) => {
+      if (a.table === 'library') {
+        const r = addLibraryRow(lib);
+        rowId = r.rowId;
+        return { library: r.library };
+      }
+      rowId = addRow(req, a.table);
+    });
+    return { ...(await buildSnapshot(s)), rowId };
+  }),
+  'requirements.removeRow': handler('requirements.removeRow', z.object({ table: tableName, rowId: id }).strict(), async (s: Session, a) => {
+    s.edit(`Remove ${a.table} › ${a.rowId}`, (req, lib) => {
+      if (a.table === 'library') return { library: removeLibraryRow(lib, a.rowId) };
+      removeRow(req, a.table, a.rowId);
+    });
+    return buildSnapshot(s);
+  }),
+  'requirements.undo': handler('requirements.undo', noArgs, async (s: Session) => {
+    if (!s.undo()) throw new ApiFailure('nothing to undo');
+    return buildSnapshot(s);
+  }),
+  'requirements.redo': handler('requirements.redo', noArgs, async (s: Session) => {
+    if (!s.redo()) throw new ApiFailure('nothing to redo');
+    return buildSnapshot(s);
+  }),
+};
+
+export { ISOLATION_CLASSES, NOISE_CLASSES };

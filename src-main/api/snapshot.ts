@@ -1,0 +1,88 @@
+/**
+ * Build what the window draws from the session: requirements, rails, and the chosen plan
+ * with its roll-up, layout and BOM. Each computed part is optional: when one cannot be
+ * computed the view carries a note saying what and why, never made-up numbers.
+ */
+import ELK from 'elkjs/lib/elk.bundled.js';
+import { groupRails } from '../engine/rails.ts';
+import { buildTreeView, entryPoint, layoutTree, type TreeFigures } from '../engine/layout.ts';
+import type { Plan } from '../engine/plan-types.ts';
+import type { LayoutView, PlanView, RollupView, Snapshot, BomView } from './contract.ts';
+import { projectProblems } from './requirements.ts';
+import type { Session } from './session.ts';
+import { computeRollup, computeBom, treeFigures } from './figures.ts';
+
+let elk: InstanceType<typeof ELK> | null = null;
+function elkInstance(): InstanceType<typeof ELK> {
+  elk ??= new ELK();
+  return elk;
+}
+
+export async function computeLayout(s: Session, plan: Plan, figures: TreeFigures | undefined): Promise<LayoutView> {
+  const rails = groupRails(s.requirements);
+  const view = buildTreeView(s.requirements, rails, plan, figures);
+  const t = await layoutTree(view, elkInstance());
+  const nodes = t.nodes.map((n) => ({
+    id: n.id, kind: n.kind, label: n.title, sub: n.lines, domainId: n.groupId,
+    x: n.x, y: n.y, width: n.width, height: n.height,
+  }));
+  const groups = t.groups.map((g) => ({
+    domainId: g.id, label: g.title, isolation: g.isolation, x: g.x, y: g.y, width: g.width, height: g.height,
+  }));
+  const barriers: LayoutView['barriers'] = [];
+  for (const e of t.edges) {
+    if (!e.crossesBarrier) continue;
+    const target = t.nodes.find((n) => n.id === e.to);
+    const g = t.groups.find((x) => x.id === target?.groupId);
+    if (!g) continue;
+    const p = entryPoint(e.points, g);
+    if (!p) continue;
+    barriers.push({ x1: p.x, y1: p.y - 14, x2: p.x, y2: p.y + 14, label: g.isolation });
+  }
+  return {
+    width: t.width,
+    height: t.height,
+    nodes,
+    edges: t.edges.map((e) => ({ id: e.id, from: e.from, to: e.to, label: e.label, points: e.points, crossesBarrier: e.crossesBarrier })),
+    groups,
+    barriers,
+  };
+}
+
+export async function buildPlanView(s: Session): Promise<PlanView | null> {
+  const result = s.planResult;
+  if (!result) return null;
+  const selected = result.alternatives.find((p) => p.id === s.selectedId) ?? result.best ?? result.alternatives[0] ?? null;
+  const notes: string[] = [];
+  let rollup: RollupView | null = null;
+  let layout: LayoutView | null = null;
+  let bom: BomView | null = null;
+  if (selected) {
+    try {
+      rollup = computeRollup(s, selected);
+    } catch (e) {
+      notes.push(`Roll-up: ${(e as Error).message}`);
+    }
+    try {
+      bom = computeBom(s, selected);
+    } catch (e) {
+      notes.push(`BOM: ${(e as Error).message}`);
+    }
+    try {
+      layout = await computeLayout(s, selected, treeFigures(s, rollup));
+    } catch (e) {
+      notes.push(`Drawing: ${(e as Error).message}`);
+    }
+  }
+  return { result, selectedId: selected?.id ?? null, selected, stale: s.planStale(), rollup, layout, bom, notes };
+}
+
+export async function buildSnapshot(s: Session): Promise<Snapshot> {
+  return {
+    state: s.state(),
+    requirements: s.requirements,
+    rails: groupRails(s.requirements),
+    plan: await buildPlanView(s),
+    problems: projectProblems(s.requirements),
+  };
+}

@@ -1,0 +1,13 @@
+/** Display formatting at the window's edge (engineering notation from the engine's notation module). */
+import { formatQuantity, formatTolerance } from '../../src-main/engine/notation.ts';
+import type { QuantityKind } from '../../src-main/engine/units.ts';
+
+export const q = (v: number | null | undefined, kind: QuantityKind, sig = 3): string =>
+  v === null || v === undefined || !Number.isFinite(v) ? '—' : formatQuantity(v, kind, sig);
+export const pct = (r: number | null | undefined, digits = 1): string =>
+  r === null || r === undefined || !Number.isFinite(r) ? '—' : `${(r * 100).toFixed(digits)} %`;
+export const tol = (r: number): string => formatTolerance(r);
+export const money = (x: number, currency: string): string =>
+  Number.isFinite(x) ? `${x.toFixed(2)} ${currency}` : '—';
+/** A plain number with a few significant digits (design values of unknown unit). */
+export const num = (x: number, sig = 4): string => (Number.isFinite(x) ? String(Number(x.toPrecision(sig))) : '—');
