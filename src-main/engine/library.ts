@@ -325,3 +325,218 @@ export function fromStoreRows(rows: PartLibraryRow[]): { ok: true; rows: Library
 export function toStoreRows(rows: LibraryRow[]): PartLibraryRow[] {
   return rows.map((r) => ({ id: r.id, partClass: r.partClass, name: r.name, cost: r.cost, params: { ...r.params } }));
 }
+
+// ---------------------------------------------------------------------------------------
+// Stage design → concrete parts
+
+/** One part (or a bank of equal parts) a stage needs. */
+export interface PartPick {
+  stageId: string;
+  role: string;
+  /** Reference-designator letter. */
+  prefix: 'U' | 'Q' | 'L' | 'T' | 'D' | 'C' | 'R';
+  partClass: PartClass;
+  /** Library row chosen, or null when no row fits (then `problem` says why). */
+  libraryId: string | null;
+  description: string;
+  /** Value as shown (e.g. "10 µF", "49.9 kΩ"), empty when the part has none. */
+  value: string;
+  /** Rating as shown (e.g. "25 V", "1 A", "0.1 W"). */
+  rating: string;
+  package: string;
+  quantity: number;
+  unitCost: number;
+  costNote: string;
+  /** For custom magnetics: the file name of the specification sheet. */
+  specRef?: string;
+  problem?: string;
+}
+
+export interface PickOptions {
+  /** Fraction of a resistor's rated power it may dissipate (DesignLimits.powerDerating). */
+  powerDerating: number;
+  /** Fraction of an aluminium/polymer capacitor's rating it may see (DesignLimits.electrolyticDerating). */
+  electrolyticDerating: number;
+}
+
+const DEFAULT_PICK: PickOptions = { powerDerating: 0.5, electrolyticDerating: 0.8 };
+
+function eng(value: number, unit: string): string {
+  const prefixes: Array<[number, string]> = [[1e6, 'M'], [1e3, 'k'], [1, ''], [1e-3, 'm'], [1e-6, 'µ'], [1e-9, 'n'], [1e-12, 'p']];
+  if (!(Math.abs(value) > 0) || !Number.isFinite(value)) return `${value} ${unit}`;
+  for (const [s, p] of prefixes) {
+    if (Math.abs(value) >= s * 0.9995) {
+      const x = value / s;
+      return `${Number.parseFloat(x.toPrecision(3))} ${p}${unit}`;
+    }
+  }
+  return `${Number.parseFloat(value.toPrecision(3))} ${unit}`;
+}
+
+interface CapLike { role: string; value: number; count: number; ratedVoltage: number; workingVoltage: number }
+interface DividerLike { rTop: number; rBottom: number; vout: number }
+
+function pickFromRow(stageId: string, role: string, prefix: PartPick['prefix'], row: LibraryRow, value: string, rating: string, quantity: number, extra: Partial<PartPick> = {}): PartPick {
+  return {
+    stageId, role, prefix, partClass: row.partClass, libraryId: row.id, description: row.name, value, rating,
+    package: strParam(row, 'package'), quantity, unitCost: row.cost, costNote: costNote(row), ...extra,
+  };
+}
+
+function missing(stageId: string, role: string, prefix: PartPick['prefix'], cls: PartClass, value: string, rating: string, quantity: number, why: string): PartPick {
+  return { stageId, role, prefix, partClass: cls, libraryId: null, description: `${role} (no library part)`, value, rating, package: '', quantity, unitCost: 0, costNote: '', problem: why };
+}
+
+function pickCap(lib: LibraryRow[], stageId: string, c: CapLike, o: PickOptions): PartPick {
+  const value = eng(c.value, 'F');
+  const ceramic = cheapest(lib, 'cap-ceramic', (r) =>
+    numParam(r, 'vRated') >= c.ratedVoltage - 1e-9 && numParam(r, 'cMin') <= c.value * (1 + 1e-9) && numParam(r, 'cMax') >= c.value * (1 - 1e-9));
+  if (ceramic) return pickFromRow(stageId, c.role, 'C', ceramic, value, `${numParam(ceramic, 'vRated')} V ${strParam(ceramic, 'dielectric')}`, c.count);
+  // No ceramic in the library holds it: a polymer or aluminium part derated for its kind.
+  for (const cls of ['cap-polymer', 'cap-aluminium'] as const) {
+    const row = cheapest(lib, cls, (r) =>
+      numParam(r, 'vRated') * o.electrolyticDerating >= c.workingVoltage && numParam(r, 'cMin') <= c.value && numParam(r, 'cMax') >= c.value);
+    if (row) return pickFromRow(stageId, c.role, 'C', row, value, `${numParam(row, 'vRated')} V`, c.count);
+  }
+  return missing(stageId, c.role, 'C', 'cap-ceramic', value, `≥ ${c.ratedVoltage} V`, c.count,
+    `no capacitor in the library offers ${value} at ${c.ratedVoltage} V or more`);
+}
+
+function pickResistor(lib: LibraryRow[], stageId: string, role: string, ohms: number, watts: number, o: PickOptions, quantity = 1): PartPick {
+  const value = eng(ohms, 'Ω');
+  const row = cheapest(lib, 'resistor', (r) => numParam(r, 'power') * o.powerDerating >= watts && numParam(r, 'tolerance') <= 0.01 + 1e-12);
+  if (row) return pickFromRow(stageId, role, 'R', row, value, `${eng(numParam(row, 'power'), 'W')} ${numParam(row, 'tolerance') * 100} %`, quantity);
+  return missing(stageId, role, 'R', 'resistor', value, `≥ ${eng(watts / o.powerDerating, 'W')}`, quantity, `no 1 % resistor in the library takes ${eng(watts, 'W')} within the power derating`);
+}
+
+function pickDivider(lib: LibraryRow[], stageId: string, d: DividerLike, o: PickOptions): PartPick[] {
+  const i = d.vout / (d.rTop + d.rBottom);
+  return [
+    pickResistor(lib, stageId, `feedback top (sets ${eng(d.vout, 'V')})`, d.rTop, i * i * d.rTop, o),
+    pickResistor(lib, stageId, 'feedback bottom', d.rBottom, i * i * d.rBottom, o),
+  ];
+}
+
+const ISOLATION_RANK: Record<string, number> = { none: -1, functional: 0, basic: 1, reinforced: 2 };
+
+/** Switching stage: one integrated regulator, or a controller plus two external switches, whichever costs less. */
+function pickSwitcher(lib: LibraryRow[], stageId: string, vinMax: number, iNeed: number, needForcedPwm: boolean, ipk: number): PartPick[] {
+  const options: PartPick[][] = [];
+  const okCtl = (r: LibraryRow) => numParam(r, 'vinMax') >= vinMax && (!needForcedPwm || numParam(r, 'forcedPwm') === 1);
+  const integ = cheapest(lib, 'controller', (r) => okCtl(r) && numParam(r, 'integrated') === 1 && numParam(r, 'iMax') >= iNeed);
+  if (integ) options.push([pickFromRow(stageId, 'regulator (integrated switches)', 'U', integ, '', `${numParam(integ, 'vinMax')} V, ${numParam(integ, 'iMax')} A`, 1)]);
+  const ext = cheapest(lib, 'controller', (r) => okCtl(r) && numParam(r, 'integrated') === 0 && numParam(r, 'iMax') >= iNeed);
+  // Switch ratings: Vds ≥ 1.25·Vin max and Id ≥ 1.5·peak (common practice margins).
+  const sw = cheapest(lib, 'switch', (r) => numParam(r, 'vds') >= 1.25 * vinMax && numParam(r, 'id') >= 1.5 * ipk);
+  if (ext && sw) {
+    options.push([
+      pickFromRow(stageId, 'controller', 'U', ext, '', `${numParam(ext, 'vinMax')} V`, 1),
+      pickFromRow(stageId, 'high-side switch', 'Q', sw, '', `${numParam(sw, 'vds')} V, ${numParam(sw, 'id')} A`, 1),
+      pickFromRow(stageId, 'low-side switch', 'Q', sw, '', `${numParam(sw, 'vds')} V, ${numParam(sw, 'id')} A`, 1),
+    ]);
+  }
+  if (options.length === 0) {
+    return [missing(stageId, 'regulator', 'U', 'controller', '', `${eng(vinMax, 'V')}, ${eng(iNeed, 'A')}${needForcedPwm ? ', forced PWM' : ''}`, 1,
+      `no controller in the library handles ${eng(vinMax, 'V')} and ${eng(iNeed, 'A')}${needForcedPwm ? ' in forced PWM' : ''}`)];
+  }
+  const total = (ps: PartPick[]) => ps.reduce((a, p) => a + p.unitCost * p.quantity, 0);
+  options.sort((a, b) => total(a) - total(b));
+  return options[0]!;
+}
+
+interface AnyDesign {
+  kind?: string;
+  vinMax?: number;
+  outputs?: Array<{ nodeId: string; voltage: number; currentMax: number }>;
+  inductance?: number;
+  isat?: number;
+  cin?: CapLike;
+  cout?: CapLike;
+  divider?: DividerLike;
+  secondaries?: Array<{ nodeId: string; turns: number; rectifierReverseVoltage: number; cout: CapLike; preload: { resistance: number; current: number } | null }>;
+  primaryTurns?: number;
+  isolation?: { class: string; workingVoltage: number } | null;
+  ratedCurrent?: number;
+  package?: { name: string; thetaJA: number };
+}
+
+/**
+ * The concrete parts a stage design implies, chosen from the library (cheapest row that
+ * fits). A part no row fits is still listed, with `problem` set and no cost.
+ */
+export function partsForStage(stageId: string, design: unknown, library: LibraryRow[], opts: Partial<PickOptions> = {}): PartPick[] {
+  const o = { ...DEFAULT_PICK, ...opts };
+  const d = (design ?? {}) as AnyDesign;
+  const picks: PartPick[] = [];
+  const out0 = d.outputs?.[0];
+  if (!out0) return [missing(stageId, 'stage', 'U', 'controller', '', '', 1, 'the stage carries no design')];
+  if (d.kind === 'buck') {
+    const iMax = out0.currentMax;
+    picks.push(...pickSwitcher(library, stageId, d.vinMax ?? 0, iMax, false, d.isat ?? iMax));
+    const L = d.inductance ?? 0;
+    const isat = d.isat ?? iMax;
+    const ind = cheapest(library, 'inductor', (r) =>
+      numParam(r, 'lMin') <= L * (1 + 1e-9) && numParam(r, 'lMax') >= L * (1 - 1e-9) && numParam(r, 'iSat') * Math.sqrt(numParam(r, 'lMax') / L) >= isat);
+    picks.push(ind
+      ? pickFromRow(stageId, 'inductor', 'L', ind, eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1)
+      : missing(stageId, 'inductor', 'L', 'inductor', eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1, `no inductor in the library offers ${eng(L, 'H')} with ${eng(isat, 'A')} saturation current`));
+    if (d.cin) picks.push(pickCap(library, stageId, d.cin, o));
+    if (d.cout) picks.push(pickCap(library, stageId, d.cout, o));
+    if (d.divider) picks.push(...pickDivider(library, stageId, d.divider, o));
+    return picks;
+  }
+  if (d.kind === 'cwbuck') {
+    const secs = d.secondaries ?? [];
+    const isat = d.isat ?? out0.currentMax;
+    // The controller carries the magnetizing current: its peak is the saturation current less its margin.
+    picks.push(...pickSwitcher(library, stageId, d.vinMax ?? 0, isat / 1.3, true, isat));
+    const pTotal = (d.outputs ?? []).reduce((a, q) => a + Math.abs(q.voltage) * q.currentMax, 0);
+    const needIso = ISOLATION_RANK[d.isolation?.class ?? 'none'] ?? -1;
+    const windings = 1 + secs.length;
+    const mag = cheapest(library, 'magnetic-custom', (r) =>
+      numParam(r, 'maxWindings') >= windings && numParam(r, 'pMax') >= pTotal && numParam(r, 'isolation') >= needIso);
+    const specRef = `magnetic-${stageId.replace(/[^A-Za-z0-9._-]+/g, '_')}.md`;
+    const turns = [d.primaryTurns ?? 0, ...secs.map((s) => s.turns)].join(':');
+    const magValue = `Lp ${eng(d.inductance ?? 0, 'H')}, ${turns} T`;
+    const magRating = `Isat ≥ ${eng(isat, 'A')}${d.isolation ? `, ${d.isolation.class} ${eng(d.isolation.workingVoltage, 'V')}` : ''}`;
+    picks.push(mag
+      ? { ...pickFromRow(stageId, 'coupled-winding magnetic (custom)', 'T', mag, magValue, magRating, 1, { specRef }), unitCost: mag.cost + numParam(mag, 'costPerWinding', 0) * secs.length }
+      : { ...missing(stageId, 'coupled-winding magnetic (custom)', 'T', 'magnetic-custom', magValue, magRating, 1, `no custom-magnetic former in the library takes ${windings} windings, ${eng(pTotal, 'W')}${needIso > 0 ? ` and ${d.isolation?.class} isolation` : ''}`), specRef });
+    if (d.cin) picks.push(pickCap(library, stageId, d.cin, o));
+    if (d.cout) picks.push(pickCap(library, stageId, d.cout, o));
+    if (d.divider) picks.push(...pickDivider(library, stageId, d.divider, o));
+    secs.forEach((s, k) => {
+      const spec = d.outputs?.find((q) => q.nodeId === s.nodeId);
+      const iAvg = (spec?.currentMax ?? 0) + (s.preload?.current ?? 0);
+      // Rectifier ratings: Vr ≥ reverse voltage / 0.8 and If ≥ 1.5·average (common practice margins).
+      const vr = s.rectifierReverseVoltage / 0.8;
+      const rect = cheapest(library, 'rectifier', (r) => numParam(r, 'vr') >= vr && numParam(r, 'if') >= 1.5 * iAvg);
+      const role = `rectifier, winding ${k + 1}`;
+      picks.push(rect
+        ? pickFromRow(stageId, role, 'D', rect, '', `${numParam(rect, 'vr')} V, ${numParam(rect, 'if')} A`, 1)
+        : missing(stageId, role, 'D', 'rectifier', '', `≥ ${eng(vr, 'V')}, ≥ ${eng(1.5 * iAvg, 'A')}`, 1, `no rectifier in the library blocks ${eng(vr, 'V')} and carries ${eng(1.5 * iAvg, 'A')}`));
+      picks.push(pickCap(library, stageId, s.cout, o));
+      if (s.preload) {
+        const v = Math.abs(spec?.voltage ?? 0) * 1.1;
+        picks.push(pickResistor(library, stageId, `preload, winding ${k + 1}`, s.preload.resistance, (v * v) / s.preload.resistance, o));
+      }
+    });
+    return picks;
+  }
+  if (d.kind === 'ldo') {
+    const neg = out0.voltage < 0 ? 1 : 0;
+    const vinMax = Math.abs(d.vinMax ?? 0);
+    const fits = (r: LibraryRow) => numParam(r, 'iMax') >= out0.currentMax && numParam(r, 'vinMax') >= vinMax && numParam(r, 'negative', 0) === neg
+      && numParam(r, 'thetaJA') <= (d.package?.thetaJA ?? Infinity) + 1e-9;
+    const samePkg = cheapest(library, 'ldo', (r) => fits(r) && strParam(r, 'package') === d.package?.name);
+    const row = samePkg ?? cheapest(library, 'ldo', fits);
+    picks.push(row
+      ? pickFromRow(stageId, neg ? 'negative LDO' : 'LDO', 'U', row, eng(Math.abs(out0.voltage), 'V'), `${numParam(row, 'iMax')} A, ${numParam(row, 'vinMax')} V in`, 1)
+      : missing(stageId, 'LDO', 'U', 'ldo', eng(Math.abs(out0.voltage), 'V'), `≥ ${eng(out0.currentMax, 'A')}, θJA ≤ ${d.package?.thetaJA ?? '—'} K/W`, 1,
+        `no ${neg ? 'negative ' : ''}LDO in the library carries ${eng(out0.currentMax, 'A')} from ${eng(vinMax, 'V')} with θJA ≤ ${d.package?.thetaJA} K/W`));
+    if (d.cin) picks.push(pickCap(library, stageId, d.cin, o));
+    if (d.cout) picks.push(pickCap(library, stageId, d.cout, o));
+    return picks;
+  }
+  return [missing(stageId, `stage of kind ${String(d.kind)}`, 'U', 'controller', '', '', 1, `no part mapping for stage kind ${String(d.kind)}`)];
+}
