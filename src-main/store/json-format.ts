@@ -211,7 +211,7 @@ function toProblems(issues: readonly z.core.$ZodIssue[]): Problem[] {
       message = `${describeInput(input)} is not one of ${is.values.map((v) => JSON.stringify(v)).join(', ')}`;
       if (is.path.length === 1 && is.path[0] === 'format') message = `not a Railwright project document (format must be "${FORMAT_TAG}")`;
     } else if (is.code === 'invalid_union') {
-      message = `expected a number or a text like "3V3", got ${describeInput(input)}`;
+      message = input === undefined ? 'required field is missing' : `expected a number or a text like "3V3", got ${describeInput(input)}`;
     }
     out.push({ path: path || '(document)', message });
   }
@@ -253,6 +253,8 @@ export function importProjectValue(data: unknown): ImportResult {
   const r = docSchemaCache.safeParse(data, { reportInput: true });
   if (!r.success) return { ok: false, problems: toProblems(r.error.issues) };
   const d = r.data;
+  const libProblems = d.library ? checkLibraryShape(d.library) : [];
+  if (libProblems.length) return { ok: false, problems: libProblems };
   const { created, modified, ...metaRest } = d.meta;
   const requirements = {
     meta: metaRest,

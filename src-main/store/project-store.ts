@@ -31,7 +31,7 @@ export type OpenErrorKind =
 /** Why a file cannot be opened: one kind and one clear sentence. The file is untouched. */
 export class OpenError extends Error {
   constructor(readonly kind: OpenErrorKind, message: string, readonly path: string) {
-    super(message);
+    super(message.replace(/\s*\n\s*/g, ' '));
     this.name = 'OpenError';
   }
 }
@@ -112,8 +112,9 @@ export class ProjectStore {
   static create(opts: StoreOptions = {}): ProjectStore {
     const db = new Database(':memory:');
     const store = new ProjectStore(db, null, opts);
-    migrate(db, { now: store.clock });
-    const now = store.clock().toISOString();
+    const at = store.clock();
+    migrate(db, { now: () => at });
+    const now = at.toISOString();
     store.writeRequirements(newRequirements(), 0);
     store.setMetaValue('created', now);
     store.setMetaValue('modified', now);
@@ -163,7 +164,10 @@ export class ProjectStore {
       } catch (e) {
         throw new OpenError('corrupt', `${shownAs} is damaged and cannot be read (${(e as Error).message})`, shownAs);
       }
-      if (check !== 'ok') throw new OpenError('corrupt', `${shownAs} is damaged: the database integrity check failed (${String(check)})`, shownAs);
+      if (check !== 'ok') {
+        const first = String(check).split('\n')[0]!.slice(0, 200);
+        throw new OpenError('corrupt', `${shownAs} is damaged: the database integrity check failed (${first})`, shownAs);
+      }
       const version = userVersion(db);
       const tables = new Set((db.prepare("SELECT name FROM sqlite_master WHERE type = 'table'").all() as { name: string }[]).map((r) => r.name));
       const missing = expectedTables(version).filter((t) => !tables.has(t));
