@@ -1,20 +1,94 @@
 /**
  * Roll-up and BOM figures of one plan for the window, converted to the contract's plain
- * shapes. Computation lives in the engine (rollup.ts, bom.ts); this module only adapts.
+ * shapes. The computation lives in the engine (rollup.ts with the stage models, bom.ts);
+ * this module only adapts.
  */
 import type { Plan } from '../engine/plan-types.ts';
 import type { TreeFigures } from '../engine/layout.ts';
-import type { BomView, RollupView } from './contract.ts';
+import { groupRails } from '../engine/rails.ts';
+import { figuresForMode, rollupPlan, type Rollup, type StageModels } from '../engine/rollup.ts';
+import { evaluateStage, stageWindows, type StageDesign } from '../engine/stages/index.ts';
+import type { BomView, RollupView, StageFigures } from './contract.ts';
+import type { PartLibraryRow } from '../engine/model.ts';
+import { describeProblem, fromStoreRows, type LibraryRow } from '../engine/library.ts';
+import { buildBom, compactRefs } from '../engine/bom.ts';
 import type { Session } from './session.ts';
 
-export function computeRollup(_s: Session, _plan: Plan): RollupView {
-  throw new Error('the roll-up is not part of this build yet');
+export const ENGINE_MODELS: StageModels = {
+  evaluate: (design, op) => evaluateStage(design as StageDesign, op),
+  windows: (design, corners) => stageWindows(design as StageDesign, corners),
+};
+
+export interface ComputedRollup {
+  raw: Rollup;
+  view: RollupView;
 }
 
-export function computeBom(_s: Session, _plan: Plan): BomView {
-  throw new Error('the BOM estimate is not part of this build yet');
+export function toRollupView(s: Session, r: Rollup): RollupView {
+  const req = s.requirements;
+  const limit = req.limits.tjMax - req.limits.tjMargin;
+  const stages: StageFigures[] = [];
+  for (const m of r.modes) {
+    for (const f of m.cases.nom.stages) {
+      stages.push({
+        stageId: f.stageId, modeId: m.modeId, vin: f.vin, pin: f.pin, pout: f.pout, loss: f.loss,
+        efficiency: f.efficiency, duty: f.duty, lossBreakdown: { ...f.lossBreakdown },
+        parts: f.parts.map((p) => ({ role: p.role, power: p.power, tj: p.tj, thetaJA: p.thetaJA, thetaSource: p.thetaSource, margin: limit - p.tj })),
+        outputs: f.outputs.map((o) => ({ nodeId: o.nodeId, voltage: o.v, current: o.i, ripplePP: o.ripplePP })),
+        flags: f.flags.map((x) => ({ code: x.code, severity: x.severity, text: x.text })),
+      });
+    }
+  }
+  const sumI = (c: Rollup['modes'][number]['cases']['nom']) => Object.values(c.sources).reduce((a, x) => a + x.i, 0);
+  const system = r.modes.map((m) => ({
+    modeId: m.modeId,
+    efficiency: { vMin: m.cases.min.efficiency, vNom: m.cases.nom.efficiency, vMax: m.cases.max.efficiency },
+    sourceCurrent: { vMin: sumI(m.cases.min), vNom: sumI(m.cases.nom), vMax: sumI(m.cases.max) },
+    pin: m.cases.nom.sourcePower, pout: m.cases.nom.loadPower, loss: m.cases.nom.loss,
+  }));
+  const messages: string[] = [];
+  if (r.unfed.length) messages.push(`No stage feeds ${r.unfed.length} rail(s): ${r.unfed.join(', ')}`);
+  return {
+    revision: req.meta.revision,
+    stages,
+    windows: r.windows.map((w) => ({
+      nodeId: w.nodeId, target: w.target, min: w.min, max: w.max, allowedMin: w.allowedMin, allowedMax: w.allowedMax,
+      inside: w.inside, minCorner: w.minCorner, maxCorner: w.maxCorner,
+    })),
+    system,
+    weightedLoss: r.weighted.loss,
+    messages,
+  };
 }
 
-export function treeFigures(_s: Session, _rollup: RollupView | null): TreeFigures | undefined {
-  return undefined;
+export function computeRollup(s: Session, plan: Plan): ComputedRollup {
+  const raw = rollupPlan(s.requirements, groupRails(s.requirements), plan, ENGINE_MODELS);
+  return { raw, view: toRollupView(s, raw) };
+}
+
+export function libraryRows(s: Session): LibraryRow[] {
+  const rows = Array.isArray(s.library) ? (s.library as PartLibraryRow[]) : [];
+  const r = fromStoreRows(rows);
+  if (!r.ok) throw new Error(`the part library has problems: ${r.problems.slice(0, 3).map(describeProblem).join('; ')}`);
+  return r.rows;
+}
+
+export function computeBom(s: Session, plan: Plan): BomView {
+  const bom = buildBom(s.requirements, plan, libraryRows(s));
+  const lines = bom.lines.map((l) => ({
+    group: l.partClass,
+    stageId: l.stages[0] ?? null,
+    role: compactRefs(l.refs),
+    description: l.description + (l.problem ? ` (${l.problem})` : ''),
+    value: [l.value, l.rating, l.package].filter((x) => x).join(' · '),
+    quantity: l.quantity,
+    unitCost: l.unitCost,
+    extended: l.extendedCost,
+    estimate: /estimate/i.test(l.costNote),
+  }));
+  return { lines, total: bom.totalCost, parts: bom.totalParts, currency: 'units' };
+}
+
+export function treeFigures(s: Session, r: ComputedRollup | null, modeId?: string): TreeFigures | undefined {
+  return r ? figuresForMode(s.requirements, r.raw, modeId) : undefined;
 }

@@ -1,31 +1,212 @@
-/** Project file handlers: new, open, open the demo, save, import. */
+/**
+ * Project file handlers: new, open, open the demo, save, import, and the autosave/recovery
+ * cycle. The session keeps the working copy; the project store (SQLite, atomic save) holds
+ * the file. Paths from the window pass the host's path policy first.
+ */
+import { join } from 'node:path';
 import { z } from 'zod';
+import { PROJECT_EXTENSION } from '../../electron.config.ts';
+import type { PartLibraryRow, Requirements } from '../engine/model.ts';
+import { ProjectStore, OpenError, StoreError } from '../store/project-store.ts';
+import { demoDocument } from '../store/demo.ts';
+import { checkLibraryShape, checkRequirementsShape, importProjectJson, type ProjectDocument } from '../store/json-format.ts';
+import { addRecent, readRecent, removeRecent } from '../store/recent.ts';
+import { discardRecovery, listRecovery, restoreRecovery, writeRecovery } from '../store/recovery.ts';
 import { ApiFailure, handler } from './registry.ts';
 import type { Session } from './session.ts';
+import { defaultLibrary } from './default-library.ts';
 import { buildSnapshot } from './snapshot.ts';
-import { blankRequirements, guardDiscard } from './project.ts';
+import { guardDiscard } from './project.ts';
 
 const discard = z.boolean().optional();
+
+function storeOf(s: Session): ProjectStore | null {
+  return s.store instanceof ProjectStore ? s.store : null;
+}
+
+/** Refuse requirements or a library the store would refuse (checked on every edit). */
+export function checkShapes(req: Requirements, library: unknown): void {
+  const p = checkRequirementsShape(req)[0] ?? (Array.isArray(library) ? checkLibraryShape(library)[0] : undefined);
+  if (p) throw new ApiFailure(`${p.path}: ${p.message}`, p.path);
+}
+
+function adoptStore(s: Session, store: ProjectStore, path: string | null, opts: { dirty?: boolean; recovered?: boolean } = {}): void {
+  const old = storeOf(s);
+  const saved = store.getPlanResult();
+  s.replace({
+    requirements: store.getRequirements(),
+    library: store.getLibrary(),
+    planResult: saved ? saved.result : null,
+    path,
+    store,
+    dirty: opts.dirty ?? store.dirty,
+    recovered: opts.recovered ?? false,
+  });
+  // A plan saved before later edits stays visible but marked stale.
+  if (saved?.stale && s.planResult) s.planResult.revision = -1;
+  if (old && old !== store) old.close();
+}
+
+/** Copy the working state into the store (before save and autosave). */
+export function syncStore(s: Session): ProjectStore {
+  let store = storeOf(s);
+  if (!store) {
+    store = ProjectStore.create();
+    s.store = store;
+  }
+  try {
+    store.setRequirements(s.requirements, { keepRevision: true });
+    store.setLibrary((Array.isArray(s.library) ? s.library : []) as PartLibraryRow[]);
+    if (s.planResult) store.setPlanResult({ ...s.planResult, revision: s.planResult.revision });
+    else store.clearPlanResult();
+  } catch (e) {
+    if (e instanceof StoreError) throw new ApiFailure(e.message);
+    throw e;
+  }
+  return store;
+}
+
+function settingsDir(s: Session): string | null {
+  return s.userDataDir;
+}
+
+function remember(s: Session, path: string): void {
+  const dir = settingsDir(s);
+  if (!dir) return;
+  try {
+    s.recent = addRecent(dir, path).map((e) => e.path);
+  } catch {
+    // A read-only settings folder must not block opening or saving.
+  }
+}
+
+export function loadRecent(s: Session): void {
+  const dir = settingsDir(s);
+  if (dir) s.recent = readRecent(dir).map((e) => e.path);
+}
+
+function recoveryDir(s: Session): string | null {
+  return s.userDataDir ? join(s.userDataDir, 'recovery') : null;
+}
+
+/** Write the autosave copy when there is unsaved work. Returns true when written. */
+export function autosave(s: Session, key = 'session'): boolean {
+  const dir = recoveryDir(s);
+  if (!dir || !s.dirty) return false;
+  const store = syncStore(s);
+  writeRecovery(store, dir, key);
+  return true;
+}
+
+/** After an unclean exit: reopen the newest usable autosave copy, if any. */
+export function recoverIfAny(s: Session): boolean {
+  const dir = recoveryDir(s);
+  if (!dir) return false;
+  for (const entry of listRecovery(dir)) {
+    try {
+      const store = restoreRecovery(entry);
+      adoptStore(s, store, entry.originalPath, { dirty: true, recovered: true });
+      return true;
+    } catch {
+      // An unusable copy is skipped; the next one may do.
+    }
+  }
+  return false;
+}
+
+/** A clean save or a deliberate discard removes the autosave copy. */
+export function clearRecovery(s: Session, key = 'session'): void {
+  const dir = recoveryDir(s);
+  if (dir) {
+    try { discardRecovery(dir, key); } catch { /* nothing to remove */ }
+  }
+}
+
+export function openDemo(s: Session): void {
+  const doc = demoDocument();
+  if (!doc.library?.length) doc.library = defaultLibrary();
+  adoptStore(s, ProjectStore.fromDocument(doc), null, { dirty: false });
+}
+
+export function newProject(s: Session): void {
+  const store = ProjectStore.create();
+  store.setLibrary(defaultLibrary());
+  adoptStore(s, store, null, { dirty: false });
+}
+
+export function openPath(s: Session, raw: string): void {
+  const path = s.pathPolicy(raw, 'open-project', PROJECT_EXTENSION);
+  let store: ProjectStore;
+  try {
+    store = ProjectStore.open(path);
+  } catch (e) {
+    if (e instanceof OpenError) {
+      if (e.kind === 'not-found' && s.userDataDir) {
+        try { s.recent = removeRecent(s.userDataDir, path).map((x) => x.path); } catch { /* ignore */ }
+      }
+      throw new ApiFailure(e.message, 'path');
+    }
+    throw e;
+  }
+  adoptStore(s, store, path, { dirty: false });
+  remember(s, path);
+}
+
+export function saveTo(s: Session, raw: string | undefined): void {
+  const target = raw !== undefined ? s.pathPolicy(raw, 'save-project', PROJECT_EXTENSION) : s.path;
+  if (!target) throw new ApiFailure('path: the project has no file yet: choose a file name (Save as)', 'path');
+  const store = syncStore(s);
+  try {
+    store.save(target);
+  } catch (e) {
+    if (e instanceof StoreError) throw new ApiFailure(e.message, 'path');
+    throw e;
+  }
+  s.path = target;
+  s.dirty = false;
+  s.recovered = false;
+  clearRecovery(s);
+  remember(s, target);
+  s.emit('project.state', s.state());
+}
+
+export function importDocument(s: Session, text: string): void {
+  const r = importProjectJson(text);
+  if (!r.ok) {
+    const p = r.problems[0]!;
+    const more = r.problems.length > 1 ? ` (and ${r.problems.length - 1} more problem${r.problems.length > 2 ? 's' : ''})` : '';
+    throw new ApiFailure(`${p.path}: ${p.message}${more}`, p.path);
+  }
+  const doc: ProjectDocument = r.doc;
+  adoptStore(s, ProjectStore.fromDocument(doc), null, { dirty: true });
+}
 
 export const fileHandlers = {
   'project.new': handler('project.new', z.object({ discard }).strict(), (s: Session, a) => {
     guardDiscard(s, a.discard);
-    s.replace({ requirements: blankRequirements(), library: s.library, planResult: null, path: null, store: null });
+    newProject(s);
+    clearRecovery(s);
     return buildSnapshot(s);
   }),
   'project.open': handler('project.open', z.object({ path: z.string().min(1).max(1024), discard }).strict(), (s: Session, a) => {
     guardDiscard(s, a.discard);
-    throw new ApiFailure('path: opening project files is not part of this build yet', 'path');
+    openPath(s, a.path);
+    clearRecovery(s);
+    return buildSnapshot(s);
   }),
   'project.openDemo': handler('project.openDemo', z.object({ discard }).strict(), (s: Session, a) => {
     guardDiscard(s, a.discard);
-    throw new ApiFailure('the demo project is not part of this build yet');
+    openDemo(s);
+    clearRecovery(s);
+    return buildSnapshot(s);
   }),
-  'project.save': handler('project.save', z.object({ path: z.string().min(1).max(1024).optional() }).strict(), (_s: Session) => {
-    throw new ApiFailure('saving is not part of this build yet');
+  'project.save': handler('project.save', z.object({ path: z.string().min(1).max(1024).optional() }).strict(), (s: Session, a) => {
+    saveTo(s, a.path);
+    return s.state();
   }),
   'project.importJson': handler('project.importJson', z.object({ text: z.string().max(16_000_000), discard }).strict(), (s: Session, a) => {
     guardDiscard(s, a.discard);
-    throw new ApiFailure('text: JSON import is not part of this build yet', 'text');
+    importDocument(s, a.text);
+    return buildSnapshot(s);
   }),
 };

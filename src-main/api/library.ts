@@ -3,7 +3,6 @@
  * the rows are the records of its first array (each with an `id`), the columns are their
  * scalar fields. Numbers are typed in engineering notation or plain; nothing else changes.
  */
-import { z } from 'zod';
 import type { LibraryRow, LibraryView } from './contract.ts';
 import { ApiFailure, handler, noArgs } from './registry.ts';
 import type { Session } from './session.ts';
@@ -29,24 +28,36 @@ export function libraryView(lib: unknown): LibraryView {
   const currency = lib && typeof lib === 'object' && typeof (lib as Rec).currency === 'string' ? String((lib as Rec).currency) : 'units';
   if (!p) return { columns: [], rows: [], currency };
   const kinds = new Map<string, LibraryView['columns'][number]['kind']>();
+  const kindOf = (v: unknown) => (typeof v === 'number' ? 'number' : typeof v === 'boolean' ? 'enum' : 'text') as 'number' | 'enum' | 'text';
   for (const r of p.rows) {
     for (const [k, v] of Object.entries(r)) {
-      if (!isScalar(v) || kinds.has(k)) continue;
-      kinds.set(k, typeof v === 'number' ? 'number' : typeof v === 'boolean' ? 'enum' : 'text');
+      if (isScalar(v)) {
+        if (!kinds.has(k)) kinds.set(k, kindOf(v));
+      } else if (v && typeof v === 'object' && !Array.isArray(v)) {
+        // One level of nested parameters becomes columns `params.rdsOn` and so on.
+        for (const [sk, sv] of Object.entries(v as Rec)) if (isScalar(sv) && !kinds.has(`${k}.${sk}`)) kinds.set(`${k}.${sk}`, kindOf(sv));
+      }
     }
   }
   const columns = [...kinds].map(([key, kind]) => ({
-    key, label: key, kind, ...(kind === 'enum' ? { options: ['true', 'false'] } : {}),
+    key, label: key.startsWith('params.') ? key.slice(7) : key, kind, ...(kind === 'enum' ? { options: ['true', 'false'] } : {}),
   }));
   const rows: LibraryRow[] = p.rows.map((r) => {
     const out: LibraryRow = {};
     for (const c of columns) {
-      const v = r[c.key];
+      const v = getField(r, c.key);
       out[c.key] = isScalar(v) ? (v as string | number | boolean | null) : null;
     }
     return out;
   });
   return { columns, rows, currency };
+}
+
+function getField(r: Rec, key: string): unknown {
+  const dot = key.indexOf('.');
+  if (dot < 0) return r[key];
+  const inner = r[key.slice(0, dot)];
+  return inner && typeof inner === 'object' ? (inner as Rec)[key.slice(dot + 1)] : undefined;
 }
 
 const NUM = /^([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:e[+-]?\d+)?)([fpnuµmkKMG]?)$/;
@@ -60,21 +71,24 @@ export function editLibraryCell(lib: unknown, rowId: string, field: string, text
   if (!row) throw new ApiFailure(`library: no part "${rowId}"`, 'rowId');
   const where = `library › ${String(row.name ?? row.id)} › ${field}`;
   if (field === 'id') throw new ApiFailure(`${where}: the id of a part cannot be changed`, field);
-  if (!(field in row) || !isScalar(row[field])) throw new ApiFailure(`${where}: no such column`, field);
-  const old = row[field];
+  const dot = field.indexOf('.');
+  const holder = (dot < 0 ? row : row[field.slice(0, dot)]) as Rec | undefined;
+  const leaf = dot < 0 ? field : field.slice(dot + 1);
+  if (!holder || typeof holder !== 'object' || !(leaf in holder) || !isScalar(holder[leaf])) throw new ApiFailure(`${where}: no such column`, field);
+  const old = holder[leaf];
   const t = text.trim();
   if (typeof old === 'number') {
     const m = NUM.exec(t.replace(/\s+/g, ''));
     const v = m ? Number(m[1]) * MULT[m[2] ?? '']! : NaN;
     if (!Number.isFinite(v)) throw new ApiFailure(`${where}: "${t}" is not a number`, field);
     if (v < 0) throw new ApiFailure(`${where}: must not be negative`, field);
-    row[field] = v;
+    holder[leaf] = v;
   } else if (typeof old === 'boolean') {
     if (!/^(true|false|yes|no)$/i.test(t)) throw new ApiFailure(`${where}: write true or false`, field);
-    row[field] = /^(true|yes)$/i.test(t);
+    holder[leaf] = /^(true|yes)$/i.test(t);
   } else {
     if (t.length > 200) throw new ApiFailure(`${where}: longer than 200 characters`, field);
-    row[field] = t;
+    holder[leaf] = t;
   }
   return out;
 }
@@ -106,5 +120,3 @@ export function removeLibraryRow(lib: unknown, rowId: string): unknown {
 export const libraryHandlers = {
   'library.get': handler('library.get', noArgs, (s: Session) => libraryView(s.library)),
 };
-
-export const _libraryArgs = z.object({});

@@ -14,6 +14,7 @@ import type { Session } from './session.ts';
 import { buildSnapshot } from './snapshot.ts';
 import { TABLE_COLUMNS, type ColumnDef } from './tables.ts';
 import { editLibraryCell, addLibraryRow, removeLibraryRow } from './library.ts';
+import { checkShapes } from './files.ts';
 
 const tableName = z.enum(['sources', 'domains', 'modes', 'loads', 'limits', 'preferences', 'library']);
 const id = z.string().min(1).max(200);
@@ -225,9 +226,16 @@ function describe(e: CellEdit, req: Requirements): string {
 export const requirementHandlers = {
   'requirements.editCell': handler('requirements.editCell', cellEdit, async (s: Session, e) => {
     if (e.table === 'library') {
-      s.edit(`Edit library › ${e.rowId} › ${e.field}`, (_req, lib) => ({ library: editLibraryCell(lib, e.rowId, e.field, e.text) }));
+      s.edit(`Edit library › ${e.rowId} › ${e.field}`, (req, lib) => {
+        const library = editLibraryCell(lib, e.rowId, e.field, e.text);
+        checkShapes(req, library);
+        return { library };
+      });
     } else {
-      s.edit(describe(e, s.requirements), (req) => applyCell(req, e));
+      s.edit(describe(e, s.requirements), (req, lib) => {
+        applyCell(req, e);
+        checkShapes(req, lib);
+      });
     }
     return buildSnapshot(s);
   }),

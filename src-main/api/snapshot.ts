@@ -7,10 +7,10 @@ import ELK from 'elkjs/lib/elk.bundled.js';
 import { groupRails } from '../engine/rails.ts';
 import { buildTreeView, entryPoint, layoutTree, type TreeFigures } from '../engine/layout.ts';
 import type { Plan } from '../engine/plan-types.ts';
-import type { LayoutView, PlanView, RollupView, Snapshot, BomView } from './contract.ts';
+import type { LayoutView, PlanView, Snapshot, BomView } from './contract.ts';
 import { projectProblems } from './requirements.ts';
 import type { Session } from './session.ts';
-import { computeRollup, computeBom, treeFigures } from './figures.ts';
+import { computeRollup, computeBom, treeFigures, type ComputedRollup } from './figures.ts';
 
 let elk: InstanceType<typeof ELK> | null = null;
 function elkInstance(): InstanceType<typeof ELK> {
@@ -54,7 +54,7 @@ export async function buildPlanView(s: Session): Promise<PlanView | null> {
   if (!result) return null;
   const selected = result.alternatives.find((p) => p.id === s.selectedId) ?? result.best ?? result.alternatives[0] ?? null;
   const notes: string[] = [];
-  let rollup: RollupView | null = null;
+  let rollup: ComputedRollup | null = null;
   let layout: LayoutView | null = null;
   let bom: BomView | null = null;
   if (selected) {
@@ -74,7 +74,8 @@ export async function buildPlanView(s: Session): Promise<PlanView | null> {
       notes.push(`Drawing: ${(e as Error).message}`);
     }
   }
-  return { result, selectedId: selected?.id ?? null, selected, stale: s.planStale(), rollup, layout, bom, notes };
+  if (rollup) notes.push(...rollup.view.messages);
+  return { result, selectedId: selected?.id ?? null, selected, stale: s.planStale(), rollup: rollup?.view ?? null, layout, bom, notes };
 }
 
 export async function buildSnapshot(s: Session): Promise<Snapshot> {
