@@ -1,0 +1,659 @@
+/**
+ * Candidate blocks: every feed decision the planner may take, designed and evaluated with the
+ * stage engine. A block covers a set of rails; its evaluation depends on the extra load that
+ * downstream blocks put on its outputs (`extra`), which the search supplies at the leaves.
+ *
+ * Rules encoded here (docs/planner.md explains each):
+ * - a buck serves one positive rail from a source (rail in a source-connected domain) or from
+ *   a higher positive rail of the same domain; it never crosses a barrier;
+ * - an LDO serves one rail from a rail of the same domain with the same sign and a larger |V|;
+ * - a coupled-winding buck runs from a source; its regulated primary is a positive rail of a
+ *   source-connected domain or an internal primary bus; each secondary is a rail of any
+ *   domain (a barrier when that domain is isolated) fed directly, or an internal tap winding
+ *   followed by an LDO when the direct winding misses the rail's window or ripple limit;
+ * - a quiet rail is never fed directly by a switching output: it ends behind an LDO (common
+ *   practice: switching spikes and cross-regulation residue are not in the ripple estimate);
+ * - each block is checked for windows in every corner, ripple, duty/on-time and Tj flags of
+ *   the engine, and Tj ≤ tjMax − tjMargin.
+ */
+import type { Amps, Celsius, Hertz, Ratio, Volts } from '../units.ts';
+import type { Domain, Id, Rail, Requirements, Source, StageKind } from '../model.ts';
+import type { Barrier, InternalNode, PlanOutput, Reason } from '../plan-types.ts';
+import type { OutputSpec, OutputWindow, StageEvaluation, StageSpec } from '../stages/types.ts';
+import { addParts, countParts, emptyParts } from './cost-model.ts';
+import type {
+  Block, BlockEval, BlockShape, BlockStage, CostModel, FeedInput, PartCounts, PlanContext, Rejection, StageEvaluator,
+} from './types.ts';
+
+/** Dropout plus margin the planner budgets when it picks a tap voltage (common practice). */
+export const TAP_HEADROOM_V = 0.6;
+/** Tap tolerances tried, tightest first: a tighter tap wastes less in its LDO. */
+export const TAP_TOLERANCES = [0.1, 0.2] as const;
+/** Ripple allowed on a tap winding, as a share of its voltage (the LDO's PSRR cleans it). */
+export const TAP_RIPPLE_SHARE = 0.05;
+
+export interface GenerationOptions {
+  allowRailFeeds: boolean;
+  maxSecondaries: number;
+  allowed: ReadonlySet<StageKind>;
+}
+
+/** A rejected candidate and why, kept per rail for reasons and infeasibility reports. */
+export interface Miss { shape: BlockShape; rejection: Rejection }
+
+export type BlockResult = { ok: true; eval: BlockEval } | { ok: false; rejections: Rejection[] };
+
+const fmtV = (v: number) => `${Math.round(v * 1000) / 1000} V`;
+const fmtA = (v: number) => `${Math.round(v * 1e4) / 1e4} A`;
+const fmtW = (v: number) => `${Math.round(v * 1e4) / 1e4} W`;
+
+export function railBand(r: Rail): { min: number; nom: number; max: number } {
+  const a = Math.abs(r.voltage);
+  return { min: a * (1 - r.tolerance), nom: a, max: a * (1 + r.tolerance) };
+}
+
+/** Everything the evaluation of shapes needs about one requirements set. */
+export class BlockFactory {
+  readonly ctx: PlanContext;
+  private readonly domains: Map<Id, Domain>;
+  private readonly sources: Map<Id, Source>;
+  private readonly cache = new Map<string, BlockResult>();
+  evaluations = 0;
+
+  constructor(
+    readonly req: Requirements,
+    rails: Rail[],
+    readonly evaluator: StageEvaluator,
+    readonly costModel: CostModel,
+  ) {
+    this.ctx = { rails, modeIds: req.modes.map((m) => m.id), shares: req.modes.map((m) => m.share) };
+    this.domains = new Map(req.domains.map((d) => [d.id, d]));
+    this.sources = new Map(req.sources.map((s) => [s.id, s]));
+  }
+
+  domainOf(rail: number): Domain | undefined {
+    return this.domains.get(this.ctx.rails[rail]!.domainId);
+  }
+
+  isolated(rail: number): boolean {
+    const d = this.domainOf(rail);
+    return !!d && d.isolation !== 'none';
+  }
+
+  railCurrents(rail: number, extra?: readonly number[]): number[] {
+    const r = this.ctx.rails[rail]!;
+    return this.ctx.modeIds.map((m, i) => (r.current[m] ?? 0) + (extra?.[i] ?? 0));
+  }
+
+  /** Canonical key of a shape (also the block's id stem). */
+  static shapeKey(s: BlockShape): string {
+    const inp = s.input.kind === 'source' ? `s:${s.input.id}` : `r${s.input.rail}`;
+    if (s.kind === 'cwbuck') return `cw[${inp}|p${s.primary ?? `bus${s.busVoltage}`}|${s.secondaries.join(',')}]`;
+    return `${s.kind}[${inp}>${s.rail}]`;
+  }
+
+  static covers(s: BlockShape): number[] {
+    if (s.kind === 'cwbuck') return [...(s.primary === null ? [] : [s.primary]), ...s.secondaries].sort((a, b) => a - b);
+    return [s.rail];
+  }
+
+  /** Evaluate a shape with `extra[rail]` per-mode downstream currents on its outputs. Cached. */
+  evaluate(shape: BlockShape, extra?: ReadonlyMap<number, readonly number[]>): BlockResult {
+    const covers = BlockFactory.covers(shape);
+    let key = BlockFactory.shapeKey(shape);
+    if (extra) {
+      for (const r of covers) {
+        const e = extra.get(r);
+        if (e && e.some((x) => x > 0)) key += `|${r}:${e.map((x) => x.toExponential(9)).join(',')}`;
+      }
+    }
+    const hit = this.cache.get(key);
+    if (hit) return hit;
+    let res: BlockResult;
+    try {
+      res = this.evaluateUncached(shape, extra);
+    } catch (e) {
+      res = { ok: false, rejections: [{ constraint: 'engine-error', shortfall: 0, unit: '', text: `the stage engine failed: ${(e as Error)?.message ?? String(e)}` }] };
+    }
+    this.cache.set(key, res);
+    return res;
+  }
+
+  private inputWindow(input: FeedInput): { min: number; nom: number; max: number; ripple: number; sign: number } {
+    if (input.kind === 'source') {
+      const s = this.sources.get(input.id)!;
+      return { min: s.vMin, nom: s.vNom, max: s.vMax, ripple: 0, sign: 1 };
+    }
+    const r = this.ctx.rails[input.rail]!;
+    return { ...railBand(r), ripple: r.rippleLimit, sign: Math.sign(r.voltage) || 1 };
+  }
+
+  private baseSpec(kind: StageKind, vin: { min: number; nom: number; max: number; ripple: number }, outputs: OutputSpec[]): StageSpec {
+    const p = this.req.preferences;
+    const l = this.req.limits;
+    return {
+      kind,
+      vinMin: vin.min as Volts, vinNom: vin.nom as Volts, vinMax: vin.max as Volts,
+      vinRipple: vin.ripple as Volts,
+      outputs,
+      fsw: p.switchingFrequency as Hertz,
+      ambient: l.ambient as Celsius,
+      tjMax: l.tjMax as Celsius,
+      ceramicDerating: l.ceramicDerating as Ratio,
+    };
+  }
+
+  private railOutput(rail: number, currents: number[], sign = 1): OutputSpec {
+    const r = this.ctx.rails[rail]!;
+    return {
+      nodeId: r.id,
+      voltage: (r.voltage * sign) as Volts,
+      tolerance: r.tolerance,
+      currentMin: Math.min(...currents) as Amps,
+      currentMax: Math.max(...currents) as Amps,
+      rippleLimit: r.rippleLimit,
+    };
+  }
+
+  /**
+   * Design one stage and check it: windows over vin {min, nom, max} × each output at its
+   * min/max current, evaluations at every mode (vin nominal) and at vin min/max with the
+   * largest currents; engine error flags, ripple, Tj margin.
+   */
+  private runStage(
+    spec: StageSpec, modeCurrents: number[][], railOf: (i: number) => number | undefined, mirror: number,
+  ): { ok: true; design: unknown; perMode: StageEvaluation[]; atMin: StageEvaluation; windows: OutputWindow[]; worstRipple: number[] } | { ok: false; rejections: Rejection[] } {
+    this.evaluations++;
+    const d = this.evaluator.design(spec);
+    if (!d.ok) {
+      return {
+        ok: false,
+        rejections: d.flags.filter((f) => f.severity === 'error').map((f) => ({
+          constraint: f.code, shortfall: numberFrom(f.data), unit: '', text: f.text, rail: railOf(0),
+        })),
+      };
+    }
+    const rej: Rejection[] = [];
+    const tjLimit = this.req.limits.tjMax - this.req.limits.tjMargin;
+    const ambient = this.req.limits.ambient as Celsius;
+    const nOut = spec.outputs.length;
+    const maxI = spec.outputs.map((o) => o.currentMax);
+    const check = (ev: StageEvaluation, where: string) => {
+      for (const f of ev.flags) {
+        if (f.severity === 'error' && !rej.some((r) => r.constraint === f.code)) {
+          rej.push({ constraint: f.code, shortfall: numberFrom(f.data), unit: '', text: `${f.text} (${where})`, rail: railOf(0) });
+        }
+      }
+      for (const p of ev.parts) {
+        if (p.tj > tjLimit + 1e-9 && !rej.some((r) => r.constraint === 'tj')) {
+          rej.push({
+            constraint: 'tj', shortfall: p.tj - tjLimit, unit: 'K', rail: railOf(0),
+            text: `${p.role} reaches Tj ${p.tj.toFixed(1)} °C ${where}, above the ${tjLimit} °C limit (tjMax − margin) by ${(p.tj - tjLimit).toFixed(1)} K`,
+          });
+        }
+      }
+      ev.outputs.forEach((o, i) => {
+        const lim = spec.outputs[i]?.rippleLimit ?? Infinity;
+        if (o.ripplePP > lim * (1 + 1e-9) && !rej.some((r) => r.constraint === 'ripple' && r.rail === railOf(i))) {
+          rej.push({
+            constraint: 'ripple', shortfall: o.ripplePP - lim, unit: 'V', rail: railOf(i),
+            text: `ripple ${(o.ripplePP * 1e3).toFixed(2)} mV p-p ${where} exceeds the ${(lim * 1e3).toFixed(2)} mV limit`,
+          });
+        }
+      });
+    };
+    const perMode: StageEvaluation[] = [];
+    const worstRipple = new Array<number>(nOut).fill(0);
+    const track = (ev: StageEvaluation) => ev.outputs.forEach((o, i) => { worstRipple[i] = Math.max(worstRipple[i]!, Math.abs(o.ripplePP)); });
+    for (let m = 0; m < modeCurrents.length; m++) {
+      const ev = this.evaluator.evaluate(d.design, { vin: spec.vinNom, iout: modeCurrents[m]! as Amps[], ambient });
+      perMode.push(ev);
+      track(ev);
+      check(ev, `in mode ${this.req.modes[m]?.name ?? m} at Vin nominal`);
+    }
+    const atMin = this.evaluator.evaluate(d.design, { vin: spec.vinMin, iout: maxI, ambient });
+    track(atMin);
+    check(atMin, 'at Vin min and full load');
+    const atMax = this.evaluator.evaluate(d.design, { vin: spec.vinMax, iout: maxI, ambient });
+    track(atMax);
+    check(atMax, 'at Vin max and full load');
+    const windows = this.evaluator.windows(d.design, {
+      vin: [spec.vinMin, spec.vinNom, spec.vinMax],
+      iout: spec.outputs.map((o) => ({ min: o.currentMin, max: o.currentMax })),
+    });
+    windows.forEach((w, i) => {
+      if (!w.inside) {
+        const miss = Math.max(w.allowedMin - w.min, w.max - w.allowedMax, 0);
+        const lo = mirror * w.min, hi = mirror * w.max;
+        const [a, b] = lo <= hi ? [lo, hi] : [hi, lo];
+        const tol = spec.outputs[i]!.tolerance;
+        rej.push({
+          constraint: 'window', shortfall: miss, unit: 'V', rail: railOf(i),
+          text: `window ${fmtV(a)}…${fmtV(b)} exceeds ±${+(tol * 100).toFixed(2)} % of ${fmtV(mirror * spec.outputs[i]!.voltage)} by ${(miss * 1000).toFixed(0)} mV (${w.minCorner} / ${w.maxCorner})`,
+        });
+      }
+    });
+    if (rej.length) return { ok: false, rejections: rej };
+    return { ok: true, design: d.design, perMode, atMin, windows, worstRipple };
+  }
+
+  private weighted(values: number[]): number {
+    let s = 0;
+    values.forEach((v, i) => { s += v * (this.ctx.shares[i] ?? 0); });
+    return s;
+  }
+
+  private evaluateUncached(shape: BlockShape, extra?: ReadonlyMap<number, readonly number[]>): BlockResult {
+    if (shape.kind === 'cwbuck') return this.evalCoupled(shape, extra);
+    const rail = shape.rail;
+    const r = this.ctx.rails[rail]!;
+    const currents = this.railCurrents(rail, extra?.get(rail));
+    const vin = this.inputWindow(shape.input);
+    // A negative LDO is evaluated as the mirror image of a positive one (common practice:
+    // the same equations with all voltages and currents reversed).
+    const mirror = r.voltage < 0 ? -1 : 1;
+    const spec = this.baseSpec(shape.kind, vin, [this.railOutput(rail, currents, mirror)]);
+    const run = this.runStage(spec, currents.map((c) => [c]), () => rail, mirror);
+    if (!run.ok) return run;
+    const parts = stageParts(shape.kind, 0);
+    const stage: BlockStage = {
+      localId: 's0', kind: shape.kind, name: `${shape.kind === 'ldo' ? 'LDO' : 'Buck'} ${r.name}`,
+      inputNode: 'input', outputs: [{ nodeId: r.id, role: 'output' }], barriers: [], design: run.design, spec,
+    };
+    const lossPerMode: number[] = run.perMode.map((e) => e.loss);
+    const inputName = shape.input.kind === 'source' ? (this.sources.get(shape.input.id)?.name ?? shape.input.id) : this.ctx.rails[shape.input.rail]!.name;
+    const w = run.windows[0]!;
+    const lo = Math.min(mirror * w.min, mirror * w.max), hi = Math.max(mirror * w.min, mirror * w.max);
+    const reasons: Reason[] = [{
+      code: shape.kind === 'ldo' ? 'feed-ldo' : 'feed-buck',
+      subjectId: r.id,
+      text: shape.kind === 'ldo'
+        ? `${r.name} comes from an LDO on ${inputName}: headroom ${fmtV(vin.min - Math.abs(r.voltage))} at the input's lowest ${fmtV(vin.min * vin.sign)}, ` +
+          `mode-weighted loss ${fmtW(this.weighted(lossPerMode))}, window ${fmtV(lo)}…${fmtV(hi)} inside ±${+(r.tolerance * 100).toFixed(2)} %`
+        : `${r.name} gets its own buck from ${inputName}: duty ${pct(run.atMin.duty)} at Vin min, mode-weighted loss ${fmtW(this.weighted(lossPerMode))}, ` +
+          `window ${fmtV(lo)}…${fmtV(hi)} inside ±${+(r.tolerance * 100).toFixed(2)} %`,
+      data: { loss: this.weighted(lossPerMode), windowMin: lo, windowMax: hi, tolerance: r.tolerance },
+    }];
+    return {
+      ok: true,
+      eval: {
+        loss: this.weighted(lossPerMode),
+        lossPerMode,
+        iinPerMode: run.perMode.map((e) => Math.abs(e.iin)),
+        iinAtMin: run.perMode.map((e) => Math.abs(e.iin) * (vin.nom / Math.max(vin.min, 1e-9))),
+        pinPerMode: run.perMode.map((e) => Math.abs(e.pin)),
+        cost: this.costModel.cost(parts, shape.kind),
+        parts: countParts(parts),
+        partCounts: parts,
+        stages: [stage],
+        internalNodes: [],
+        windows: [{ ...w, min: lo as Volts, max: hi as Volts }],
+        reasons,
+        notes: { duty: run.atMin.duty ?? NaN },
+      },
+    };
+  }
+
+  /** Tap + LDO for one secondary: pick the lowest tap voltage whose LDO is feasible. */
+  private designTap(rail: number, currents: number[], tapTol: number): {
+    ok: true; tapV: number; spec: StageSpec; design: unknown; perMode: StageEvaluation[]; window: OutputWindow; tapOutput: OutputSpec; iinPerMode: number[];
+  } | { ok: false; rejections: Rejection[] } {
+    const r = this.ctx.rails[rail]!;
+    const a = Math.abs(r.voltage);
+    const tapMag = Math.ceil(((a + TAP_HEADROOM_V) / (1 - tapTol)) * 10) / 10;
+    const ldoVin = { min: tapMag * (1 - tapTol), nom: tapMag, max: tapMag * (1 + tapTol), ripple: tapMag * TAP_RIPPLE_SHARE };
+    const spec = this.baseSpec('ldo', ldoVin, [this.railOutput(rail, currents, r.voltage < 0 ? -1 : 1)]);
+    const mirror = r.voltage < 0 ? -1 : 1;
+    const run = this.runStage(spec, currents.map((c) => [c]), () => rail, mirror);
+    if (!run.ok) return run;
+    const iinPerMode = run.perMode.map((e) => Math.abs(e.iin));
+    const tapOutput: OutputSpec = {
+      nodeId: `tap:${r.id}`,
+      voltage: (Math.sign(r.voltage || 1) * tapMag) as Volts,
+      tolerance: tapTol as Ratio,
+      currentMin: Math.min(...iinPerMode) as Amps,
+      currentMax: Math.max(...iinPerMode, Math.abs(run.atMin.iin)) as Amps,
+      rippleLimit: (tapMag * TAP_RIPPLE_SHARE) as Volts,
+    };
+    const w = run.windows[0]!;
+    return { ok: true, tapV: tapMag * Math.sign(r.voltage || 1), spec, design: run.design, perMode: run.perMode, window: { ...w, min: Math.min(mirror * w.min, mirror * w.max) as Volts, max: Math.max(mirror * w.min, mirror * w.max) as Volts }, tapOutput, iinPerMode };
+  }
+
+  private evalCoupled(shape: BlockShape & { kind: 'cwbuck' }, extra?: ReadonlyMap<number, readonly number[]>): BlockResult {
+    const src = this.sources.get(shape.input.id)!;
+    const vin = this.inputWindow(shape.input);
+    const nModes = this.ctx.modeIds.length;
+    const primaryName = shape.primary === null ? `primary bus ${fmtV(shape.busVoltage ?? 0)}` : this.ctx.rails[shape.primary]!.name;
+    // Which secondaries go through a tap + LDO: quiet rails always; others after a direct miss.
+    const useTap = new Map<number, number>(); // rail → index into TAP_TOLERANCES
+    const directMiss = new Map<number, Rejection>();
+    for (const s of shape.secondaries) if (this.ctx.rails[s]!.noiseClass === 'quiet') useTap.set(s, 0);
+    for (let attempt = 0; attempt < 2 + TAP_TOLERANCES.length; attempt++) {
+      const taps = new Map<number, ReturnType<BlockFactory['designTap']> & { ok: true }>();
+      let tapFail: Rejection[] | null = null;
+      for (const [s, ti] of useTap) {
+        const t = this.designTap(s, this.railCurrents(s, extra?.get(s)), TAP_TOLERANCES[ti]!);
+        if (!t.ok) { tapFail = t.rejections.map((x) => ({ ...x, rail: s })); break; }
+        taps.set(s, t);
+      }
+      if (tapFail) return { ok: false, rejections: tapFail };
+      const outputs: OutputSpec[] = [];
+      const railOf: (number | undefined)[] = [];
+      const modeCurrents: number[][] = Array.from({ length: nModes }, () => []);
+      if (shape.primary === null) {
+        const bus = shape.busVoltage ?? 5;
+        outputs.push({ nodeId: 'bus', voltage: bus as Volts, tolerance: 0.05 as Ratio, currentMin: 0 as Amps, currentMax: 0 as Amps, rippleLimit: (bus * 0.02) as Volts });
+        railOf.push(undefined);
+        for (let m = 0; m < nModes; m++) modeCurrents[m]!.push(0);
+      } else {
+        const c = this.railCurrents(shape.primary, extra?.get(shape.primary));
+        outputs.push(this.railOutput(shape.primary, c));
+        railOf.push(shape.primary);
+        for (let m = 0; m < nModes; m++) modeCurrents[m]!.push(c[m]!);
+      }
+      for (const s of shape.secondaries) {
+        const t = taps.get(s);
+        if (t) {
+          outputs.push(t.tapOutput);
+          for (let m = 0; m < nModes; m++) modeCurrents[m]!.push(t.iinPerMode[m]!);
+        } else {
+          const c = this.railCurrents(s, extra?.get(s));
+          outputs.push(this.railOutput(s, c));
+          for (let m = 0; m < nModes; m++) modeCurrents[m]!.push(c[m]!);
+        }
+        railOf.push(s);
+      }
+      const spec = this.baseSpec('cwbuck', vin, outputs);
+      const run = this.runStage(spec, modeCurrents, (i) => railOf[i], 1);
+      if (!run.ok) {
+        // Secondaries that missed their window or ripple directly get a tap + LDO next time;
+        // a tap that missed gets the looser tap tolerance.
+        let changed = false;
+        for (const rj of run.rejections) {
+          const s = rj.rail;
+          if (s === undefined || s === shape.primary || !shape.secondaries.includes(s)) continue;
+          if (rj.constraint !== 'window' && rj.constraint !== 'ripple') continue;
+          const cur = useTap.get(s);
+          if (cur === undefined) { useTap.set(s, 0); directMiss.set(s, rj); changed = true; }
+          else if (cur + 1 < TAP_TOLERANCES.length && !changed) { useTap.set(s, cur + 1); changed = true; }
+        }
+        if (!changed || !this.req.preferences.allowedKinds.includes('ldo')) return run;
+        continue;
+      }
+      return { ok: true, eval: this.assembleCoupled(shape, src, vin, spec, run, taps, directMiss, primaryName) };
+    }
+    return { ok: false, rejections: [{ constraint: 'window', shortfall: 0, unit: 'V', text: 'no tap voltage keeps every secondary inside its window' }] };
+  }
+
+  private assembleCoupled(
+    shape: BlockShape & { kind: 'cwbuck' }, src: Source, vin: { min: number; nom: number; max: number },
+    spec: StageSpec,
+    run: { design: unknown; perMode: StageEvaluation[]; atMin: StageEvaluation; windows: OutputWindow[] },
+    taps: Map<number, { tapV: number; spec: StageSpec; design: unknown; perMode: StageEvaluation[]; window: OutputWindow; iinPerMode: number[] }>,
+    directMiss: Map<number, Rejection>, primaryName: string,
+  ): BlockEval {
+    const rails = this.ctx.rails;
+    const nModes = this.ctx.modeIds.length;
+    const internalNodes: InternalNode[] = [];
+    const stages: BlockStage[] = [];
+    const reasons: Reason[] = [];
+    const turns = turnsOf(run.design);
+    const outputs: PlanOutput[] = [];
+    const srcDomain = this.req.domains.find((d) => d.isolation === 'none')?.id ?? '';
+    if (shape.primary === null) {
+      internalNodes.push({ id: 'bus', name: `Primary bus ${fmtV(shape.busVoltage ?? 0)}`, domainId: srcDomain, voltage: (shape.busVoltage ?? 0) as Volts, kind: 'bus' });
+      outputs.push({ nodeId: 'bus', role: 'primary', ...(turns[0] !== undefined ? { turns: turns[0] } : {}) });
+    } else {
+      outputs.push({ nodeId: rails[shape.primary]!.id, role: 'primary', ...(turns[0] !== undefined ? { turns: turns[0] } : {}) });
+    }
+    const barriers: Barrier[] = [];
+    shape.secondaries.forEach((s, k) => {
+      const r = rails[s]!;
+      const t = taps.get(s);
+      const nodeId = t ? `tap:${r.id}` : r.id;
+      const tk = turns[k + 1];
+      outputs.push({ nodeId, role: 'secondary', ...(tk !== undefined ? { turns: tk } : {}) });
+      const dom = this.domainOf(s);
+      if (dom && dom.isolation !== 'none' && !barriers.some((b) => b.toDomainId === dom.id)) {
+        barriers.push({ fromDomainId: srcDomain, toDomainId: dom.id, isolation: dom.isolation, workingVoltage: dom.workingVoltage });
+      }
+    });
+    stages.push({
+      localId: 's0', kind: 'cwbuck', name: `Coupled-winding buck ${primaryName}`, inputNode: 'input', outputs, barriers, design: run.design, spec,
+    });
+    let parts = stageParts('cwbuck', shape.secondaries.length);
+    const lossPerMode: number[] = run.perMode.map((e) => e.loss);
+    const windows: OutputWindow[] = [];
+    run.windows.forEach((w, i) => { if (i === 0 ? shape.primary !== null : !taps.has(shape.secondaries[i - 1]!)) windows.push(w); });
+    for (const [s, t] of taps) {
+      const r = rails[s]!;
+      internalNodes.push({ id: `tap:${r.id}`, name: `Tap ${fmtV(t.tapV)} for ${r.name}`, domainId: r.domainId, voltage: t.tapV as Volts, kind: 'tap' });
+      stages.push({ localId: `ldo:${s}`, kind: 'ldo', name: `LDO ${r.name}`, inputNode: `tap:${r.id}`, outputs: [{ nodeId: r.id, role: 'output' }], barriers: [], design: t.design, spec: t.spec });
+      parts = addParts(parts, stageParts('ldo', 0));
+      for (let m = 0; m < nModes; m++) lossPerMode[m]! += t.perMode[m]!.loss;
+      windows.push(t.window);
+    }
+    const loss = this.weighted(lossPerMode);
+    const pinPerMode = run.perMode.map((e) => Math.abs(e.pin));
+    const iinPerMode = run.perMode.map((e) => Math.abs(e.iin));
+    const secNames = shape.secondaries.map((s) => rails[s]!.name);
+    const isoDomains = barriers.map((b) => this.domains.get(b.toDomainId)?.name ?? b.toDomainId);
+    reasons.push({
+      code: 'shared-magnetic',
+      subjectId: shape.primary === null ? 'bus' : rails[shape.primary]!.id,
+      text: `${secNames.join(', ')} share one coupled-winding magnetic with the ${primaryName} primary (from ${src.name}): ` +
+        `duty ${pct(run.atMin.duty)} at Vin min ${fmtV(vin.min)}, turns ${turns.length ? turns.join(':') : 'n/a'}, mode-weighted loss ${fmtW(loss)}` +
+        (isoDomains.length ? `; the windings cross the barrier into ${isoDomains.join(', ')}` : ''),
+      data: { loss, secondaries: shape.secondaries.length, duty: run.atMin.duty ?? NaN },
+    });
+    for (const b of barriers) {
+      reasons.push({
+        code: 'barrier', subjectId: b.toDomainId,
+        text: `${this.domains.get(b.toDomainId)?.name ?? b.toDomainId} is reached only through the magnetic's ${b.isolation} isolation (working voltage ${fmtV(b.workingVoltage)}); ` +
+          'creepage, clearance and the insulation system follow the applicable safety standard and are for a qualified engineer and the test lab to confirm',
+        data: { workingVoltage: b.workingVoltage, isolation: b.isolation },
+      });
+    }
+    shape.secondaries.forEach((s, k) => {
+      const r = rails[s]!;
+      const t = taps.get(s);
+      const w = run.windows[k + 1];
+      if (!t) {
+        reasons.push({
+          code: 'winding-direct', subjectId: r.id,
+          text: `${r.name} is a secondary winding (${turns[k + 1] ?? '?'} turns): window ${fmtV(w?.min ?? NaN)}…${fmtV(w?.max ?? NaN)} stays inside ±${+(r.tolerance * 100).toFixed(2)} %, so no LDO is needed`,
+          data: { windowMin: w?.min ?? NaN, windowMax: w?.max ?? NaN },
+        });
+      } else {
+        const miss = directMiss.get(s);
+        const why = r.noiseClass === 'quiet'
+          ? 'it is a quiet rail, which never takes a switching output directly'
+          : miss ? `the direct winding missed: ${miss.text}` : 'the direct winding misses its window';
+        const pLdo = this.weighted(t.perMode.map((e) => e.loss));
+        reasons.push({
+          code: 'winding-tap-ldo', subjectId: r.id,
+          text: `${r.name} is an LDO behind a ${fmtV(t.tapV)} tap winding (${turns[k + 1] ?? '?'} turns) because ${why}; LDO loss ${fmtW(pLdo)}, window ${fmtV(t.window.min)}…${fmtV(t.window.max)}`,
+          data: { tap: t.tapV, ldoLoss: pLdo },
+        });
+      }
+    });
+    return {
+      loss, lossPerMode, iinPerMode,
+      iinAtMin: iinPerMode.map((i) => i * (vin.nom / Math.max(vin.min, 1e-9))),
+      pinPerMode,
+      cost: this.costModel.cost(parts, 'cwbuck'),
+      parts: countParts(parts), partCounts: parts,
+      stages, internalNodes, windows, reasons,
+      notes: { duty: run.atMin.duty ?? NaN, taps: taps.size },
+    };
+  }
+}
+
+function pct(x: number | undefined): string {
+  return x === undefined || !Number.isFinite(x) ? 'n/a' : `${(x * 100).toFixed(1)} %`;
+}
+
+function numberFrom(data?: Record<string, number | string>): number {
+  if (!data) return 0;
+  for (const k of ['shortfall', 'excess', 'margin', 'by']) {
+    const v = data[k];
+    if (typeof v === 'number' && Number.isFinite(v)) return Math.abs(v);
+  }
+  return 0;
+}
+
+/** Turns per output from a coupled-winding design, when the design exposes them. */
+function turnsOf(design: unknown): number[] {
+  const d = design as { turns?: unknown; windings?: { turns?: unknown }[]; np?: unknown; ns?: unknown };
+  if (Array.isArray(d?.turns) && d.turns.every((t) => typeof t === 'number')) return d.turns as number[];
+  if (Array.isArray(d?.windings)) {
+    const t = d.windings.map((w) => w?.turns);
+    if (t.every((x) => typeof x === 'number')) return t as number[];
+  }
+  if (typeof d?.np === 'number' && Array.isArray(d.ns)) return [d.np, ...(d.ns as number[])];
+  return [];
+}
+
+/** Parts implied by a stage's topology (controller, switches, magnetic, rectifiers, caps, resistors). */
+export function stageParts(kind: StageKind, secondaries: number): PartCounts {
+  const p = emptyParts();
+  if (kind === 'buck') {
+    Object.assign(p, { controller: 1, switch: 2, magnetic: 1, capacitor: 4, resistor: 2 });
+  } else if (kind === 'cwbuck') {
+    // Per secondary: a rectifier, an output capacitor pair and a preload resistor.
+    Object.assign(p, { controller: 1, switch: 2, coupledMagnetic: 1, rectifier: secondaries, capacitor: 4 + 2 * secondaries, resistor: 2 + secondaries });
+  } else if (kind === 'ldo') {
+    Object.assign(p, { ldo: 1, capacitor: 2, resistor: 2 });
+  }
+  return p;
+}
+
+/** Enumerate the candidate shapes of a requirements set (before evaluation). */
+export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { singles: BlockShape[]; coupled: (pairsOk: (p: number | null, s: number) => boolean) => BlockShape[]; pairShapes: BlockShape[] } {
+  const rails = f.ctx.rails;
+  const req = f.req;
+  const singles: BlockShape[] = [];
+  const n = rails.length;
+  for (let i = 0; i < n; i++) {
+    const r = rails[i]!;
+    const iso = f.isolated(i);
+    const quiet = r.noiseClass === 'quiet';
+    if (opts.allowed.has('buck') && r.voltage > 0 && !quiet) {
+      if (!iso) {
+        for (const s of req.sources) if (r.voltage < s.vMin) singles.push({ kind: 'buck', input: { kind: 'source', id: s.id }, rail: i });
+      }
+      if (opts.allowRailFeeds) {
+        for (let j = 0; j < n; j++) {
+          const u = rails[j]!;
+          if (j !== i && u.domainId === r.domainId && u.voltage > r.voltage) singles.push({ kind: 'buck', input: { kind: 'rail', rail: j }, rail: i });
+        }
+      }
+    }
+    if (opts.allowed.has('ldo') && opts.allowRailFeeds) {
+      for (let j = 0; j < n; j++) {
+        const u = rails[j]!;
+        if (j !== i && u.domainId === r.domainId && Math.sign(u.voltage) === Math.sign(r.voltage) && Math.abs(u.voltage) > Math.abs(r.voltage)) {
+          singles.push({ kind: 'ldo', input: { kind: 'rail', rail: j }, rail: i });
+        }
+      }
+    }
+  }
+  const pairShapes: BlockShape[] = [];
+  const primaries: { primary: number | null; busVoltage?: number; source: Source }[] = [];
+  if (opts.allowed.has('cwbuck') && opts.maxSecondaries >= 1) {
+    for (const s of req.sources) {
+      for (let i = 0; i < n; i++) {
+        const r = rails[i]!;
+        if (!f.isolated(i) && r.voltage > 0 && r.voltage < s.vMin && r.noiseClass !== 'quiet') primaries.push({ primary: i, source: s });
+      }
+      const needsBus = rails.some((r, i) => f.isolated(i) || r.voltage < 0);
+      if (needsBus) {
+        const bus = busVoltageFor(s.vMin);
+        if (bus > 0) primaries.push({ primary: null, busVoltage: bus, source: s });
+      }
+    }
+    for (const p of primaries) {
+      for (let j = 0; j < n; j++) {
+        if (j === p.primary) continue;
+        pairShapes.push(cw(p, [j]));
+      }
+    }
+  }
+  const coupled = (pairsOk: (p: number | null, s: number) => boolean): BlockShape[] => {
+    const out: BlockShape[] = [];
+    for (const p of primaries) {
+      const ok: number[] = [];
+      for (let j = 0; j < n; j++) if (j !== p.primary && pairsOk(p.primary, j)) ok.push(j);
+      // Subsets of size 2..k of secondaries whose pairs with this primary are feasible.
+      const rec = (start: number, chosen: number[]) => {
+        if (chosen.length >= 2) out.push(cw(p, [...chosen]));
+        if (chosen.length === opts.maxSecondaries) return;
+        for (let q = start; q < ok.length; q++) { chosen.push(ok[q]!); rec(q + 1, chosen); chosen.pop(); }
+      };
+      rec(0, []);
+    }
+    return out;
+  };
+  return { singles, coupled, pairShapes };
+}
+
+function cw(p: { primary: number | null; busVoltage?: number; source: Source }, secondaries: number[]): BlockShape {
+  return {
+    kind: 'cwbuck', input: { kind: 'source', id: p.source.id }, primary: p.primary,
+    ...(p.busVoltage !== undefined ? { busVoltage: p.busVoltage } : {}), secondaries,
+  };
+}
+
+/**
+ * Voltage of an internal primary bus: the largest of 3.3, 5 and 12 V that keeps the duty at
+ * Vin min ≤ 0.6 (DESIGN §4: regulation of the secondaries collapses at high duty; common practice).
+ */
+export function busVoltageFor(vinMin: number): number {
+  let best = 0;
+  for (const v of [3.3, 5, 12]) if (v <= 0.6 * vinMin) best = v;
+  return best;
+}
+
+/**
+ * Generate and evaluate every candidate block, one shape per `yield` (so a solver can step
+ * through it and stop at its budget). Returns the feasible blocks and each rail's misses.
+ */
+export function* generateBlocks(
+  f: BlockFactory, opts: GenerationOptions,
+): Generator<void, { blocks: Block[]; misses: Map<number, Miss[]> }> {
+  const blocks: Block[] = [];
+  const misses = new Map<number, Miss[]>();
+  const noteMiss = (shape: BlockShape, rej: Rejection[]) => {
+    for (const r of rej) {
+      const rail = r.rail ?? BlockFactory.covers(shape)[0];
+      if (rail === undefined) continue;
+      const list = misses.get(rail) ?? [];
+      list.push({ shape, rejection: r });
+      misses.set(rail, list);
+    }
+  };
+  const add = (shape: BlockShape): boolean => {
+    const res = f.evaluate(shape);
+    if (!res.ok) { noteMiss(shape, res.rejections); return false; }
+    blocks.push({ index: blocks.length, key: BlockFactory.shapeKey(shape), shape, covers: BlockFactory.covers(shape), base: res.eval, score: 0 });
+    return true;
+  };
+  const { singles, coupled, pairShapes } = enumerateShapes(f, opts);
+  for (const s of singles) { add(s); yield; }
+  const pairOk = new Set<string>();
+  for (const s of pairShapes) {
+    if (s.kind === 'cwbuck' && add(s)) pairOk.add(`${s.primary}|${s.secondaries[0]}`);
+    yield;
+  }
+  for (const s of coupled((p, j) => pairOk.has(`${p}|${j}`))) { add(s); yield; }
+  return { blocks, misses };
+}
+
+/** Run generateBlocks to the end. */
+export function buildBlocks(f: BlockFactory, opts: GenerationOptions): { blocks: Block[]; misses: Map<number, Miss[]> } {
+  const g = generateBlocks(f, opts);
+  for (;;) {
+    const r = g.next();
+    if (r.done) return r.value;
+  }
+}

@@ -1,0 +1,305 @@
+/**
+ * The planner as a solver you can watch: `step()` does a bounded amount of work, `solve()`
+ * runs to the end or the budget, `progress` and `best` are readable at any time, `cancel()`
+ * stops at the next step, and `explain()` gives a readable trace.
+ *
+ * Phases: rails → candidate blocks (each designed and evaluated by the stage engine) → one
+ * branch-and-bound per objective (the chosen objective first, then lowest loss, lowest cost,
+ * fewest parts, balanced) → the PlanResult with the Pareto alternatives.
+ *
+ * Determinism: no randomness; every ordering is by score then by a stable key. The only
+ * influence of the clock is the budget cut-off (`budgetMs`): a run that finishes within its
+ * budget gives the same result every time; a cut run returns the incumbent at the cut.
+ */
+import { groupRails } from '../rails.ts';
+import type { Rail, Requirements, StageKind } from '../model.ts';
+import type { Infeasibility, Plan, PlanLabel, PlanResult } from '../plan-types.ts';
+import { assemblePlan, explainInfeasible } from './assemble.ts';
+import { BlockFactory, generateBlocks, type GenerationOptions, type Miss } from './candidates.ts';
+import { inventedCostModel } from './cost-model.ts';
+import { makeScorer, OBJECTIVES, type Objective, type Scorer, type SelectionEval } from './score.ts';
+import { branchAndBound, MAX_RAILS, type SearchOutcome } from './search.ts';
+import type { Block, CostModel, StageEvaluator } from './types.ts';
+
+export interface PlannerOptions {
+  evaluator: StageEvaluator;
+  /** Part prices; defaults to the invented estimates of cost-model.ts. */
+  costModel?: CostModel;
+  objective?: Objective;
+  /** Overrides preferences.budgetMs. */
+  budgetMs?: number;
+  /** Feed rails from other rails (LDO, buck from a rail). Default true. */
+  allowRailFeeds?: boolean;
+  /** Milliseconds clock; defaults to performance.now. */
+  now?: () => number;
+  /** Search only the chosen objective (no alternatives). */
+  singleObjective?: boolean;
+}
+
+export type PlannerPhase = 'rails' | 'candidates' | 'search' | 'done';
+
+export interface PlanProgress {
+  phase: PlannerPhase;
+  /** 0..1, rough. */
+  fraction: number;
+  candidates: number;
+  explored: number;
+  /** Objective being searched and its incumbent weighted score. */
+  objective?: Objective;
+  incumbent?: number;
+  message: string;
+}
+
+const LABEL_OF: Record<Objective, PlanLabel> = { loss: 'lowest-loss', cost: 'lowest-cost', parts: 'fewest-parts', balanced: 'balanced' };
+
+export class PlanSolver {
+  readonly objective: Objective;
+  readonly budgetMs: number;
+  progress: PlanProgress = { phase: 'rails', fraction: 0, candidates: 0, explored: 0, message: 'grouping rails' };
+  best: Plan | null = null;
+  private result: PlanResult | null = null;
+  private cancelled = false;
+  private readonly t0: number;
+  private readonly now: () => number;
+  private readonly trace: string[] = [];
+  private rails: Rail[] = [];
+  private factory: BlockFactory | null = null;
+  private blocks: Block[] = [];
+  private misses = new Map<number, Miss[]>();
+  private gen: Generator<void, { blocks: Block[]; misses: Map<number, Miss[]> }> | null = null;
+  private readonly queue: Objective[];
+  private search: { objective: Objective; scorer: Scorer; it: Generator<void, SearchOutcome>; deadline: number; out: SearchOutcome } | null = null;
+  private readonly found = new Map<Objective, { blocks: Block[]; sel: SelectionEval; complete: boolean; scorer: Scorer }>();
+  private leafFailures = new Map<string, { count: number; example: NonNullable<SelectionEval['failure']> }>();
+  private explored = 0;
+  private allComplete = true;
+  private earlyInfeasible: Infeasibility[] = [];
+  private readonly costModel: CostModel;
+
+  constructor(readonly req: Requirements, readonly options: PlannerOptions) {
+    this.now = options.now ?? (() => performance.now());
+    this.t0 = this.now();
+    this.objective = options.objective ?? 'balanced';
+    this.budgetMs = Math.max(1, options.budgetMs ?? req.preferences.budgetMs ?? 10_000);
+    this.costModel = options.costModel ?? inventedCostModel();
+    this.queue = options.singleObjective ? [this.objective] : [this.objective, ...OBJECTIVES.filter((o) => o !== this.objective)];
+  }
+
+  private get deadline(): number { return this.t0 + this.budgetMs; }
+
+  cancel(): void { this.cancelled = true; }
+
+  get done(): boolean { return this.result !== null; }
+
+  /** Do up to `units` units of work (one candidate evaluation or one search node each). True when finished. */
+  step(units = 200): boolean {
+    if (this.result) return true;
+    for (let u = 0; u < units; u++) {
+      if (this.cancelled) { this.finish(); return true; }
+      if (!this.advance()) return true;
+    }
+    if (this.progress.phase === 'candidates' && this.gen && this.now() > this.deadline) {
+      // Out of time while designing candidates: search with the blocks designed so far.
+      this.allComplete = false;
+      this.trace.push(`budget of ${this.budgetMs} ms reached while designing candidates; searching the ${this.factory?.evaluations ?? 0} designed so far`);
+      this.gen = null;
+      this.startSearches();
+    }
+    return this.result !== null;
+  }
+
+  /** Run to the end (or the budget, or cancel). */
+  solve(): PlanResult {
+    while (!this.step(500)) { /* keep going */ }
+    return this.result!;
+  }
+
+  getResult(): PlanResult | null { return this.result; }
+
+  explain(): string[] { return [...this.trace]; }
+
+  /** One unit of work. False when finished. */
+  private advance(): boolean {
+    switch (this.progress.phase) {
+      case 'rails': return this.initRails();
+      case 'candidates': {
+        const r = this.gen!.next();
+        if (r.done) {
+          this.blocks = r.value.blocks;
+          this.misses = r.value.misses;
+          this.gen = null;
+          this.startSearches();
+        } else {
+          this.progress.candidates = this.factory!.evaluations;
+          this.progress.fraction = Math.min(0.5, this.progress.fraction + 0.0005);
+        }
+        return !this.result;
+      }
+      case 'search': {
+        if (!this.search) { this.nextSearch(); return !this.result; }
+        const r = this.search.it.next();
+        if (r.done) {
+          this.recordSearch(r.value, true);
+          this.search = null;
+          this.nextSearch();
+        } else {
+          this.explored++;
+          this.progress.explored = this.explored;
+          // Cut at the objective's time share once it has an incumbent (or at twice the budget).
+          if ((this.explored & 63) === 0) {
+            const t = this.now();
+            const has = this.search.out.best !== null || this.pendingSeed !== null;
+            if ((t > this.search.deadline && has) || t > this.t0 + 2 * this.budgetMs) {
+              this.trace.push(`objective ${this.search.objective}: time share used up after ${this.search.out.explored} nodes; keeping the incumbent`);
+              this.recordSearch(this.search.out, false);
+              this.search = null;
+              this.nextSearch();
+            }
+          }
+        }
+        return !this.result;
+      }
+      default: return false;
+    }
+  }
+
+  private initRails(): boolean {
+    const req = this.req;
+    const problems: Infeasibility[] = [];
+    if (!req.sources.length) problems.push({ railId: '', constraint: 'input', shortfall: 0, unit: '', text: 'sources: the project has no input source', remedies: ['add a source'] });
+    if (!req.modes.length) problems.push({ railId: '', constraint: 'input', shortfall: 0, unit: '', text: 'modes: the project has no operating mode', remedies: ['add an operating mode'] });
+    for (const s of req.sources) {
+      if (!(s.vMin > 0 && s.vMin <= s.vNom && s.vNom <= s.vMax)) problems.push({ railId: '', constraint: 'input', shortfall: 0, unit: 'V', text: `source ${s.name}: needs 0 < vMin ≤ vNom ≤ vMax (got ${s.vMin}, ${s.vNom}, ${s.vMax})`, remedies: ['correct the source voltages'] });
+    }
+    this.rails = groupRails(req);
+    for (const r of this.rails) {
+      if (!req.domains.some((d) => d.id === r.domainId)) problems.push({ railId: r.id, constraint: 'input', shortfall: 0, unit: '', text: `${r.name}: domain ${r.domainId} does not exist`, remedies: ['assign the loads to an existing domain'] });
+      if (!(r.tolerance > 0) || r.voltage === 0) problems.push({ railId: r.id, constraint: 'input', shortfall: 0, unit: '', text: `${r.name}: needs a non-zero voltage and a positive tolerance`, remedies: ['correct the load'] });
+    }
+    if (this.rails.length > MAX_RAILS) problems.push({ railId: '', constraint: 'size', shortfall: this.rails.length - MAX_RAILS, unit: 'rails', text: `the planner handles up to ${MAX_RAILS} rails; this project has ${this.rails.length}`, remedies: ['join rails with a manual rail key', 'plan part of the tree at a time'] });
+    if (problems.length) {
+      this.earlyInfeasible = problems;
+      this.trace.push(`input problems: ${problems.map((p) => p.text).join('; ')}`);
+      this.finish();
+      return false;
+    }
+    this.trace.push(`${this.rails.length} rails from ${req.loads.length} loads`);
+    this.factory = new BlockFactory(req, this.rails, this.options.evaluator, this.costModel);
+    const genOpts: GenerationOptions = {
+      allowRailFeeds: this.options.allowRailFeeds ?? true,
+      maxSecondaries: Math.max(0, Math.floor(req.preferences.maxSecondaries)),
+      allowed: new Set<StageKind>(req.preferences.allowedKinds.filter((k) => k === 'buck' || k === 'cwbuck' || k === 'ldo')),
+    };
+    const ignored = req.preferences.allowedKinds.filter((k) => k !== 'buck' && k !== 'cwbuck' && k !== 'ldo');
+    if (ignored.length) this.trace.push(`stage kinds not modelled by the planner and left out: ${ignored.join(', ')}`);
+    this.gen = generateBlocks(this.factory, genOpts);
+    this.progress = { phase: 'candidates', fraction: 0.01, candidates: 0, explored: 0, message: 'designing candidate stages' };
+    return true;
+  }
+
+  private startSearches(): void {
+    const f = this.factory!;
+    this.trace.push(`${this.blocks.length} feasible candidate blocks from ${f.evaluations} stage designs`);
+    this.progress = { ...this.progress, phase: 'search', fraction: 0.5, candidates: f.evaluations, message: 'searching' };
+  }
+
+  private nextSearch(): void {
+    const obj = this.queue.shift();
+    if (obj === undefined || this.cancelled) { this.finish(); return; }
+    const f = this.factory!;
+    const scorer = makeScorer(obj, this.req, f.ctx, this.costModel);
+    const remaining = Math.max(0, this.deadline - this.now());
+    const share = remaining / (this.queue.length + 1);
+    // Seed with the best plan found for an earlier objective, rescored under this one.
+    let seed: { blocks: Block[]; score: number } | null = null;
+    for (const v of this.found.values()) {
+      const s = v.sel.evals.reduce((a, e) => a + scorer.score(e), 0);
+      if (!seed || s < seed.score) seed = { blocks: v.blocks, score: s };
+    }
+    const out: SearchOutcome = { best: null, explored: 0, leaves: 0, complete: false, leafFailures: new Map() };
+    this.search = { objective: obj, scorer, it: branchAndBound(f, this.blocks, scorer, seed, out), deadline: this.now() + share, out };
+    this.progress = { ...this.progress, objective: obj, message: `searching for the ${LABEL_OF[obj]} plan` };
+    this.pendingSeed = seed;
+  }
+
+  private pendingSeed: { blocks: Block[]; score: number } | null = null;
+
+  private recordSearch(out: SearchOutcome, finished: boolean): void {
+    const s = this.search!;
+    for (const [k, v] of out.leafFailures) {
+      const cur = this.leafFailures.get(k);
+      if (cur) cur.count += v.count; else this.leafFailures.set(k, { ...v });
+    }
+    if (!finished || !out.complete) this.allComplete = false;
+    let chosen = out.best ? { blocks: out.best.blocks, sel: out.best.sel } : null;
+    if (!chosen && this.pendingSeed) {
+      // The seed was already optimal for this objective.
+      const prev = [...this.found.values()].find((v) => v.blocks === this.pendingSeed!.blocks);
+      if (prev) chosen = { blocks: prev.blocks, sel: prev.sel };
+    }
+    if (chosen) {
+      this.found.set(s.objective, { ...chosen, complete: finished && out.complete, scorer: s.scorer });
+      this.trace.push(`objective ${s.objective}: ${out.explored} nodes, ${out.leaves} complete trees evaluated, best weighted ${chosen.sel.evals.reduce((a, e) => a + s.scorer.score(e), 0).toFixed(4)}${finished ? ' (proved optimal)' : ''}`);
+      if (s.objective === this.objective) this.best = this.buildPlan(s.objective);
+    } else {
+      this.trace.push(`objective ${s.objective}: no feasible tree (${out.explored} nodes)`);
+    }
+    this.progress.fraction = Math.min(0.99, this.progress.fraction + 0.12);
+    this.progress.incumbent = chosen ? chosen.sel.evals.reduce((a, e) => a + s.scorer.score(e), 0) : undefined;
+  }
+
+  private buildPlan(obj: Objective): Plan {
+    const v = this.found.get(obj)!;
+    const labels: PlanLabel[] = [];
+    return assemblePlan(this.factory!, `plan-${obj}`, labels, v.blocks, v.sel, v.scorer, this.blocks, this.misses);
+  }
+
+  private finish(): void {
+    if (this.result) return;
+    if (this.search && this.progress.phase === 'search') {
+      // Cancelled mid-search: keep the incumbent found so far.
+      this.recordSearch(this.search.out, false);
+      this.search = null;
+    }
+    const elapsedMs = this.now() - this.t0;
+    const infeasible: Infeasibility[] = [...this.earlyInfeasible];
+    // Alternatives: one plan per objective found; identical trees merge their labels.
+    const plans: Plan[] = [];
+    const byKey = new Map<string, Plan>();
+    const order: Objective[] = [this.objective, ...OBJECTIVES.filter((o) => o !== this.objective)];
+    for (const obj of order) {
+      const v = this.found.get(obj);
+      if (!v) continue;
+      const key = v.blocks.map((b) => b.key).sort().join(' ');
+      let p = byKey.get(key);
+      if (!p) {
+        p = assemblePlan(this.factory!, `plan-${obj}`, [], v.blocks, v.sel, this.found.get(this.objective)?.scorer ?? v.scorer, this.blocks, this.misses);
+        byKey.set(key, p);
+        plans.push(p);
+      }
+      p.labels.push(LABEL_OF[obj]);
+      if (obj === this.objective) p.labels.unshift('best');
+    }
+    const best = plans.find((p) => p.labels.includes('best')) ?? null;
+    if (!best && this.factory && !this.earlyInfeasible.length && !this.cancelled) {
+      infeasible.push(...explainInfeasible(this.factory, this.blocks, this.misses, this.leafFailures));
+    }
+    const provedOptimal = !this.cancelled && this.allComplete && this.found.get(this.objective)?.complete === true;
+    this.best = best;
+    this.result = {
+      revision: this.req.meta.revision,
+      rails: this.rails,
+      best,
+      alternatives: plans,
+      infeasible,
+      stats: { explored: this.explored, provedOptimal, elapsedMs, cancelled: this.cancelled },
+    };
+    this.progress = { ...this.progress, phase: 'done', fraction: 1, message: best ? 'plan ready' : (this.cancelled ? 'cancelled' : 'no feasible plan') };
+    this.trace.push(`done in ${elapsedMs.toFixed(1)} ms: ${best ? `best weighted ${best.score.weighted.toFixed(4)}, ${plans.length} alternative(s)` : 'no plan'}${provedOptimal ? ', proved optimal' : ''}`);
+  }
+}
+
+/** Plan in one call. */
+export function plan(req: Requirements, options: PlannerOptions): PlanResult {
+  return new PlanSolver(req, options).solve();
+}
