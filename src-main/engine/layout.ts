@@ -129,11 +129,19 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
     if (group !== null) domainOf.set(st.id, group);
     const fin = fig ? `${fmtQty(fig.iin, 'A')} · ${fmtQty(fig.pin, 'W')}` : '';
     edges.push({ id: `e:${st.inputNodeId}>${st.id}`, from: st.inputNodeId, to: st.id, label: fin, crossesBarrier: false });
+    // Turns as the stage design chose them (they may refine what the plan recorded).
+    const dz = st.design as { primaryTurns?: unknown; secondaries?: Array<{ nodeId?: unknown; turns?: unknown }>; outputs?: Array<{ nodeId?: unknown }> } | null;
+    const designTurns = new Map<Id, number>();
+    if (dz && typeof dz.primaryTurns === 'number' && Array.isArray(dz.outputs) && typeof dz.outputs[0]?.nodeId === 'string') {
+      designTurns.set(dz.outputs[0].nodeId, dz.primaryTurns);
+      for (const w of dz.secondaries ?? []) if (typeof w.nodeId === 'string' && typeof w.turns === 'number') designTurns.set(w.nodeId, w.turns);
+    }
     for (const o of st.outputs) {
       const toDomain = domainOf.get(o.nodeId);
       const crosses = st.barriers.some((b) => b.toDomainId === toDomain) && toDomain !== group;
       const role = o.role === 'output' ? '' : o.role === 'primary' ? 'primary' : 'secondary';
-      const turns = o.turns !== undefined ? `${role ? ' ' : ''}${o.turns} T` : '';
+      const nT = designTurns.get(o.nodeId) ?? o.turns;
+      const turns = nT !== undefined ? `${role ? ' ' : ''}${nT} T` : '';
       edges.push({ id: `e:${st.id}>${o.nodeId}`, from: st.id, to: o.nodeId, label: `${role}${turns}`, crossesBarrier: crosses });
     }
   }

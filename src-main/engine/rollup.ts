@@ -18,12 +18,19 @@ import type { Id, Rail, Requirements } from './model.ts';
 import type { Plan, PlanStage } from './plan-types.ts';
 import type { DissipatingPart, OperatingPoint, OutputWindow, StageEvaluation, StageFlag } from './stages/types.ts';
 import type { Amps, Volts } from './units.ts';
+import { evaluateStage, stageWindows, type StageDesign } from './stages/index.ts';
 
 /** The stage models the roll-up calls (the real engine satisfies it). */
 export interface StageModels {
   evaluate(design: unknown, op: OperatingPoint): StageEvaluation;
   windows(design: unknown, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }): OutputWindow[];
 }
+
+/** The real stage engine as the roll-up's models. */
+export const STAGE_MODELS: StageModels = {
+  evaluate: (design, op) => evaluateStage(design as StageDesign, op),
+  windows: (design, corners) => stageWindows(design as StageDesign, corners),
+};
 
 export type VinCase = 'min' | 'nom' | 'max';
 export const VIN_CASES: readonly VinCase[] = ['min', 'nom', 'max'];
@@ -265,7 +272,7 @@ function evaluateCase(ctx: Context, modeId: Id, vinCase: VinCase): CaseRollup {
   };
 }
 
-export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models: StageModels): Rollup {
+export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models: StageModels = STAGE_MODELS): Rollup {
   const order = topoOrder(plan);
   for (const st of order) {
     if (st.design === null || st.design === undefined) throw new RollupError(`stage ${st.id} (${st.name}) carries no design to evaluate`);
