@@ -149,3 +149,17 @@ describe('JSON export and import', () => {
     });
   }
 });
+
+describe('the documented example', () => {
+  it('docs/project-json.md example imports without problems', async () => {
+    const { readFileSync } = await import('node:fs');
+    const md = readFileSync(new URL('../../docs/project-json.md', import.meta.url), 'utf8');
+    const example = /```json\n([\s\S]*?)```/.exec(md)![1]!;
+    const r = importProjectJson(example);
+    expect(r.ok && r.problems).toEqual([]);
+    if (r.ok) {
+      expect(r.doc.requirements.loads[0]!.current).toEqual({ run: 0.04, sleep: 20e-6 }); // SI Brochure prefixes
+      expect(r.doc.requirements.modes.map((m) => m.share)).toEqual([0.9, 0.1]);
+    }
+  });
+});
