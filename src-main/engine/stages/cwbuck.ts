@@ -110,8 +110,9 @@ export interface SecondaryPoint {
   vsec: number;
   ipk: number;
   irms: number;
-  /** Steady-state current I∞ = E/Rt and time constant of the RL loop. */
+  /** Off-time current i(t) = iinf·(1 − e^(−t/τ)) + beta·t. */
   iinf: number;
+  beta: number;
   tau: number;
   /** Average rectifier loss. */
   pRect: number;
@@ -122,7 +123,11 @@ function dt(d: CoupledBuckDesign): number {
 }
 
 /** Solve one secondary for its voltage given the off-time winding drive. */
-function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff: number, von: number, toff: number, iload: number, vfScale: number, vguess: number): SecondaryPoint {
+/**
+ * Solve one secondary for its voltage. The off-time drive falls linearly as the primary
+ * winding current (and so its resistive drop) falls: n·Voff(t) = n·(voff0 − sl·t).
+ */
+function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number, sl: number, von: number, toff: number, iload: number, vfScale: number, vguess: number): SecondaryPoint {
   const n = Math.abs(w.turns) / d.primaryTurns;
   const k = w.coupling;
   const llk = (n * n * d.inductance * (1 - k * k)) / (k * k);
@@ -134,7 +139,7 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff: number,
     const ipre = w.preload ? Math.max(0, vsec) / w.preload.resistance : 0;
     const isec = iload + ipre;
     if (!(isec > 0)) {
-      sp = { n, llk, isec: 0, iload, ipre: 0, vsec: n * voff, ipk: 0, irms: 0, iinf: 0, tau: 0, pRect: 0 };
+      sp = { n, llk, isec: 0, iload, ipre: 0, vsec: n * voff0, ipk: 0, irms: 0, iinf: 0, beta: 0, tau: 0, pRect: 0 };
       vsec = sp.vsec;
       continue;
     }
@@ -145,27 +150,32 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff: number,
     const tau = llk / rt;
     const x = toff / tau;
     const shape = toff - tau * -Math.expm1(-x);
+    // Loop: Llk·di/dt = E0 − b·t − Rt·i, i(0) = 0, with b = n·sl. Solution
+    // i(t) = α(1 − e^(−t/τ)) + β·t, β = −b/Rt, α = (E0 + Llk·b/Rt)/Rt.
+    const b = n * sl;
+    const beta = -b / rt;
     let qdec = 0;
-    let E = 0;
-    let iinf = 0;
+    let E0 = 0;
+    let alpha = 0;
     let iend = 0;
     for (let j = 0; j < 4; j++) {
-      E = ((isec * T - qdec) * rt) / shape;
-      iinf = E / rt;
-      iend = iinf * -Math.expm1(-x);
+      alpha = (isec * T - qdec - (beta * toff * toff) / 2) / shape;
+      E0 = alpha * rt - (llk * b) / rt;
+      iend = Math.max(0, alpha * -Math.expm1(-x) + beta * toff);
       // After the high side turns on the winding reverses; the current decays through the
       // leakage at (n·Von + Vsec + V0)/Llk and still charges the output meanwhile.
       const vrev = Math.max(n * von + vsec + v0, 1e-3);
       qdec = Math.min((iend * iend * llk) / (2 * vrev), 0.5 * isec * T);
     }
-    vsec = n * voff - v0 - E;
-    // RMS and rectifier loss by sampling the waveform (the exponential rise).
+    vsec = n * voff0 - v0 - E0;
+    const iinf = alpha;
+    // RMS and rectifier loss by sampling the waveform.
     const N = 32;
     let s2 = 0;
     let pr = 0;
     for (let m = 0; m < N; m++) {
       const t = ((m + 0.5) / N) * toff;
-      const i = iinf * -Math.expm1(-t / tau);
+      const i = Math.max(0, alpha * -Math.expm1(-t / tau) + beta * t);
       s2 += i * i;
       pr += vf(i) * i;
     }
@@ -174,7 +184,7 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff: number,
     const tdec = (iend * llk) / vrev;
     const irms = Math.sqrt(ms + (iend * iend * tdec) / (3 * T));
     const pRect = (pr / N) * (toff / T) + vf(iend / 2) * (iend / 2) * (tdec / T);
-    sp = { n, llk, isec, iload, ipre, vsec, ipk: iend, irms, iinf, tau, pRect };
+    sp = { n, llk, isec, iload, ipre, vsec, ipk: iend, irms, iinf, beta, tau, pRect };
   }
   return sp!;
 }
@@ -190,7 +200,7 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
   let duty = vpri / vin;
   let sec: SecondaryPoint[] = d.secondaries.map((w) => ({
     n: Math.abs(w.turns) / d.primaryTurns, llk: 0, isec: 0, iload: 0, ipre: 0,
-    vsec: (Math.abs(w.turns) / d.primaryTurns) * vpri - 0.4, ipk: 0, irms: 0, iinf: 0, tau: 0, pRect: 0,
+    vsec: (Math.abs(w.turns) / d.primaryTurns) * vpri - 0.4, ipk: 0, irms: 0, iinf: 0, beta: 0, tau: 0, pRect: 0,
   }));
   let im = ipri, dim = 0, iend = 0, voff = vpri, von = vin - vpri, toff = (1 - duty) / d.fsw;
   for (let it = 0; it < 8; it++) {
@@ -200,13 +210,19 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
     voff = vpri + ioff * (rls + rp);
     von = vin - vpri - im * (rhs + rp);
     const vfb = diodeVf(d.bodyDiode, Math.abs(im));
-    const v1 = -(vpri + vfb);
-    const v2 = iend < 0 ? vin + vfb - vpri : -(vpri + vfb);
-    // Volt-second balance on Lp: D·Von − (1 − D − 2td)·Voff + td·(v1 + v2) = 0
-    duty = ((1 - 2 * tdf) * voff - tdf * (v1 + v2)) / (von + voff);
+    // Both dead times hold the switch node one body-diode drop below ground: while the
+    // secondaries conduct they clamp the windings, so the node cannot swing to Vin even when
+    // the primary current is negative (checked in ngspice).
+    const vdead = vpri + vfb;
+    // Volt-second balance on Lp: D·Von = (1 − D − 2td)·Voff + 2td·(Vpri + Vf)
+    duty = ((1 - 2 * tdf) * voff + 2 * tdf * vdead) / (von + voff);
     dim = (von * duty) / (d.inductance * d.fsw);
-    toff = (1 - duty - (iend < 0 ? tdf : 0)) / d.fsw;
-    sec = d.secondaries.map((w, i) => solveSecondary(d, w, voff, von, toff, Math.abs(iout[i + 1] ?? 0), vfScale, sec[i]!.vsec));
+    toff = (1 - duty) / d.fsw;
+    // The primary winding current falls from the magnetizing peak to iend over the off-time;
+    // its drop across Rls + Rp makes the off-time drive fall linearly.
+    const sl = ((im + dim / 2 - iend) * (rls + rp)) / toff;
+    const voff0 = voff + (sl * toff) / 2;
+    sec = d.secondaries.map((w, i) => solveSecondary(d, w, voff0, sl, von, toff, Math.abs(iout[i + 1] ?? 0), vfScale, sec[i]!.vsec));
     iend = im - dim / 2 - sec.reduce((a, s) => a + s.n * s.ipk, 0);
   }
   return { vpri, duty, im, dim, impk: im + dim / 2, iend, voff, von, toff, sec };
@@ -229,7 +245,7 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
   for (let m = 0; m < N; m++) {
     const t = ((m + 0.5) / N) * p.toff;
     let i = p.impk - slope * t;
-    for (const s of p.sec) if (s.tau > 0) i -= s.n * s.iinf * -Math.expm1(-t / s.tau);
+    for (const s of p.sec) if (s.tau > 0) i -= s.n * Math.max(0, s.iinf * -Math.expm1(-t / s.tau) + s.beta * t);
     s1 += i;
     s2 += i * i;
   }
