@@ -1,7 +1,9 @@
 /** The command modules the CLI routes to, one per feature. */
 import type { CliCommand } from './command.ts';
 import { projectCommands } from './project.ts';
+import { exportCommands } from './export.ts';
 
 export const commandModules: CliCommand[][] = [
   projectCommands,
+  exportCommands,
 ];

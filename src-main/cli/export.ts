@@ -1,0 +1,196 @@
+/**
+ * `railwright export` (BOM, tree, report, netlists, magnetic specifications, library CSV)
+ * and `railwright library` (import/export the project's part library as CSV). Thin shells
+ * over the store, the planner and the pure exports.
+ */
+import { readFileSync } from 'node:fs';
+import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
+import { OpenError, PROJECT_EXTENSION, ProjectStore, StoreError, writeFileAtomic } from '../store/project-store.ts';
+import type { PlanResult } from '../engine/plan-types.ts';
+import type { PartLibraryRow } from '../engine/model.ts';
+import { describeProblem, fromStoreRows, rowsToTable, tableToRows, toStoreRows, type LibraryRow } from '../engine/library.ts';
+import { plan as planProject } from '../engine/planner/solver.ts';
+import { engineEvaluator } from '../engine/planner/evaluator.ts';
+import { readCsv, writeCsv, CsvError } from '../export/csv.ts';
+import { prepareExport, ExportError } from '../export/bundle.ts';
+import { checkTargets, writeAll, TargetError, type ExportTargets } from '../export/write-all.ts';
+import { defaultLibrary } from '../api/default-library.ts';
+import { RollupError } from '../engine/rollup.ts';
+import type { ElkLike } from '../engine/layout.ts';
+
+const CAUTION =
+  'Caution: mains and isolation barriers can kill; creepage, clearance and touch current follow the applicable ' +
+  'safety standard and local codes; a qualified engineer and the test lab decide. The tool certifies nothing; ' +
+  'costs are estimates (invented in the default library).';
+
+function openStore(path: string | undefined): ProjectStore {
+  if (!path) throw new CliError('missing project file (see --help)', 2);
+  try {
+    return ProjectStore.open(path);
+  } catch (e) {
+    if (e instanceof OpenError) throw new CliError(e.message);
+    throw e;
+  }
+}
+
+/** The project's library as typed rows; the default library when the project has none. */
+function projectLibrary(store: ProjectStore, io: CliIo): LibraryRow[] {
+  const stored = store.getLibrary();
+  const rows = stored.length ? stored : defaultLibrary();
+  if (!stored.length) io.err('note: the project has no part library yet; using the default library (invented cost estimates)');
+  const r = fromStoreRows(rows);
+  if (!r.ok) throw new CliError(`the project's part library has problems: ${r.problems.slice(0, 5).map(describeProblem).join('; ')}`);
+  return r.rows;
+}
+
+function libraryCsv(rows: PartLibraryRow[]): string {
+  const typed = fromStoreRows(rows);
+  if (typed.ok) return writeCsv(rowsToTable(typed.rows));
+  // Rows the library schema does not accept are still exported, parameter by parameter.
+  return writeCsv([
+    ['id', 'class', 'name', 'cost_estimate', 'cost_note', 'params'],
+    ...rows.map((r) => [r.id, r.partClass, r.name, r.cost, typeof r.params.costNote === 'string' ? r.params.costNote : '',
+      Object.entries(r.params).filter(([k]) => k !== 'costNote').map(([k, v]) => `${k}=${String(v)}`).join('; ')]),
+  ]);
+}
+
+async function elk(): Promise<ElkLike> {
+  const mod = await import('elkjs/lib/elk.bundled.js');
+  return new mod.default() as unknown as ElkLike;
+}
+
+const exportCmd: CliCommand = {
+  name: 'export',
+  summary: 'write the BOM, tree drawing, design report, SPICE netlists, magnetic specifications or library CSV',
+  usage: [
+    `Usage: railwright export <project${PROJECT_EXTENSION}> [options]`,
+    '',
+    '  --bom <file.csv|file.xlsx>   bill of materials (costs are estimates)',
+    '  --tree <file.svg|file.pdf>   the power tree drawing',
+    '  --report <file.pdf>          design report: requirements, tree, reasons, roll-up, thermal, windows, BOM, cautions',
+    '  --netlists <folder>          one SPICE netlist (.cir, for ngspice -b) per switching stage',
+    '  --magnetics <folder>         one specification sheet (.md) per custom coupled-winding magnetic',
+    '  --library-csv <file.csv>     the project part library as CSV',
+    '  --mode <name or id>          operating mode the drawing shows (default: the heaviest)',
+    '',
+    'Uses the plan saved in the project; when there is none or it is stale, plans first (the',
+    'project file is not changed) and says so.',
+    '',
+    CAUTION,
+  ].join('\n'),
+  async run(args, io) {
+    const { flags, positional } = parseFlags(args, {
+      bom: 'string', tree: 'string', report: 'string', netlists: 'string', magnetics: 'string', 'library-csv': 'string', mode: 'string',
+    });
+    if (positional.length !== 1) throw new CliError('give exactly one project file (see --help)', 2);
+    const targets: ExportTargets = {};
+    for (const k of ['bom', 'tree', 'report', 'netlists', 'magnetics'] as const) if (typeof flags[k] === 'string') targets[k] = flags[k] as string;
+    const libCsv = flags['library-csv'] as string | undefined;
+    if (Object.keys(targets).length === 0 && !libCsv) throw new CliError('nothing to export: give at least one of --bom, --tree, --report, --netlists, --magnetics, --library-csv', 2);
+    try {
+      checkTargets(targets);
+      if (libCsv !== undefined && !/\.csv$/i.test(libCsv)) throw new TargetError(`--library-csv ${libCsv}: the name must end in .csv`);
+    } catch (e) {
+      if (e instanceof TargetError) throw new CliError(e.message, 2);
+      throw e;
+    }
+    const store = openStore(positional[0]);
+    try {
+      const req = store.getRequirements();
+      if (libCsv) {
+        writeFileAtomic(libCsv, new TextEncoder().encode(libraryCsv(store.getLibrary().length ? store.getLibrary() : defaultLibrary())));
+        io.out(`wrote ${libCsv}`);
+      }
+      if (Object.keys(targets).length === 0) return 0;
+      const saved = store.getPlanResult();
+      let result: PlanResult;
+      let replanned = false;
+      if (saved && !saved.stale && saved.result.best) {
+        result = saved.result;
+      } else {
+        io.err(saved ? (saved.stale ? 'the saved plan is stale (the requirements changed since); planning again for this export' : 'the saved plan has no feasible tree; planning again for this export')
+          : 'the project has no saved plan; planning it for this export');
+        result = planProject(req, { evaluator: engineEvaluator() });
+        replanned = true;
+      }
+      const modeFlag = flags.mode as string | undefined;
+      let modeId: string | undefined;
+      if (modeFlag !== undefined) {
+        const m = req.modes.find((x) => x.id === modeFlag || x.name === modeFlag);
+        if (!m) throw new CliError(`--mode ${modeFlag}: no such operating mode (${req.modes.map((x) => x.name).join(', ')})`, 2);
+        modeId = m.id;
+      }
+      const bundle = await prepareExport({ req, result, library: projectLibrary(store, io), elk: await elk(), modeId, replanned });
+      for (const line of await writeAll(bundle, targets)) io.out(line);
+      if (bundle.bom.problems.length) io.err(`note: ${bundle.bom.problems.length} part(s) have no fitting library row; they are listed without cost`);
+      const bad = bundle.rollup.windows.filter((w) => !w.inside);
+      if (bad.length) io.err(`note: ${bad.length} window(s) fall outside their tolerance: ${bad.map((w) => w.name).join(', ')}`);
+      io.err(CAUTION);
+      return 0;
+    } catch (e) {
+      if (e instanceof ExportError || e instanceof RollupError || e instanceof TargetError) throw new CliError(e.message);
+      throw e;
+    } finally {
+      store.close();
+    }
+  },
+};
+
+const libraryCmd: CliCommand = {
+  name: 'library',
+  summary: "import or export a project's part library as CSV",
+  usage: [
+    `Usage: railwright library <project${PROJECT_EXTENSION}> --import <file.csv> | --export <file.csv>`,
+    '',
+    'CSV columns: id, class, name, cost_estimate, cost_note, params ("key=value; key=value",',
+    'numbers in base SI units). An import replaces the whole library and is refused, with every',
+    'problem named by row and column, unless every row is valid; the project is then unchanged.',
+  ].join('\n'),
+  async run(args, io) {
+    const { flags, positional } = parseFlags(args, { import: 'string', export: 'string' });
+    if (positional.length !== 1) throw new CliError('give exactly one project file (see --help)', 2);
+    const imp = flags.import as string | undefined;
+    const exp = flags.export as string | undefined;
+    if ((imp === undefined) === (exp === undefined)) throw new CliError('give exactly one of --import <file.csv> or --export <file.csv>', 2);
+    const store = openStore(positional[0]);
+    try {
+      if (exp !== undefined) {
+        const rows = store.getLibrary();
+        writeFileAtomic(exp, new TextEncoder().encode(libraryCsv(rows.length ? rows : defaultLibrary())));
+        io.out(`wrote ${exp} (${rows.length ? rows.length : 'default library, ' + defaultLibrary().length} rows)`);
+        return 0;
+      }
+      let text: string;
+      try {
+        text = readFileSync(imp!, 'utf8');
+      } catch (e) {
+        throw new CliError(`--import ${imp}: cannot read the file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
+      }
+      let table: string[][];
+      try {
+        table = readCsv(text);
+      } catch (e) {
+        if (e instanceof CsvError) throw new CliError(`--import ${imp}: ${e.message}; the project is unchanged`);
+        throw e;
+      }
+      const r = tableToRows(table);
+      if (!r.ok) {
+        for (const p of r.problems.slice(0, 50)) io.err(`  ${describeProblem(p)}`);
+        throw new CliError(`--import ${imp}: ${r.problems.length} problem(s); the project is unchanged`);
+      }
+      try {
+        store.setLibrary(toStoreRows(r.rows));
+        store.save();
+      } catch (e) {
+        if (e instanceof StoreError) throw new CliError(e.message);
+        throw e;
+      }
+      io.out(`imported ${r.rows.length} part rows into ${positional[0]}`);
+      return 0;
+    } finally {
+      store.close();
+    }
+  },
+};
+
+export const exportCommands: CliCommand[] = [exportCmd, libraryCmd];
