@@ -214,10 +214,23 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
     // secondaries conduct they clamp the windings, so the node cannot swing to Vin even when
     // the primary current is negative (checked in ngspice).
     const vdead = vpri + vfb;
-    // Volt-second balance on Lp: D·Von = (1 − D − 2td)·Voff + 2td·(Vpri + Vf)
-    duty = ((1 - 2 * tdf) * voff + 2 * tdf * vdead) / (von + voff);
+    // Second dead time with a negative primary current: the switch node flies to Vin + Vf
+    // until the secondaries, through their leakage, have taken the primary current back to
+    // zero; only then do they clamp the windings again (seen in ngspice: a few ns with a
+    // tightly coupled magnetic, the whole dead time with a loose one).
+    const vm2 = vin + vfb - vpri;
+    let tUp = 0;
+    if (iend < 0) {
+      let rate = vm2 / d.inductance;
+      for (const s of sec) if (s.isec > 0 && s.llk > 0) rate += (s.n * (s.n * vm2 + s.vsec + 0.5)) / s.llk;
+      tUp = Math.min(d.controller.deadTime, -iend / rate);
+    }
+    const upf = tUp * d.fsw;
+    // Volt-second balance on Lp:
+    // D·Von = (1 − D − 2td)·Voff + (2td − tUp)·(Vpri + Vf) − tUp·(Vin + Vf − Vpri)
+    duty = ((1 - 2 * tdf) * voff + (2 * tdf - upf) * vdead - upf * vm2) / (von + voff);
     dim = (von * duty) / (d.inductance * d.fsw);
-    toff = (1 - duty) / d.fsw;
+    toff = (1 - duty) / d.fsw - tUp;
     // The primary winding current falls from the magnetizing peak to iend over the off-time;
     // its drop across Rls + Rp makes the off-time drive fall linearly.
     const sl = ((im + dim / 2 - iend) * (rls + rp)) / toff;
