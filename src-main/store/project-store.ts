@@ -177,9 +177,16 @@ export class ProjectStore {
       const store = new ProjectStore(db, path, opts);
       if (version < schemaVersion()) migrate(db, { now: store.clock });
       try {
-        store.getRequirements();
-        store.getPlanResult();
-        store.getLibrary();
+        // Everything must read back in the shape the program expects, or the file is damaged.
+        const shape = checkRequirementsShape(store.getRequirements());
+        if (shape.length) throw new Error(`${shape[0]!.path}: ${shape[0]!.message}`);
+        const plan = store.getPlanResult();
+        if (plan) {
+          const p = checkPlanShape({ revision: plan.revision, computedAt: plan.computedAt, result: plan.result });
+          if (p.length) throw new Error(`${p[0]!.path}: ${p[0]!.message}`);
+        }
+        const lib = checkLibraryShape(store.getLibrary());
+        if (lib.length) throw new Error(`${lib[0]!.path}: ${lib[0]!.message}`);
       } catch (e) {
         throw new OpenError('corrupt', `${shownAs} is damaged: ${(e as Error).message}`, shownAs);
       }
