@@ -241,29 +241,45 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
   return { vpri, duty, im, dim, impk: im + dim / 2, iend, voff, von, toff, sec };
 }
 
-export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, opts: CoupledEvalOptions = {}): StageEvaluation {
-  const vin = op.vin as number;
-  const p = coupledPoint(d, vin, op.iout as number[], opts);
-  const fsw = d.fsw as number;
-  const T = 1 / fsw;
-  const rhs = d.highSide.rdsOn * d.rdsHotFactor;
-  const rls = d.lowSide.rdsOn * d.rdsHotFactor;
-  const rp = d.primaryResistance as number;
-  const ipri = Math.max(0, Math.abs(op.iout[0] ?? 0));
+/**
+ * Mean squares of the primary-winding current: during the on-time (magnetizing triangle)
+ * and during the off-time (magnetizing ramp minus the reflected secondaries, sampled).
+ */
+export function primaryMeanSquares(p: CoupledPoint): { msOn: number; msOff: number } {
   const msOn = p.im * p.im + (p.dim * p.dim) / 12;
-  // Primary-winding current during the off-time, sampled: magnetizing ramp minus reflected secondaries.
   const N = 32;
-  let s1 = 0, s2 = 0;
+  let s2 = 0;
   const slope = p.dim / p.toff;
   for (let m = 0; m < N; m++) {
     const t = ((m + 0.5) / N) * p.toff;
     let i = p.impk - slope * t;
     for (const s of p.sec) if (s.tau > 0) i -= s.n * Math.max(0, s.iinf * -Math.expm1(-t / s.tau) + s.beta * t);
-    s1 += i;
     s2 += i * i;
   }
+  return { msOn, msOff: s2 / N };
+}
+
+/** RMS and peak current of every winding (primary first) at one operating point. */
+export function windingCurrents(d: CoupledBuckDesign, vin: number, iout: number[]): { rms: number; peak: number }[] {
+  const p = coupledPoint(d, vin, iout);
+  const { msOn, msOff } = primaryMeanSquares(p);
+  const primaryRms = Math.sqrt(msOn * p.duty + msOff * p.toff * d.fsw);
+  return [
+    { rms: primaryRms, peak: Math.max(p.impk, Math.abs(p.iend)) },
+    ...p.sec.map((s) => ({ rms: s.irms, peak: s.ipk })),
+  ];
+}
+
+export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, opts: CoupledEvalOptions = {}): StageEvaluation {
+  const vin = op.vin as number;
+  const p = coupledPoint(d, vin, op.iout as number[], opts);
+  const fsw = d.fsw as number;
+  const rhs = d.highSide.rdsOn * d.rdsHotFactor;
+  const rls = d.lowSide.rdsOn * d.rdsHotFactor;
+  const rp = d.primaryResistance as number;
+  const ipri = Math.max(0, Math.abs(op.iout[0] ?? 0));
+  const { msOn, msOff } = primaryMeanSquares(p);
   const offShare = p.toff * fsw;
-  const msOff = s2 / N;
   const td = d.controller.deadTime;
   const vfb = diodeVf(d.bodyDiode, Math.max(Math.abs(p.impk), Math.abs(p.iend)));
   const hsRmsSq = msOn * p.duty;
@@ -286,8 +302,6 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
     preload: p.sec.reduce((a, s) => a + s.vsec * s.ipre, 0),
     quiescent: vin * d.controller.iq,
   };
-  void s1;
-  void T;
   const lossTotal = Object.values(loss).reduce((a, b) => a + b, 0);
   const pout = p.vpri * ipri + p.sec.reduce((a, s) => a + s.vsec * s.iload, 0);
   const pin = pout + lossTotal;
