@@ -10,7 +10,7 @@ import { validateRequirements, type Problem } from '../engine/validate.ts';
 import type { Requirements } from '../engine/model.ts';
 import { exportProjectJson, importProjectJson } from '../store/json-format.ts';
 import { OpenError, PROJECT_EXTENSION, ProjectStore, StoreError, hasProjectExtension, writeFileAtomic } from '../store/project-store.ts';
-import { createDemoStore } from '../store/demo.ts';
+import { demoDocument } from '../store/demo.ts';
 
 const ISOLATION_CAUTION =
   'Caution: isolated domains and mains-connected inputs can kill. Railwright records the isolation ' +
@@ -55,6 +55,12 @@ function saveNew(store: ProjectStore, path: string): void {
   }
 }
 
+/** The default part library, loaded only by the commands that need it. */
+async function defaultLibrary() {
+  const mod = await import('../api/default-library.ts');
+  return mod.defaultLibrary();
+}
+
 const demo: CliCommand = {
   name: 'demo',
   summary: 'create the demonstration project (an invented scenario) as a project file',
@@ -62,14 +68,18 @@ const demo: CliCommand = {
     `Usage: railwright demo <file${PROJECT_EXTENSION}> [--force]`,
     '',
     'Writes the invented demonstration project: a field transmitter with a wide-range DC input,',
-    'an isolated analog front end and an isolated fieldbus interface.',
+    'an isolated analog front end and an isolated fieldbus interface, with the default part',
+    'library (invented cost estimates).',
     '  --force   overwrite the file if it exists',
   ].join('\n'),
   async run(args, io) {
     const { flags, positional } = parseFlags(args, { force: 'boolean' });
     if (positional.length > 1) throw new CliError('too many arguments (see --help)', 2);
     const target = needTarget(positional[0], 'project file', flags.force === true);
-    saveNew(createDemoStore(), target);
+    // Same content as the window's demo: the invented project with the default part library.
+    const doc = demoDocument();
+    if (!doc.library?.length) doc.library = await defaultLibrary();
+    saveNew(ProjectStore.fromDocument(doc), target);
     io.out(`wrote ${target} (invented demonstration project)`);
     return 0;
   },
@@ -81,8 +91,8 @@ const newCmd: CliCommand = {
   usage: [
     `Usage: railwright new <file${PROJECT_EXTENSION}> [--name <text>] [--force]`,
     '',
-    'Creates a project with a 12 V input, one non-isolated domain and one operating mode,',
-    'ready to edit.',
+    'Creates a project with a 12 V input, one non-isolated domain, one operating mode and the',
+    'default part library (invented cost estimates), ready to edit.',
     '  --name    project name (default "Untitled project")',
     '  --force   overwrite the file if it exists',
   ].join('\n'),
@@ -91,6 +101,12 @@ const newCmd: CliCommand = {
     if (positional.length > 1) throw new CliError('too many arguments (see --help)', 2);
     const target = needTarget(positional[0], 'project file', flags.force === true);
     const store = ProjectStore.create();
+    try {
+      store.setLibrary(await defaultLibrary());
+    } catch (e) {
+      store.close();
+      throw e;
+    }
     if (typeof flags.name === 'string') {
       if (flags.name.trim() === '') { store.close(); throw new CliError('--name must not be empty', 2); }
       const req = store.getRequirements();

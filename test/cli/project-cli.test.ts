@@ -32,6 +32,7 @@ describe('railwright project commands', () => {
     const s = ProjectStore.open(join(dir, 'demo.rwproj'));
     expect(s.getRequirements()).toEqual(demoDocument().requirements);
     expect(s.getRequirements().meta.description.startsWith('Invented demonstration scenario:')).toBe(true);
+    expect(s.getLibrary().length).toBeGreaterThan(0); // the default part library comes along
     s.close();
   });
 
