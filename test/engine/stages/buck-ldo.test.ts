@@ -1,0 +1,183 @@
+import { describe, expect, it } from 'vitest';
+import { designStage, evaluateStage, stageWindows, StageInputError, type BuckDesign, type LdoDesign } from '../../../src-main/engine/stages/index.ts';
+import { buckPoint } from '../../../src-main/engine/stages/buck.ts';
+import type { StageSpec } from '../../../src-main/engine/stages/types.ts';
+import type { Amps, Celsius, Volts } from '../../../src-main/engine/units.ts';
+
+const spec = (over: Partial<StageSpec> & Pick<StageSpec, 'kind' | 'outputs'>): StageSpec => ({
+  vinMin: 10, vinNom: 12, vinMax: 14, fsw: 500e3, ambient: 25, tjMax: 125, ceramicDerating: 0.6, ...over,
+} as StageSpec);
+const out = (voltage: number, currentMax: number, over: Record<string, number> = {}) => ({
+  nodeId: 'r', voltage, tolerance: 0.03, currentMin: 0.1 * currentMax, currentMax, rippleLimit: 0.05, ...over,
+}) as StageSpec['outputs'][number];
+const op = (vin: number, iout: number[], ambient = 25) => ({ vin: vin as Volts, iout: iout as Amps[], ambient: ambient as Celsius });
+
+function buck(): BuckDesign {
+  const r = designStage(spec({ kind: 'buck', outputs: [out(3.3, 2)] }));
+  if (!r.ok || r.design.kind !== 'buck') throw new Error('buck design failed');
+  return r.design;
+}
+
+/** The same design with every parasitic removed: the textbook ideal converter. */
+function ideal(d: BuckDesign): BuckDesign {
+  return {
+    ...d, dcr: 0 as BuckDesign['dcr'], coreLossFraction: 0,
+    highSide: { rdsOn: 0, qg: 0, coss: 0, tr: 0, tf: 0 }, lowSide: { rdsOn: 0, qg: 0, coss: 0, tr: 0, tf: 0 },
+    controller: { ...d.controller, iq: 0, deadTime: 0 },
+    cout: { ...d.cout, esr: 0 }, cin: { ...d.cin, esr: 0 },
+  };
+}
+
+describe('synchronous buck: textbook closed forms (Erickson & Maksimović, Fundamentals of Power Electronics)', () => {
+  it('ideal converter: D = Vout/Vin, ΔIL = (Vin − Vout)·D/(L·fsw), ΔV = ΔIL/(8·fsw·C), η = 1', () => {
+    const d = ideal(buck());
+    const vout = d.divider.vout;
+    const ev = evaluateStage(d, op(12, [2]));
+    expect(ev.duty).toBeCloseTo(vout / 12, 12); // E&M ch. 2, volt-second balance
+    const p = buckPoint(d, 12, 2);
+    const dIL = ((12 - vout) * (vout / 12)) / (d.inductance * d.fsw);
+    expect(p.ripple).toBeCloseTo(dIL, 12); // E&M ch. 2, inductor current ripple
+    expect(ev.outputs[0]!.ripplePP).toBeCloseTo(dIL / (8 * d.fsw * d.cout.effective), 12); // E&M ch. 2, capacitor ripple
+    expect(ev.efficiency).toBeCloseTo(1, 12);
+  });
+  it('hand-worked example: 12 V → 3.3 V, 4.7 µH, 500 kHz, 2 A', () => {
+    const d0 = ideal(buck());
+    const d = { ...d0, inductance: 4.7e-6 as BuckDesign['inductance'], divider: { ...d0.divider, vout: 3.3 } };
+    const p = buckPoint(d, 12, 2);
+    // D = 3.3/12 = 0.275; ΔIL = 8.7·0.275/(4.7 µH·500 kHz) = 1.01809 A; peak = 2.50904 A (E&M ch. 2, by hand)
+    expect(p.duty).toBeCloseTo(0.275, 12);
+    expect(p.ripple).toBeCloseTo(1.01809, 5);
+    expect(p.ipk).toBeCloseTo(2.50904, 5);
+    // RMS of a triangle on a DC level: √(Io² + ΔI²/12) = √4.086376 = 2.02148 A (E&M ch. 2, by hand)
+    expect(p.irms).toBeCloseTo(2.02148, 5);
+  });
+  it('each loss term follows its stated form and pin = pout + Σloss exactly', () => {
+    const d = buck();
+    const ev = evaluateStage(d, op(12, [2]));
+    const lb = ev.lossBreakdown;
+    const sum = Object.values(lb).reduce((a, b) => a + b, 0);
+    expect(ev.loss).toBeCloseTo(sum, 12);
+    expect(ev.pin).toBeCloseTo(ev.pout + ev.loss, 12);
+    expect(ev.iin * 12).toBeCloseTo(ev.pin, 12);
+    // ½·Vin·Io·(tr+tf)·fsw (common practice)
+    expect(lb['hs-switching']).toBeCloseTo(0.5 * 12 * 2 * (d.highSide.tr + d.highSide.tf) * d.fsw, 12);
+    // gate Qg·Vdrv·fsw and controller Vin·Iq (common practice)
+    expect(lb['gate-drive']).toBeCloseTo((d.highSide.qg + d.lowSide.qg) * d.controller.vDrive * d.fsw, 12);
+    expect(lb.quiescent).toBeCloseTo(12 * d.controller.iq, 12);
+    // input capacitor RMS Io·√(D(1−D)) (E&M), through the bank's ESR
+    const D = ev.duty!;
+    expect(lb['input-capacitor-esr']).toBeCloseTo((2 * Math.sqrt(D * (1 - D))) ** 2 * d.cin.esr, 12);
+    // hot Rds ×1.4 (common practice: 1.3–1.5 × the 25 °C value)
+    const p = buckPoint(d, 12, 2);
+    expect(lb['hs-conduction']).toBeCloseTo(p.irms ** 2 * d.highSide.rdsOn * 1.4 * D, 12);
+    expect(ev.efficiency).toBeGreaterThan(0.8);
+    expect(ev.efficiency).toBeLessThan(0.97);
+  });
+  it('junction temperatures are Ta + P·θJA (JEDEC JESD51-2 defines θJA)', () => {
+    const ev = evaluateStage(buck(), op(12, [2], 50));
+    for (const part of ev.parts) expect(part.tj).toBeCloseTo(50 + part.power * part.thetaJA, 12);
+    expect(ev.parts.every((x) => x.thetaSource === 'default-from-memory')).toBe(true);
+  });
+  it('the duty accounts for the resistive drops: a lossy buck needs more duty than Vout/Vin', () => {
+    const d = buck();
+    expect(evaluateStage(d, op(12, [2])).duty!).toBeGreaterThan(d.divider.vout / 12);
+  });
+  it('refuses a minimum on-time violation at Vin max, with the numbers', () => {
+    const r = designStage(spec({ kind: 'buck', vinMin: 36, vinNom: 48, vinMax: 60, fsw: 2e6, outputs: [out(1.0, 1)] }));
+    expect(r.ok).toBe(false);
+    const f = !r.ok ? r.flags.find((x) => x.code === 'min-on-time' && x.data?.vin === 60) : undefined;
+    // D ≈ 1/60 at 2 MHz: about 8.5 ns against the 100 ns minimum
+    expect(f?.text).toMatch(/on-time \d.* ns at Vin 60 V is below the controller's minimum 100 ns/);
+  });
+  it('refuses a duty above the maximum at Vin min', () => {
+    const r = designStage(spec({ kind: 'buck', vinMin: 5.2, vinNom: 6, vinMax: 7, outputs: [out(5, 1)] }));
+    expect(r.ok).toBe(false);
+    expect(!r.ok && r.flags.some((x) => x.code === 'max-duty')).toBe(true);
+  });
+  it('chooses an output capacitor rated so it sees at most the derating share (common practice: ceramic ≤ 60 %)', () => {
+    const d = buck();
+    expect(d.cout.workingVoltage / d.cout.ratedVoltage).toBeLessThanOrEqual(0.6);
+    expect(d.cin.workingVoltage / d.cin.ratedVoltage).toBeLessThanOrEqual(0.6);
+    // the designed ripple stays under the limit at Vin max
+    expect(evaluateStage(d, op(14, [2])).outputs[0]!.ripplePP).toBeLessThan(0.05);
+  });
+  it('window: the setpoint extremes from reference ±1 % and E96 ±1 % resistors, ± half the ripple', () => {
+    const d = buck();
+    const [w] = stageWindows(d, { vin: [10, 12, 14] as Volts[], iout: [{ min: 0.2 as Amps, max: 2 as Amps }] });
+    const { vref, rTop, rBottom } = d.divider;
+    // Vout = Vref·(1 + Rtop/Rbottom) at the tolerance corners (common practice worst case)
+    const hi = vref * 1.01 * (1 + (rTop * 1.01) / (rBottom * 0.99));
+    const lo = vref * 0.99 * (1 + (rTop * 0.99) / (rBottom * 1.01));
+    const ripples = [10, 12, 14].flatMap((v) => [0.2, 2].map((i) => evaluateStage(d, op(v, [i])).outputs[0]!.ripplePP as number));
+    expect(w!.max).toBeCloseTo(hi + Math.max(...ripples) / 2, 9);
+    expect(w!.min).toBeCloseTo(lo - Math.max(...ripples) / 2, 9);
+    expect(w!.maxCorner).toMatch(/reference and divider high/);
+  });
+  it('bad input names the field and changes nothing', () => {
+    const s = spec({ kind: 'buck', outputs: [out(3.3, 2)], vinMin: Number.NaN });
+    const r = designStage(s);
+    expect(r.ok).toBe(false);
+    expect(!r.ok && r.flags[0]!.text).toMatch(/^vinMin: must be a finite number/);
+    expect(Number.isNaN(s.vinMin)).toBe(true);
+    const d = buck();
+    const before = JSON.stringify(d);
+    expect(() => evaluateStage(d, op(12, [1, 2]))).toThrow(StageInputError);
+    expect(() => evaluateStage(d, op(Number.POSITIVE_INFINITY, [1]))).toThrow(/vin: must be a non-zero finite number/);
+    expect(() => stageWindows(d, { vin: [], iout: [] })).toThrow(/corners.vin/);
+    expect(JSON.stringify(d)).toBe(before);
+    expect(designStage({ ...s, kind: 'boost' as never, vinMin: 10 }).ok).toBe(false);
+  });
+});
+
+describe('LDO (common practice; Tj per JEDEC JESD51-2 θJA)', () => {
+  const ldoSpec = spec({ kind: 'ldo', vinMin: 4.8, vinNom: 5, vinMax: 5.3, vinRipple: 0.05 as Volts, fsw: 400e3, ambient: 40, outputs: [out(3.3, 0.3, { rippleLimit: 0.01 })] });
+  const ldo = (): LdoDesign => {
+    const r = designStage(ldoSpec);
+    if (!r.ok || r.design.kind !== 'ldo') throw new Error('ldo design failed');
+    return r.design;
+  };
+  it('dissipation, efficiency and Tj by hand', () => {
+    const d = ldo();
+    const ev = evaluateStage(d, op(5, [0.3], 40));
+    // P = (5 − 3.3)·0.3 + 5·Iq (common practice)
+    expect(ev.loss).toBeCloseTo(1.7 * 0.3 + 5 * d.iq, 12);
+    expect(ev.efficiency).toBeCloseTo((3.3 * 0.3) / (5 * (0.3 + d.iq)), 12); // η = Pout/Pin ≈ Vout/Vin
+    // Tj = Ta + P·θJA (JESD51-2); with the 90 K/W default: 40 + 0.51025·90 = 85.92 °C by hand
+    expect(d.package.thetaJA).toBe(90);
+    expect(ev.parts[0]!.tj).toBeCloseTo(40 + (1.7 * 0.3 + 5 * 50e-6) * 90, 9);
+  });
+  it('ripple out = ripple in × 10^(−PSRR/20), fading near dropout', () => {
+    const d = ldo();
+    expect(evaluateStage(d, op(5.3, [0.3])).outputs[0]!.ripplePP).toBeCloseTo(0.05 * 10 ** (-40 / 20), 12); // common practice
+    // at the low input the headroom is inside the knee, so less rejection
+    expect(evaluateStage(d, op(4.0, [0.3])).outputs[0]!.ripplePP).toBeGreaterThan(0.05 / 100);
+  });
+  it('dropout is checked at the input trough and reported with the shortfall', () => {
+    const r = designStage({ ...ldoSpec, vinMin: 3.5 as Volts });
+    expect(r.ok).toBe(false);
+    const f = !r.ok ? r.flags.find((x) => x.code === 'dropout') : undefined;
+    // trough = 3.5 − 0.025; dropout at 0.3 A of a 0.5 A part = 0.03 + 0.3·0.3/0.5 = 0.21 V → short 0.035 V
+    expect(f?.data?.shortfall).toBeCloseTo(0.035, 6);
+  });
+  it('picks a bigger package when the small one would run too hot', () => {
+    const r = designStage({ ...ldoSpec, vinMin: 11 as Volts, vinNom: 12 as Volts, vinMax: 13 as Volts, outputs: [out(3.3, 0.15)] });
+    expect(r.ok).toBe(true);
+    if (r.ok && r.design.kind === 'ldo') {
+      const p = (13 - 3.3) * 0.15 + 13 * r.design.iq;
+      expect(40 + p * r.design.package.thetaJA).toBeLessThanOrEqual(125);
+      expect(r.design.package.thetaJA).toBeLessThan(90);
+    }
+  });
+  it('negative regulator: signed output, magnitudes in the arithmetic', () => {
+    const r = designStage({ ...ldoSpec, vinMin: -5.3 as Volts, vinNom: -5 as Volts, vinMax: -4.8 as Volts, outputs: [out(-3.3, 0.1)] });
+    expect(r.ok).toBe(true);
+    if (r.ok) {
+      const ev = evaluateStage(r.design, op(-5, [0.1]));
+      expect(ev.outputs[0]!.voltage).toBeCloseTo(-3.3, 12);
+      expect(ev.loss).toBeGreaterThan(0.17);
+      const [w] = stageWindows(r.design, { vin: [-5.3, -5, -4.8] as Volts[], iout: [{ min: 0 as Amps, max: 0.1 as Amps }] });
+      expect(w!.max).toBeLessThan(-3.2);
+      expect(w!.min).toBeGreaterThan(-3.4);
+    }
+  });
+});
