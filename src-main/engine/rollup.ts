@@ -159,6 +159,22 @@ function evaluateCached(models: StageModels, design: unknown, op: OperatingPoint
   return ev;
 }
 
+const windowCache = new WeakMap<object, Map<string, OutputWindow[]>>();
+
+function windowsCached(models: StageModels, design: unknown, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }): OutputWindow[] {
+  if (design === null || typeof design !== 'object') return models.windows(design, corners);
+  let m = windowCache.get(design);
+  if (!m) { m = new Map(); windowCache.set(design, m); }
+  const key = `${corners.vin.join(',')}|${corners.iout.map((i) => `${i.min}:${i.max}`).join(',')}`;
+  let w = m.get(key);
+  if (!w) {
+    w = models.windows(design, corners);
+    if (m.size > 200) m.clear();
+    m.set(key, w);
+  }
+  return w;
+}
+
 /** Node ids in the order the design lists its outputs (falls back to the plan's order). */
 export function designOutputOrder(st: PlanStage): Id[] {
   const d = st.design as { outputs?: Array<{ nodeId?: unknown }> } | null;
@@ -372,7 +388,7 @@ function computeWindows(ctx: Context, modes: ModeRollup[]): RailWindowRow[] {
       }
       return { min: (Number.isFinite(lo) ? lo : 0) as Amps, max: hi as Amps };
     });
-    const ws = ctx.models.windows(st.design, { vin, iout });
+    const ws = windowsCached(ctx.models, st.design, { vin, iout });
     for (const ow of ws) {
       nodeWindow.set(ow.nodeId, { min: ow.min, nom: ow.target, max: ow.max });
       const rail = ctx.railById.get(ow.nodeId);
