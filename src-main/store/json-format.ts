@@ -127,16 +127,25 @@ function requirementsShape(mode: Mode) {
     switchingFrequency: quantity('frequency', mode),
     budgetMs: z.number(),
   };
+  // Ids are keys: a repeated id is refused here (validate.ts reports it for other callers).
+  const uniqueIds = <T extends { id: string }>(what: string) => (items: T[], ctx: z.core.$RefinementCtx<T[]>) => {
+    const seen = new Map<string, number>();
+    items.forEach((it, i) => {
+      const prev = seen.get(it.id);
+      if (prev !== undefined) ctx.addIssue({ code: 'custom', path: [i, 'id'], message: `${what} id "${it.id}" is already used by entry ${prev}` });
+      else seen.set(it.id, i);
+    });
+  };
   return {
     meta: z.looseObject({
       name: nameSchema,
       description: imp ? z.string().max(20_000).default('') : z.string().max(20_000),
       revision: imp ? z.number().int().min(0).default(0) : z.number().int().min(0),
     }),
-    sources: z.array(source),
-    domains: z.array(domain),
-    modes: z.array(opMode),
-    loads: z.array(load),
+    sources: z.array(source).superRefine(uniqueIds('source')),
+    domains: z.array(domain).superRefine(uniqueIds('domain')),
+    modes: z.array(opMode).superRefine(uniqueIds('mode')),
+    loads: z.array(load).superRefine(uniqueIds('load')),
     // On import, missing limits or preferences take the defaults field by field.
     limits: imp ? z.looseObject(limitsFields).partial().default({}) : z.looseObject(limitsFields),
     preferences: imp ? z.looseObject(prefFields).partial().default({}) : z.looseObject(prefFields),
@@ -154,6 +163,10 @@ const planSchema = z.strictObject({
     infeasible: z.array(z.unknown()),
     stats: z.looseObject({}),
   }),
+}).superRefine((p, ctx) => {
+  if (p.revision !== p.result.revision) {
+    ctx.addIssue({ code: 'custom', path: ['revision'], message: `plan revision ${p.revision} differs from its result's revision ${p.result.revision}` });
+  }
 });
 
 const libraryRowSchema = z.strictObject({

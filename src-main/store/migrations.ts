@@ -4,7 +4,7 @@
  * `applied_migrations` table; `PRAGMA user_version` holds the number of the last one and
  * `PRAGMA application_id` marks the file as ours.
  */
-import type Database from 'better-sqlite3';
+import Database from 'better-sqlite3';
 import { existsSync, readFileSync, readdirSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -99,20 +99,28 @@ export function migrate(
   return applied;
 }
 
-/** Tables a project at the current schema must have. */
+/** Tables a project at the current schema must have (checked by tests against expectedTables). */
 export const REQUIRED_TABLES = [
   'applied_migrations', 'meta', 'sources', 'domains', 'modes', 'loads', 'load_currents',
   'limits', 'preferences', 'plan_results', 'part_library',
 ] as const;
 
-/** Tables each schema version introduced (for checking older files before migrating). */
-export const TABLES_BY_VERSION: Record<number, readonly string[]> = {
-  1: ['applied_migrations', 'meta', 'sources', 'domains', 'modes', 'loads', 'load_currents', 'limits', 'preferences'],
-  2: ['plan_results', 'part_library'],
-};
+const tablesCache = new Map<number, string[]>();
 
+/**
+ * The tables a file of schema `version` must have: found by running the migrations up to
+ * that version on an empty in-memory database (so a new migration needs no list to update).
+ */
 export function expectedTables(version: number): string[] {
-  const out: string[] = [];
-  for (let v = 1; v <= version; v++) out.push(...(TABLES_BY_VERSION[v] ?? []));
-  return out;
+  const hit = tablesCache.get(version);
+  if (hit) return hit;
+  const db = new Database(':memory:');
+  try {
+    migrate(db, { upTo: version, now: () => new Date(0) });
+    const names = (db.prepare("SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name").all() as { name: string }[]).map((r) => r.name);
+    tablesCache.set(version, names);
+    return names;
+  } finally {
+    db.close();
+  }
 }

@@ -8,7 +8,7 @@
  */
 import Database from 'better-sqlite3';
 import {
-  closeSync, fsyncSync, openSync, readFileSync, renameSync, statSync, unlinkSync, writeSync,
+  closeSync, fsyncSync, openSync, readdirSync, readFileSync, renameSync, statSync, unlinkSync, writeSync,
 } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { PROJECT_EXTENSION } from '../../electron.config.ts';
@@ -414,6 +414,7 @@ export class ProjectStore {
     }
     this.filePath = target;
     this.isDirty = false;
+    removeStaleTemps(target);
   }
 
   /** Mark the document as changed (a restored recovery copy is unsaved work). */
@@ -452,6 +453,43 @@ export function writeFileAtomic(target: string, bytes: Uint8Array): void {
     const dfd = openSync(dir, 'r');
     try { fsyncSync(dfd); } finally { closeSync(dfd); }
   } catch { /* not supported here (e.g. Windows); the rename is still atomic */ }
+}
+
+/**
+ * Remove temp files a crashed save of `target` left behind (`.<name>.<pid>-<n>.saving`
+ * whose process is gone). Best effort: a file that cannot be removed stays.
+ */
+export function removeStaleTemps(target: string): string[] {
+  const dir = dirname(target);
+  const prefix = `.${basename(target)}.`;
+  const removed: string[] = [];
+  let names: string[];
+  try {
+    names = readdirSync(dir);
+  } catch {
+    return removed;
+  }
+  for (const n of names) {
+    if (!n.startsWith(prefix) || !n.endsWith('.saving')) continue;
+    const m = /^(\d+)-\d+\.saving$/.exec(n.slice(prefix.length));
+    if (!m) continue;
+    const pid = Number(m[1]);
+    if (pid === process.pid || processAlive(pid)) continue;
+    try {
+      unlinkSync(join(dir, n));
+      removed.push(n);
+    } catch { /* leave it */ }
+  }
+  return removed;
+}
+
+function processAlive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (e) {
+    return (e as NodeJS.ErrnoException).code === 'EPERM';
+  }
 }
 
 /** Read a project file's bytes, refusing what cannot be a project. Never writes. */

@@ -163,3 +163,17 @@ describe('the documented example', () => {
     }
   });
 });
+
+describe('keys and plan revisions', () => {
+  it('refuses repeated ids and a plan whose revision differs from its result', () => {
+    const v = exportProjectValue(demoDocument()) as Record<string, any>;
+    v.modes[2].id = 'measure';
+    v.plan = { revision: 2, computedAt: 't', result: samplePlan(1) };
+    const r = importProjectJson(JSON.stringify(v));
+    expect(r.ok).toBe(false);
+    expect(r.problems).toEqual([
+      { path: 'modes[2].id', message: 'mode id "measure" is already used by entry 0' },
+      { path: 'plan.revision', message: "plan revision 2 differs from its result's revision 1" },
+    ]);
+  });
+});

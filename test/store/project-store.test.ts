@@ -191,6 +191,10 @@ describe('migrations', () => {
     });
   }
 
+  it('the current schema has every table the store uses', () => {
+    expect(expectedTables(schemaVersion())).toEqual([...REQUIRED_TABLES].sort());
+  });
+
   it('rolls a failing migration back whole, keeping the previous version', () => {
     const db = new Database(':memory:');
     const good = loadMigrations().slice(0, 1);
@@ -332,5 +336,55 @@ describe('save crash-safety', () => {
     expect(ProjectStore.open(p).getRequirements().meta.name).toBe('changed');
     expect(readdirSync(dir)).toEqual(['demo.rwproj']);
     s.close();
+  });
+});
+
+describe('more refusals and file handling', () => {
+  it('refuses repeated ids (they are keys) and a plan whose revisions disagree', () => {
+    const s = ProjectStore.fromDocument(demoDocument(), { clock });
+    const req = s.getRequirements();
+    req.loads[4]!.id = req.loads[1]!.id;
+    expect(() => s.setRequirements(req)).toThrow(/loads\[4\]\.id: load id "mcu-io" is already used by entry 1/);
+    s.close();
+  });
+
+  it('refuses a write-ahead-log file of ours (it may depend on a side file), untouched', () => {
+    const dir = tempDir();
+    const p = join(dir, 'wal.rwproj');
+    const db = new Database(p);
+    migrate(db);
+    db.pragma('journal_mode = WAL');
+    db.close();
+    const h = sha256(p);
+    expect(() => ProjectStore.open(p)).toThrow(expect.objectContaining({ kind: 'corrupt', message: expect.stringMatching(/write-ahead-log/) }));
+    expect(sha256(p)).toBe(h);
+  });
+
+  it('Save As writes the new file and leaves the old one as it was', () => {
+    const dir = tempDir();
+    const p = savedDemo(dir);
+    const h = sha256(p);
+    const s = ProjectStore.open(p, { clock });
+    const req = s.getRequirements();
+    req.meta.name = 'variant';
+    s.setRequirements(req);
+    s.save(join(dir, 'variant.rwproj'));
+    expect(s.path).toBe(join(dir, 'variant.rwproj'));
+    expect(sha256(p)).toBe(h);
+    expect(ProjectStore.open(join(dir, 'variant.rwproj')).getRequirements().meta.name).toBe('variant');
+    expect(() => s.save(dir)).toThrow(/could not save/); // a folder is not a file
+    s.close();
+  });
+
+  it('clears temp files of crashed saves whose process is gone, keeping unrelated files', () => {
+    const dir = tempDir();
+    const p = savedDemo(dir);
+    writeFileSync(join(dir, '.demo.rwproj.999999999-3.saving'), 'partial'); // no such process
+    writeFileSync(join(dir, `.demo.rwproj.${process.pid}-77.saving`), 'ours, in flight');
+    writeFileSync(join(dir, 'notes.txt'), 'keep');
+    const s = ProjectStore.open(p);
+    s.save();
+    s.close();
+    expect(readdirSync(dir).sort()).toEqual([`.demo.rwproj.${process.pid}-77.saving`, 'demo.rwproj', 'notes.txt']);
   });
 });
