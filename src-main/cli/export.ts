@@ -3,7 +3,8 @@
  * and `railwright library` (import/export the project's part library as CSV). Thin shells
  * over the store, the planner and the pure exports.
  */
-import { readFileSync } from 'node:fs';
+import { mkdirSync, readFileSync } from 'node:fs';
+import { dirname } from 'node:path';
 import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
 import { OpenError, PROJECT_EXTENSION, ProjectStore, StoreError, writeFileAtomic } from '../store/project-store.ts';
 import type { PlanResult } from '../engine/plan-types.ts';
@@ -98,6 +99,7 @@ const exportCmd: CliCommand = {
     try {
       const req = store.getRequirements();
       if (libCsv) {
+        mkdirSync(dirname(libCsv), { recursive: true });
         writeFileAtomic(libCsv, new TextEncoder().encode(libraryCsv(store.getLibrary().length ? store.getLibrary() : defaultLibrary())));
         io.out(`wrote ${libCsv}`);
       }
@@ -156,6 +158,8 @@ const libraryCmd: CliCommand = {
     try {
       if (exp !== undefined) {
         const rows = store.getLibrary();
+        if (!/\.csv$/i.test(exp)) throw new CliError(`--export ${exp}: the name must end in .csv`, 2);
+        mkdirSync(dirname(exp), { recursive: true });
         writeFileAtomic(exp, new TextEncoder().encode(libraryCsv(rows.length ? rows : defaultLibrary())));
         io.out(`wrote ${exp} (${rows.length ? rows.length : 'default library, ' + defaultLibrary().length} rows)`);
         return 0;
