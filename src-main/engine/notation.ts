@@ -7,7 +7,7 @@
  *   plain number           `3.3`, `-12`, `1e-3`, `.5`
  *   number + prefix        `250m`, `470n`, `10k`, `1M`, `1meg`
  *   number + prefix + unit `250mA`, `4.7µF`, `2.2uH`, `100 kHz`, `10 kΩ`
- *   letter as decimal mark `3V3`, `1V8`, `4u7`, `1k5`, `2R2`, `4u7F` (the "RKM" style)
+ *   letter as decimal mark `3V3`, `1V8`, `4u7`, `1k5`, `2R2`, `R47`, `4u7F` (the "RKM" style)
  * Prefixes: f p n u µ m k K M G, and `meg` for mega. `m` is milli, `M` and `meg` are mega.
  */
 import { UNIT_SYMBOL, type QuantityKind } from './units.ts';
@@ -82,6 +82,8 @@ function kindsOfUnit(u: string): QuantityKind[] {
 
 const NUMBER_RE = /^([+-]?)(\d+(?:\.\d*)?|\.\d+)(?:[eE]([+-]?\d+))?/;
 const RKM_RE = /^([+-]?)(\d+)(meg|MEG|Meg|[fpnuµμmkKMGR]|V|A|H|F|W|Ω|Ω)(\d+)(.*)$/;
+/** IEC 60062 also writes values below one ohm with a leading R: R47 = 0.47 Ω. */
+const LEADING_R_RE = /^([+-]?)[RΩΩ](\d+)$/;
 
 /** Exact decimal mantissa × 10^exp, rounded once (avoids 4.7 × 1e-6 = 4.7000000000000004e-6). */
 function decimal(sign: string, mantissa: string, exp: number): number {
@@ -165,6 +167,12 @@ export function parseQuantity(text: string, kind: QuantityKind, field: string): 
     }
     const value = decimal(sign, `${intPart}.${fracPart}`, exp);
     return Number.isFinite(value) ? { ok: true, value } : notA(raw, kind, field, 'out of range');
+  }
+
+  const lr = LEADING_R_RE.exec(s);
+  if (lr) {
+    if (kind !== 'resistance') return notA(raw, kind, field, 'R marks ohms');
+    return { ok: true, value: decimal(lr[1]!, `0.${lr[2]!}`, 0) };
   }
 
   const m = NUMBER_RE.exec(s);

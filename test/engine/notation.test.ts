@@ -44,6 +44,10 @@ describe('parseQuantity accepts engineering notation', () => {
     ['10uH', 'inductance', 10e-6],
     ['1k5', 'resistance', 1500], // IEC 60062 letter code
     ['2R2', 'resistance', 2.2], // IEC 60062: R marks the decimal point for ohms
+    ['R47', 'resistance', 0.47], // IEC 60062: leading R for values below one ohm
+    ['4µ7', 'capacitance', 4.7e-6],
+    ['1M5', 'resistance', 1.5e6],
+    ['2m2', 'resistance', 2.2e-3], // lower-case m stays milli in the letter code too
     ['10 kΩ', 'resistance', 10e3],
     ['10kohm', 'resistance', 10e3],
     ['10k', 'resistance', 10e3],
@@ -105,6 +109,7 @@ describe('parseQuantity refuses bad input with the field and what was expected',
     ['--5', 'voltage', 'is not a voltage'],
     ['5 V V', 'voltage', 'is not a voltage'],
     ['2R2', 'voltage', 'R marks ohms'],
+    ['R47', 'current', 'R marks ohms'],
     ['1k°C', 'temperature', 'is not a temperature'],
     ['e5', 'voltage', 'is not a voltage'],
     ['1x'.repeat(40), 'voltage', 'too long'],
