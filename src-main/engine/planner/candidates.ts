@@ -25,18 +25,37 @@ import type {
   Block, BlockEval, BlockShape, BlockStage, CostModel, FeedInput, PartCounts, PlanContext, Rejection, StageEvaluator,
 } from './types.ts';
 
-/** Dropout plus margin the planner budgets when it picks a tap voltage (common practice). */
-export const TAP_HEADROOM_V = 0.6;
-/** Tap tolerances tried, tightest first: a tighter tap wastes less in its LDO. */
-export const TAP_TOLERANCES = [0.1, 0.2] as const;
+/**
+ * Tap choices tried in order, lowest tap voltage first (a lower tap wastes less in its LDO):
+ * the tolerance the tap winding must hold and the headroom (dropout + ripple-rejection knee +
+ * margin, common practice) above the rail at the tap's lowest voltage.
+ */
+export const TAP_VARIANTS: readonly { tolerance: number; headroom: number }[] = [
+  { tolerance: 0.1, headroom: 1.0 },
+  { tolerance: 0.2, headroom: 1.0 },
+  { tolerance: 0.3, headroom: 1.0 },
+  { tolerance: 0.4, headroom: 1.0 },
+  { tolerance: 0.1, headroom: 2.0 },
+  { tolerance: 0.2, headroom: 2.5 },
+  { tolerance: 0.4, headroom: 2.5 },
+];
+/** Kept for callers that only need the tolerances. */
+export const TAP_TOLERANCES = TAP_VARIANTS.map((v) => v.tolerance);
 /** Ripple allowed on a tap winding, as a share of its voltage (the LDO's PSRR cleans it). */
 export const TAP_RIPPLE_SHARE = 0.05;
+/**
+ * A tap's ripple is also held to this multiple of its rail's ripple limit: 26 dB, well inside
+ * the 30–40 dB an LDO rejects at a few hundred kHz with headroom (from memory).
+ */
+export const TAP_RIPPLE_FACTOR = 20;
 
 export interface GenerationOptions {
   allowRailFeeds: boolean;
   maxSecondaries: number;
   allowed: ReadonlySet<StageKind>;
 }
+
+interface StageRun { ok: true; design: unknown; perMode: StageEvaluation[]; atMin: StageEvaluation; windows: OutputWindow[]; worstRipple: number[] }
 
 /** A rejected candidate and why, kept per rail for reasons and infeasibility reports. */
 export interface Miss { shape: BlockShape; rejection: Rejection }
@@ -128,17 +147,22 @@ export class BlockFactory {
     return { ...railBand(r), ripple: r.rippleLimit, sign: Math.sign(r.voltage) || 1 };
   }
 
-  private baseSpec(kind: StageKind, vin: { min: number; nom: number; max: number; ripple: number }, outputs: OutputSpec[]): StageSpec {
+  private baseSpec(kind: StageKind, vin: { min: number; nom: number; max: number; ripple: number; sign?: number }, outputs: OutputSpec[]): StageSpec {
     const p = this.req.preferences;
     const l = this.req.limits;
+    // Inputs are signed like the rail that feeds them (a negative LDO runs from a negative rail).
+    // For a negative input, vinMin is the most negative value (vinMin ≤ vinNom ≤ vinMax).
+    const sg = vin.sign ?? 1;
+    const [lo, hi] = sg < 0 ? [-vin.max, -vin.min] : [vin.min, vin.max];
     return {
       kind,
-      vinMin: vin.min as Volts, vinNom: vin.nom as Volts, vinMax: vin.max as Volts,
+      vinMin: lo as Volts, vinNom: (sg * vin.nom) as Volts, vinMax: hi as Volts,
       vinRipple: vin.ripple as Volts,
       outputs,
       fsw: p.switchingFrequency as Hertz,
       ambient: l.ambient as Celsius,
-      tjMax: l.tjMax as Celsius,
+      // Parts are chosen against the limit with its margin (tjMax − tjMargin).
+      tjMax: (l.tjMax - l.tjMargin) as Celsius,
       ceramicDerating: l.ceramicDerating as Ratio,
     };
   }
@@ -160,10 +184,23 @@ export class BlockFactory {
    * min/max current, evaluations at every mode (vin nominal) and at vin min/max with the
    * largest currents; engine error flags, ripple, Tj margin.
    */
+  private readonly stageCache = new Map<string, StageRun | { ok: false; rejections: Rejection[] }>();
+
   private runStage(
     spec: StageSpec, modeCurrents: number[][], railOf: (i: number) => number | undefined, mirror: number,
-  ): { ok: true; design: unknown; perMode: StageEvaluation[]; atMin: StageEvaluation; windows: OutputWindow[]; worstRipple: number[] } | { ok: false; rejections: Rejection[] } {
+  ): StageRun | { ok: false; rejections: Rejection[] } {
     this.evaluations++;
+    const specKey = JSON.stringify(spec) + JSON.stringify(modeCurrents);
+    const cached = this.stageCache.get(specKey);
+    if (cached) return cached;
+    const res = this.runStageUncached(spec, modeCurrents, railOf, mirror);
+    this.stageCache.set(specKey, res);
+    return res;
+  }
+
+  private runStageUncached(
+    spec: StageSpec, modeCurrents: number[][], railOf: (i: number) => number | undefined, mirror: number,
+  ): StageRun | { ok: false; rejections: Rejection[] } {
     const d = this.evaluator.design(spec);
     if (!d.ok) {
       return {
@@ -205,18 +242,14 @@ export class BlockFactory {
     const perMode: StageEvaluation[] = [];
     const worstRipple = new Array<number>(nOut).fill(0);
     const track = (ev: StageEvaluation) => ev.outputs.forEach((o, i) => { worstRipple[i] = Math.max(worstRipple[i]!, Math.abs(o.ripplePP)); });
-    for (let m = 0; m < modeCurrents.length; m++) {
-      const ev = this.evaluator.evaluate(d.design, { vin: spec.vinNom, iout: modeCurrents[m]! as Amps[], ambient });
-      perMode.push(ev);
-      track(ev);
-      check(ev, `in mode ${this.req.modes[m]?.name ?? m} at Vin nominal`);
-    }
+    // Cheapest checks first: the two full-load corners, then the windows, then every mode.
     const atMin = this.evaluator.evaluate(d.design, { vin: spec.vinMin, iout: maxI, ambient });
     track(atMin);
     check(atMin, 'at Vin min and full load');
     const atMax = this.evaluator.evaluate(d.design, { vin: spec.vinMax, iout: maxI, ambient });
     track(atMax);
     check(atMax, 'at Vin max and full load');
+    if (rej.length) return { ok: false, rejections: rej };
     const windows = this.evaluator.windows(d.design, {
       vin: [spec.vinMin, spec.vinNom, spec.vinMax],
       iout: spec.outputs.map((o) => ({ min: o.currentMin, max: o.currentMax })),
@@ -234,6 +267,13 @@ export class BlockFactory {
       }
     });
     if (rej.length) return { ok: false, rejections: rej };
+    for (let m = 0; m < modeCurrents.length; m++) {
+      const ev = this.evaluator.evaluate(d.design, { vin: spec.vinNom, iout: modeCurrents[m]! as Amps[], ambient });
+      perMode.push(ev);
+      track(ev);
+      check(ev, `in mode ${this.req.modes[m]?.name ?? m} at Vin nominal`);
+    }
+    if (rej.length) return { ok: false, rejections: rej };
     return { ok: true, design: d.design, perMode, atMin, windows, worstRipple };
   }
 
@@ -249,10 +289,8 @@ export class BlockFactory {
     const r = this.ctx.rails[rail]!;
     const currents = this.railCurrents(rail, extra?.get(rail));
     const vin = this.inputWindow(shape.input);
-    // A negative LDO is evaluated as the mirror image of a positive one (common practice:
-    // the same equations with all voltages and currents reversed).
-    const mirror = r.voltage < 0 ? -1 : 1;
-    const spec = this.baseSpec(shape.kind, vin, [this.railOutput(rail, currents, mirror)]);
+    const mirror = 1;
+    const spec = this.baseSpec(shape.kind, vin, [this.railOutput(rail, currents)]);
     const run = this.runStage(spec, currents.map((c) => [c]), () => rail, mirror);
     if (!run.ok) return run;
     const parts = stageParts(shape.kind, 0);
@@ -294,16 +332,31 @@ export class BlockFactory {
     };
   }
 
+  private strongestIsolation(rails: number[]): { class: Domain['isolation']; workingVoltage: Volts } | null {
+    const rank = { none: 0, functional: 1, basic: 2, reinforced: 3 } as const;
+    let best: { class: Domain['isolation']; workingVoltage: Volts } | null = null;
+    for (const s of rails) {
+      const d = this.domainOf(s);
+      if (!d || d.isolation === 'none') continue;
+      if (!best || rank[d.isolation] > rank[best.class] || (rank[d.isolation] === rank[best.class] && d.workingVoltage > best.workingVoltage)) {
+        best = { class: d.isolation, workingVoltage: d.workingVoltage };
+      }
+    }
+    return best;
+  }
+
   /** Tap + LDO for one secondary: pick the lowest tap voltage whose LDO is feasible. */
-  private designTap(rail: number, currents: number[], tapTol: number): {
+  private designTap(rail: number, currents: number[], variant: { tolerance: number; headroom: number }): {
     ok: true; tapV: number; spec: StageSpec; design: unknown; perMode: StageEvaluation[]; window: OutputWindow; tapOutput: OutputSpec; iinPerMode: number[];
   } | { ok: false; rejections: Rejection[] } {
     const r = this.ctx.rails[rail]!;
     const a = Math.abs(r.voltage);
-    const tapMag = Math.ceil(((a + TAP_HEADROOM_V) / (1 - tapTol)) * 10) / 10;
-    const ldoVin = { min: tapMag * (1 - tapTol), nom: tapMag, max: tapMag * (1 + tapTol), ripple: tapMag * TAP_RIPPLE_SHARE };
-    const spec = this.baseSpec('ldo', ldoVin, [this.railOutput(rail, currents, r.voltage < 0 ? -1 : 1)]);
-    const mirror = r.voltage < 0 ? -1 : 1;
+    const tapTol = variant.tolerance;
+    const tapMag = Math.ceil(((a + variant.headroom) / (1 - tapTol)) * 10) / 10;
+    const tapRipple = Math.min(tapMag * TAP_RIPPLE_SHARE, r.rippleLimit * TAP_RIPPLE_FACTOR);
+    const ldoVin = { min: tapMag * (1 - tapTol), nom: tapMag, max: tapMag * (1 + tapTol), ripple: tapRipple, sign: Math.sign(r.voltage) || 1 };
+    const spec = this.baseSpec('ldo', ldoVin, [this.railOutput(rail, currents)]);
+    const mirror = 1;
     const run = this.runStage(spec, currents.map((c) => [c]), () => rail, mirror);
     if (!run.ok) return run;
     const iinPerMode = run.perMode.map((e) => Math.abs(e.iin));
@@ -313,7 +366,7 @@ export class BlockFactory {
       tolerance: tapTol as Ratio,
       currentMin: Math.min(...iinPerMode) as Amps,
       currentMax: Math.max(...iinPerMode, Math.abs(run.atMin.iin)) as Amps,
-      rippleLimit: (tapMag * TAP_RIPPLE_SHARE) as Volts,
+      rippleLimit: tapRipple as Volts,
     };
     const w = run.windows[0]!;
     return { ok: true, tapV: tapMag * Math.sign(r.voltage || 1), spec, design: run.design, perMode: run.perMode, window: { ...w, min: Math.min(mirror * w.min, mirror * w.max) as Volts, max: Math.max(mirror * w.min, mirror * w.max) as Volts }, tapOutput, iinPerMode };
@@ -328,12 +381,19 @@ export class BlockFactory {
     const useTap = new Map<number, number>(); // rail → index into TAP_TOLERANCES
     const directMiss = new Map<number, Rejection>();
     for (const s of shape.secondaries) if (this.ctx.rails[s]!.noiseClass === 'quiet') useTap.set(s, 0);
-    for (let attempt = 0; attempt < 2 + TAP_TOLERANCES.length; attempt++) {
+    for (let attempt = 0; attempt < 2 + 2 * TAP_VARIANTS.length; attempt++) {
       const taps = new Map<number, ReturnType<BlockFactory['designTap']> & { ok: true }>();
       let tapFail: Rejection[] | null = null;
       for (const [s, ti] of useTap) {
-        const t = this.designTap(s, this.railCurrents(s, extra?.get(s)), TAP_TOLERANCES[ti]!);
-        if (!t.ok) { tapFail = t.rejections.map((x) => ({ ...x, rail: s })); break; }
+        // The LDO behind a tap fails on its own: try the next tap choice for that rail.
+        let t = this.designTap(s, this.railCurrents(s, extra?.get(s)), TAP_VARIANTS[ti]!);
+        let k = ti;
+        while (!t.ok && k + 1 < TAP_VARIANTS.length) {
+          k++;
+          t = this.designTap(s, this.railCurrents(s, extra?.get(s)), TAP_VARIANTS[k]!);
+        }
+        useTap.set(s, k);
+        if (!t.ok) { tapFail = t.rejections.map((x) => ({ ...x, rail: s, text: `behind a tap winding, ${x.text}` })); break; }
         taps.set(s, t);
       }
       if (tapFail) return { ok: false, rejections: tapFail };
@@ -363,7 +423,12 @@ export class BlockFactory {
         }
         railOf.push(s);
       }
-      const spec = this.baseSpec('cwbuck', vin, outputs);
+      // The engine records the barrier on the magnetic and checks the winding count.
+      const iso = this.strongestIsolation(shape.secondaries);
+      const spec = Object.assign(this.baseSpec('cwbuck', vin, outputs), {
+        maxSecondaries: this.req.preferences.maxSecondaries,
+        isolation: iso,
+      });
       const run = this.runStage(spec, modeCurrents, (i) => railOf[i], 1);
       if (!run.ok) {
         // Secondaries that missed their window or ripple directly get a tap + LDO next time;
@@ -375,7 +440,14 @@ export class BlockFactory {
           if (rj.constraint !== 'window' && rj.constraint !== 'ripple') continue;
           const cur = useTap.get(s);
           if (cur === undefined) { useTap.set(s, 0); directMiss.set(s, rj); changed = true; }
-          else if (cur + 1 < TAP_TOLERANCES.length && !changed) { useTap.set(s, cur + 1); changed = true; }
+          else {
+            // A tap that missed its own window: the next choice whose tolerance covers the miss.
+            const tapV = Math.abs(taps.get(s)?.tapV ?? 1);
+            const need = TAP_VARIANTS[cur]!.tolerance + (rj.shortfall / tapV) * 1.1;
+            let k = cur + 1;
+            while (k < TAP_VARIANTS.length && (TAP_VARIANTS[k]!.tolerance < need || TAP_VARIANTS[k]!.headroom < TAP_VARIANTS[cur]!.headroom)) k++;
+            if (k < TAP_VARIANTS.length) { useTap.set(s, k); changed = true; }
+          }
         }
         if (!changed || !this.req.preferences.allowedKinds.includes('ldo')) return run;
         continue;
@@ -504,7 +576,11 @@ function numberFrom(data?: Record<string, number | string>): number {
 
 /** Turns per output from a coupled-winding design, when the design exposes them. */
 function turnsOf(design: unknown): number[] {
-  const d = design as { turns?: unknown; windings?: { turns?: unknown }[]; np?: unknown; ns?: unknown };
+  const d = design as { turns?: unknown; windings?: { turns?: unknown }[]; np?: unknown; ns?: unknown; primaryTurns?: unknown; secondaries?: { turns?: unknown }[] };
+  if (typeof d?.primaryTurns === 'number' && Array.isArray(d.secondaries)) {
+    const t = d.secondaries.map((w) => w?.turns);
+    if (t.every((x) => typeof x === 'number')) return [d.primaryTurns, ...(t as number[])];
+  }
   if (Array.isArray(d?.turns) && d.turns.every((t) => typeof t === 'number')) return d.turns as number[];
   if (Array.isArray(d?.windings)) {
     const t = d.windings.map((w) => w?.turns);
