@@ -96,6 +96,17 @@ function splitExtra(obj: Row, known: readonly string[]): string {
 
 let saveCounter = 0;
 
+/** JSON with object keys sorted, so equal content compares equal whatever the key order. */
+export function canonicalJson(x: unknown): string {
+  return JSON.stringify(x, (_k, v: unknown) => {
+    if (v && typeof v === 'object' && !Array.isArray(v)) {
+      const o = v as Record<string, unknown>;
+      return Object.fromEntries(Object.keys(o).sort().map((k) => [k, o[k]]));
+    }
+    return v;
+  });
+}
+
 export class ProjectStore {
   private db: Database.Database;
   private filePath: string | null;
@@ -287,7 +298,7 @@ export class ProjectStore {
     const problems = checkRequirementsShape(req);
     if (problems.length) throw new StoreError('requirements refused', problems);
     const current = this.getRequirements();
-    const strip = (r: Requirements) => JSON.stringify({ ...r, meta: { ...r.meta, revision: 0 } });
+    const strip = (r: Requirements) => canonicalJson({ ...r, meta: { ...r.meta, revision: 0 } });
     if (opts.keepRevision) {
       if (strip(current) === strip(req) && current.meta.revision === req.meta.revision) return req.meta.revision;
       this.writeRequirements(req, req.meta.revision);
@@ -365,8 +376,7 @@ export class ProjectStore {
   setLibrary(rows: PartLibraryRow[]): void {
     const problems = checkLibraryShape(rows);
     if (problems.length) throw new StoreError('part library refused', problems);
-    const before = JSON.stringify(this.getLibrary());
-    if (before === JSON.stringify(rows)) return;
+    if (canonicalJson(this.getLibrary()) === canonicalJson(rows)) return;
     const db = this.db;
     db.transaction(() => {
       db.exec('DELETE FROM part_library');

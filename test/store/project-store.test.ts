@@ -388,3 +388,18 @@ describe('more refusals and file handling', () => {
     expect(readdirSync(dir).sort()).toEqual([`.demo.rwproj.${process.pid}-77.saving`, 'demo.rwproj', 'notes.txt']);
   });
 });
+
+describe('change detection', () => {
+  it('sees the same requirements in another key order as no change', () => {
+    const s = ProjectStore.fromDocument(demoDocument(), { clock });
+    const dir = tempDir();
+    s.save(join(dir, 'o.rwproj'));
+    const req = s.getRequirements();
+    const reordered = { ...req, loads: req.loads.map((l) => Object.fromEntries(Object.entries(l).reverse())) } as typeof req;
+    expect(s.setRequirements(reordered)).toBe(req.meta.revision);
+    expect(s.dirty).toBe(false);
+    s.setLibrary(s.getLibrary());
+    expect(s.dirty).toBe(false);
+    s.close();
+  });
+});
