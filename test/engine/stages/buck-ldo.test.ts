@@ -4,7 +4,7 @@ import { buckPoint } from '../../../src-main/engine/stages/buck.ts';
 import type { StageSpec } from '../../../src-main/engine/stages/types.ts';
 import type { Amps, Celsius, Volts } from '../../../src-main/engine/units.ts';
 
-const spec = (over: Partial<StageSpec> & Pick<StageSpec, 'kind' | 'outputs'>): StageSpec => ({
+const spec = (over: Record<string, unknown> & Pick<StageSpec, 'kind' | 'outputs'>): StageSpec => ({
   vinMin: 10, vinNom: 12, vinMax: 14, fsw: 500e3, ambient: 25, tjMax: 125, ceramicDerating: 0.6, ...over,
 } as StageSpec);
 const out = (voltage: number, currentMax: number, over: Record<string, number> = {}) => ({
@@ -125,7 +125,7 @@ describe('synchronous buck: textbook closed forms (Erickson & Maksimović, Funda
     expect(() => evaluateStage(d, op(Number.POSITIVE_INFINITY, [1]))).toThrow(/vin: must be a non-zero finite number/);
     expect(() => stageWindows(d, { vin: [], iout: [] })).toThrow(/corners.vin/);
     expect(JSON.stringify(d)).toBe(before);
-    expect(designStage({ ...s, kind: 'boost' as never, vinMin: 10 }).ok).toBe(false);
+    expect(designStage({ ...s, kind: 'boost' as never, vinMin: 10 as Volts }).ok).toBe(false);
   });
 });
 

@@ -10,7 +10,7 @@ import type { Amps, Celsius, Volts } from '../../../src-main/engine/units.ts';
 const o = (nodeId: string, voltage: number, currentMin: number, currentMax: number, tolerance = 0.08, rippleLimit = 0.1) =>
   ({ nodeId, voltage, tolerance, currentMin, currentMax, rippleLimit }) as StageSpec['outputs'][number];
 const base = { kind: 'cwbuck', vinMin: 18, vinNom: 24, vinMax: 32, fsw: 400e3, ambient: 40, tjMax: 125, ceramicDerating: 0.6 } as const;
-const spec = (outputs: StageSpec['outputs'], over: Partial<StageSpec> = {}) => ({ ...base, outputs, ...over }) as StageSpec;
+const spec = (outputs: StageSpec['outputs'], over: Record<string, unknown> = {}) => ({ ...base, outputs, ...over }) as StageSpec;
 const op = (vin: number, iout: number[]) => ({ vin: vin as Volts, iout: iout as Amps[], ambient: 40 as Celsius });
 
 function design(s: StageSpec): CoupledBuckDesign {
