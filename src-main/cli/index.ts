@@ -2,8 +2,10 @@
 import type { CliCommand } from './command.ts';
 import { projectCommands } from './project.ts';
 import { exportCommands } from './export.ts';
+import { stageCommands } from './stage.ts';
 
 export const commandModules: CliCommand[][] = [
   projectCommands,
   exportCommands,
+  stageCommands,
 ];
