@@ -696,9 +696,11 @@ export function busVoltageFor(vinMin: number): number {
  */
 export function* generateBlocks(
   f: BlockFactory, opts: GenerationOptions,
+  /** Filled as generation goes, so a caller that stops early keeps what was designed. */
+  into: { blocks: Block[]; misses: Map<number, Miss[]> } = { blocks: [], misses: new Map() },
 ): Generator<void, { blocks: Block[]; misses: Map<number, Miss[]> }> {
-  const blocks: Block[] = [];
-  const misses = new Map<number, Miss[]>();
+  const blocks = into.blocks;
+  const misses = into.misses;
   const noteMiss = (shape: BlockShape, rej: Rejection[]) => {
     for (const r of rej) {
       const rail = r.rail ?? BlockFactory.covers(shape)[0];

@@ -118,6 +118,11 @@ export class PlanSolver {
 
   explain(): string[] { return [...this.trace]; }
 
+  /** The designed candidates (for tests, the oracle and the MILP check). */
+  candidates(): { factory: BlockFactory | null; blocks: readonly Block[] } {
+    return { factory: this.factory, blocks: this.blocks };
+  }
+
   /** One unit of work. False when finished. */
   private advance(): boolean {
     switch (this.progress.phase) {
@@ -192,7 +197,7 @@ export class PlanSolver {
     };
     const ignored = req.preferences.allowedKinds.filter((k) => k !== 'buck' && k !== 'cwbuck' && k !== 'ldo');
     if (ignored.length) this.trace.push(`stage kinds not modelled by the planner and left out: ${ignored.join(', ')}`);
-    this.gen = generateBlocks(this.factory, genOpts);
+    this.gen = generateBlocks(this.factory, genOpts, { blocks: this.blocks, misses: this.misses });
     this.progress = { phase: 'candidates', fraction: 0.01, candidates: 0, explored: 0, message: 'designing candidate stages' };
     return true;
   }

@@ -91,7 +91,8 @@ export const firstOrderEvaluator: StageEvaluator = {
   design(spec) {
     const flags: StageFlag[] = [];
     for (const o of spec.outputs) {
-      if (spec.kind !== 'cwbuck' && Math.abs(o.voltage) >= spec.vinMin) flags.push(flag('step-up', `output ${o.voltage} V not below Vin min ${spec.vinMin} V`));
+      const lo = Math.min(Math.abs(spec.vinMin), Math.abs(spec.vinMax));
+      if (spec.kind !== 'cwbuck' && Math.abs(o.voltage) >= lo) flags.push(flag('step-up', `output ${o.voltage} V not below Vin min ${spec.vinMin} V`));
     }
     if (spec.kind === 'cwbuck' && spec.outputs.length > 1 + 4) flags.push(flag('secondaries', 'too many windings'));
     if (spec.kind === 'cwbuck') {
