@@ -127,7 +127,7 @@ function dt(d: CoupledBuckDesign): number {
  * Solve one secondary for its voltage. The off-time drive falls linearly as the primary
  * winding current (and so its resistive drop) falls: n·Voff(t) = n·(voff0 − sl·t).
  */
-function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number, sl: number, von: number, toff: number, iload: number, vfScale: number, vguess: number): SecondaryPoint {
+function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number, sl: number, von: number, toff: number, iload: number, vfScale: number, vguess: number, full: boolean): SecondaryPoint {
   const n = Math.abs(w.turns) / d.primaryTurns;
   const k = w.coupling;
   const llk = (n * n * d.inductance * (1 - k * k)) / (k * k);
@@ -140,6 +140,7 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     const isec = iload + ipre;
     if (!(isec > 0)) {
       sp = { n, llk, isec: 0, iload, ipre: 0, vsec: n * voff0, ipk: 0, irms: 0, iinf: 0, beta: 0, tau: 0, pRect: 0 };
+      if (Math.abs(sp.vsec - vsec) < 1e-12) break;
       vsec = sp.vsec;
       continue;
     }
@@ -167,8 +168,15 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
       const vrev = Math.max(n * von + vsec + v0, 1e-3);
       qdec = Math.min((iend * iend * llk) / (2 * vrev), 0.5 * isec * T);
     }
+    const vPrev = vsec;
     vsec = n * voff0 - v0 - E0;
     const iinf = alpha;
+    const settled = !w.preload || Math.abs(vsec - vPrev) < 1e-10 * Math.max(1, Math.abs(vsec));
+    if (!full) {
+      sp = { n, llk, isec, iload, ipre, vsec, ipk: iend, irms: 0, iinf, beta, tau, pRect: 0 };
+      if (settled) break;
+      continue;
+    }
     // RMS and rectifier loss by sampling the waveform.
     const N = 32;
     let s2 = 0;
@@ -185,6 +193,7 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     const irms = Math.sqrt(ms + (iend * iend * tdec) / (3 * T));
     const pRect = (pr / N) * (toff / T) + vf(iend / 2) * (iend / 2) * (tdec / T);
     sp = { n, llk, isec, iload, ipre, vsec, ipk: iend, irms, iinf, beta, tau, pRect };
+    if (settled) break;
   }
   return sp!;
 }
@@ -203,7 +212,9 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
     vsec: (Math.abs(w.turns) / d.primaryTurns) * vpri - 0.4, ipk: 0, irms: 0, iinf: 0, beta: 0, tau: 0, pRect: 0,
   }));
   let im = ipri, dim = 0, iend = 0, voff = vpri, von = vin - vpri, toff = (1 - duty) / d.fsw;
-  for (let it = 0; it < 8; it++) {
+  const MAX_IT = 12;
+  let duty0 = -1;
+  for (let it = 0; it < MAX_IT; it++) {
     const sumN = sec.reduce((a, s) => a + s.n * s.isec, 0);
     im = ipri + sumN;
     const ioff = ipri - (sumN * duty) / (1 - duty);
@@ -235,8 +246,14 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
     // its drop across Rls + Rp makes the off-time drive fall linearly.
     const sl = ((im + dim / 2 - iend) * (rls + rp)) / toff;
     const voff0 = voff + (sl * toff) / 2;
-    sec = d.secondaries.map((w, i) => solveSecondary(d, w, voff0, sl, von, toff, Math.abs(iout[i + 1] ?? 0), vfScale, sec[i]!.vsec));
+    const last = it === MAX_IT - 1;
+    const prevDuty = duty0;
+    sec = d.secondaries.map((w, i) => solveSecondary(d, w, voff0, sl, von, toff, Math.abs(iout[i + 1] ?? 0), vfScale, sec[i]!.vsec, last));
     iend = im - dim / 2 - sec.reduce((a, s) => a + s.n * s.ipk, 0);
+    if (last) break;
+    // Converged: finish with one pass that also integrates the RMS currents and losses.
+    if (Math.abs(duty - prevDuty) < 1e-12 && it > 1) it = MAX_IT - 2;
+    duty0 = duty;
   }
   return { vpri, duty, im, dim, impk: im + dim / 2, iend, voff, von, toff, sec };
 }
