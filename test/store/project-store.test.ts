@@ -403,3 +403,26 @@ describe('change detection', () => {
     s.close();
   });
 });
+
+describe('unusual files', () => {
+  it('refuses a file larger than 1 GiB without reading it (sparse file)', async () => {
+    const { truncateSync } = await import('node:fs');
+    const dir = tempDir();
+    const p = join(dir, 'huge.rwproj');
+    writeFileSync(p, '');
+    truncateSync(p, 1024 * 1024 * 1024 + 4096);
+    expect(() => ProjectStore.open(p)).toThrow(expect.objectContaining({ kind: 'too-large' }));
+  });
+
+  it.skipIf(process.getuid?.() === 0)('refuses a file it may not read (skipped as root, who may read anything)', async () => {
+    const { chmodSync } = await import('node:fs');
+    const dir = tempDir();
+    const p = savedDemo(dir);
+    chmodSync(p, 0o000);
+    try {
+      expect(() => ProjectStore.open(p)).toThrow(expect.objectContaining({ kind: 'unreadable' }));
+    } finally {
+      chmodSync(p, 0o644);
+    }
+  });
+});
