@@ -301,8 +301,8 @@ export function toElkGraph(view: TreeView): ElkNodeLike {
       'elk.spacing.edgeLabel': '3',
       'elk.edgeLabels.placement': 'CENTER',
       'elk.layered.edgeLabels.sideSelection': 'ALWAYS_UP',
-      'elk.layered.nodePlacement.strategy': 'NETWORK_SIMPLEX',
-      'elk.layered.considerModelOrder.strategy': 'NODES_AND_EDGES',
+      // Default node placement and no model-order pass: several times faster on trees with
+      // many domains, and the drawing reads as well.
       'elk.padding': '[top=56,left=16,bottom=16,right=16]',
     },
     children: root,
