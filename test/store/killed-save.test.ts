@@ -14,7 +14,7 @@ const ROOT = join(import.meta.dirname, '../..');
 
 function runAndKill(path: string, afterSaves: number, extraMs: number): Promise<number> {
   return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, ['--import', 'tsx', join(ROOT, 'test/store/save-worker.ts'), path, '1500'], { cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'] });
+    const child = spawn(process.execPath, ['--import', 'tsx', join(ROOT, 'test/store/save-worker.ts'), path, '800'], { cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'] });
     let saves = 0;
     let err = '';
     let killed = false;
@@ -34,13 +34,13 @@ describe('killed save', () => {
   it('leaves a file that opens and holds one complete saved project, every time', { timeout: 120_000 }, async () => {
     const dir = tempDir();
     const path = join(dir, 'k.rwproj');
-    const a = generateProject({ loads: 1500, seed: 1 }).requirements;
-    const b = generateProject({ loads: 1500, seed: 2 }).requirements;
+    const a = generateProject({ loads: 800, seed: 1 }).requirements;
+    const b = generateProject({ loads: 800, seed: 2 }).requirements;
     const s = ProjectStore.create();
     s.save(path);
     s.close();
     let midSave = 0;
-    for (const extraMs of [0, 2, 4, 6, 8, 10, 12, 14]) {
+    for (const extraMs of [0, 2, 4, 6, 8, 10]) {
       const saves = await runAndKill(path, 2, extraMs);
       expect(saves).toBeGreaterThanOrEqual(2);
       // A temp file beside the target means the kill landed inside a save.
