@@ -251,7 +251,8 @@ export type ImportResult =
 export function importProjectJson(text: string): ImportResult {
   let data: unknown;
   try {
-    data = JSON.parse(text);
+    // Editors on some systems start UTF-8 files with a byte-order mark; JSON.parse refuses it.
+    data = JSON.parse(text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
   } catch (e) {
     return { ok: false, problems: [{ path: '(document)', message: `not valid JSON: ${(e as Error).message}` }] };
   }

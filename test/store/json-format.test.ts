@@ -177,3 +177,10 @@ describe('keys and plan revisions', () => {
     ]);
   });
 });
+
+describe('text encoding', () => {
+  it('accepts a leading byte-order mark (common practice of some editors)', () => {
+    const r = importProjectJson('\uFEFF' + exportProjectJson(demoDocument()));
+    expect(r.ok && r.doc).toEqual(demoDocument());
+  });
+});
