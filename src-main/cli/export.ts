@@ -172,7 +172,7 @@ const libraryCmd: CliCommand = {
       }
       let table: string[][];
       try {
-        table = readCsv(text);
+        table = readCsv(text, { unneutralise: true });
       } catch (e) {
         if (e instanceof CsvError) throw new CliError(`--import ${imp}: ${e.message}; the project is unchanged`);
         throw e;

@@ -52,7 +52,12 @@ export class CsvError extends Error {
  * RFC 4180 reader (accepts LF or CRLF line ends and a UTF-8 byte-order mark). Throws CsvError
  * naming the line on a malformed quote. Blank lines are skipped.
  */
-export function readCsv(text: string): string[][] {
+export function readCsv(text: string, opts: { unneutralise?: boolean } = {}): string[][] {
+  const rows = readCsvRaw(text);
+  return opts.unneutralise ? rows.map((r) => r.map(unneutraliseCell)) : rows;
+}
+
+function readCsvRaw(text: string): string[][] {
   const s = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
   const rows: string[][] = [];
   let row: string[] = [];

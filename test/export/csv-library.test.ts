@@ -45,6 +45,8 @@ describe('CSV (RFC 4180)', () => {
     expect(neutraliseCell('-1.5e-3 A')).toBe('-1.5e-3 A');
     expect(neutraliseCell('Main 3V3')).toBe('Main 3V3');
     expect(unneutraliseCell(neutraliseCell('=HYPERLINK(1)'))).toBe('=HYPERLINK(1)');
+    expect(unneutraliseCell("'plain")).toBe("'plain"); // an apostrophe the writer would not add stays
+    expect(readCsv(writeCsv([['=A1', '-3 V', "'x"]]), { unneutralise: true })).toEqual([['=A1', '-3 V', "'x"]]);
     const text = writeCsv([['=1+2', '-12 V']]);
     expect(parse(text)).toEqual([["'=1+2", '-12 V']]);
   });
