@@ -1,14 +1,89 @@
-/** Export handler: every export format through one request. */
+/**
+ * Export handler: every export format through one request. Returns the bytes (base64) for
+ * the window to download, or writes them to a path the host's path policy accepts.
+ */
+import ELK from 'elkjs/lib/elk.bundled.js';
 import { z } from 'zod';
+import { exportProjectJson } from '../store/json-format.ts';
+import {
+  exportBomCsv, exportBomXlsx, exportMagneticSpecs, exportNetlists, exportReportPdf, exportTreePdf, exportTreeSvg,
+  prepareExport, ExportError,
+} from '../export/bundle.ts';
+import { writeFileAtomic } from '../store/project-store.ts';
 import { ApiFailure, handler } from './registry.ts';
 import type { Session } from './session.ts';
-import type { ExportFile } from './contract.ts';
+import type { ExportFile, ExportKind } from './contract.ts';
+import { libraryRows } from './figures.ts';
+import type { PartLibraryRow } from '../engine/model.ts';
 
 const kinds = z.enum(['bom-csv', 'bom-xlsx', 'tree-svg', 'tree-pdf', 'report', 'json', 'spice', 'magnetics']);
 
+const META: Record<ExportKind, { ext: string; mime: string; suffix: string }> = {
+  'bom-csv': { ext: '.csv', mime: 'text/csv', suffix: '-bom' },
+  'bom-xlsx': { ext: '.xlsx', mime: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet', suffix: '-bom' },
+  'tree-svg': { ext: '.svg', mime: 'image/svg+xml', suffix: '-tree' },
+  'tree-pdf': { ext: '.pdf', mime: 'application/pdf', suffix: '-tree' },
+  report: { ext: '.pdf', mime: 'application/pdf', suffix: '-report' },
+  json: { ext: '.json', mime: 'application/json', suffix: '' },
+  spice: { ext: '.cir', mime: 'text/plain', suffix: '-netlists' },
+  magnetics: { ext: '.md', mime: 'text/markdown', suffix: '-magnetics' },
+};
+
+let elk: InstanceType<typeof ELK> | null = null;
+
+function baseName(s: Session): string {
+  return (s.requirements.meta.name || 'project').replace(/[^\w.-]+/g, '-').replace(/^-+|-+$/g, '') || 'project';
+}
+
+async function render(s: Session, kind: ExportKind, stageId: string | undefined): Promise<Uint8Array> {
+  const enc = (t: string) => new TextEncoder().encode(t);
+  if (kind === 'json') {
+    const plan = s.planResult ? { revision: s.planResult.revision, computedAt: new Date().toISOString(), result: s.planResult } : undefined;
+    return enc(exportProjectJson({ requirements: s.requirements, library: (Array.isArray(s.library) ? s.library : []) as PartLibraryRow[], ...(plan ? { plan } : {}) }));
+  }
+  const r = s.planResult;
+  if (!r) throw new ApiFailure(`${kind}: there is no plan to export yet (press Plan first)`, 'kind');
+  const selected = r.alternatives.find((p) => p.id === s.selectedId) ?? r.best;
+  elk ??= new ELK();
+  let b;
+  try {
+    b = await prepareExport({ req: s.requirements, result: { ...r, best: selected }, library: libraryRows(s), elk, replanned: false });
+  } catch (e) {
+    if (e instanceof ExportError) throw new ApiFailure(`${kind}: ${e.message}`, 'kind');
+    throw e;
+  }
+  switch (kind) {
+    case 'bom-csv': return enc(exportBomCsv(b));
+    case 'bom-xlsx': return exportBomXlsx(b);
+    case 'tree-svg': return enc(exportTreeSvg(b));
+    case 'tree-pdf': return exportTreePdf(b);
+    case 'report': return exportReportPdf(b);
+    case 'spice': {
+      const n = exportNetlists(b);
+      const files = n.files.filter((f) => !stageId || f.stageId === stageId);
+      if (!files.length) throw new ApiFailure(`spice: no switching stage to write a netlist for${n.skipped.length ? ` (${n.skipped.join('; ')})` : ''}`, 'kind');
+      return enc(files.map((f) => `* ---- ${f.file} ----\n${f.text}`).join('\n'));
+    }
+    case 'magnetics': {
+      const specs = exportMagneticSpecs(b).filter((m) => !stageId || m.stageId === stageId);
+      if (!specs.length) throw new ApiFailure('magnetics: this tree has no custom coupled-winding magnetic', 'kind');
+      return enc(specs.map((m) => m.text).join('\n\n---\n\n'));
+    }
+  }
+}
+
 export const exportHandlers = {
-  'export.file': handler('export.file', z.object({ kind: kinds, path: z.string().max(1024).optional(), stageId: z.string().max(200).optional() }).strict(),
-    async (_s: Session, a): Promise<ExportFile> => {
-      throw new ApiFailure(`${a.kind}: this export is not part of this build yet`, 'kind');
+  'export.file': handler('export.file', z.object({ kind: kinds, path: z.string().min(1).max(1024).optional(), stageId: z.string().max(200).optional() }).strict(),
+    async (s: Session, a): Promise<ExportFile> => {
+      const meta = META[a.kind];
+      const target = a.path !== undefined ? s.pathPolicy(a.path, 'export', meta.ext) : null;
+      const bytes = await render(s, a.kind, a.stageId);
+      if (target) writeFileAtomic(target, bytes);
+      return {
+        fileName: `${baseName(s)}${meta.suffix}${meta.ext}`,
+        mime: meta.mime,
+        base64: target ? '' : Buffer.from(bytes).toString('base64'),
+        writtenTo: target,
+      };
     }),
 };
