@@ -480,32 +480,36 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
   };
   let chosen: { np: number; ns: number[]; err: number[] } | null = null;
   const NP_MAX = 40;
-  for (const share of [0.4, 0.7, 1.0]) {
-    for (let np = 3; np <= NP_MAX && !chosen; np++) {
-      const ns = n0.map((n, i) => Math.max(1, Math.round(n * np)) * Math.sign(secs[i]!.voltage));
-      // Refine each secondary by ±1 turn using the full model.
-      let err = errorsFor(np, ns);
-      for (let i = 0; i < ns.length; i++) {
-        for (const step of [-1, 1]) {
-          const trial = [...ns];
-          const mag = Math.abs(trial[i]!) + step;
-          if (mag < 1) continue;
-          trial[i] = mag * Math.sign(secs[i]!.voltage);
-          const e2 = errorsFor(np, trial);
-          if (Math.abs(e2[i]!) < Math.abs(err[i]!)) { ns[i] = trial[i]!; err = e2; }
-        }
+  const tried: { np: number; ns: number[]; err: number[]; score: number }[] = [];
+  for (let np = 3; np <= NP_MAX; np++) {
+    const ns = n0.map((n, i) => Math.max(1, Math.round(n * np)) * Math.sign(secs[i]!.voltage));
+    // Refine each secondary by ±1 turn using the full model.
+    let err = errorsFor(np, ns);
+    for (let i = 0; i < ns.length; i++) {
+      for (const step of [-1, 1]) {
+        const trial = [...ns];
+        const mag = Math.abs(trial[i]!) + step;
+        if (mag < 1) continue;
+        trial[i] = mag * Math.sign(secs[i]!.voltage);
+        const e2 = errorsFor(np, trial);
+        if (Math.abs(e2[i]!) < Math.abs(err[i]!)) { ns[i] = trial[i]!; err = e2; }
       }
-      if (err.every((e, i) => Math.abs(e) <= share * (secs[i]!.tolerance as number))) chosen = { np, ns, err };
     }
-    if (chosen) break;
+    const score = Math.max(...err.map((e, i) => Math.abs(e) / (secs[i]!.tolerance as number)));
+    tried.push({ np, ns, err, score });
+    if (score <= 0.4) break;
+  }
+  for (const share of [0.4, 0.7, 1.0]) {
+    const hit = tried.find((t) => t.score <= share);
+    if (hit) { chosen = hit; break; }
   }
   if (!chosen) {
-    const err = errorsFor(NP_MAX, n0.map((n, i) => Math.round(n * NP_MAX) * Math.sign(secs[i]!.voltage)));
+    const best = tried.reduce((a, b) => (b.score < a.score ? b : a));
     return {
       ok: false,
-      flags: secs.map((o, i) => flag('turns-no-fit', 'error',
-        `no integer turns up to Np = ${NP_MAX} put ${o.nodeId} (${r3(o.voltage)} V ±${r3(o.tolerance * 100)} %) within tolerance at mid load; best error ${r3(err[i]! * 100)} %`,
-        { nodeId: o.nodeId, error: r3(err[i]!) })),
+      flags: secs.flatMap((o, i) => Math.abs(best.err[i]!) <= (o.tolerance as number) ? [] : [flag('turns-no-fit', 'error',
+        `no integer turns up to Np = ${NP_MAX} put ${o.nodeId} (${r3(o.voltage)} V ±${r3(o.tolerance * 100)} %) within tolerance at mid load; best error ${r3(best.err[i]! * 100)} % (Np = ${best.np}, Ns = ${best.ns[i]})`,
+        { nodeId: o.nodeId, error: r3(best.err[i]!), np: best.np, ns: best.ns[i]! })]),
     };
   }
   const design = template(chosen.np, chosen.ns);
