@@ -9,6 +9,8 @@ import { rollupPlan, RollupError, VIN_CASES, type Rollup } from '../../src-main/
 import type { Requirements } from '../../src-main/engine/model.ts';
 import type { PlanResult } from '../../src-main/engine/plan-types.ts';
 import type { LdoDesign } from '../../src-main/engine/stages/index.ts';
+import { demoDocument } from '../../src-main/store/demo.ts';
+import { demoHandPlan } from '../export/demo-plan.ts';
 
 /**
  * Energy books rebuilt from the pieces: source power (Σ pin of stages fed by a source) must
@@ -158,5 +160,54 @@ describe('roll-up refusals', () => {
     const bad = structuredClone(pr.best!);
     bad.stages[0]!.inputNodeId = 'nowhere';
     expect(() => rollupPlan(req, pr.rails, bad)).toThrow(/nowhere/);
+  });
+});
+
+describe('roll-up of the demonstration project (hand-made plan, see demo-plan.ts)', () => {
+  const req = demoDocument().requirements;
+  const pr = demoHandPlan(req);
+  const r = rollupPlan(req, pr.rails, pr.best!);
+  const measure = r.modes.find((m) => m.modeId === 'measure')!;
+  const c = measure.cases.nom;
+  const f = (id: string) => c.stages.find((s) => s.stageId === id)!;
+
+  it('agrees with hand arithmetic for the Measure mode at 24 V', () => {
+    // Loads at their nominal voltages, Measure mode (demo requirements):
+    //   main 12 V·0.080 = 0.960   main 5 V·0.060 = 0.300   main 3.3 V·0.085 = 0.2805
+    //   main 1.8 V·0.030 = 0.054  main 1.2 V·0.120 = 0.144
+    //   front end 12 V·0.025 = 0.300, 12 V·0.020 = 0.240, 5 V·0.015 = 0.075,
+    //             4.096 V·0.003 = 0.012288, 3.3 V·0.014 = 0.0462
+    //   fieldbus 5 V·0.060 = 0.300, 3.3 V·0.024 = 0.0792
+    //   Σ = 2.791188 W.
+    // Each delivered voltage may sit anywhere in its window; allowing every rail its full
+    // tolerance gives a band of Σ tol·V·I = 0.0960 + 0.0150 + 0.0140 + 0.0027 + 0.00432
+    //   + 0.0150 + 0.0120 + 0.0015 + 0.000123 + 0.00231 + 0.0150 + 0.00396 = 0.18191 W;
+    // the 12 V relay winding may fall below its tolerance (its window is outside ±10 %), so
+    // the band is checked on the low side with that rail's own delivered voltage.
+    const v12 = Math.abs(c.nodes[pr.rails.find((x) => x.name === 'Main 12V')!.id]!.v);
+    expect(c.loadPower).toBeLessThan(2.791188 + 0.18191);
+    expect(c.loadPower).toBeGreaterThan(2.791188 - 0.18191 - Math.max(0, (12 * 0.9 - v12) * 0.08));
+    // The 3.3 V buck carries the 3.3 V loads (0.085 A) plus both LDOs' inputs
+    // (0.030 + Iq and 0.120 + Iq): 0.235 A + 2·Iq.
+    const iqs = (['ldo-1v8', 'ldo-1v2'] as const).map((id) => (pr.best!.stages.find((s) => s.id === id)!.design as LdoDesign).iq);
+    expect(f('buck-3v3').outputs[0]!.i).toBeCloseTo(0.085 + 0.03 + 0.12 + iqs[0]! + iqs[1]!, 12);
+    // LDO 1V2 from the 3.3 V rail: P = (Vin − 1.2)·0.12 + Vin·Iq (common practice).
+    const l12 = f('ldo-1v2');
+    expect(l12.loss).toBeCloseTo((l12.vin - 1.2) * 0.12 + l12.vin * iqs[1]!, 6);
+    // Source: current = power / 24 V; efficiency = loads / source.
+    expect(c.sources['dc-in']!.i).toBeCloseTo(c.sourcePower / 24, 12);
+    expect(c.efficiency).toBeCloseTo(c.loadPower / c.sourcePower, 12);
+    // Shares 0.80 / 0.15 / 0.05 weight the modes.
+    const [m, t, s] = (['measure', 'transmit', 'standby'] as const).map((id) => r.modes.find((x) => x.modeId === id)!.cases.nom);
+    expect(r.weighted.loadPower).toBeCloseTo(0.8 * m!.loadPower + 0.15 * t!.loadPower + 0.05 * s!.loadPower, 12);
+  });
+
+  it('conserves energy and reports the windows that miss honestly', () => {
+    expect(worstImbalance(req, pr, r)).toBeLessThan(1e-9);
+    const ref = r.windows.find((w) => w.name.includes('4V096'))!;
+    // 4.096 V ±1 %: allowed 4.05504 … 4.13696 V (hand arithmetic); a generic LDO's ±1.5 % cannot hold it.
+    expect(ref.allowedMin).toBeCloseTo(4.05504, 9);
+    expect(ref.allowedMax).toBeCloseTo(4.13696, 9);
+    expect(ref.inside).toBe(false);
   });
 });
