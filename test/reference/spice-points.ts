@@ -18,6 +18,8 @@ export interface SpicePoint {
   name: string;
   spec: StageSpec;
   vin: number;
+  /** Load currents of the simulated point (default: every output at its largest current). */
+  iout?: number[];
 }
 
 const spec = (kind: 'buck' | 'cwbuck', vin: [number, number, number], outputs: OutputSpec[], fsw: number, coupling?: number): StageSpec => ({
@@ -32,6 +34,8 @@ export const SPICE_POINTS: SpicePoint[] = [
   { name: 'cw4', vin: 12, spec: spec('cwbuck', [11, 12, 13], [out('p5v8', 5.8, 0.3, 0.03, 0.05), out('n12', -12, 0.06)], 400e3, 0.995) },
   { name: 'cw5', vin: 36, spec: spec('cwbuck', [30, 36, 42], [out('p12', 12, 0.3, 0.03, 0.1), out('s24', 24, 0.1)], 350e3, 0.985) },
   { name: 'cw6', vin: 20, spec: spec('cwbuck', [16, 20, 24], [out('p5', 5, 0.8, 0.03, 0.05), out('s12', 12, 0.15), out('s3v3', 3.3, 0.2), out('n8', -8, 0.1)], 400e3, 0.99) },
+  // Cross-regulation: Vin min, primary at full load, secondaries at their lightest (with preload).
+  { name: 'cw7', vin: 18, iout: [0.5, 0.02, 0.01], spec: spec('cwbuck', [18, 24, 32], [out('p3v3', 3.3, 0.5, 0.03, 0.05), out('s5', 5, 0.2), out('n5', -5, 0.1)], 500e3, 0.98) },
   { name: 'b1', vin: 12, spec: spec('buck', [10, 12, 14], [out('r3v3', 3.3, 2, 0.03, 0.04)], 500e3) },
   { name: 'b2', vin: 48, spec: spec('buck', [40, 48, 56], [out('r12', 12, 1, 0.03, 0.1)], 300e3) },
 ];
@@ -55,7 +59,7 @@ export function prepare(p: SpicePoint): Prepared {
   const r = designStage(p.spec);
   if (!r.ok) throw new Error(`${p.name}: design failed: ${r.flags.map((f) => f.text).join('; ')}`);
   const design = r.design;
-  const op: OperatingPoint = { vin: p.vin as Volts, iout: p.spec.outputs.map((o) => o.currentMax), ambient: 25 as Celsius };
+  const op: OperatingPoint = { vin: p.vin as Volts, iout: (p.iout ?? p.spec.outputs.map((o) => o.currentMax)) as Amps[], ambient: 25 as Celsius };
   const ev = evaluateStage(design, op);
   const netlist = design.kind === 'buck' ? buckNetlist(design, op) : design.kind === 'cwbuck' ? coupledBuckNetlist(design, op) : '';
   return { point: p, design, op, netlist, nominal: ev.outputs.map((o) => o.voltage as number) };

@@ -446,7 +446,7 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
         rectifierReverseVoltage: (n * (spec.vinMax - vpri) + Math.abs(o.voltage)) as Volts,
         cout: chooseCeramic(`secondary ${i + 1} output`, need, Math.abs(o.voltage) * (1 + o.tolerance) * 1.1, spec.ceramicDerating),
         preload,
-        thetaJA: GENERIC_DEFAULTS.switchThetaJA * 1.5,
+        thetaJA: GENERIC_DEFAULTS.rectifierThetaJA,
       };
     }),
     // Primary capacitor: the on-time surplus Σn·Isec·D/fsw plus ΔIm/(8·fsw), within half the

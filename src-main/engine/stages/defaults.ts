@@ -66,6 +66,8 @@ export const GENERIC_DEFAULTS = {
   /** θJA of a switch or controller package on a small board (K/W). */
   switchThetaJA: 60,
   controllerThetaJA: 60,
+  /** θJA of a small rectifier package (K/W). */
+  rectifierThetaJA: 90,
   /** Hot-spot rise of a small power inductor (K/W). */
   inductorThetaJA: 40,
   /** Inductor DCR ≈ dcrCoeff·√(L/1 µH)/√(Isat/1 A) Ω: a rough fit to shielded power inductors. */
