@@ -36,6 +36,11 @@ export function fmtPct(r: number): string {
   return Number.isFinite(r) ? `${(r * 100).toFixed(1)} %` : '— %';
 }
 
+/** A tolerance ratio as a percentage without needless zeros: 0.015 → "1.5", 0.05 → "5". */
+export function pctText(r: number): string {
+  return String(Number.parseFloat((r * 100).toPrecision(3)));
+}
+
 /** Readable names for the stage kinds (our own words; trade terms only). */
 export const STAGE_KIND_LABEL: Record<StageKind, string> = {
   buck: 'synchronous buck',
@@ -149,13 +154,14 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
   for (const r of rails) {
     const fig = f?.nodes[r.id];
     const lines = fig
-      ? [`${fmtQty(fig.v, 'V')} ±${(r.tolerance * 100).toFixed(r.tolerance * 100 < 1 ? 1 : 0)} %`, `${fmtQty(fig.i, 'A')} · ${fmtQty(fig.p, 'W')}`]
-      : [`${fmtQty(r.voltage, 'V')} ±${(r.tolerance * 100).toFixed(0)} %`];
+      // Four significant digits for rail voltages: reference rails (4.096 V) need them.
+      ? [`${fmtQty(fig.v, 'V', 4)} ±${pctText(r.tolerance)} %`, `${fmtQty(fig.i, 'A')} · ${fmtQty(fig.p, 'W')}`]
+      : [`${fmtQty(r.voltage, 'V', 4)} ±${pctText(r.tolerance)} %`];
     nodes.push({ id: r.id, kind: 'rail', title: r.name, lines, groupId: r.domainId });
   }
   for (const n of plan.internalNodes) {
     const fig = f?.nodes[n.id];
-    const lines = [`${n.kind === 'tap' ? 'winding tap' : 'bus'} ${fmtQty(fig?.v ?? n.voltage, 'V')}`];
+    const lines = [`${n.kind === 'tap' ? 'winding tap' : 'bus'} ${fmtQty(fig?.v ?? n.voltage, 'V', 4)}`];
     if (fig) lines.push(`${fmtQty(fig.i, 'A')} · ${fmtQty(fig.p, 'W')}`);
     nodes.push({ id: n.id, kind: 'internal', title: n.name, lines, groupId: n.domainId });
   }

@@ -2,7 +2,7 @@
 // every rail present, each domain box contains its nodes, edges end on their nodes.
 import { describe, expect, it } from 'vitest';
 import ELK from 'elkjs/lib/elk.bundled.js';
-import { buildTreeView, fmtQty, layoutTree, entryPoint, type Box, type ElkLike } from '../../src-main/engine/layout.ts';
+import { buildTreeView, fmtQty, pctText, layoutTree, entryPoint, type Box, type ElkLike } from '../../src-main/engine/layout.ts';
 import { handPlan, handRequirements } from '../export/hand-plan.ts';
 import type { Requirements } from '../../src-main/engine/model.ts';
 import { DEFAULT_LIMITS, DEFAULT_PREFERENCES } from '../../src-main/engine/model.ts';
@@ -110,5 +110,9 @@ describe('layout adapter (real elkjs output)', () => {
     expect(fmtQty(4.7e-6, 'F')).toBe('4.7 µF');
     expect(fmtQty(0.9996, 'W')).toBe('1 W');
     expect(fmtQty(400e3, 'Hz')).toBe('400 kHz');
+    expect(fmtQty(4.096, 'V', 4)).toBe('4.096 V');
+    expect(pctText(0.015)).toBe('1.5');
+    expect(pctText(0.05)).toBe('5');
+    expect(pctText(0.001)).toBe('0.1');
   });
 });
