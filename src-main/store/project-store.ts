@@ -179,6 +179,13 @@ export class ProjectStore {
         const first = String(check).split('\n')[0]!.slice(0, 200);
         throw new OpenError('corrupt', `${shownAs} is damaged: the database integrity check failed (${first})`, shownAs);
       }
+      // Our migrations create no triggers or views: one found here was planted, and it would
+      // run (or shadow data) on the next edit, migration or save. Refuse before any write.
+      const planted = db.prepare("SELECT type, name FROM sqlite_master WHERE type IN ('trigger', 'view') ORDER BY type, name LIMIT 1")
+        .get() as { type: string; name: string } | undefined;
+      if (planted) {
+        throw new OpenError('foreign', `${shownAs} contains a ${planted.type} "${planted.name.slice(0, 80)}" that Railwright never writes: refused so that no SQL stored in the file can run`, shownAs);
+      }
       const version = userVersion(db);
       const tables = new Set((db.prepare("SELECT name FROM sqlite_master WHERE type = 'table'").all() as { name: string }[]).map((r) => r.name));
       const missing = expectedTables(version).filter((t) => !tables.has(t));
