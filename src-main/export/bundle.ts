@@ -81,7 +81,7 @@ export function exportMagneticSpecs(b: ExportBundle): Array<{ file: string; text
     const item = b.bom.items.find((i) => i.stageId === st.id && i.partClass === 'magnetic-custom');
     const ref = item?.refs[0] ?? 'T?';
     const file = item?.specRef ?? `magnetic-${st.id}.md`;
-    out.push({ file, ref, stageId: st.id, text: magneticSpecMarkdown(b.req, st, d as CoupledBuckDesign, b.rollup, ref, b.names) });
+    out.push({ file, ref, stageId: st.id, text: magneticSpecMarkdown(b.req, st, d as CoupledBuckDesign, ref, b.names).text });
   }
   return out;
 }

@@ -14,7 +14,7 @@ import { handRequirements } from './hand-plan.ts';
 import { designedHandPlan } from './hand-designs.ts';
 import { pdfPlainText } from './pdf-text.ts';
 import { tableToRows, type LibraryRow } from '../../src-main/engine/library.ts';
-import type { ElkLike } from '../../src-main/engine/layout.ts';
+import { fmtQty, type ElkLike } from '../../src-main/engine/layout.ts';
 import { readCsv } from '../../src-main/export/csv.ts';
 import {
   prepareExport, exportBomCsv, exportBomXlsx, exportTreeSvg, exportTreePdf, exportReportPdf, exportMagneticSpecs, exportNetlists,
@@ -22,7 +22,8 @@ import {
 } from '../../src-main/export/bundle.ts';
 import { REPORT_SECTIONS } from '../../src-main/export/report-pdf.ts';
 import { BOM_HEADER } from '../../src-main/export/bom-files.ts';
-import { awgDiameter } from '../../src-main/export/magnetic-spec.ts';
+import { magneticSpec } from '../../src-main/engine/magnetics.ts';
+import type { CoupledBuckDesign } from '../../src-main/engine/stages/index.ts';
 import { ngspice } from '../helpers/tools.ts';
 
 const ROOT = join(import.meta.dirname, '../..');
@@ -192,16 +193,21 @@ describe('magnetic specification sheet', () => {
     const st = b.plan.stages.find((s) => s.kind === 'cwbuck')!;
     const d = st.design as { primaryTurns: number; secondaries: Array<{ turns: number }> };
     const md = spec!.text;
-    expect(md).toContain(`| Turns ratio Np : Ns | ${[d.primaryTurns, ...d.secondaries.map((w) => w.turns)].join(' : ')}`);
-    for (const k of ['Primary inductance Lp', 'Saturation current', 'Leakage of secondary 1', 'RMS current', 'AWG', 'Isolation class basic', '60 V', 'certifies nothing', 'can kill']) expect(md).toContain(k);
+    expect(md).toContain(`| Turns Np : Ns | ${[d.primaryTurns, ...d.secondaries.map((w) => w.turns)].join(' : ')}`);
+    for (const k of ['Primary inductance Lp', 'Saturation current', 'Leakage of secondary 1', 'RMS current', 'AWG', 'Isolation class **basic**', '60 V', 'certifies nothing', 'can kill']) expect(md).toContain(k);
   });
 
-  it('uses the ASTM B258 gauge diameters', () => {
-    // ASTM B258 table (from memory): AWG 36 = 0.127 mm, AWG 24 = 0.511 mm, AWG 30 = 0.255 mm, AWG 18 = 1.024 mm.
-    expect(awgDiameter(36) * 1e3).toBeCloseTo(0.127, 3);
-    expect(awgDiameter(24) * 1e3).toBeCloseTo(0.511, 2);
-    expect(awgDiameter(30) * 1e3).toBeCloseTo(0.255, 2);
-    expect(awgDiameter(18) * 1e3).toBeCloseTo(1.024, 2);
+  it('carries the stage engine\'s winding currents and wire for every winding', () => {
+    const [spec] = exportMagneticSpecs(b);
+    const st = b.plan.stages.find((s) => s.kind === 'cwbuck')!;
+    const m = magneticSpec(st.design as CoupledBuckDesign);
+    expect(m.windings).toHaveLength(4);
+    for (const w of m.windings) {
+      const row = spec!.text.split('\n').find((l) => l.startsWith(`| ${w.name} (`))!;
+      expect(row, w.name).toBeDefined();
+      expect(row).toContain(`AWG ${w.wire.awg}`);
+      expect(row).toContain(fmtQty(w.rmsCurrent, 'A'));
+    }
   });
 });
 
