@@ -5,7 +5,7 @@
  */
 import ELK from 'elkjs/lib/elk.bundled.js';
 import { groupRails } from '../engine/rails.ts';
-import { buildTreeView, entryPoint, layoutTree, type TreeFigures } from '../engine/layout.ts';
+import { buildTreeView, entryPoint, layoutTree, type LaidOutTree, type TreeFigures, type TreeView } from '../engine/layout.ts';
 import type { Plan } from '../engine/plan-types.ts';
 import type { LayoutView, PlanView, Snapshot, BomView } from './contract.ts';
 import { projectProblems } from './requirements.ts';
@@ -18,10 +18,39 @@ function elkInstance(): InstanceType<typeof ELK> {
   return elk;
 }
 
+/**
+ * The last layout, keyed by the tree's structure. An edit that only changes figures (a
+ * load current) keeps the positions and refreshes the text, so the edit → roll-up path
+ * does not wait for ELK; any change of nodes, titles, edges or groups lays out again.
+ */
+let cache: { key: string; tree: LaidOutTree } | null = null;
+
+function structureKey(v: TreeView): string {
+  return JSON.stringify([v.nodes.map((n) => [n.id, n.kind, n.title, n.groupId, n.lines.length]), v.edges.map((e) => [e.id, e.crossesBarrier, !!e.label]), v.groups.map((g) => [g.id, g.title])]);
+}
+
+async function laidOut(view: TreeView): Promise<LaidOutTree> {
+  const key = structureKey(view);
+  if (cache && cache.key === key) {
+    const byNode = new Map(view.nodes.map((n) => [n.id, n]));
+    const byEdge = new Map(view.edges.map((e) => [e.id, e]));
+    return {
+      ...cache.tree,
+      title: view.title,
+      subtitle: view.subtitle,
+      nodes: cache.tree.nodes.map((n) => ({ ...n, lines: byNode.get(n.id)?.lines ?? n.lines })),
+      edges: cache.tree.edges.map((e) => ({ ...e, label: byEdge.get(e.id)?.label ?? e.label })),
+    };
+  }
+  const tree = await layoutTree(view, elkInstance());
+  cache = { key, tree };
+  return tree;
+}
+
 export async function computeLayout(s: Session, plan: Plan, figures: TreeFigures | undefined): Promise<LayoutView> {
   const rails = groupRails(s.requirements);
   const view = buildTreeView(s.requirements, rails, plan, figures);
-  const t = await layoutTree(view, elkInstance());
+  const t = await laidOut(view);
   const nodes = t.nodes.map((n) => ({
     id: n.id, kind: n.kind, label: n.title, sub: n.lines, domainId: n.groupId,
     x: n.x, y: n.y, width: n.width, height: n.height,
