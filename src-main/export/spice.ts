@@ -10,9 +10,9 @@
  * transitions): switching overlap, output capacitance, gate drive, core and quiescent
  * losses, input capacitor.
  *
- * Measurements (`.meas tran`, averages over the last cycles): v_out<i> for output i (signed,
- * against its own return) and i_in, the average current drawn from the input source
- * (negative by the SPICE sign convention).
+ * Measurements (`.meas tran`, over the last cycles): v_out<i>, the average of output i
+ * (signed, against its own return), vpp_out<i> its peak-to-peak ripple, and i_in, the
+ * average current drawn from the input source (negative by the SPICE sign convention).
  */
 import { buckPoint, type BuckDesign } from '../engine/stages/buck.ts';
 import { coupledPoint, type CoupledBuckDesign } from '../engine/stages/cwbuck.ts';
@@ -80,6 +80,7 @@ function analysis(fsw: number, outs: string[], opts: NetlistOptions): string[] {
     '.options method=gear reltol=1e-4',
     `.tran ${f(maxStep)} ${f(stop)} ${f(from - T)} ${f(maxStep)} uic`,
     ...outs.map((node, i) => `.meas tran v_out${i} AVG ${node} FROM=${f(from)} TO=${f(stop)}`),
+    ...outs.map((node, i) => `.meas tran vpp_out${i} PP ${node} FROM=${f(from)} TO=${f(stop)}`),
     `.meas tran i_in AVG i(VIN) FROM=${f(from)} TO=${f(stop)}`,
     '.end',
   ];

@@ -43,6 +43,14 @@ describe.skipIf(tool.skip)('stage engine against ngspice', () => {
       const r = rows.find((x) => x.name === p.name)!;
       expect(Math.abs(r.etaEngine - r.etaSim) * 100).toBeLessThan(3); // ngspice simulation, DESIGN.md §7 bar
     });
+    it(`${p.name}: ripple estimates are conservative: 0.9…1.6 × the simulated peak-to-peak`, () => {
+      const r = rows.find((x) => x.name === p.name)!;
+      for (const o of r.outputs) {
+        // ngspice simulation; the engine's ripple is a planning estimate that should not under-read
+        expect(o.rippleEngine / o.rippleSim, `${p.name} ${o.nodeId}`).toBeGreaterThan(0.9);
+        expect(o.rippleEngine / o.rippleSim, `${p.name} ${o.nodeId}`).toBeLessThan(1.6);
+      }
+    });
     it(`${p.name}: the open-loop primary lands within 2 % of the setpoint the duty was computed for`, () => {
       const r = rows.find((x) => x.name === p.name)!;
       expect(Math.abs(r.outputs[0]!.sim - r.primarySetpoint) / r.primarySetpoint).toBeLessThan(0.02); // ngspice simulation

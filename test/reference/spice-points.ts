@@ -70,7 +70,7 @@ export interface ComparisonRow {
   vin: number;
   duty: number;
   coupling: number | null;
-  outputs: { nodeId: string; engine: number; sim: number; errorPct: number }[];
+  outputs: { nodeId: string; engine: number; sim: number; errorPct: number; rippleEngine: number; rippleSim: number }[];
   etaEngine: number;
   etaSim: number;
   /** Open loop: the engine's primary setpoint (which set the duty) against the simulated primary. */
@@ -95,7 +95,10 @@ export function compare(x: Prepared, sim: SpiceResult): ComparisonRow {
     coupling: design.kind === 'cwbuck' ? design.secondaries[0]!.coupling : null,
     outputs: design.outputs.map((o, k) => {
       const engine = ev.outputs[k]!.voltage as number;
-      return { nodeId: o.nodeId, engine, sim: vsim[k]!, errorPct: ((engine - vsim[k]!) / Math.abs(vsim[k]!)) * 100 };
+      return {
+        nodeId: o.nodeId, engine, sim: vsim[k]!, errorPct: ((engine - vsim[k]!) / Math.abs(vsim[k]!)) * 100,
+        rippleEngine: ev.outputs[k]!.ripplePP as number, rippleSim: sim.meas[`vpp_out${k}`] ?? Number.NaN,
+      };
     }),
     etaEngine,
     etaSim: poutSim / pinSim,
@@ -108,12 +111,12 @@ export function formatTable(rows: ComparisonRow[]): string {
     'Engine outputs evaluated with the primary at its simulated voltage and the loads at their simulated currents;',
     'the last column compares the open-loop primary with the setpoint the engine computed the duty for.',
     '',
-    '| point | Vin (V) | D | k | output | engine (V) | ngspice (V) | error % | η engine | η ngspice | primary setpoint → sim |',
-    '|---|---|---|---|---|---|---|---|---|---|---|',
+    '| point | Vin (V) | D | k | output | engine (V) | ngspice (V) | error % | ripple engine / ngspice (mV p-p) | η engine | η ngspice | primary setpoint → sim |',
+    '|---|---|---|---|---|---|---|---|---|---|---|---|',
   ];
   for (const r of rows) {
     r.outputs.forEach((o, i) => {
-      lines.push(`| ${i === 0 ? r.name : ''} | ${i === 0 ? r.vin : ''} | ${i === 0 ? r.duty.toFixed(3) : ''} | ${i === 0 ? (r.coupling ?? '–') : ''} | ${o.nodeId} | ${o.engine.toFixed(3)} | ${o.sim.toFixed(3)} | ${o.errorPct.toFixed(2)} | ${i === 0 ? (r.etaEngine * 100).toFixed(1) + ' %' : ''} | ${i === 0 ? (r.etaSim * 100).toFixed(1) + ' %' : ''} | ${i === 0 ? `${r.primarySetpoint.toFixed(3)} → ${o.sim.toFixed(3)} V` : ''} |`);
+      lines.push(`| ${i === 0 ? r.name : ''} | ${i === 0 ? r.vin : ''} | ${i === 0 ? r.duty.toFixed(3) : ''} | ${i === 0 ? (r.coupling ?? '–') : ''} | ${o.nodeId} | ${o.engine.toFixed(3)} | ${o.sim.toFixed(3)} | ${o.errorPct.toFixed(2)} | ${(o.rippleEngine * 1e3).toFixed(1)} / ${(o.rippleSim * 1e3).toFixed(1)} | ${i === 0 ? (r.etaEngine * 100).toFixed(1) + ' %' : ''} | ${i === 0 ? (r.etaSim * 100).toFixed(1) + ' %' : ''} | ${i === 0 ? `${r.primarySetpoint.toFixed(3)} → ${o.sim.toFixed(3)} V` : ''} |`);
     });
   }
   return lines.join('\n');

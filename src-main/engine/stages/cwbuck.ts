@@ -116,6 +116,8 @@ export interface SecondaryPoint {
   tau: number;
   /** Average rectifier loss. */
   pRect: number;
+  /** Charge the output capacitor gives up each period while the winding delivers less than the load. */
+  qdef: number;
 }
 
 function dt(d: CoupledBuckDesign): number {
@@ -139,7 +141,7 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     const ipre = w.preload ? Math.max(0, vsec) / w.preload.resistance : 0;
     const isec = iload + ipre;
     if (!(isec > 0)) {
-      sp = { n, llk, isec: 0, iload, ipre: 0, vsec: n * voff0, ipk: 0, irms: 0, iinf: 0, beta: 0, tau: 0, pRect: 0 };
+      sp = { n, llk, isec: 0, iload, ipre: 0, vsec: n * voff0, ipk: 0, irms: 0, iinf: 0, beta: 0, tau: 0, pRect: 0, qdef: 0 };
       if (Math.abs(sp.vsec - vsec) < 1e-12) break;
       vsec = sp.vsec;
       continue;
@@ -173,7 +175,7 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     const iinf = alpha;
     const settled = !w.preload || Math.abs(vsec - vPrev) < 1e-10 * Math.max(1, Math.abs(vsec));
     if (!full) {
-      sp = { n, llk, isec, iload, ipre, vsec, ipk: iend, irms: 0, iinf, beta, tau, pRect: 0 };
+      sp = { n, llk, isec, iload, ipre, vsec, ipk: iend, irms: 0, iinf, beta, tau, pRect: 0, qdef: 0 };
       if (settled) break;
       continue;
     }
@@ -181,18 +183,23 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     const N = 32;
     let s2 = 0;
     let pr = 0;
+    let short = 0;
     for (let m = 0; m < N; m++) {
       const t = ((m + 0.5) / N) * toff;
       const i = Math.max(0, alpha * -Math.expm1(-t / tau) + beta * t);
       s2 += i * i;
       pr += vf(i) * i;
+      short += Math.max(0, isec - i);
     }
     const ms = (s2 / N) * (toff / T);
     const vrev = Math.max(n * von + vsec + v0, 1e-3);
     const tdec = (iend * llk) / vrev;
     const irms = Math.sqrt(ms + (iend * iend * tdec) / (3 * T));
     const pRect = (pr / N) * (toff / T) + vf(iend / 2) * (iend / 2) * (tdec / T);
-    sp = { n, llk, isec, iload, ipre, vsec, ipk: iend, irms, iinf, beta, tau, pRect };
+    // The capacitor carries the load through the on-time and while the rising winding current
+    // is still below it; the leakage's decay charge at turn-on gives some back.
+    const qdef = Math.max(0, isec * (T - toff) - qdec + (short / N) * toff);
+    sp = { n, llk, isec, iload, ipre, vsec, ipk: iend, irms, iinf, beta, tau, pRect, qdef };
     if (settled) break;
   }
   return sp!;
@@ -209,7 +216,7 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
   let duty = vpri / vin;
   let sec: SecondaryPoint[] = d.secondaries.map((w) => ({
     n: Math.abs(w.turns) / d.primaryTurns, llk: 0, isec: 0, iload: 0, ipre: 0,
-    vsec: (Math.abs(w.turns) / d.primaryTurns) * vpri - 0.4, ipk: 0, irms: 0, iinf: 0, beta: 0, tau: 0, pRect: 0,
+    vsec: (Math.abs(w.turns) / d.primaryTurns) * vpri - 0.4, ipk: 0, irms: 0, iinf: 0, beta: 0, tau: 0, pRect: 0, qdef: 0,
   }));
   let im = ipri, dim = 0, iend = 0, voff = vpri, von = vin - vpri, toff = (1 - duty) / d.fsw;
   const MAX_IT = 12;
@@ -276,6 +283,34 @@ export function primaryMeanSquares(p: CoupledPoint): { msOn: number; msOff: numb
   return { msOn, msOff: s2 / N };
 }
 
+/**
+ * Peak-to-peak ripple of the primary output: the charge its capacitor gives up while the
+ * primary-winding current is below the load (sampled over the on- and off-time), plus the
+ * ESR step over the winding current's swing.
+ */
+export function primaryRipple(p: CoupledPoint, ipri: number, cap: CapacitorChoice, fsw: number): number {
+  const N = 32;
+  const ton = p.duty / fsw;
+  const toff = p.toff;
+  let short = 0;
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (let m = 0; m < N; m++) {
+    const i = p.impk - p.dim + (p.dim * (m + 0.5)) / N;
+    short += (Math.max(0, ipri - i) * ton) / N;
+    lo = Math.min(lo, i); hi = Math.max(hi, i);
+  }
+  const slope = p.dim / toff;
+  for (let m = 0; m < N; m++) {
+    const t = ((m + 0.5) / N) * toff;
+    let i = p.impk - slope * t;
+    for (const s of p.sec) if (s.tau > 0) i -= s.n * Math.max(0, s.iinf * -Math.expm1(-t / s.tau) + s.beta * t);
+    short += (Math.max(0, ipri - i) * toff) / N;
+    lo = Math.min(lo, i); hi = Math.max(hi, i);
+  }
+  return short / cap.effective + cap.esr * (hi - lo);
+}
+
 /** RMS and peak current of every winding (primary first) at one operating point. */
 export function windingCurrents(d: CoupledBuckDesign, vin: number, iout: number[]): { rms: number; peak: number }[] {
   const p = coupledPoint(d, vin, iout);
@@ -322,17 +357,15 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
   const lossTotal = Object.values(loss).reduce((a, b) => a + b, 0);
   const pout = p.vpri * ipri + p.sec.reduce((a, s) => a + s.vsec * s.iload, 0);
   const pin = pout + lossTotal;
-  const sumN = p.sec.reduce((a, s) => a + s.n * s.isec, 0);
-  // Primary ripple [common practice estimate]: the on-time surplus Σn·Isec·D·T charges the
-  // primary capacitor, plus the magnetizing ripple ΔIm/(8·fsw·C) and the ESR step.
-  const priPP = (sumN * p.duty) / (fsw * d.cout.effective) + p.dim / (8 * fsw * d.cout.effective)
-    + d.cout.esr * (p.dim + sumN / Math.max(1 - p.duty, 1e-3));
+  const priPP = primaryRipple(p, ipri, d.cout, fsw);
   const outputs: OutputResult[] = [
     { nodeId: d.outputs[0]!.nodeId, voltage: p.vpri as Volts, current: ipri as Amps, ripplePP: priPP as Volts },
     ...p.sec.map((s, i) => {
       const w = d.secondaries[i]!;
-      // Secondary capacitor carries the load through the on-time: ΔV = Isec·D/(fsw·C) + ESR·Ipk [common practice]
-      const pp = (s.isec * p.duty) / (fsw * w.cout.effective) + w.cout.esr * s.ipk;
+      // Secondary capacitor: DESIGN.md §4 sizes it from ΔV = Isec·D/(fsw·C) + ESR·Ipk [common
+      // practice]; here the whole shortfall charge (on-time plus the slow start of the
+      // winding current) is counted, which ngspice shows is larger.
+      const pp = s.qdef / w.cout.effective + w.cout.esr * s.ipk;
       return { nodeId: w.nodeId, voltage: (Math.sign(w.turns) * s.vsec) as Volts, current: s.iload as Amps, ripplePP: pp as Volts };
     }),
   ];
@@ -430,8 +463,9 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
       const ipk = (2 * (o.currentMax as number)) / Math.max(1 - dMaxEst, 0.05);
       const esr = GENERIC_DEFAULTS.ceramicEsr;
       const budget = Math.max((o.rippleLimit as number) * 0.5 - esr * ipk, (o.rippleLimit as number) * 0.1);
-      // Cout ≥ Isec·D/(fsw·ΔV) [common practice], at least 4.7 µF
-      const need = Math.max(((o.currentMax as number) * dMaxEst) / (fsw * budget), 4.7e-6);
+      // Cout ≥ Isec·D/(fsw·ΔV) [common practice], plus the charge lost while a ramping
+      // winding current is still below the load, Isec·(1−D)²/(4·fsw); at least 4.7 µF
+      const need = Math.max(((o.currentMax as number) * (dMaxEst + (1 - dMaxEst) ** 2 / 4)) / (fsw * budget), 4.7e-6);
       const ipre = preloadFor(o);
       const preload = (o.currentMin as number) < ipre
         ? { resistance: nearest('E24', Math.abs(o.voltage) / ipre) as Ohms, current: 0 as Amps }
@@ -513,6 +547,20 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     };
   }
   const design = template(chosen.np, chosen.ns);
+  // Second pass on the output capacitors with the full ripple model: where an output uses
+  // more than half its ripple limit at Vin min or max (full load), enlarge its bank.
+  const fullLoad = spec.outputs.map((o) => o.currentMax);
+  for (const vin of [spec.vinMin, spec.vinMax]) {
+    const ev = evaluateCoupledBuck(design, { vin, iout: fullLoad, ambient: spec.ambient });
+    ev.outputs.forEach((out, i) => {
+      const lim = spec.outputs[i]!.rippleLimit as number;
+      if (!(out.ripplePP > 0.5 * lim)) return;
+      const bank = i === 0 ? design.cout : design.secondaries[i - 1]!.cout;
+      const grown = chooseCeramic(bank.role, bank.effective * (out.ripplePP / (0.5 * lim)), bank.workingVoltage, spec.ceramicDerating);
+      if (i === 0) design.cout = grown;
+      else design.secondaries[i - 1]!.cout = grown;
+    });
+  }
   reasons.push(`turns ${chosen.np}:${chosen.ns.join(':')} (primary:secondaries, sign = winding sense) put the secondaries at ${chosen.err.map((e) => `${r3(e * 100)} %`).join(', ')} of target at mid load, Vin ${r3(spec.vinNom)} V`);
   reasons.push(`coupling k = ${k} (leakage ${design.secondaries.map((w) => `${r3(((w.turns / chosen!.np) ** 2 * Lp * (1 - k * k)) / (k * k) * 1e9)} nH`).join(', ')} seen from the secondaries)`);
   for (const w of design.secondaries) {
