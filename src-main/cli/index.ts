@@ -3,9 +3,11 @@ import type { CliCommand } from './command.ts';
 import { projectCommands } from './project.ts';
 import { exportCommands } from './export.ts';
 import { stageCommands } from './stage.ts';
+import { planCommands } from './plan.ts';
 
 export const commandModules: CliCommand[][] = [
   projectCommands,
   exportCommands,
   stageCommands,
+  planCommands,
 ];

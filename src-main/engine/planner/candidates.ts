@@ -13,6 +13,7 @@
  *   followed by an LDO when the direct winding misses the rail's window or ripple limit;
  * - a quiet rail is never fed directly by a switching output: it ends behind an LDO (common
  *   practice: switching spikes and cross-regulation residue are not in the ripple estimate);
+ *   and a quiet rail feeds nothing but other quiet rails through LDOs;
  * - each block is checked for windows in every corner, ripple, duty/on-time and Tj flags of
  *   the engine, and Tj ≤ tjMax − tjMargin.
  */
@@ -184,23 +185,79 @@ export class BlockFactory {
    * min/max current, evaluations at every mode (vin nominal) and at vin min/max with the
    * largest currents; engine error flags, ripple, Tj margin.
    */
-  private readonly stageCache = new Map<string, StageRun | { ok: false; rejections: Rejection[] }>();
+  /** Tap choice (index into TAP_VARIANTS, −1 = direct) each secondary needed on a primary. */
+  private readonly tapHints = new Map<string, number>();
+  private readonly stageCache = new Map<string, { ok: true; design: unknown; atMin: StageEvaluation; windows: OutputWindow[] } | { ok: false; rejections: Rejection[] }>();
 
+  /**
+   * Design and check one stage. The design is made for the outputs' current range rounded
+   * outward to two significant digits (max up, min down: a conservative corner set), so that
+   * the small changes of downstream load during the search reuse the same design; the losses
+   * of each mode are then evaluated at the exact currents.
+   */
   private runStage(
-    spec: StageSpec, modeCurrents: number[][], railOf: (i: number) => number | undefined, mirror: number,
+    spec0: StageSpec, modeCurrents: number[][], railOf: (i: number) => number | undefined, mirror: number,
   ): StageRun | { ok: false; rejections: Rejection[] } {
     this.evaluations++;
-    const specKey = JSON.stringify(spec) + JSON.stringify(modeCurrents);
-    const cached = this.stageCache.get(specKey);
-    if (cached) return cached;
-    const res = this.runStageUncached(spec, modeCurrents, railOf, mirror);
-    this.stageCache.set(specKey, res);
-    return res;
+    const spec: StageSpec = {
+      ...spec0,
+      outputs: spec0.outputs.map((o) => ({ ...o, currentMax: gridUp(o.currentMax) as Amps, currentMin: gridDown(o.currentMin) as Amps })),
+    };
+    const key = JSON.stringify(spec);
+    let heavy = this.stageCache.get(key);
+    if (!heavy) {
+      heavy = this.designAndCheck(spec, railOf, mirror);
+      this.stageCache.set(key, heavy);
+    }
+    if (!heavy.ok) return heavy;
+    return this.modeLosses(spec, heavy, modeCurrents, railOf);
   }
 
-  private runStageUncached(
-    spec: StageSpec, modeCurrents: number[][], railOf: (i: number) => number | undefined, mirror: number,
+  private check(spec: StageSpec, rej: Rejection[], ev: StageEvaluation, where: string, railOf: (i: number) => number | undefined): void {
+    const tjLimit = this.req.limits.tjMax - this.req.limits.tjMargin;
+    for (const f of ev.flags) {
+      if (f.severity === 'error' && !rej.some((r) => r.constraint === f.code)) {
+        rej.push({ constraint: f.code, shortfall: numberFrom(f.data), unit: '', text: `${f.text} (${where})`, rail: railOf(0) });
+      }
+    }
+    for (const p of ev.parts) {
+      if (p.tj > tjLimit + 1e-9 && !rej.some((r) => r.constraint === 'tj')) {
+        rej.push({
+          constraint: 'tj', shortfall: p.tj - tjLimit, unit: 'K', rail: railOf(0),
+          text: `${p.role} reaches Tj ${p.tj.toFixed(1)} °C ${where}, above the ${tjLimit} °C limit (tjMax − margin) by ${(p.tj - tjLimit).toFixed(1)} K`,
+        });
+      }
+    }
+    ev.outputs.forEach((o, i) => {
+      const lim = spec.outputs[i]?.rippleLimit ?? Infinity;
+      if (o.ripplePP > lim * (1 + 1e-9) && !rej.some((r) => r.constraint === 'ripple' && r.rail === railOf(i))) {
+        rej.push({
+          constraint: 'ripple', shortfall: o.ripplePP - lim, unit: 'V', rail: railOf(i),
+          text: `ripple ${(o.ripplePP * 1e3).toFixed(2)} mV p-p ${where} exceeds the ${(lim * 1e3).toFixed(2)} mV limit`,
+        });
+      }
+    });
+  }
+
+  private modeLosses(
+    spec: StageSpec, heavy: { design: unknown; atMin: StageEvaluation; windows: OutputWindow[] }, modeCurrents: number[][], railOf: (i: number) => number | undefined,
   ): StageRun | { ok: false; rejections: Rejection[] } {
+    const ambient = this.req.limits.ambient as Celsius;
+    const rej: Rejection[] = [];
+    const perMode: StageEvaluation[] = [];
+    for (let m = 0; m < modeCurrents.length; m++) {
+      const ev = this.evaluator.evaluate(heavy.design, { vin: spec.vinNom, iout: modeCurrents[m]! as Amps[], ambient });
+      perMode.push(ev);
+      this.check(spec, rej, ev, `in mode ${this.req.modes[m]?.name ?? m} at Vin nominal`, railOf);
+    }
+    if (rej.length) return { ok: false, rejections: rej };
+    return { ok: true, design: heavy.design, perMode, atMin: heavy.atMin, windows: heavy.windows, worstRipple: [] };
+  }
+
+  /** The expensive part: design, the two full-load corners, the windows. */
+  private designAndCheck(
+    spec: StageSpec, railOf: (i: number) => number | undefined, mirror: number,
+  ): { ok: true; design: unknown; atMin: StageEvaluation; windows: OutputWindow[] } | { ok: false; rejections: Rejection[] } {
     const d = this.evaluator.design(spec);
     if (!d.ok) {
       return {
@@ -211,43 +268,13 @@ export class BlockFactory {
       };
     }
     const rej: Rejection[] = [];
-    const tjLimit = this.req.limits.tjMax - this.req.limits.tjMargin;
     const ambient = this.req.limits.ambient as Celsius;
-    const nOut = spec.outputs.length;
     const maxI = spec.outputs.map((o) => o.currentMax);
-    const check = (ev: StageEvaluation, where: string) => {
-      for (const f of ev.flags) {
-        if (f.severity === 'error' && !rej.some((r) => r.constraint === f.code)) {
-          rej.push({ constraint: f.code, shortfall: numberFrom(f.data), unit: '', text: `${f.text} (${where})`, rail: railOf(0) });
-        }
-      }
-      for (const p of ev.parts) {
-        if (p.tj > tjLimit + 1e-9 && !rej.some((r) => r.constraint === 'tj')) {
-          rej.push({
-            constraint: 'tj', shortfall: p.tj - tjLimit, unit: 'K', rail: railOf(0),
-            text: `${p.role} reaches Tj ${p.tj.toFixed(1)} °C ${where}, above the ${tjLimit} °C limit (tjMax − margin) by ${(p.tj - tjLimit).toFixed(1)} K`,
-          });
-        }
-      }
-      ev.outputs.forEach((o, i) => {
-        const lim = spec.outputs[i]?.rippleLimit ?? Infinity;
-        if (o.ripplePP > lim * (1 + 1e-9) && !rej.some((r) => r.constraint === 'ripple' && r.rail === railOf(i))) {
-          rej.push({
-            constraint: 'ripple', shortfall: o.ripplePP - lim, unit: 'V', rail: railOf(i),
-            text: `ripple ${(o.ripplePP * 1e3).toFixed(2)} mV p-p ${where} exceeds the ${(lim * 1e3).toFixed(2)} mV limit`,
-          });
-        }
-      });
-    };
-    const perMode: StageEvaluation[] = [];
-    const worstRipple = new Array<number>(nOut).fill(0);
-    const track = (ev: StageEvaluation) => ev.outputs.forEach((o, i) => { worstRipple[i] = Math.max(worstRipple[i]!, Math.abs(o.ripplePP)); });
-    // Cheapest checks first: the two full-load corners, then the windows, then every mode.
+    const check = (ev: StageEvaluation, where: string) => this.check(spec, rej, ev, where, railOf);
+    // Cheapest checks first: the two full-load corners, then the windows.
     const atMin = this.evaluator.evaluate(d.design, { vin: spec.vinMin, iout: maxI, ambient });
-    track(atMin);
     check(atMin, 'at Vin min and full load');
     const atMax = this.evaluator.evaluate(d.design, { vin: spec.vinMax, iout: maxI, ambient });
-    track(atMax);
     check(atMax, 'at Vin max and full load');
     if (rej.length) return { ok: false, rejections: rej };
     const windows = this.evaluator.windows(d.design, {
@@ -267,14 +294,7 @@ export class BlockFactory {
       }
     });
     if (rej.length) return { ok: false, rejections: rej };
-    for (let m = 0; m < modeCurrents.length; m++) {
-      const ev = this.evaluator.evaluate(d.design, { vin: spec.vinNom, iout: modeCurrents[m]! as Amps[], ambient });
-      perMode.push(ev);
-      track(ev);
-      check(ev, `in mode ${this.req.modes[m]?.name ?? m} at Vin nominal`);
-    }
-    if (rej.length) return { ok: false, rejections: rej };
-    return { ok: true, design: d.design, perMode, atMin, windows, worstRipple };
+    return { ok: true, design: d.design, atMin, windows };
   }
 
   private weighted(values: number[]): number {
@@ -380,7 +400,14 @@ export class BlockFactory {
     // Which secondaries go through a tap + LDO: quiet rails always; others after a direct miss.
     const useTap = new Map<number, number>(); // rail → index into TAP_TOLERANCES
     const directMiss = new Map<number, Rejection>();
-    for (const s of shape.secondaries) if (this.ctx.rails[s]!.noiseClass === 'quiet') useTap.set(s, 0);
+    const primaryKey = `${shape.input.id}|${shape.primary ?? `bus${shape.busVoltage}`}`;
+    // Start each secondary from what it needed on this primary before (its pair block):
+    // saves the engine the designs of choices already known to miss.
+    for (const s of shape.secondaries) {
+      const h = this.tapHints.get(`${primaryKey}|${s}`);
+      if (h !== undefined && h >= 0) useTap.set(s, h);
+      else if (this.ctx.rails[s]!.noiseClass === 'quiet') useTap.set(s, 0);
+    }
     for (let attempt = 0; attempt < 2 + 2 * TAP_VARIANTS.length; attempt++) {
       const taps = new Map<number, ReturnType<BlockFactory['designTap']> & { ok: true }>();
       let tapFail: Rejection[] | null = null;
@@ -451,6 +478,9 @@ export class BlockFactory {
         }
         if (!changed || !this.req.preferences.allowedKinds.includes('ldo')) return run;
         continue;
+      }
+      if (shape.secondaries.length === 1) {
+        for (const s of shape.secondaries) this.tapHints.set(`${primaryKey}|${s}`, useTap.get(s) ?? -1);
       }
       return { ok: true, eval: this.assembleCoupled(shape, src, vin, spec, run, taps, directMiss, primaryName) };
     }
@@ -561,6 +591,18 @@ export class BlockFactory {
   }
 }
 
+/** Round a current up (gridUp) or down (gridDown) to two significant digits. */
+export function gridUp(x: number): number {
+  if (!(x > 0)) return 0;
+  const step = 10 ** (Math.floor(Math.log10(x)) - 1);
+  return Math.ceil(x / step - 1e-9) * step;
+}
+export function gridDown(x: number): number {
+  if (!(x > 0)) return 0;
+  const step = 10 ** (Math.floor(Math.log10(x)) - 1);
+  return Math.floor(x / step + 1e-9) * step;
+}
+
 function pct(x: number | undefined): string {
   return x === undefined || !Number.isFinite(x) ? 'n/a' : `${(x * 100).toFixed(1)} %`;
 }
@@ -605,7 +647,7 @@ export function stageParts(kind: StageKind, secondaries: number): PartCounts {
 }
 
 /** Enumerate the candidate shapes of a requirements set (before evaluation). */
-export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { singles: BlockShape[]; coupled: (pairsOk: (p: number | null, s: number) => boolean) => BlockShape[]; pairShapes: BlockShape[] } {
+export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { singles: BlockShape[]; coupled: (size: number, ok: (p: number | null, secs: number[]) => boolean) => BlockShape[]; pairShapes: BlockShape[] } {
   const rails = f.ctx.rails;
   const req = f.req;
   const singles: BlockShape[] = [];
@@ -621,14 +663,17 @@ export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { sin
       if (opts.allowRailFeeds) {
         for (let j = 0; j < n; j++) {
           const u = rails[j]!;
-          if (j !== i && u.domainId === r.domainId && u.voltage > r.voltage) singles.push({ kind: 'buck', input: { kind: 'rail', rail: j }, rail: i });
+          // Never from a quiet rail: the switching current would pollute it (common practice).
+          if (j !== i && u.domainId === r.domainId && u.voltage > r.voltage && u.noiseClass !== 'quiet') singles.push({ kind: 'buck', input: { kind: 'rail', rail: j }, rail: i });
         }
       }
     }
     if (opts.allowed.has('ldo') && opts.allowRailFeeds) {
       for (let j = 0; j < n; j++) {
         const u = rails[j]!;
-        if (j !== i && u.domainId === r.domainId && Math.sign(u.voltage) === Math.sign(r.voltage) && Math.abs(u.voltage) > Math.abs(r.voltage)) {
+        // A quiet rail feeds only quiet rails: other loads would put their noise on it (common practice).
+        if (j !== i && u.domainId === r.domainId && Math.sign(u.voltage) === Math.sign(r.voltage) && Math.abs(u.voltage) > Math.abs(r.voltage) &&
+          (u.noiseClass !== 'quiet' || quiet)) {
           singles.push({ kind: 'ldo', input: { kind: 'rail', rail: j }, rail: i });
         }
       }
@@ -655,16 +700,24 @@ export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { sin
       }
     }
   }
-  const coupled = (pairsOk: (p: number | null, s: number) => boolean): BlockShape[] => {
+  /**
+   * Shapes with `size` secondaries on each primary whose every subset of size − 1 was feasible
+   * (checked with `ok`): an a-priori rule (a winding set is tried only if all its smaller sets
+   * worked), which keeps the number of engine designs small.
+   */
+  const coupled = (size: number, ok: (p: number | null, secs: number[]) => boolean): BlockShape[] => {
     const out: BlockShape[] = [];
+    if (size > opts.maxSecondaries) return out;
     for (const p of primaries) {
-      const ok: number[] = [];
-      for (let j = 0; j < n; j++) if (j !== p.primary && pairsOk(p.primary, j)) ok.push(j);
-      // Subsets of size 2..k of secondaries whose pairs with this primary are feasible.
+      const cand: number[] = [];
+      for (let j = 0; j < n; j++) if (j !== p.primary && ok(p.primary, [j])) cand.push(j);
       const rec = (start: number, chosen: number[]) => {
-        if (chosen.length >= 2) out.push(cw(p, [...chosen]));
-        if (chosen.length === opts.maxSecondaries) return;
-        for (let q = start; q < ok.length; q++) { chosen.push(ok[q]!); rec(q + 1, chosen); chosen.pop(); }
+        if (chosen.length === size) {
+          for (let drop = 0; drop < size; drop++) if (!ok(p.primary, chosen.filter((_, k) => k !== drop))) return;
+          out.push(cw(p, [...chosen]));
+          return;
+        }
+        for (let q = start; q < cand.length; q++) { chosen.push(cand[q]!); rec(q + 1, chosen); chosen.pop(); }
       };
       rec(0, []);
     }
@@ -718,12 +771,27 @@ export function* generateBlocks(
   };
   const { singles, coupled, pairShapes } = enumerateShapes(f, opts);
   for (const s of singles) { add(s); yield; }
-  const pairOk = new Set<string>();
+  // Feasible winding sets per primary, by size (input source folded into the primary key).
+  const feasibleSets = new Set<string>();
+  const setKey = (s: BlockShape & { kind: 'cwbuck' }) => `${s.input.id}|${s.primary ?? `bus${s.busVoltage}`}|${s.secondaries.join(',')}`;
   for (const s of pairShapes) {
-    if (s.kind === 'cwbuck' && add(s)) pairOk.add(`${s.primary}|${s.secondaries[0]}`);
+    if (s.kind === 'cwbuck' && opts.maxSecondaries >= 1 && add(s)) feasibleSets.add(setKey(s));
     yield;
   }
-  for (const s of coupled((p, j) => pairOk.has(`${p}|${j}`))) { add(s); yield; }
+  for (let size = 2; size <= opts.maxSecondaries; size++) {
+    const level = coupled(size, () => true);
+    const okSet = (sh: BlockShape & { kind: 'cwbuck' }) => feasibleSets.has(setKey(sh));
+    for (const s of level) {
+      if (s.kind !== 'cwbuck') continue;
+      let ok = true;
+      for (let drop = 0; drop < s.secondaries.length && ok; drop++) {
+        ok = okSet({ ...s, secondaries: s.secondaries.filter((_, k) => k !== drop) });
+      }
+      if (!ok) continue;
+      if (add(s)) feasibleSets.add(setKey(s));
+      yield;
+    }
+  }
   return { blocks, misses };
 }
 

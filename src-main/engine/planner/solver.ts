@@ -50,6 +50,11 @@ export interface PlanProgress {
   message: string;
 }
 
+/** Rails up to which the planner finishes its search (the proof) whatever the budget. */
+export const EXACT_RAILS = 12;
+/** Safety cap of an exact run (it never hangs). */
+export const EXACT_SEARCH_CAP_MS = 120_000;
+
 const LABEL_OF: Record<Objective, PlanLabel> = { loss: 'lowest-loss', cost: 'lowest-cost', parts: 'fewest-parts', balanced: 'balanced' };
 
 export class PlanSolver {
@@ -85,7 +90,14 @@ export class PlanSolver {
     this.queue = options.singleObjective ? [this.objective] : [this.objective, ...OBJECTIVES.filter((o) => o !== this.objective)];
   }
 
-  private get deadline(): number { return this.t0 + this.budgetMs; }
+  /**
+   * Up to EXACT_RAILS rails the planner is exact: candidate design always completes (it is
+   * finite: a few thousand engine designs at most) and the search may run to the proof for up
+   * to EXACT_SEARCH_CAP_MS; beyond that the budget cuts both (anytime).
+   */
+  private get exact(): boolean { return this.rails.length > 0 && this.rails.length <= EXACT_RAILS; }
+
+  private get deadline(): number { return this.t0 + (this.exact ? Math.max(this.budgetMs, EXACT_SEARCH_CAP_MS) : this.budgetMs); }
 
   cancel(): void { this.cancelled = true; }
 
@@ -98,7 +110,7 @@ export class PlanSolver {
       if (this.cancelled) { this.finish(); return true; }
       if (!this.advance()) return true;
     }
-    if (this.progress.phase === 'candidates' && this.gen && this.now() > this.deadline) {
+    if (this.progress.phase === 'candidates' && this.gen && !this.exact && this.now() > this.deadline) {
       // Out of time while designing candidates: search with the blocks designed so far.
       this.allComplete = false;
       this.trace.push(`budget of ${this.budgetMs} ms reached while designing candidates; searching the ${this.factory?.evaluations ?? 0} designed so far`);
@@ -154,7 +166,7 @@ export class PlanSolver {
           if ((this.explored & 63) === 0) {
             const t = this.now();
             const has = this.search.out.best !== null || this.pendingSeed !== null;
-            if ((t > this.search.deadline && has) || t > this.t0 + 2 * this.budgetMs) {
+            if ((t > this.search.deadline && has) || t > this.deadline + this.budgetMs) {
               this.trace.push(`objective ${this.search.objective}: time share used up after ${this.search.out.explored} nodes; keeping the incumbent`);
               this.recordSearch(this.search.out, false);
               this.search = null;
