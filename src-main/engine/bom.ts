@@ -74,8 +74,11 @@ export function buildBom(req: Requirements, plan: Plan, library: LibraryRow[]): 
   const counters: Record<string, number> = {};
   const items: BomItem[] = [];
   for (const st of plan.stages) {
+    const rank = { functional: 0, basic: 1, reinforced: 2 } as const;
+    const barrier = [...st.barriers].sort((a, b) => rank[b.isolation] - rank[a.isolation] || b.workingVoltage - a.workingVoltage)[0];
     const picks = partsForStage(st.id, st.design, library, {
       powerDerating: req.limits.powerDerating, electrolyticDerating: req.limits.electrolyticDerating,
+      isolation: barrier ? { class: barrier.isolation, workingVoltage: barrier.workingVoltage } : null,
     });
     // Within a stage: by designator letter, then in the order the stage lists its parts.
     const ordered = picks.map((p, i) => ({ p, i })).sort((a, b) => PREFIX_ORDER[a.p.prefix] - PREFIX_ORDER[b.p.prefix] || a.i - b.i);

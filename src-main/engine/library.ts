@@ -8,6 +8,8 @@
  */
 
 import type { PartLibraryRow } from './model.ts';
+import { magneticSpec } from './magnetics.ts';
+import type { CoupledBuckDesign } from './stages/index.ts';
 
 export type PartClass =
   | 'controller'
@@ -357,6 +359,8 @@ export interface PickOptions {
   powerDerating: number;
   /** Fraction of an aluminium/polymer capacitor's rating it may see (DesignLimits.electrolyticDerating). */
   electrolyticDerating: number;
+  /** The strictest barrier the stage's windings cross (from the plan), if the design does not carry it. */
+  isolation?: { class: string; workingVoltage: number } | null;
 }
 
 const DEFAULT_PICK: PickOptions = { powerDerating: 0.5, electrolyticDerating: 0.8 };
@@ -487,21 +491,29 @@ export function partsForStage(stageId: string, design: unknown, library: Library
   }
   if (d.kind === 'cwbuck') {
     const secs = d.secondaries ?? [];
-    const isat = d.isat ?? out0.currentMax;
-    // The controller carries the magnetizing current: its peak is the saturation current less its margin.
-    picks.push(...pickSwitcher(library, stageId, d.vinMax ?? 0, isat / 1.3, true, isat));
+    // Worst primary peak over the input range and load patterns (engine/magnetics.ts); the
+    // magnetic saturates no lower than that plus the usual 30 % margin.
+    let peak = (d.isat ?? out0.currentMax) / 1.3;
+    try {
+      const spec = magneticSpec(design as CoupledBuckDesign);
+      peak = Math.max(peak, ...spec.windings.filter((w) => w.role === 'primary').map((w) => w.peakCurrent));
+    } catch { /* an incomplete design: keep the design's own figure */ }
+    const isat = Math.max(d.isat ?? 0, peak * 1.3);
+    picks.push(...pickSwitcher(library, stageId, d.vinMax ?? 0, peak, true, isat));
     const pTotal = (d.outputs ?? []).reduce((a, q) => a + Math.abs(q.voltage) * q.currentMax, 0);
-    const needIso = ISOLATION_RANK[d.isolation?.class ?? 'none'] ?? -1;
+    const isoOf = [d.isolation, o.isolation].filter((x): x is { class: string; workingVoltage: number } => !!x && x.class !== 'none')
+      .sort((a, b) => (ISOLATION_RANK[b.class] ?? -1) - (ISOLATION_RANK[a.class] ?? -1) || b.workingVoltage - a.workingVoltage)[0] ?? null;
+    const needIso = ISOLATION_RANK[isoOf?.class ?? 'none'] ?? -1;
     const windings = 1 + secs.length;
     const mag = cheapest(library, 'magnetic-custom', (r) =>
       numParam(r, 'maxWindings') >= windings && numParam(r, 'pMax') >= pTotal && numParam(r, 'isolation') >= needIso);
     const specRef = `magnetic-${stageId.replace(/[^A-Za-z0-9._-]+/g, '_')}.md`;
     const turns = [d.primaryTurns ?? 0, ...secs.map((s) => s.turns)].join(':');
     const magValue = `Lp ${eng(d.inductance ?? 0, 'H')}, ${turns} T`;
-    const magRating = `Isat ≥ ${eng(isat, 'A')}${d.isolation ? `, ${d.isolation.class} ${eng(d.isolation.workingVoltage, 'V')}` : ''}`;
+    const magRating = `Isat ≥ ${eng(isat, 'A')}${isoOf ? `, ${isoOf.class} isolation ${eng(isoOf.workingVoltage, 'V')}` : ''}`;
     picks.push(mag
       ? { ...pickFromRow(stageId, 'coupled-winding magnetic (custom)', 'T', mag, magValue, magRating, 1, { specRef }), unitCost: mag.cost + numParam(mag, 'costPerWinding', 0) * secs.length }
-      : { ...missing(stageId, 'coupled-winding magnetic (custom)', 'T', 'magnetic-custom', magValue, magRating, 1, `no custom-magnetic former in the library takes ${windings} windings, ${eng(pTotal, 'W')}${needIso > 0 ? ` and ${d.isolation?.class} isolation` : ''}`), specRef });
+      : { ...missing(stageId, 'coupled-winding magnetic (custom)', 'T', 'magnetic-custom', magValue, magRating, 1, `no custom-magnetic former in the library takes ${windings} windings, ${eng(pTotal, 'W')}${needIso > 0 ? ` and ${isoOf?.class} isolation` : ''}`), specRef });
     if (d.cin) picks.push(pickCap(library, stageId, d.cin, o));
     if (d.cout) picks.push(pickCap(library, stageId, d.cout, o));
     if (d.divider) picks.push(...pickDivider(library, stageId, d.divider, o));

@@ -10,6 +10,7 @@ import type { PlanStage } from '../engine/plan-types.ts';
 import type { CoupledBuckDesign } from '../engine/stages/index.ts';
 import { magneticSpec, type MagneticSpec } from '../engine/magnetics.ts';
 import { fmtQty } from '../engine/layout.ts';
+import { GENERIC_DEFAULTS } from '../engine/stages/index.ts';
 
 export const MAGNETIC_CAUTIONS = [
   'Mains and isolation barriers can kill. Creepage, clearance, insulation system, hi-pot test voltage and touch current follow the applicable safety standard and local codes; this sheet does not compute them.',
@@ -31,6 +32,13 @@ export function magneticSpecMarkdown(req: Requirements, stage: PlanStage, d: Cou
   const iso = spec.isolation && spec.isolation.class !== 'none'
     ? spec.isolation
     : stage.barriers[0] ? { class: stage.barriers[0].isolation, workingVoltage: stage.barriers[0].workingVoltage } : null;
+  // Never ask for less than the worst winding peak plus the usual margin, even where the
+  // stage design's own saturation figure came from a milder operating point.
+  const worstPeak = Math.max(0, ...spec.windings.filter((w) => w.role === 'primary').map((w) => w.peakCurrent));
+  const needSat = Math.max(spec.saturationCurrent, worstPeak * (1 + GENERIC_DEFAULTS.saturationMargin));
+  const satNote = needSat > spec.saturationCurrent * (1 + 1e-9)
+    ? `worst primary peak ${fmtQty(worstPeak, 'A')} + ${Math.round(GENERIC_DEFAULTS.saturationMargin * 100)} % margin; the stage design assumed ${fmtQty(spec.saturationCurrent, 'A')}`
+    : `worst peak + ${Math.round(spec.saturationMargin * 100)} % margin`;
   const lines = [
     `# Magnetic specification ${ref}: ${stage.name}`,
     '',
@@ -45,7 +53,7 @@ export function magneticSpecMarkdown(req: Requirements, stage: PlanStage, d: Cou
     `| Primary inductance Lp | ${q(spec.inductance, 'H')} ±${Math.round(spec.inductanceTolerance * 100)} % |`,
     `| Switching frequency | ${q(spec.switchingFrequency, 'Hz')} |`,
     `| Input voltage | ${q(d.vinMin, 'V')} … ${q(d.vinMax, 'V')} (nominal ${q(d.vinNom, 'V')}) |`,
-    `| Saturation current (at ${req.limits.ambient} °C ambient and above) | ≥ ${q(spec.saturationCurrent, 'A')} (worst peak + ${Math.round(spec.saturationMargin * 100)} % margin) |`,
+    `| Saturation current (at ${req.limits.ambient} °C ambient and above) | ≥ ${q(needSat, 'A')} (${cell(satNote)}) |`,
     ...spec.leakageTargets.map((l, i) => `| Leakage of secondary ${i + 1} (${name(l.nodeId)}), measured at the secondary with the primary shorted | ≤ ${q(l.maxLeakage, 'H')} (coupling ≥ ${l.minCoupling}) |`),
     `| Turns Np : Ns | ${[d.primaryTurns, ...d.secondaries.map((w) => w.turns)].join(' : ')} (integers; a negative count is a reversed winding) |`,
     `| Worst operating point for the currents | ${cell(spec.worstCase)} |`,

@@ -114,6 +114,13 @@ describe('BOM grouping and designators', () => {
     expect(first('st-buck-3v3', 'C')).toBe('C1');
   });
 
+  it('asks the custom magnetic for the isolation class of the barrier it crosses', () => {
+    const mag = bom.lines.find((l) => l.partClass === 'magnetic-custom')!;
+    expect(mag.rating).toContain('basic isolation 60 V');
+    // The chosen former supports at least basic isolation (1).
+    expect(numParam(byId.get(mag.libraryId!)!, 'isolation')).toBeGreaterThanOrEqual(1);
+  });
+
   it('compacts designator runs', () => {
     expect(compactRefs(['C3', 'C1', 'C2', 'C5', 'R1'])).toBe('C1–C3, C5, R1');
     expect(compactRefs(['D1', 'D2'])).toBe('D1, D2');

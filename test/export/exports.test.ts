@@ -208,6 +208,12 @@ describe('magnetic specification sheet', () => {
       expect(row).toContain(`AWG ${w.wire.awg}`);
       expect(row).toContain(fmtQty(w.rmsCurrent, 'A'));
     }
+    // Saturation asked ≥ worst primary peak × 1.3 (common practice 20–30 % margin) and ≥ the design's figure;
+    // the BOM line asks the same.
+    const peak = m.windings.find((w) => w.role === 'primary')!.peakCurrent;
+    const need = Math.max(m.saturationCurrent, peak * 1.3);
+    expect(spec!.text).toContain(`≥ ${fmtQty(need, 'A')} (`);
+    expect(b.bom.lines.find((l) => l.partClass === 'magnetic-custom')!.rating).toContain(`Isat ≥ ${fmtQty(need, 'A')}`);
   });
 });
 
