@@ -42,6 +42,8 @@ export function bundleChild(entry: string): string {
     keepNames: true,
     // The binding loads a native file relative to its own package: keep it outside.
     external: ['better-sqlite3'],
+    // Some bundled CommonJS code calls require(); give the module one, resolving from the project.
+    banner: { js: `import { createRequire as __rwRequire } from 'node:module'; const require = __rwRequire(${JSON.stringify(join(ROOT, 'package.json'))});` },
   });
   const sqlite = pathToFileURL(createRequire(join(ROOT, 'package.json')).resolve('better-sqlite3')).href;
   const text = readFileSync(out, 'utf8');
