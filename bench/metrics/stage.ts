@@ -39,3 +39,18 @@ export const metrics: Metric[] = [
     },
   },
 ];
+
+metrics.push({
+  name: 'stage_design_ms',
+  unit: 'ms',
+  async sample() {
+    const out: number[] = [];
+    for (let run = -1; run < 7; run++) {
+      const t0 = performance.now();
+      const r = designStage(spec);
+      if (!r.ok) throw new Error('bench design failed');
+      if (run >= 0) out.push(performance.now() - t0);
+    }
+    return out;
+  },
+});
