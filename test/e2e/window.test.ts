@@ -162,8 +162,12 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
     const header = rows[0]!.map((h) => h.toLowerCase());
     const ext = header.findIndex((h) => h.includes('extended'));
     expect(ext).toBeGreaterThanOrEqual(0);
-    const sum = rows.slice(1).map((r) => Number(r[ext])).filter((x) => Number.isFinite(x)).reduce((a, b) => a + b, 0);
+    const lines = rows.slice(1).filter((r) => /^\d+$/.test(r[0] ?? ''));
+    expect(lines.length).toBe(await page.locator('[data-testid=bom] tbody tr:not(.grp):not(.total)').count());
+    const sum = lines.reduce((a, r) => a + Number(r[ext]), 0);
     expect(Math.abs(sum - shownTotal)).toBeLessThan(0.011);
+    const total = rows.find((r) => r[0] === 'Total');
+    expect(Math.abs(Number(total?.[ext]) - shownTotal)).toBeLessThan(0.011);
   });
 
   it('saves, reopens and finds the same project', async () => {
