@@ -74,10 +74,22 @@ export function buckPoint(d: BuckDesign, vin: number, io: number, vout = d.divid
   return { vout, io, duty, deadShare, rhs, rls, ripple, ipk: io + ripple / 2, ivalley: io - ripple / 2, irms };
 }
 
+/** The operating point at a given duty (output below its setpoint). */
+export function buckAtDuty(d: BuckDesign, vin: number, io: number, duty: number): BuckPoint {
+  const rhs = d.highSide.rdsOn * d.rdsHotFactor;
+  const rls = d.lowSide.rdsOn * d.rdsHotFactor;
+  const deadShare = 2 * d.controller.deadTime * d.fsw;
+  const vfb = diodeVf(d.bodyDiode, Math.abs(io));
+  const vout = Math.max(0, duty * (vin - io * rhs) - (1 - duty - deadShare) * io * rls - deadShare * vfb - io * d.dcr);
+  return buckPoint(d, vin, io, vout);
+}
+
 export function evaluateBuck(d: BuckDesign, op: OperatingPoint): StageEvaluation {
   const vin = op.vin as number;
   const io = Math.max(0, (op.iout[0] ?? 0) as number);
-  const p = buckPoint(d, vin, io);
+  const wanted = buckPoint(d, vin, io);
+  // Out of duty: the output settles where the maximum duty puts it (same volt-second balance).
+  const p = wanted.duty > d.controller.maxDuty ? buckAtDuty(d, vin, io, d.controller.maxDuty) : wanted;
   const { duty, deadShare, rhs, rls, ripple, irms } = p;
   const vfb = diodeVf(d.bodyDiode, Math.max(Math.abs(p.ipk), Math.abs(p.ivalley)));
   const fsw = d.fsw as number;
@@ -110,7 +122,7 @@ export function evaluateBuck(d: BuckDesign, op: OperatingPoint): StageEvaluation
     part('inductor', loss['inductor-copper']! + loss['inductor-core']!, d.thetaJA.inductor, ta),
   ];
   const outputs = [{ nodeId: d.outputs[0]!.nodeId, voltage: p.vout as Volts, current: io as Amps, ripplePP: ripplePP as Volts }];
-  const flags: StageFlag[] = [...switchingFlags(d, vin, duty, p.ipk, p.ivalley), ...thermalFlags(parts, d.tjMax), ...rippleFlags(outputs, d.outputs)];
+  const flags: StageFlag[] = [...switchingFlags(d, vin, wanted.duty, p.ipk, p.ivalley), ...thermalFlags(parts, d.tjMax), ...rippleFlags(outputs, d.outputs)];
   return {
     kind: 'buck',
     vin: vin as Volts,

@@ -171,7 +171,8 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
       qdec = Math.min((iend * iend * llk) / (2 * vrev), 0.5 * isec * T);
     }
     const vPrev = vsec;
-    vsec = n * voff0 - v0 - E0;
+    // A rectified output cannot reverse: past its range the model's voltage stops at zero.
+    vsec = Math.max(0, n * voff0 - v0 - E0);
     const iinf = alpha;
     const settled = !w.preload || Math.abs(vsec - vPrev) < 1e-10 * Math.max(1, Math.abs(vsec));
     if (!full) {
@@ -322,9 +323,31 @@ export function windingCurrents(d: CoupledBuckDesign, vin: number, iout: number[
   ];
 }
 
+/**
+ * The operating point, with the primary out of regulation when the controller runs out of
+ * duty: the primary then settles where the maximum duty puts it (found by bisection).
+ */
+function regulatedPoint(d: CoupledBuckDesign, vin: number, iout: number[], opts: CoupledEvalOptions): CoupledPoint {
+  const p = coupledPoint(d, vin, iout, opts);
+  const dmax = d.controller.maxDuty;
+  if (!(p.duty > dmax)) return p;
+  let lo = 0;
+  let hi = p.vpri;
+  let best = p;
+  for (let k = 0; k < 40; k++) {
+    const mid = (lo + hi) / 2;
+    const q = coupledPoint(d, vin, iout, { ...opts, vPrimary: mid });
+    if (q.duty > dmax) hi = mid;
+    else { lo = mid; best = q; }
+    if (hi - lo < 1e-6 * Math.max(1, p.vpri)) break;
+  }
+  return best.duty > dmax ? coupledPoint(d, vin, iout, { ...opts, vPrimary: lo }) : best;
+}
+
 export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, opts: CoupledEvalOptions = {}): StageEvaluation {
   const vin = op.vin as number;
-  const p = coupledPoint(d, vin, op.iout as number[], opts);
+  const p = regulatedPoint(d, vin, op.iout as number[], opts);
+  const required = p.vpri < (opts.vPrimary ?? d.divider.vout) ? coupledPoint(d, vin, op.iout as number[], opts).duty : p.duty;
   const fsw = d.fsw as number;
   const rhs = d.highSide.rdsOn * d.rdsHotFactor;
   const rls = d.lowSide.rdsOn * d.rdsHotFactor;
@@ -377,7 +400,7 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
     part('coupled magnetic', loss['primary-copper']! + loss['secondary-copper']! + loss['magnetic-core']!, d.thetaJA.inductor, ta),
     ...p.sec.map((s, i) => part(`rectifier D${i + 1}`, s.pRect, d.secondaries[i]!.thetaJA, ta)),
   ];
-  const flags: StageFlag[] = [...switchingFlags(d, vin, p.duty, p.impk, p.iend), ...thermalFlags(parts, d.tjMax), ...rippleFlags(outputs, d.outputs)];
+  const flags: StageFlag[] = [...switchingFlags(d, vin, required, p.impk, p.iend), ...thermalFlags(parts, d.tjMax), ...rippleFlags(outputs, d.outputs)];
   if (p.duty > d.dutyWarn) {
     flags.push(flag('duty-high-for-secondaries', 'warning',
       `duty ${r3(p.duty)} at Vin ${r3(vin)} V is above ${d.dutyWarn}: secondary regulation degrades as (1−D)² shrinks; a higher input or a lower primary voltage helps`,

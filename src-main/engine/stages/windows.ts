@@ -11,7 +11,7 @@
 import type { Amps, Celsius, Volts } from '../units.ts';
 import type { OutputSpec, OutputWindow } from './types.ts';
 import type { DividerChoice } from '../eseries.ts';
-import { buckPoint, evaluateBuck, type BuckDesign } from './buck.ts';
+import { buckAtDuty, buckPoint, evaluateBuck, type BuckDesign } from './buck.ts';
 import { evaluateCoupledBuck, type CoupledBuckDesign } from './cwbuck.ts';
 import { ldoPoint, type LdoDesign } from './ldo.ts';
 import { mulberry32, r3 } from './common.ts';
@@ -53,12 +53,9 @@ function outputsAt(d: WindowDesign, vin: number, iout: number[], x: Draw): { lo:
     const io = iout[0] ?? 0;
     const ev = evaluateBuck(d, { vin: vin as Volts, iout: [io as Amps], ambient });
     let v = sp;
-    const duty = buckPoint(d, vin, io, sp).duty;
-    if (duty > d.controller.maxDuty) {
+    if (buckPoint(d, vin, io, sp).duty > d.controller.maxDuty) {
       // Out of regulation: the output follows the maximum duty.
-      const p = buckPoint(d, vin, io, sp);
-      const dm = d.controller.maxDuty;
-      v = dm * (vin - io * p.rhs) - (1 - dm - p.deadShare) * io * p.rls - io * d.dcr;
+      v = buckAtDuty(d, vin, io, d.controller.maxDuty).vout;
     }
     const rp = ev.outputs[0]!.ripplePP as number;
     return [{ lo: v - rp / 2, hi: v + rp / 2 }];
