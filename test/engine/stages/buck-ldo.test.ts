@@ -89,6 +89,20 @@ describe('synchronous buck: textbook closed forms (Erickson & Maksimović, Funda
     // D ≈ 1/60 at 2 MHz: about 8.5 ns against the 100 ns minimum
     expect(f?.text).toMatch(/on-time \d.* ns at Vin 60 V is below the controller's minimum 100 ns/);
   });
+  it('out of duty the output follows M = D (Erickson & Maksimović, ch. 2) and the flag quotes the duty it wanted', () => {
+    const d = buck();
+    const ev = evaluateStage(d, op(3.5, [0]));
+    // no load: Vout ≈ Dmax·Vin less the dead-time body-diode share (small)
+    expect(ev.duty).toBeCloseTo(0.9, 12);
+    expect(ev.outputs[0]!.voltage).toBeGreaterThan(0.9 * 3.5 - 0.05);
+    expect(ev.outputs[0]!.voltage).toBeLessThanOrEqual(0.9 * 3.5);
+    const f = ev.flags.find((x) => x.code === 'max-duty')!;
+    expect(f.severity).toBe('error');
+    expect(Number(f.data!.duty)).toBeCloseTo(d.divider.vout / 3.5, 2);
+    const [w] = stageWindows(d, { vin: [3.5, 12] as Volts[], iout: [{ min: 0 as Amps, max: 2 as Amps }] });
+    expect(w!.inside).toBe(false);
+    expect(w!.minCorner).toMatch(/Vin 3.5 V/);
+  });
   it('refuses a duty above the maximum at Vin min', () => {
     const r = designStage(spec({ kind: 'buck', vinMin: 5.2, vinNom: 6, vinMax: 7, outputs: [out(5, 1)] }));
     expect(r.ok).toBe(false);
