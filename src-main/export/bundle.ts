@@ -5,7 +5,7 @@
  */
 import type { Requirements } from '../engine/model.ts';
 import type { Plan, PlanResult } from '../engine/plan-types.ts';
-import { figuresForMode, heaviestMode, rollupPlan, type Rollup } from '../engine/rollup.ts';
+import { figuresForMode, heaviestMode, rollupPlan, RollupError, type Rollup } from '../engine/rollup.ts';
 import { buildBom, type Bom } from '../engine/bom.ts';
 import { buildTreeView, layoutTree, fmtQty, type ElkLike, type LaidOutTree } from '../engine/layout.ts';
 import type { LibraryRow } from '../engine/library.ts';
@@ -46,7 +46,13 @@ export async function prepareExport(args: {
     const why = result.infeasible.map((x) => x.text).join('; ');
     throw new ExportError(`the project has no feasible plan to export${why ? `: ${why}` : ''}`);
   }
-  const rollup = rollupPlan(req, result.rails, plan);
+  let rollup: Rollup;
+  try {
+    rollup = rollupPlan(req, result.rails, plan);
+  } catch (e) {
+    if (e instanceof RollupError) throw new ExportError(`the plan cannot be rolled up: ${e.message}`);
+    throw e;
+  }
   const bom = buildBom(req, plan, library);
   const figures = figuresForMode(req, rollup, args.modeId);
   const tree = await layoutTree(buildTreeView(req, result.rails, plan, figures), args.elk);
