@@ -543,8 +543,8 @@ export function partsForStage(stageId: string, design: unknown, library: Library
     const samePkg = cheapest(library, 'ldo', (r) => fits(r) && strParam(r, 'package') === d.package?.name);
     const row = samePkg ?? cheapest(library, 'ldo', fits);
     picks.push(row
-      ? pickFromRow(stageId, neg ? 'negative LDO' : 'LDO', 'U', row, eng(Math.abs(out0.voltage), 'V'), `${numParam(row, 'iMax')} A, ${numParam(row, 'vinMax')} V in`, 1)
-      : missing(stageId, 'LDO', 'U', 'ldo', eng(Math.abs(out0.voltage), 'V'), `≥ ${eng(out0.currentMax, 'A')}, θJA ≤ ${d.package?.thetaJA ?? '—'} K/W`, 1,
+      ? pickFromRow(stageId, neg ? 'negative LDO' : 'LDO', 'U', row, eng(out0.voltage, 'V'), `${numParam(row, 'iMax')} A, ${numParam(row, 'vinMax')} V in`, 1)
+      : missing(stageId, 'LDO', 'U', 'ldo', eng(out0.voltage, 'V'), `≥ ${eng(out0.currentMax, 'A')}, θJA ≤ ${d.package?.thetaJA ?? '—'} K/W`, 1,
         `no ${neg ? 'negative ' : ''}LDO in the library carries ${eng(out0.currentMax, 'A')} from ${eng(vinMax, 'V')} with θJA ≤ ${d.package?.thetaJA} K/W`));
     if (d.cin) picks.push(pickCap(library, stageId, d.cin, o));
     if (d.cout) picks.push(pickCap(library, stageId, d.cout, o));

@@ -13,6 +13,8 @@ import ELK from 'elkjs/lib/elk.bundled.js';
 import { handRequirements } from './hand-plan.ts';
 import { designedHandPlan } from './hand-designs.ts';
 import { pdfPlainText } from './pdf-text.ts';
+import { demoHandPlan } from './demo-plan.ts';
+import { demoDocument } from '../../src-main/store/demo.ts';
 import { tableToRows, type LibraryRow } from '../../src-main/engine/library.ts';
 import { fmtQty, type ElkLike } from '../../src-main/engine/layout.ts';
 import { readCsv } from '../../src-main/export/csv.ts';
@@ -97,6 +99,27 @@ describe('BOM CSV (read back with csv-parse)', () => {
       const v = d.divider.vref * (1 + d.divider.rTop / d.divider.rBottom);
       expect(Math.abs(v - Math.abs(d.outputs[0]!.voltage)) / Math.abs(d.outputs[0]!.voltage)).toBeLessThan(0.01);
     }
+  });
+});
+
+describe('BOM CSV formula neutralising end to end', () => {
+  it('prefixes a library name that would run as a formula, and keeps negative values readable', async () => {
+    const req = handRequirements();
+    const lib = defaultLibraryRows().map((r) => r.id === 'ldo-sot23-150m' ? { ...r, name: '=HYPERLINK("x","y")' } : r.id === 'res-0402-1pc' ? { ...r, name: '@SUM(1)' } : r);
+    const bb = await prepareExport({ req, result: designedHandPlan(req), library: lib, elk: new ELK() as unknown as ElkLike });
+    const rows = parse(exportBomCsv(bb), { relax_column_count: true }) as string[][];
+    const cells = rows.flat();
+    // OWASP CSV-injection guidance (from memory): no cell may start with = + - @ TAB CR unless it is a plain signed number.
+    for (const c of cells) if (/^[=+\-@\t\r]/.test(c)) expect(c, c).toMatch(/^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?( ?[A-Za-zµΩ°%/]{1,8})?$/);
+    expect(cells).toContain(`'=HYPERLINK("x","y")`);
+    expect(cells).toContain(`'@SUM(1)`);
+    // A negative rail's LDO keeps its signed value readable ("-12 V", not "'-12 V"): the demo's
+    // hand plan has a negative LDO.
+    const dreq = demoDocument().requirements;
+    const db = await prepareExport({ req: dreq, result: demoHandPlan(dreq), library: defaultLibraryRows(), elk: new ELK() as unknown as ElkLike });
+    const dcells = (parse(exportBomCsv(db), { relax_column_count: true }) as string[][]).flat();
+    expect(dcells).toContain('-12 V');
+    expect(dcells.some((c) => c.startsWith("'-"))).toBe(false);
   });
 });
 
