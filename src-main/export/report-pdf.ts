@@ -98,7 +98,7 @@ export async function reportToPdf(input: ReportInput): Promise<Uint8Array> {
     { header: 'Load', width: 120 }, { header: 'Domain', width: 80 }, { header: 'Voltage', width: 55, align: 'right' },
     { header: 'Tol.', width: 40, align: 'right' }, { header: 'Ripple limit', width: 55, align: 'right' }, { header: 'Noise', width: 50 },
     { header: 'Current per mode', width: W - 400 },
-  ], req.loads.map((l) => [l.name, domName.get(l.domainId) ?? l.domainId, q(l.voltage, 'V'), `±${(l.tolerance * 100).toFixed(1)} %`, q(l.rippleLimit, 'V'), l.noiseClass,
+  ], req.loads.map((l) => [l.name, domName.get(l.domainId) ?? l.domainId, q(l.voltage, 'V', 4), `±${(l.tolerance * 100).toFixed(1)} %`, q(l.rippleLimit, 'V'), l.noiseClass,
     req.modes.map((m) => `${m.name} ${q(l.current[m.id] ?? 0, 'A')}`).join(', ')]), { size: 7.5 });
   const L = req.limits;
   para(doc, `Design limits: ambient ${L.ambient} °C; junction limit ${L.tjMax} °C with ${L.tjMargin} K margin; ceramic capacitors at most ${fmtPct(L.ceramicDerating)} of rating, aluminium/polymer ${fmtPct(L.electrolyticDerating)}; resistors and semiconductors at most ${fmtPct(L.powerDerating)} of rated power.`);
@@ -162,9 +162,9 @@ export async function reportToPdf(input: ReportInput): Promise<Uint8Array> {
   // 6 Windows
   heading(doc, REPORT_SECTIONS[5]);
   table(doc, [
-    { header: 'Rail or node', width: 100 }, { header: 'Target', width: 40, align: 'right' }, { header: 'Worst min', width: 48, align: 'right' },
-    { header: 'Worst max', width: 48, align: 'right' }, { header: 'Allowed', width: 82, align: 'right' }, { header: 'Inside', width: 30 }, { header: 'Corners (min / max)', width: W - 348 },
-  ], rollup.windows.map((r) => [r.name, q(r.target, 'V'), q(r.min, 'V'), q(r.max, 'V'), `${q(r.allowedMin, 'V')} … ${q(r.allowedMax, 'V')}`, r.inside ? 'yes' : 'NO', `min: ${r.minCorner}; max: ${r.maxCorner}`]), { size: 6.5 });
+    { header: 'Rail or node', width: 100 }, { header: 'Target', width: 44, align: 'right' }, { header: 'Worst min', width: 50, align: 'right' },
+    { header: 'Worst max', width: 50, align: 'right' }, { header: 'Allowed', width: 92, align: 'right' }, { header: 'Inside', width: 30 }, { header: 'Corners (min / max)', width: W - 366 },
+  ], rollup.windows.map((r) => [r.name, q(r.target, 'V', 4), q(r.min, 'V', 4), q(r.max, 'V', 4), `${q(r.allowedMin, 'V', 4)} … ${q(r.allowedMax, 'V', 4)}`, r.inside ? 'yes' : 'NO', `min: ${r.minCorner}; max: ${r.maxCorner}`]), { size: 6.5 });
 
   // 7 BOM
   heading(doc, REPORT_SECTIONS[6]);
