@@ -82,6 +82,12 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
     await shot('02-bad-value');
     await page.keyboard.press('Escape');
     expect(await page.locator(`[data-grid=sources] [data-row="${src}"] [data-key=vMin]`).textContent()).toBe(before);
+    // Spreadsheet keys: Tab moves right, Shift+Tab back, arrows move without editing.
+    await page.keyboard.press('Tab');
+    expect(await page.locator('[data-grid=sources] [aria-selected=true]').getAttribute('data-key')).toBe('vMax');
+    await page.keyboard.press('Shift+Tab');
+    await page.keyboard.press('ArrowLeft');
+    expect(await page.locator('[data-grid=sources] [aria-selected=true]').getAttribute('data-key')).toBe('vNom');
     // A user raises the minimum input so every rail can be made (the demo's 12 V rail needs headroom).
     await typeInCell('sources', src!, 'vMin', '16V');
     await expect.poll(() => page.locator(`[data-grid=sources] [data-row="${src}"] [data-key=vMin]`).textContent()).toBe('16 V');
@@ -95,6 +101,12 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
 
   it('plans in the background and shows the tree', { timeout: 120_000 }, async () => {
     await page.click('[data-testid=plan]');
+    await page.waitForSelector('[data-testid=plan-progress]');
+    await page.waitForTimeout(700);
+    await shot('03a-planning');
+    // The window keeps answering while the worker plans.
+    await page.click('[data-viewtab=help]');
+    await page.click('[data-viewtab=tree]');
     await page.waitForSelector('[data-testid=tree-svg]', { timeout: 110_000 });
     expect(await page.locator('[data-kind=stage]').count()).toBeGreaterThan(0);
     expect(await page.locator('[data-kind=rail]').count()).toBeGreaterThan(3);
@@ -109,6 +121,10 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
     expect(text).toMatch(/Loss/);
     expect(text).toMatch(/η/);
     await shot('04-inspector');
+    await page.locator('[data-kind=rail]').first().click();
+    await expect.poll(() => page.locator('[data-testid=window] svg').count()).toBeGreaterThan(0);
+    expect(await page.locator('[data-testid=window]').first().textContent()).toMatch(/inside|OUTSIDE/);
+    await shot('04b-rail-window');
   });
 
   it('edits a load current in engineering notation and the roll-up changes', async () => {
