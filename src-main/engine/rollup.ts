@@ -234,7 +234,12 @@ function evaluateCase(ctx: Context, modeId: Id, vinCase: VinCase): CaseRollup {
       const iout = ids.map((id) => Math.abs(loadCurrent(id)) + (iinAt.get(id) ?? 0)) as Amps[];
       const vin = v.get(st.inputNodeId);
       if (vin === undefined) throw new RollupError(`stage ${st.id}: its input node ${st.inputNodeId} is neither a source, a rail nor an internal node of the plan`);
-      const ev = evaluateCached(models, st.design, { vin: vin as Volts, iout, ambient: req.limits.ambient });
+      let ev: StageEvaluation;
+      try {
+        ev = evaluateCached(models, st.design, { vin: vin as Volts, iout, ambient: req.limits.ambient });
+      } catch (e) {
+        throw new RollupError(`stage ${st.id} (${st.name}): ${(e as Error).message}`);
+      }
       if (!(Number.isFinite(ev.pin) && Number.isFinite(ev.loss))) throw new RollupError(`stage ${st.id}: the stage model returned a non-finite power at Vin ${vin} V`);
       evals.set(st.id, ev);
       iinAt.set(st.inputNodeId, (iinAt.get(st.inputNodeId) ?? 0) + Math.abs(ev.iin));
@@ -388,7 +393,12 @@ function computeWindows(ctx: Context, modes: ModeRollup[]): RailWindowRow[] {
       }
       return { min: (Number.isFinite(lo) ? lo : 0) as Amps, max: hi as Amps };
     });
-    const ws = windowsCached(ctx.models, st.design, { vin, iout });
+    let ws: OutputWindow[];
+    try {
+      ws = windowsCached(ctx.models, st.design, { vin, iout });
+    } catch (e) {
+      throw new RollupError(`stage ${st.id} (${st.name}) windows: ${(e as Error).message}`);
+    }
     for (const ow of ws) {
       nodeWindow.set(ow.nodeId, { min: ow.min, nom: ow.target, max: ow.max });
       const rail = ctx.railById.get(ow.nodeId);

@@ -157,6 +157,9 @@ describe('roll-up refusals', () => {
     const twice = structuredClone(pr.best!);
     twice.stages[2]!.outputs.push({ nodeId: 'tap:sense:6v5', role: 'output' });
     expect(() => rollupPlan(req, pr.rails, twice)).toThrow(RollupError);
+    const garbled = structuredClone(pr.best!);
+    (garbled.stages[0]!.design as { outputs: unknown[] }).outputs = [];
+    expect(() => rollupPlan(req, pr.rails, garbled)).toThrow(/st-buck-3v3 \(Buck 3V3\): iout/);
     const bad = structuredClone(pr.best!);
     bad.stages[0]!.inputNodeId = 'nowhere';
     expect(() => rollupPlan(req, pr.rails, bad)).toThrow(/nowhere/);

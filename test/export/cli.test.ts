@@ -67,6 +67,20 @@ describe('railwright export', () => {
     expect((await cli(['export', project, '--mode', 'Nope', '--bom', join(o, 'x.csv')])).err).toMatch(/--mode Nope: no such operating mode/);
   });
 
+  it('names the stage when a saved plan cannot be evaluated, and writes nothing', async () => {
+    const broken = join(dir, `broken${PROJECT_EXTENSION}`);
+    const store = ProjectStore.fromDocument({ requirements: handRequirements() });
+    const pr = designedHandPlan(store.getRequirements());
+    (pr.best!.stages[1]!.design as { outputs: unknown[] }).outputs = [];
+    store.setPlanResult(pr);
+    store.save(broken);
+    store.close();
+    const r = await cli(['export', broken, '--report', join(dir, 'broken.pdf')]);
+    expect(r.code).toBe(1);
+    expect(r.err).toMatch(/st-cw-5v \(Coupled-winding 5V\)/);
+    expect(existsSync(join(dir, 'broken.pdf'))).toBe(false);
+  });
+
   it('plans first when the saved plan is stale, and says so', async () => {
     const stale = join(dir, `stale${PROJECT_EXTENSION}`);
     const store = ProjectStore.fromDocument({ requirements: handRequirements() });
