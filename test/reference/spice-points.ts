@@ -38,6 +38,8 @@ export const SPICE_POINTS: SpicePoint[] = [
   { name: 'cw7', vin: 18, iout: [0.5, 0.02, 0.01], spec: spec('cwbuck', [18, 24, 32], [out('p3v3', 3.3, 0.5, 0.03, 0.05), out('s5', 5, 0.2), out('n5', -5, 0.1)], 500e3, 0.98) },
   { name: 'b1', vin: 12, spec: spec('buck', [10, 12, 14], [out('r3v3', 3.3, 2, 0.03, 0.04)], 500e3) },
   { name: 'b2', vin: 48, spec: spec('buck', [40, 48, 56], [out('r12', 12, 1, 0.03, 0.1)], 300e3) },
+  // Forced PWM at light load: the inductor current goes negative every cycle.
+  { name: 'b3', vin: 24, iout: [0.1], spec: spec('buck', [18, 24, 32], [out('r5', 5, 1.5, 0.03, 0.05)], 400e3) },
 ];
 
 /** Loss terms the netlists model too (everything else is left out of the comparison). */

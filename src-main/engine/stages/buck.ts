@@ -66,22 +66,36 @@ export function buckPoint(d: BuckDesign, vin: number, io: number, vout = d.divid
   const deadShare = 2 * d.controller.deadTime * d.fsw;
   const vfb = diodeVf(d.bodyDiode, Math.abs(io));
   // Volt-second balance on L with the switch, dead-time and winding drops (averaged model):
-  // D·(Vin − Io·Rhs) − (1 − D − δ)·Io·Rls − δ·Vf = Vout + Io·DCR
-  const duty = (vout + io * d.dcr + (1 - deadShare) * io * rls + deadShare * vfb) / (vin - io * rhs + io * rls);
-  // ΔIL = (Vin − Vout)·D/(L·fsw)  [Erickson & Maksimović, ch. 2]
-  const ripple = ((vin - vout) * duty) / (d.inductance * d.fsw);
+  // D·(Vin − Io·Rhs) − (1 − D − δ)·Io·Rls + (δ/2)·v2 − (δ/2)·Vf = Vout + Io·DCR,
+  // where the dead time before the high side turns on holds the switch node at −Vf while the
+  // valley current is positive and at Vin + Vf when it is negative (forced PWM, light load;
+  // checked in ngspice).
+  let duty = (vout + io * d.dcr + (1 - deadShare) * io * rls + deadShare * vfb) / (vin - io * rhs + io * rls);
+  let ripple = 0;
+  for (let k = 0; k < 3; k++) {
+    // ΔIL = (Vin − Vout)·D/(L·fsw)  [Erickson & Maksimović, ch. 2]
+    ripple = ((vin - vout) * duty) / (d.inductance * d.fsw);
+    const valley = io - ripple / 2;
+    const v2 = valley < 0 ? vin + diodeVf(d.bodyDiode, -valley) : -diodeVf(d.bodyDiode, valley);
+    const v1 = -diodeVf(d.bodyDiode, io + ripple / 2);
+    duty = (vout + io * d.dcr + (1 - deadShare) * io * rls - (deadShare / 2) * (v1 + v2)) / (vin - io * rhs + io * rls);
+  }
+  ripple = ((vin - vout) * duty) / (d.inductance * d.fsw);
   const irms = Math.sqrt(io * io + (ripple * ripple) / 12);
   return { vout, io, duty, deadShare, rhs, rls, ripple, ipk: io + ripple / 2, ivalley: io - ripple / 2, irms };
 }
 
 /** The operating point at a given duty (output below its setpoint). */
 export function buckAtDuty(d: BuckDesign, vin: number, io: number, duty: number): BuckPoint {
-  const rhs = d.highSide.rdsOn * d.rdsHotFactor;
-  const rls = d.lowSide.rdsOn * d.rdsHotFactor;
-  const deadShare = 2 * d.controller.deadTime * d.fsw;
-  const vfb = diodeVf(d.bodyDiode, Math.abs(io));
-  const vout = Math.max(0, duty * (vin - io * rhs) - (1 - duty - deadShare) * io * rls - deadShare * vfb - io * d.dcr);
-  return buckPoint(d, vin, io, vout);
+  // Bisection on the output: buckPoint's duty rises with the output voltage.
+  let lo = 0;
+  let hi = vin;
+  for (let k = 0; k < 60 && hi - lo > 1e-9 * vin; k++) {
+    const mid = (lo + hi) / 2;
+    if (buckPoint(d, vin, io, mid).duty > duty) hi = mid;
+    else lo = mid;
+  }
+  return buckPoint(d, vin, io, lo);
 }
 
 export function evaluateBuck(d: BuckDesign, op: OperatingPoint): StageEvaluation {
