@@ -79,15 +79,16 @@ export function exportTreePdf(b: ExportBundle): Promise<Uint8Array> {
 }
 
 /** One Markdown specification sheet per custom coupled-winding magnetic. */
-export function exportMagneticSpecs(b: ExportBundle): Array<{ file: string; text: string; ref: string; stageId: string }> {
-  const out: Array<{ file: string; text: string; ref: string; stageId: string }> = [];
+export function exportMagneticSpecs(b: ExportBundle): Array<{ file: string; text: string; ref: string; stageId: string; saturation: number }> {
+  const out: Array<{ file: string; text: string; ref: string; stageId: string; saturation: number }> = [];
   for (const st of b.plan.stages) {
     const d = st.design as StageDesign | null;
     if (!d || d.kind !== 'cwbuck') continue;
     const item = b.bom.items.find((i) => i.stageId === st.id && i.partClass === 'magnetic-custom');
     const ref = item?.refs[0] ?? 'T?';
     const file = item?.specRef ?? `magnetic-${st.id}.md`;
-    out.push({ file, ref, stageId: st.id, text: magneticSpecMarkdown(b.req, st, d as CoupledBuckDesign, ref, b.names).text });
+    const m = magneticSpecMarkdown(b.req, st, d as CoupledBuckDesign, ref, b.names);
+    out.push({ file, ref, stageId: st.id, text: m.text, saturation: m.saturation });
   }
   return out;
 }
@@ -126,7 +127,7 @@ export function exportReportPdf(b: ExportBundle): Promise<Uint8Array> {
     const d = st.design as CoupledBuckDesign;
     return {
       ref: s.ref, stageId: s.stageId, stageName: st.name, specRef: s.file,
-      summary: `Lp ${fmtQty(d.inductance, 'H')}, turns ${[d.primaryTurns, ...d.secondaries.map((w) => w.turns)].join(' : ')}, saturation ≥ ${fmtQty(d.isat, 'A')}${d.isolation && d.isolation.class !== 'none' ? `, ${d.isolation.class} isolation at ${fmtQty(d.isolation.workingVoltage, 'V')} working` : st.barriers[0] ? `, ${st.barriers[0].isolation} isolation at ${fmtQty(st.barriers[0].workingVoltage, 'V')} working` : ''}`,
+      summary: `Lp ${fmtQty(d.inductance, 'H')}, turns ${[d.primaryTurns, ...d.secondaries.map((w) => w.turns)].join(' : ')}, saturation ≥ ${fmtQty(s.saturation, 'A')}${d.isolation && d.isolation.class !== 'none' ? `, ${d.isolation.class} isolation at ${fmtQty(d.isolation.workingVoltage, 'V')} working` : st.barriers[0] ? `, ${st.barriers[0].isolation} isolation at ${fmtQty(st.barriers[0].workingVoltage, 'V')} working` : ''}`,
     };
   });
   return reportToPdf({ req: b.req, result: b.result, plan: b.plan, rollup: b.rollup, bom: b.bom, tree: b.tree, magnetics, replanned: b.replanned });

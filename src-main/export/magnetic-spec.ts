@@ -20,7 +20,7 @@ export const MAGNETIC_CAUTIONS = [
 
 const cell = (s: string) => s.replace(/\|/g, '/').replace(/\r?\n/g, ' ');
 
-export function magneticSpecMarkdown(req: Requirements, stage: PlanStage, d: CoupledBuckDesign, ref: string, names: Map<string, string>): { text: string; spec: MagneticSpec } {
+export function magneticSpecMarkdown(req: Requirements, stage: PlanStage, d: CoupledBuckDesign, ref: string, names: Map<string, string>): { text: string; spec: MagneticSpec; saturation: number } {
   const spec = magneticSpec(d);
   const q = (x: number, u: string) => cell(fmtQty(x, u));
   const name = (id: string) => cell(names.get(id) ?? id);
@@ -77,5 +77,5 @@ export function magneticSpecMarkdown(req: Requirements, stage: PlanStage, d: Cou
     ...[...spec.cautions, ...MAGNETIC_CAUTIONS].filter((c, i, a) => a.indexOf(c) === i).map((c) => `- ${c}`),
     '',
   ];
-  return { text: lines.join('\n'), spec };
+  return { text: lines.join('\n'), spec, saturation: needSat };
 }
