@@ -35,13 +35,13 @@ function rowLabel(req: Requirements, table: TableName, rowId: Id): string {
 }
 
 /** Parse one typed value for a column; throws ApiFailure naming `where`. */
-export function parseCell(col: ColumnDef, text: string, where: string, req: Requirements): unknown {
+export function parseCell(col: ColumnDef, text: string, where: string, req: Requirements, field: string = where): unknown {
   const k = col.kind;
   const t = text.trim();
   switch (k.type) {
     case 'text': {
-      if (t === '' && !k.optional) throw new ApiFailure(`${where}: must not be empty`, where);
-      if (t.length > 120) throw new ApiFailure(`${where}: longer than 120 characters`, where);
+      if (t === '' && !k.optional) throw new ApiFailure(`${where}: must not be empty`, field);
+      if (t.length > 120) throw new ApiFailure(`${where}: longer than 120 characters`, field);
       return t;
     }
     case 'enum': {
@@ -49,44 +49,44 @@ export function parseCell(col: ColumnDef, text: string, where: string, req: Requ
       if (k.options === 'domains') {
         const byName = req.domains.find((d) => d.name.toLowerCase() === t.toLowerCase() || d.id === t);
         if (byName) return byName.id;
-        throw new ApiFailure(`${where}: "${t}" is not a domain of this project (have: ${req.domains.map((d) => d.name).join(', ')})`, where);
+        throw new ApiFailure(`${where}: "${t}" is not a domain of this project (have: ${req.domains.map((d) => d.name).join(', ')})`, field);
       }
       const hit = opts.find((o) => o.toLowerCase() === t.toLowerCase());
-      if (!hit) throw new ApiFailure(`${where}: "${t}" is not one of ${opts.join(', ')}`, where);
+      if (!hit) throw new ApiFailure(`${where}: "${t}" is not one of ${opts.join(', ')}`, field);
       return hit;
     }
     case 'quantity': {
       const r = parseQuantity(t, k.quantity, where);
-      if (!r.ok) throw new ApiFailure(r.message, where);
-      if (k.min !== undefined && r.value < k.min) throw new ApiFailure(`${where}: ${t} is below the smallest allowed value ${k.min}`, where);
-      if (k.max !== undefined && r.value > k.max) throw new ApiFailure(`${where}: ${t} is above the largest allowed value ${k.max}`, where);
+      if (!r.ok) throw new ApiFailure(r.message, field);
+      if (k.min !== undefined && r.value < k.min) throw new ApiFailure(`${where}: ${t} is below the smallest allowed value ${k.min}`, field);
+      if (k.max !== undefined && r.value > k.max) throw new ApiFailure(`${where}: ${t} is above the largest allowed value ${k.max}`, field);
       return r.value;
     }
     case 'tolerance': {
       const r = parseTolerance(t, where);
-      if (!r.ok) throw new ApiFailure(r.message, where);
-      if (r.value <= 0 || r.value > 0.5) throw new ApiFailure(`${where}: a tolerance must be above 0 and at most ±50 %`, where);
+      if (!r.ok) throw new ApiFailure(r.message, field);
+      if (r.value <= 0 || r.value > 0.5) throw new ApiFailure(`${where}: a tolerance must be above 0 and at most ±50 %`, field);
       return r.value;
     }
     case 'fraction': {
       const pct = /^([+]?\d+(?:\.\d*)?|\.\d+)\s*%$/.exec(t);
       const v = pct ? Number(pct[1]) / 100 : /^[+]?(\d+(?:\.\d*)?|\.\d+)(e[+-]?\d+)?$/i.test(t) ? Number(t) : NaN;
-      if (!Number.isFinite(v)) throw new ApiFailure(`${where}: "${t}" is not a fraction (write 70% or 0.7)`, where);
-      if (v < k.min || v > k.max) throw new ApiFailure(`${where}: ${t} is outside ${k.min * 100}…${k.max * 100} %`, where);
+      if (!Number.isFinite(v)) throw new ApiFailure(`${where}: "${t}" is not a fraction (write 70% or 0.7)`, field);
+      if (v < k.min || v > k.max) throw new ApiFailure(`${where}: ${t} is outside ${k.min * 100}…${k.max * 100} %`, field);
       return v;
     }
     case 'integer': {
-      if (!/^[+]?\d+$/.test(t)) throw new ApiFailure(`${where}: "${t}" is not a whole number`, where);
+      if (!/^[+]?\d+$/.test(t)) throw new ApiFailure(`${where}: "${t}" is not a whole number`, field);
       const v = Number(t);
-      if (v < k.min || v > k.max) throw new ApiFailure(`${where}: ${t} is outside ${k.min}…${k.max}`, where);
+      if (v < k.min || v > k.max) throw new ApiFailure(`${where}: ${t} is outside ${k.min}…${k.max}`, field);
       return v;
     }
     case 'number': {
       const unit = k.unit ? k.unit.replace(/[.*+?^${}()|[\]\\]/g, '\\$&') : '';
       const m = new RegExp(`^([+-]?(?:\\d+(?:\\.\\d*)?|\\.\\d+)(?:e[+-]?\\d+)?)\\s*${unit ? `(?:${unit})?` : ''}$`, 'i').exec(t);
       const v = m ? Number(m[1]) : NaN;
-      if (!Number.isFinite(v)) throw new ApiFailure(`${where}: "${t}" is not a number${k.unit ? ` of ${k.unit}` : ''}`, where);
-      if (v < k.min || v > k.max) throw new ApiFailure(`${where}: ${t} is outside ${k.min}…${k.max}${k.unit ? ' ' + k.unit : ''}`, where);
+      if (!Number.isFinite(v)) throw new ApiFailure(`${where}: "${t}" is not a number${k.unit ? ` of ${k.unit}` : ''}`, field);
+      if (v < k.min || v > k.max) throw new ApiFailure(`${where}: ${t} is outside ${k.min}…${k.max}${k.unit ? ' ' + k.unit : ''}`, field);
       return v;
     }
   }
@@ -121,7 +121,8 @@ export function applyCell(req: Requirements, e: CellEdit): void {
   const cols = TABLE_COLUMNS[e.table as Exclude<TableName, 'library'>];
   const col = cols.find((c) => c.key === e.field);
   if (!col) throw new ApiFailure(`${e.table}: no column "${e.field}"`, 'field');
-  const value = parseCell(col, e.text, where, req);
+  // Messages name the column as the grid shows it ("V min"), the field carries the key.
+  const value = parseCell(col, e.text, `${rowLabel(req, e.table, e.rowId)} › ${col.label}`, req, `${e.table}.${e.rowId}.${e.field}`);
   if (e.table === 'limits') {
     (req.limits as unknown as Record<string, unknown>)[e.field] = value;
     if (req.limits.tjMax - req.limits.tjMargin <= req.limits.ambient) {

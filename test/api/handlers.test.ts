@@ -61,7 +61,7 @@ describe('cell edits', () => {
     const src = api.session.requirements.sources[0]!;
     const l = api.session.requirements.loads[0]!;
     const bad: [string, string, string, string, RegExp][] = [
-      ['loads', l.id, 'voltage', '3.3 Hz', new RegExp(`loads › ${l.name} › voltage`)],
+      ['loads', l.id, 'voltage', '3.3 Hz', new RegExp(`loads › ${l.name} › Voltage`)],
       ['loads', l.id, 'tolerance', '5', /tolerance/],
       ['loads', l.id, 'domainId', 'Nowhere', /not a domain/],
       ['loads', l.id, 'noiseClass', 'loud', /not one of/],
@@ -170,7 +170,10 @@ describe('planning job', () => {
     expect((await api.request('plan.start', {})).ok).toBe(false);
     // The event loop stays free while the worker plans: a request is answered meanwhile.
     expect((await api.request('project.snapshot', {})).ok).toBe(true);
-    await new Promise((r) => setTimeout(r, 800));
+    // Wait for the first progress report (the worker has started searching), then cancel.
+    await new Promise<void>((resolve) => {
+      const t = setInterval(() => { if (events.some((x) => x.e === 'plan.progress')) { clearInterval(t); resolve(); } }, 20);
+    });
     expect(await ok<{ cancelled: boolean }>(api.request('plan.cancel', { jobId: job.jobId }))).toEqual({ cancelled: true });
     const finished = await new Promise<Events['plan.finished']>((resolve) => {
       const t = setInterval(() => {

@@ -78,7 +78,7 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
     const before = await page.locator(`[data-grid=sources] [data-row="${src}"] [data-key=vMin]`).textContent();
     await typeInCell('sources', src!, 'vMin', '9 furlongs');
     const msg = page.locator('[data-grid=sources] ~ [data-testid=cell-error], [data-table=sources] [data-testid=cell-error]');
-    await expect.poll(() => msg.textContent()).toMatch(/sources › .* › vMin/);
+    await expect.poll(() => msg.textContent()).toMatch(/sources › .* › V min/);
     await shot('02-bad-value');
     await page.keyboard.press('Escape');
     expect(await page.locator(`[data-grid=sources] [data-row="${src}"] [data-key=vMin]`).textContent()).toBe(before);

@@ -81,7 +81,7 @@ describe('handlers validate every argument before use', () => {
       ['requirements.editCell', { table: 'nope', rowId: 'a', field: 'b', text: 'c' }, /table/],
       ['requirements.editCell', { table: 'sources', rowId: 'src-1', field: 'vMin', text: 5 }, /text/],
       ['requirements.editCell', { table: 'sources', rowId: 'src-1', field: 'vMin', text: '1', extra: 1 }, /extra|Unrecognized/i],
-      ['requirements.editCell', { table: 'sources', rowId: 'src-1', field: 'vMin', text: '12 parsecs' }, /sources › Input › vMin/],
+      ['requirements.editCell', { table: 'sources', rowId: 'src-1', field: 'vMin', text: '12 parsecs' }, /sources › Input › V min/],
       ['requirements.editCell', { table: 'sources', rowId: 'src-1', field: 'vMin', text: '1e400' }, /vMin/],
       ['requirements.editCell', { table: 'sources', rowId: 'src-1', field: '__proto__', text: '1' }, /no column/],
       ['project.open', { path: 42 }, /path/],
