@@ -91,7 +91,11 @@ export function bigPlan(req: Requirements): PlanResult {
       const tap: InternalNode = { id: `tap:${d.id}:${key}`, name: `${d.name} tap ${g.v} V (${key})`, domainId: d.id, voltage: g.v as Volts, kind: 'tap' };
       const imax = g.members.reduce((a, r) => a + railPeakCurrent(r), 0) * 1.02 + 0.001;
       const imin = g.members.reduce((a, r) => a + iMin(r), 0);
-      const r = designStage({ kind: 'cwbuck', ...base, outputs: [outSpec(pri.id, 5, 0.05, 0, 0.01, 0.1), outSpec(tap.id, g.v, 0.1, imin, imax, 0.1)] });
+      let r = designStage({ kind: 'cwbuck', ...base, outputs: [outSpec(pri.id, 5, 0.05, 0, 0.01, 0.1), outSpec(tap.id, g.v, 0.1, imin, imax, 0.1)] });
+      for (const tol of [0.15, 0.2, 0.25]) {
+        if (r.ok) break;
+        r = designStage({ kind: 'cwbuck', ...base, outputs: [outSpec(pri.id, 5, 0.05, 0, 0.01, 0.1), outSpec(tap.id, g.v, tol, imin, imax, 0.1)] });
+      }
       if (!r.ok) return false;
       nodes.push(pri, tap);
       stages.push({
