@@ -34,14 +34,23 @@ export function designedHandPlan(req: Requirements): PlanResult {
   const ldoOut = ro(ldo.outputs[0]!.nodeId);
   const designs: Record<string, unknown> = {
     [buck.id]: must({ kind: 'buck', ...base, outputs: [ro(buck.outputs[0]!.nodeId)] }),
-    [cw.id]: must({
-      kind: 'cwbuck', ...base,
-      outputs: [
-        ro(cw.outputs[0]!.nodeId), ro(cw.outputs[1]!.nodeId), ro(cw.outputs[2]!.nodeId),
-        // The tap feeds the LDO: its current is the LDO's input current (≈ its output current).
-        out('tap:sense:6v5', 6.5, 0.1, ldoOut.currentMin, (ldoOut.currentMax as number) + 0.001, 0.2),
-      ],
-    }),
+    [cw.id]: (() => {
+      // The tap only feeds the LDO: its band widens step by step if the designer finds no turns.
+      let last: Error | null = null;
+      for (const tapTol of [0.1, 0.15, 0.2]) {
+        try {
+          return must({
+            kind: 'cwbuck', ...base,
+            outputs: [
+              ro(cw.outputs[0]!.nodeId), ro(cw.outputs[1]!.nodeId), ro(cw.outputs[2]!.nodeId),
+              // The tap feeds the LDO: its current is the LDO's input current (≈ its output current).
+              out('tap:sense:6v5', 6.5, tapTol, ldoOut.currentMin, (ldoOut.currentMax as number) + 0.001, 0.2),
+            ],
+          });
+        } catch (e) { last = e as Error; }
+      }
+      throw last!;
+    })(),
     [ldo.id]: must({ kind: 'ldo', vinMin: 5.85 as Volts, vinNom: 6.5 as Volts, vinMax: 7.15 as Volts, vinRipple: 0.05 as Volts, outputs: [ldoOut], fsw: 400e3 as Hertz, ambient: req.limits.ambient, tjMax: req.limits.tjMax, ceramicDerating: req.limits.ceramicDerating }),
   };
   return handPlan(req, designs);
