@@ -42,8 +42,8 @@ function adoptStore(s: Session, store: ProjectStore, path: string | null, opts: 
     dirty: opts.dirty ?? store.dirty,
     recovered: opts.recovered ?? false,
   });
-  // A plan saved before later edits stays visible but marked stale.
-  if (saved?.stale && s.planResult) s.planResult.revision = -1;
+  // A plan saved before later edits stays visible but marked stale (its own revision).
+  if (saved?.stale && s.planResult) s.planResult.revision = Math.min(saved.revision, s.requirements.meta.revision - 1);
   if (old && old !== store) old.close();
 }
 

@@ -46,9 +46,9 @@ export function startPlanJob(s: Session): PlanJob {
       void s.serialise(() => {
         // Adopt only if the project is still the one planned (same requirements object).
         if (s.planJob?.jobId !== jobId) return;
-        result.revision = s.requirements.meta.revision;
+        // Edits made while planning leave the plan stale: it keeps the revision it was made at.
         const sameReq = JSON.stringify(req) === JSON.stringify(s.requirements);
-        if (!sameReq) result.revision = -1;
+        result.revision = sameReq ? s.requirements.meta.revision : req.meta.revision;
         s.planResult = result;
         s.plannedFrom = req;
         s.selectedId = result.best?.id ?? result.alternatives[0]?.id ?? null;

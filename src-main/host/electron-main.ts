@@ -72,31 +72,33 @@ async function choosePath(purpose: 'open-project' | 'save-project' | 'export', s
   return p;
 }
 
-/** Ask before dropping unsaved changes. True = go ahead. */
-function mayDiscard(): boolean {
+/** Ask before dropping unsaved changes; "Save" saves first. True = go ahead. */
+async function mayDiscard(): Promise<boolean> {
   if (!state?.dirty || !win) return true;
-  const r = dialog.showMessageBoxSync(win, {
+  const r = await dialog.showMessageBox(win, {
     type: 'question', buttons: ['Save', 'Discard changes', 'Cancel'], defaultId: 0, cancelId: 2,
     message: `"${state.name}" has unsaved changes.`, detail: 'Save them before going on?',
   });
-  if (r === 2) return false;
-  if (r === 0) void saveProject(false);
+  if (r.response === 2) return false;
+  if (r.response === 0) return saveProject(false);
   return true;
 }
 
-async function saveProject(as: boolean): Promise<void> {
+/** Save (or Save As); true when the project is saved. */
+async function saveProject(as: boolean): Promise<boolean> {
   let path = state?.path ?? null;
   if (as || !path) {
     path = await choosePath('save-project', `${(state?.name ?? 'project').replace(/[^\w.-]+/g, '-')}${PROJECT_EXTENSION}`);
-    if (!path) return;
+    if (!path) return false;
   }
   const r = await backend.request('project.save', as || !state?.path ? { path } : {});
   if (r.ok) setState(r.value as ProjectState);
   else dialog.showErrorBox('Railwright', r.error.message);
+  return r.ok;
 }
 
 async function importJson(): Promise<void> {
-  if (!mayDiscard()) return;
+  if (!(await mayDiscard())) return;
   const r = win ? await dialog.showOpenDialog(win, { properties: ['openFile'], filters: [{ name: 'JSON', extensions: ['json'] }] }) : null;
   const p = r && !r.canceled ? r.filePaths[0] : undefined;
   if (!p) return;
@@ -115,16 +117,16 @@ async function exportAs(kind: 'json' | 'bom-csv' | 'tree-svg', ext: string): Pro
 function buildMenu(): void {
   const recent: MenuItemConstructorOptions[] = (state?.recent ?? []).map((p) => ({
     label: p,
-    click: () => { if (mayDiscard()) { backend.approvePath(p); void call('project.open', { path: p, discard: true }); } },
+    click: async () => { if (await mayDiscard()) { backend.approvePath(p); await call('project.open', { path: p, discard: true }); } },
   }));
   const template: MenuItemConstructorOptions[] = [
     {
       label: 'File',
       submenu: [
-        { label: 'New', accelerator: 'CmdOrCtrl+N', click: () => { if (mayDiscard()) void call('project.new', { discard: true }); } },
-        { label: 'Open…', accelerator: 'CmdOrCtrl+O', click: async () => { if (!mayDiscard()) return; const p = await choosePath('open-project', ''); if (p) await call('project.open', { path: p, discard: true }); } },
+        { label: 'New', accelerator: 'CmdOrCtrl+N', click: async () => { if (await mayDiscard()) await call('project.new', { discard: true }); } },
+        { label: 'Open…', accelerator: 'CmdOrCtrl+O', click: async () => { if (!(await mayDiscard())) return; const p = await choosePath('open-project', ''); if (p) await call('project.open', { path: p, discard: true }); } },
         { label: 'Open Recent', submenu: recent.length ? recent : [{ label: 'No recent files', enabled: false }] },
-        { label: 'Open the Demo', click: () => { if (mayDiscard()) void call('project.openDemo', { discard: true }); } },
+        { label: 'Open the Demo', click: async () => { if (await mayDiscard()) await call('project.openDemo', { discard: true }); } },
         { type: 'separator' },
         { label: 'Save', accelerator: 'CmdOrCtrl+S', click: () => void saveProject(false) },
         { label: 'Save As…', accelerator: 'CmdOrCtrl+Shift+S', click: () => void saveProject(true) },
@@ -175,8 +177,15 @@ app.whenReady().then(async () => {
   const first = await backend.request('project.snapshot', {});
   if (first.ok) state = (first.value as Snapshot).state;
   win = new BrowserWindow(windowOptions(join(__dirname, 'preload.cjs')));
+  let closing = false;
   win.on('close', (e) => {
-    if (!quitting && !mayDiscard()) e.preventDefault();
+    if (closing || !state?.dirty) return;
+    e.preventDefault();
+    void mayDiscard().then((go) => {
+      if (!go) return;
+      closing = true;
+      win?.close();
+    });
   });
   win.once('ready-to-show', () => win?.show());
   if (state) setState(state);
