@@ -155,12 +155,6 @@ export class PlanSolver {
       case 'search': {
         if (!this.search) { this.nextSearch(); return !this.result; }
         const r = this.search.it.next();
-        if (this.search.objective === this.objective && this.search.out.best !== this.seenBest) {
-          this.seenBest = this.search.out.best;
-          const t = this.now() - this.t0;
-          this.firstFeasibleMs ??= t;
-          this.bestFoundMs = t;
-        }
         if (r.done) {
           this.recordSearch(r.value, true);
           this.search = null;
@@ -246,9 +240,6 @@ export class PlanSolver {
   }
 
   private pendingSeed: { blocks: Block[]; score: number } | null = null;
-  private seenBest: SearchOutcome['best'] = null;
-  private firstFeasibleMs: number | undefined;
-  private bestFoundMs: number | undefined;
 
   private recordSearch(out: SearchOutcome, finished: boolean): void {
     const s = this.search!;
@@ -318,11 +309,7 @@ export class PlanSolver {
       best,
       alternatives: plans,
       infeasible,
-      stats: {
-        explored: this.explored, provedOptimal, elapsedMs, cancelled: this.cancelled,
-        ...(best && this.firstFeasibleMs !== undefined ? { firstFeasibleMs: this.firstFeasibleMs } : {}),
-        ...(best && this.bestFoundMs !== undefined ? { bestFoundMs: this.bestFoundMs } : {}),
-      },
+      stats: { explored: this.explored, provedOptimal, elapsedMs, cancelled: this.cancelled },
     };
     this.progress = { ...this.progress, phase: 'done', fraction: 1, message: best ? 'plan ready' : (this.cancelled ? 'cancelled' : 'no feasible plan') };
     this.trace.push(`done in ${elapsedMs.toFixed(1)} ms: ${best ? `best weighted ${best.score.weighted.toFixed(4)}, ${plans.length} alternative(s)` : 'no plan'}${provedOptimal ? ', proved optimal' : ''}`);
