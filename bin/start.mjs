@@ -40,7 +40,7 @@ const electron = electronBinary();
 if (electron) {
   // Bundle the main process and the preload (the store runs in a plain Node child).
   run(process.execPath, [join(root, 'node_modules', 'tsx', 'dist', 'cli.mjs'), join(root, 'src-main', 'host', 'build-shell.ts')]);
-  const child = spawn(electron, [join(root, 'out', 'host', 'electron-main.js')], {
+  const child = spawn(electron, [join(root, 'out', 'host', 'electron-main.cjs')], {
     cwd: root,
     stdio: 'inherit',
     // The backend child must run under this Node (its better-sqlite3 build matches it).
