@@ -365,16 +365,16 @@ export interface PickOptions {
 
 const DEFAULT_PICK: PickOptions = { powerDerating: 0.5, electrolyticDerating: 0.8 };
 
-function eng(value: number, unit: string): string {
+function eng(value: number, unit: string, digits = 3): string {
   const prefixes: Array<[number, string]> = [[1e6, 'M'], [1e3, 'k'], [1, ''], [1e-3, 'm'], [1e-6, 'µ'], [1e-9, 'n'], [1e-12, 'p']];
   if (!(Math.abs(value) > 0) || !Number.isFinite(value)) return `${value} ${unit}`;
   for (const [s, p] of prefixes) {
     if (Math.abs(value) >= s * 0.9995) {
       const x = value / s;
-      return `${Number.parseFloat(x.toPrecision(3))} ${p}${unit}`;
+      return `${Number.parseFloat(x.toPrecision(digits))} ${p}${unit}`;
     }
   }
-  return `${Number.parseFloat(value.toPrecision(3))} ${unit}`;
+  return `${Number.parseFloat(value.toPrecision(digits))} ${unit}`;
 }
 
 interface CapLike { role: string; value: number; count: number; ratedVoltage: number; workingVoltage: number }
@@ -543,8 +543,8 @@ export function partsForStage(stageId: string, design: unknown, library: Library
     const samePkg = cheapest(library, 'ldo', (r) => fits(r) && strParam(r, 'package') === d.package?.name);
     const row = samePkg ?? cheapest(library, 'ldo', fits);
     picks.push(row
-      ? pickFromRow(stageId, neg ? 'negative LDO' : 'LDO', 'U', row, eng(out0.voltage, 'V'), `${numParam(row, 'iMax')} A, ${numParam(row, 'vinMax')} V in`, 1)
-      : missing(stageId, 'LDO', 'U', 'ldo', eng(out0.voltage, 'V'), `≥ ${eng(out0.currentMax, 'A')}, θJA ≤ ${d.package?.thetaJA ?? '—'} K/W`, 1,
+      ? pickFromRow(stageId, neg ? 'negative LDO' : 'LDO', 'U', row, eng(out0.voltage, 'V', 4), `${numParam(row, 'iMax')} A, ${numParam(row, 'vinMax')} V in`, 1)
+      : missing(stageId, 'LDO', 'U', 'ldo', eng(out0.voltage, 'V', 4), `≥ ${eng(out0.currentMax, 'A')}, θJA ≤ ${d.package?.thetaJA ?? '—'} K/W`, 1,
         `no ${neg ? 'negative ' : ''}LDO in the library carries ${eng(out0.currentMax, 'A')} from ${eng(vinMax, 'V')} with θJA ≤ ${d.package?.thetaJA} K/W`));
     if (d.cin) picks.push(pickCap(library, stageId, d.cin, o));
     if (d.cout) picks.push(pickCap(library, stageId, d.cout, o));

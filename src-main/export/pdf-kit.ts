@@ -103,8 +103,14 @@ export function table(doc: Doc, cols: Column[], rows: string[][], opts: { x?: nu
   const bottom = () => doc.page.height - doc.page.margins.bottom;
   const rowHeight = (cells: string[], font: string) => {
     doc.font(font).fontSize(size);
-    let h = 0;
-    cells.forEach((c, i) => { h = Math.max(h, doc.heightOfString(pdfText(c || ' '), { width: cols[i]!.width - 2 * pad })); });
+    const one = doc.currentLineHeight(true);
+    let h = one;
+    cells.forEach((c, i) => {
+      const t = pdfText(c || ' ');
+      const w = cols[i]!.width - 2 * pad;
+      // Measuring a wrapped height is slow; most cells fit on one line.
+      if (doc.widthOfString(t) > w || t.includes('\n')) h = Math.max(h, doc.heightOfString(t, { width: w }));
+    });
     return h + 2 * pad;
   };
   const drawRow = (cells: string[], y: number, font: string, fill: string | null) => {
