@@ -7,6 +7,7 @@ import { createHash } from 'node:crypto';
 import { canonicalJson } from '../../src-main/store/project-store.ts';
 import { generateProject } from '../../src-main/store/generate.ts';
 import type { Requirements } from '../../src-main/engine/model.ts';
+import type { Amps } from '../../src-main/engine/units.ts';
 
 export function killStates(loads: number): (k: number) => Requirements {
   const base = generateProject({ loads, seed: 11 }).requirements;
@@ -15,7 +16,7 @@ export function killStates(loads: number): (k: number) => Requirements {
     r.meta.name = `kill state ${k}`;
     r.meta.revision = k;
     r.loads.forEach((l, i) => {
-      for (const m of Object.keys(l.current)) l.current[m] = Math.round(l.current[m]! * (1 + ((k * 31 + i) % 97) / 100) * 1e6) / 1e6;
+      for (const m of Object.keys(l.current)) l.current[m] = (Math.round(l.current[m]! * (1 + ((k * 31 + i) % 97) / 100) * 1e6) / 1e6) as Amps;
     });
     return r;
   };
