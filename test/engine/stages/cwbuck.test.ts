@@ -101,7 +101,7 @@ describe('coupled-winding buck designer', () => {
   it('explains with numbers when no integer turns fit (coupling too loose)', () => {
     const r = designStage(spec([o('p5', 5, 0.05, 0.3, 0.03, 0.05), o('s12', 12, 0.05, 0.1, 0.05)], { coupling: 0.9 }));
     expect(r.ok).toBe(false);
-    expect(!r.ok && r.flags[0]!.text).toMatch(/no integer turns up to Np = 40 put s12 \(12 V ±5 %\) within tolerance .* best error -?\d/);
+    expect(!r.ok && r.flags[0]!.text).toMatch(/no integer turns up to Np = 40 keep s12 \(12 V ±5 %\) within tolerance: the centre of its band .* -?\d.* % off/);
   });
   it('flags: duty too high for good secondary regulation', () => {
     const r = designStage(spec([o('p5', 5, 0.05, 0.3, 0.03, 0.05), o('s12', 12, 0.01, 0.05, 0.15)], { vinMin: 7.5 as Volts, vinNom: 9 as Volts, vinMax: 10 as Volts }));
