@@ -33,6 +33,16 @@ describe('coupled-winding buck designer', () => {
       expect(Math.abs(ev.outputs[i]!.voltage - x.voltage) / Math.abs(x.voltage)).toBeLessThanOrEqual(x.tolerance);
     });
   });
+  it('where the tolerance leaves room, the chosen turns keep the whole worst-case window inside', () => {
+    const d = design(three);
+    const ws = stageWindows(d, { vin: [18, 24, 32] as Volts[], iout: d.outputs.map((x) => ({ min: x.currentMin, max: x.currentMax })) });
+    expect(ws[0]!.inside).toBe(true); // regulated primary: reference ±1 %, E96 ±1 % (common practice worst case)
+    expect(ws[1]!.inside).toBe(true);
+    expect(ws[2]!.inside).toBe(true);
+    // the unloaded isolated winding cannot: its window says so instead of the designer refusing
+    expect(ws[3]!.inside).toBe(false);
+    expect(ws[3]!.max).toBeGreaterThan(ws[3]!.allowedMax);
+  });
   it('uses the smallest primary turns that fit: one fewer primary turn cannot hit the targets as well', () => {
     const d = design(three);
     expect(d.primaryTurns).toBeGreaterThanOrEqual(3);
