@@ -21,13 +21,14 @@ function prim(p: Prim): string {
   }
 }
 
-export function sceneToSvg(scene: Scene): string {
+export function sceneToSvg(scene: Scene, title = 'Power tree'): string {
   const ids = scene.items;
   const body: string[] = [];
   for (const p of scene.prims) body.push(prim(p));
   return [
     '<?xml version="1.0" encoding="UTF-8"?>',
     `<svg xmlns="http://www.w3.org/2000/svg" width="${n2(scene.width)}" height="${n2(scene.height)}" viewBox="0 0 ${n2(scene.width)} ${n2(scene.height)}" font-family="DejaVu Sans, Liberation Sans, Arial, sans-serif">`,
+    `<title>${escapeXml(title)}</title>`,
     '<defs><marker id="rw-arrow" viewBox="0 0 8 8" refX="7.5" refY="4" markerWidth="7" markerHeight="7" orient="auto"><path d="M0,0 L8,4 L0,8 z" fill="#44515f"/></marker></defs>',
     `<metadata>${escapeXml(JSON.stringify({ generator: 'railwright', items: ids.length }))}</metadata>`,
     ...body,
@@ -41,5 +42,5 @@ export function sceneToSvg(scene: Scene): string {
 }
 
 export function treeToSvg(tree: LaidOutTree): string {
-  return sceneToSvg(buildScene(tree));
+  return sceneToSvg(buildScene(tree), `Power tree: ${tree.title}`);
 }
