@@ -17,6 +17,8 @@ export interface Prompt {
   confirm: string;
   /** Shown when the prompt is a yes/no question (no text field). */
   question?: boolean;
+  /** Values offered with one click (recent files). */
+  choices?: string[];
   resolve: (v: string | null) => void;
 }
 
