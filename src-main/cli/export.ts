@@ -125,6 +125,7 @@ const exportCmd: CliCommand = {
       const bundle = await prepareExport({ req, result, library: projectLibrary(store, io), elk: await elk(), modeId, replanned });
       for (const line of await writeAll(bundle, targets)) io.out(line);
       if (bundle.bom.problems.length) io.err(`note: ${bundle.bom.problems.length} part(s) have no fitting library row; they are listed without cost`);
+      for (const o of bundle.rollup.sourceOverloads) io.err(`note: ${o.text}`);
       const bad = bundle.rollup.windows.filter((w) => !w.inside);
       if (bad.length) io.err(`note: ${bad.length} window(s) fall outside their tolerance: ${bad.map((w) => w.name).join(', ')}`);
       io.err(CAUTION);

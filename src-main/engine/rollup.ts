@@ -135,6 +135,8 @@ export interface Rollup {
   flags: Array<{ stageId: Id; flag: StageFlag }>;
   /** Rails that no stage feeds (the plan is incomplete for them). */
   unfed: Id[];
+  /** Sources asked for more than their current limit in some mode and input case. */
+  sourceOverloads: Array<{ sourceId: Id; modeName: string; vinCase: VinCase; current: number; limit: number; text: string }>;
   worstBalanceError: number;
 }
 
@@ -363,11 +365,24 @@ export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models:
   const windows = computeWindows(ctx, modes);
   const fed = new Set(plan.stages.flatMap((s) => s.outputs.map((o) => o.nodeId)));
   const worstBalanceError = Math.max(0, ...modes.flatMap((m) => VIN_CASES.map((c) => m.cases[c].balanceError)));
+  const sourceOverloads: Rollup['sourceOverloads'] = [];
+  for (const s of req.sources) {
+    let worst: Rollup['sourceOverloads'][number] | null = null;
+    for (const mr of modes) for (const c of VIN_CASES) {
+      const i = mr.cases[c].sources[s.id]!.i;
+      if (i > s.currentLimit && (!worst || i > worst.current)) {
+        worst = { sourceId: s.id, modeName: mr.modeName, vinCase: c, current: i, limit: s.currentLimit,
+          text: `${s.name} must deliver ${i.toPrecision(3)} A in mode "${mr.modeName}" at Vin ${c} (${(c === 'min' ? s.vMin : c === 'max' ? s.vMax : s.vNom)} V), above its ${s.currentLimit} A limit` };
+      }
+    }
+    if (worst) sourceOverloads.push(worst);
+  }
   return {
     modes,
     weighted: { stages: wStages, sourcePower, loadPower, loss, efficiency: sourcePower > 0 ? loadPower / sourcePower : 0, sourceCurrent },
     thermal, windows, flags,
     unfed: rails.filter((r) => !fed.has(r.id)).map((r) => r.id),
+    sourceOverloads,
     worstBalanceError,
   };
 }

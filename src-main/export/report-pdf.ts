@@ -132,6 +132,7 @@ export async function reportToPdf(input: ReportInput): Promise<Uint8Array> {
     const sc = w.sourceCurrent[s.id]!;
     para(doc, `${s.name}: time-weighted current ${q(sc.min, 'A')} at Vin min ${q(s.vMin, 'V')}, ${q(sc.nom, 'A')} at nominal ${q(s.vNom, 'V')}, ${q(sc.max, 'A')} at Vin max ${q(s.vMax, 'V')}.`);
   }
+  for (const o of rollup.sourceOverloads) para(doc, `Source over its limit: ${o.text}.`, { bold: true, size: 8.5, color: '#b5452f' });
   for (const m of rollup.modes) {
     const c = m.cases.nom;
     para(doc, `Mode "${m.modeName}" (${fmtPct(m.share)} of the time): source ${q(c.sourcePower, 'W')}, loads ${q(c.loadPower, 'W')}, losses ${q(c.loss, 'W')}, efficiency ${fmtPct(c.efficiency)}; source current ${VIN_CASES.map((k) => `${q(Object.values(m.cases[k].sources)[0]?.i ?? 0, 'A')} (${k})`).join(', ')}.`, { bold: true, size: 8.5 });

@@ -143,6 +143,23 @@ describe('roll-up arithmetic', () => {
   });
 });
 
+describe('source current limit', () => {
+  it('flags a source asked for more than its limit, at its worst mode and input case', () => {
+    const req = handRequirements();
+    const pr = designedHandPlan(req);
+    expect(rollupPlan(req, pr.rails, pr.best!).sourceOverloads).toEqual([]);
+    req.sources[0]!.currentLimit = 0.15 as never;
+    const r = rollupPlan(req, pr.rails, pr.best!);
+    expect(r.sourceOverloads).toHaveLength(1);
+    const o = r.sourceOverloads[0]!;
+    // The worst case is the heaviest mode at the lowest input (most current for the same power).
+    expect(o.modeName).toBe('Run');
+    expect(o.vinCase).toBe('min');
+    expect(o.current).toBeCloseTo(r.modes.find((m) => m.modeId === 'run')!.cases.min.sources.src!.i, 12);
+    expect(o.text).toMatch(/24 V input must deliver .* A in mode "Run" at Vin min \(18 V\), above its 0.15 A limit/);
+  });
+});
+
 describe('roll-up refusals', () => {
   it('names a stage without a design, a loop, and an unknown input node', () => {
     const req = handRequirements();
