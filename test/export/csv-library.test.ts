@@ -73,6 +73,16 @@ describe('part library', () => {
     expect(validateLibrary(res.rows)).toEqual([]);
   });
 
+  it('keeps every default row generic: descriptive names, no part-number-like codes', () => {
+    const res = tableToRows(parse(text) as string[][]);
+    if (!res.ok) throw new Error('invalid');
+    for (const r of res.rows) {
+      // A part number typically runs two or more capitals into two or more digits (common practice).
+      expect(r.name, r.id).not.toMatch(/\b[A-Z]{2,}\d{2,}/);
+      expect(r.name, r.id).toMatch(/^(Buck|Synchronous|N-channel|LDO|Low-noise|Negative|Schottky|Ultrafast|Ceramic|Aluminium|Polymer|Thick-film|Shielded|Custom) /);
+    }
+  });
+
   it('round-trips table → rows → table → rows unchanged', () => {
     const a = tableToRows(readCsv(text));
     expect(a.ok).toBe(true);
