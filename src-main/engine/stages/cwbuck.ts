@@ -344,6 +344,20 @@ function regulatedPoint(d: CoupledBuckDesign, vin: number, iout: number[], opts:
   return best.duty > dmax ? coupledPoint(d, vin, iout, { ...opts, vPrimary: lo }) : best;
 }
 
+/** Output voltages (signed) and ripple only, for the windows: no losses, no flags. */
+export function coupledOutputs(d: CoupledBuckDesign, vin: number, iout: number[], opts: CoupledEvalOptions = {}): { voltage: number; ripplePP: number }[] {
+  const p = regulatedPoint(d, vin, iout, opts);
+  const fsw = d.fsw as number;
+  const ipri = Math.max(0, Math.abs(iout[0] ?? 0));
+  return [
+    { voltage: p.vpri, ripplePP: primaryRipple(p, ipri, d.cout, fsw) },
+    ...p.sec.map((s, i) => {
+      const w = d.secondaries[i]!;
+      return { voltage: Math.sign(w.turns) * s.vsec, ripplePP: s.qdef / w.cout.effective + w.cout.esr * s.ipk };
+    }),
+  ];
+}
+
 export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, opts: CoupledEvalOptions = {}): StageEvaluation {
   const vin = op.vin as number;
   const p = regulatedPoint(d, vin, op.iout as number[], opts);

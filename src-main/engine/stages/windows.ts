@@ -4,7 +4,9 @@
  * × every output at its smallest and its largest current (all 2^n combinations, so the
  *   cross-regulation between windings is covered)
  * × the tolerance extremes: reference and E96 divider resistors (setpoint low / high),
- *   rectifier drop (1 ∓ spread) for coupled windings, LDO accuracy ±;
+ *   rectifier drop (1 ∓ spread) for coupled windings, LDO accuracy ± (outputs rise with the
+ *   setpoint and fall with the drop, so "setpoint low, drop high" and "setpoint high, drop
+ *   low" bound every output);
  * and each output's value at a corner is its DC voltage ∓ half its peak-to-peak ripple.
  * An optional seeded Monte Carlo draws every quantity uniformly inside its range.
  */
@@ -12,7 +14,7 @@ import type { Amps, Celsius, Volts } from '../units.ts';
 import type { OutputSpec, OutputWindow } from './types.ts';
 import type { DividerChoice } from '../eseries.ts';
 import { buckAtDuty, buckPoint, evaluateBuck, type BuckDesign } from './buck.ts';
-import { evaluateCoupledBuck, type CoupledBuckDesign } from './cwbuck.ts';
+import { coupledOutputs, type CoupledBuckDesign } from './cwbuck.ts';
 import { ldoPoint, type LdoDesign } from './ldo.ts';
 import { mulberry32, r3 } from './common.ts';
 
@@ -63,8 +65,7 @@ function outputsAt(d: WindowDesign, vin: number, iout: number[], x: Draw): { lo:
   if (d.kind === 'cwbuck') {
     const sp = setpoint(d.divider, d.controller.vrefTolerance, x);
     const vfScale = 1 + d.secondaries.reduce((a, w) => Math.max(a, w.rectifier.vfSpread), 0) * x.vf;
-    const ev = evaluateCoupledBuck(d, { vin: vin as Volts, iout: iout as Amps[], ambient }, { vPrimary: sp, vfScale });
-    return ev.outputs.map((o) => {
+    return coupledOutputs(d, vin, iout, { vPrimary: sp, vfScale }).map((o) => {
       const m = Math.abs(o.voltage);
       return { lo: m - o.ripplePP / 2, hi: m + o.ripplePP / 2 };
     });
@@ -99,12 +100,13 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
   const hiAt = new Array<string>(n).fill('');
   const tolCases: { x: Draw; label: string }[] = [];
   const hasVf = d.kind === 'cwbuck';
+  // Every output rises with the setpoint and falls with the rectifier drop, so two cases
+  // bound them all: setpoint low with the drop high, and setpoint high with the drop low.
   for (const s of [-1, 1]) {
-    for (const f of hasVf ? [-1, 1] : [0]) {
-      const x: Draw = { vref: s, rTop: s, rBottom: -s, vf: f, accuracy: s };
-      const label = `${d.kind === 'ldo' ? 'accuracy' : 'reference and divider'} ${s < 0 ? 'low' : 'high'}${hasVf ? `, rectifier drop ${f < 0 ? 'low' : 'high'}` : ''}`;
-      tolCases.push({ x, label });
-    }
+    const f = hasVf ? -s : 0;
+    const x: Draw = { vref: s, rTop: s, rBottom: -s, vf: f, accuracy: s };
+    const label = `${d.kind === 'ldo' ? 'accuracy' : 'reference and divider'} ${s < 0 ? 'low' : 'high'}${hasVf ? `, rectifier drop ${f < 0 ? 'low' : 'high'}` : ''}`;
+    tolCases.push({ x, label });
   }
   for (const vin of corners.vin) {
     for (let mask = 0; mask < 1 << n; mask++) {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { designStage, evaluateStage, stageWindows, type CoupledBuckDesign } from '../../../src-main/engine/stages/index.ts';
-import { coupledPoint } from '../../../src-main/engine/stages/cwbuck.ts';
+import { coupledOutputs, coupledPoint } from '../../../src-main/engine/stages/cwbuck.ts';
 import { diodeVf } from '../../../src-main/engine/stages/defaults.ts';
 import { magneticSpec } from '../../../src-main/engine/magnetics.ts';
 import { buckNetlist, coupledBuckNetlist } from '../../../src-main/export/spice.ts';
@@ -130,6 +130,31 @@ describe('coupled-winding buck designer', () => {
     const flags = r.ok ? r.flags : r.flags;
     expect(flags.some((f) => f.code === 'too-many-windings')).toBe(true);
     expect(flags.some((f) => f.code === 'power-above-range')).toBe(true);
+  });
+  it('windows: the two tolerance cases bound all four (setpoint × rectifier drop) combinations', () => {
+    const d = design(three);
+    const vins = [18, 24, 32];
+    const ws = stageWindows(d, { vin: vins as Volts[], iout: d.outputs.map((x) => ({ min: x.currentMin, max: x.currentMax })) });
+    const { vref, rTop, rBottom } = d.divider;
+    const lo = new Array(4).fill(Infinity);
+    const hi = new Array(4).fill(-Infinity);
+    for (const vin of vins) for (let mask = 0; mask < 16; mask++) {
+      const iout = d.outputs.map((x, i) => (mask & (1 << i) ? x.currentMax : x.currentMin));
+      for (const sp of [-1, 1]) for (const vf of [0.9, 1.1]) {
+        // Vout = Vref·(1 + Rtop/Rbottom) at the tolerance corners (common practice worst case)
+        const vp = vref * (1 + sp * 0.01) * (1 + (rTop * (1 + sp * 0.01)) / (rBottom * (1 - sp * 0.01)));
+        coupledOutputs(d, vin, iout, { vPrimary: vp, vfScale: vf }).forEach((o, i) => {
+          const m = Math.abs(o.voltage);
+          lo[i] = Math.min(lo[i], m - o.ripplePP / 2);
+          hi[i] = Math.max(hi[i], m + o.ripplePP / 2);
+        });
+      }
+    }
+    // Equal to within 0.1 mV (the primary's ripple moves a few µV with the rectifier drop).
+    ws.forEach((w, i) => {
+      expect(Math.abs(Math.min(Math.abs(w.min), Math.abs(w.max)) - lo[i])).toBeLessThan(1e-4);
+      expect(Math.abs(Math.max(Math.abs(w.min), Math.abs(w.max)) - hi[i])).toBeLessThan(1e-4);
+    });
   });
   it('windows: worst case covers the Monte Carlo spread, which is reproducible by seed', () => {
     const d = design(three);
