@@ -69,6 +69,20 @@ describe('layout adapter (real elkjs output)', () => {
     expect(overlaps(laid.groups[0]!, laid.groups[1]!)).toBe(false);
   });
 
+  it('keeps edge labels off the nodes (drawn with roll-up figures on every edge)', async () => {
+    const req = handRequirements();
+    const pr = handPlan(req);
+    const figs = {
+      modeName: 'Run',
+      nodes: Object.fromEntries([...pr.rails.map((r) => r.id), 'src', 'tap:sense:6v5'].map((id) => [id, { v: 5, i: 0.123, p: 0.615 }])),
+      stages: Object.fromEntries(pr.best!.stages.map((s) => [s.id, { efficiency: 0.9, loss: 0.1, iin: 0.05, pin: 1.2 }])),
+    };
+    const laid = await layoutTree(buildTreeView(req, pr.rails, pr.best!, figs), elk);
+    const labelled = laid.edges.filter((e) => e.labelBox);
+    expect(labelled.length).toBeGreaterThanOrEqual(3 + 3);
+    for (const e of labelled) for (const n of laid.nodes) expect(overlaps(e.labelBox!, n), `${e.id} label over ${n.id}`).toBe(false);
+  });
+
   it('routes every edge from its source node to its target node', async () => {
     const req = handRequirements();
     const pr = handPlan(req);
