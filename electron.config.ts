@@ -18,7 +18,7 @@ export const WINDOW_WEB_PREFERENCES = {
 export const CONTENT_SECURITY_POLICY = [
   "default-src 'self'",
   "script-src 'self'",
-  "style-src 'self' 'unsafe-inline'",
+  "style-src 'self'",
   "img-src 'self' data:",
   "connect-src 'self'",
   "font-src 'self'",

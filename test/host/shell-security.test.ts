@@ -32,7 +32,7 @@ describe('window settings and content security policy', () => {
     expect(csp).toContain("default-src 'self'");
     expect(csp).toContain("script-src 'self'");
     expect(csp).toContain("object-src 'none'");
-    expect(csp).not.toMatch(/unsafe-eval|\*/);
+    expect(csp).not.toMatch(/unsafe-eval|unsafe-inline|\*/);
     expect(CONTENT_SECURITY_POLICY).toContain("frame-ancestors 'none'");
   });
 
