@@ -229,9 +229,8 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
     voff = vpri + ioff * (rls + rp);
     von = vin - vpri - im * (rhs + rp);
     const vfb = diodeVf(d.bodyDiode, Math.abs(im));
-    // Both dead times hold the switch node one body-diode drop below ground: while the
-    // secondaries conduct they clamp the windings, so the node cannot swing to Vin even when
-    // the primary current is negative (checked in ngspice).
+    // The dead time after the high side turns off holds the switch node one body-diode drop
+    // below ground; so does the one before it turns on while the primary current is positive.
     const vdead = vpri + vfb;
     // Second dead time with a negative primary current: the switch node flies to Vin + Vf
     // until the secondaries, through their leakage, have taken the primary current back to
@@ -248,6 +247,10 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
     // Volt-second balance on Lp:
     // D·Von = (1 − D − 2td)·Voff + (2td − tUp)·(Vpri + Vf) − tUp·(Vin + Vf − Vpri)
     duty = ((1 - 2 * tdf) * voff + (2 * tdf - upf) * vdead - upf * vm2) / (von + voff);
+    // Past the physical limit (input at or below the primary) keep the arithmetic finite; the
+    // caller sees a duty above the controller's maximum and regulates down.
+    if (!(von > 0) || !(von + voff > 0) || duty > 0.999) duty = 0.999;
+    else if (!(duty > 1e-4)) duty = 1e-4;
     dim = (von * duty) / (d.inductance * d.fsw);
     toff = (1 - duty) / d.fsw - tUp;
     // The primary winding current falls from the magnetizing peak to iend over the off-time;
