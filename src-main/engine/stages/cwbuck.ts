@@ -140,7 +140,9 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
   for (let it = 0; it < 6; it++) {
     const ipre = w.preload ? Math.max(0, vsec) / w.preload.resistance : 0;
     const isec = iload + ipre;
-    if (!(isec > 0)) {
+    // Below a nanoampere the winding is treated as unloaded (keeps the diode's small-signal
+    // resistance finite).
+    if (!(isec > 1e-9)) {
       sp = { n, llk, isec: 0, iload, ipre: 0, vsec: n * voff0, ipk: 0, irms: 0, iinf: 0, beta: 0, tau: 0, pRect: 0, qdef: 0 };
       if (Math.abs(sp.vsec - vsec) < 1e-12) break;
       vsec = sp.vsec;
@@ -252,7 +254,7 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
     if (!(von > 0) || !(von + voff > 0) || duty > 0.999) duty = 0.999;
     else if (!(duty > 1e-4)) duty = 1e-4;
     dim = (von * duty) / (d.inductance * d.fsw);
-    toff = (1 - duty) / d.fsw - tUp;
+    toff = Math.max((1 - duty) / d.fsw - tUp, (0.5 * (1 - duty)) / d.fsw);
     // The primary winding current falls from the magnetizing peak to iend over the off-time;
     // its drop across Rls + Rp makes the off-time drive fall linearly.
     const sl = ((im + dim / 2 - iend) * (rls + rp)) / toff;

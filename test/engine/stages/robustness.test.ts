@@ -59,4 +59,26 @@ describe('stage engine robustness', () => {
     // the property is not vacuous: every kind got designed several times
     for (const k of ['buck', 'cwbuck', 'ldo']) expect(designed[k], k).toBeGreaterThan(3);
   });
+  it('any operating point of a designed stage gives finite numbers, flagged when out of range', () => {
+    const designs = [
+      designStage({ kind: 'buck', vinMin: 10, vinNom: 12, vinMax: 14, fsw: 500e3, ambient: 25, tjMax: 125, ceramicDerating: 0.6,
+        outputs: [{ nodeId: 'a', voltage: 3.3, tolerance: 0.03, currentMin: 0.1, currentMax: 2, rippleLimit: 0.05 }] } as unknown as StageSpec),
+      designStage({ kind: 'cwbuck', vinMin: 18, vinNom: 24, vinMax: 32, fsw: 400e3, ambient: 25, tjMax: 125, ceramicDerating: 0.6,
+        outputs: [{ nodeId: 'p', voltage: 5, tolerance: 0.03, currentMin: 0.05, currentMax: 0.5, rippleLimit: 0.05 },
+          { nodeId: 's', voltage: 12, tolerance: 0.08, currentMin: 0.01, currentMax: 0.15, rippleLimit: 0.1 },
+          { nodeId: 'n', voltage: -12, tolerance: 0.08, currentMin: 0.01, currentMax: 0.1, rippleLimit: 0.1 }] } as unknown as StageSpec),
+    ].map((r) => { if (!r.ok) throw new Error('design'); return r.design; });
+    fc.assert(fc.property(
+      fc.constantFrom(0, 1), fc.double({ min: 0.1, max: 200, noNaN: true }), fc.array(fc.double({ min: 0, max: 20, noNaN: true }), { minLength: 3, maxLength: 3 }),
+      (k, vin, cur) => {
+        const d = designs[k]!;
+        const ev = evaluateStage(d, { vin: vin as Volts, iout: cur.slice(0, d.outputs.length) as Amps[], ambient: 25 as Celsius });
+        for (const x of [ev.pin, ev.pout, ev.loss, ev.efficiency, ...ev.outputs.map((o) => o.voltage), ...ev.outputs.map((o) => o.ripplePP)]) {
+          expect(Number.isFinite(x)).toBe(true);
+        }
+        // an output short of its setpoint by more than 1 % always comes with an error flag
+        const short = ev.outputs.some((o, i) => Math.abs(o.voltage) < 0.99 * Math.abs(d.outputs[i]!.voltage) && i === 0);
+        if (short) expect(ev.flags.some((f) => f.severity === 'error')).toBe(true);
+      }), { numRuns: 150, seed: 7 });
+  });
 });
