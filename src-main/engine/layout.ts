@@ -85,6 +85,8 @@ export interface TreeGroup {
 export interface TreeView {
   title: string;
   subtitle: string;
+  /** Operating mode whose figures are shown, if any. */
+  modeName: string | null;
   nodes: TreeNode[];
   edges: TreeEdge[];
   groups: TreeGroup[];
@@ -187,6 +189,7 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
   return {
     title: req.meta.name || 'Power tree',
     subtitle: f ? `Figures for operating mode "${f.modeName}"` : 'Nominal voltages (no roll-up figures)',
+    modeName: f ? f.modeName : null,
     nodes,
     edges: okEdges,
     groups,
@@ -233,6 +236,7 @@ export interface LaidOutGroup extends TreeGroup, Box {}
 export interface LaidOutTree {
   title: string;
   subtitle: string;
+  modeName: string | null;
   width: number;
   height: number;
   nodes: LaidOutNode[];
@@ -355,7 +359,7 @@ export async function layoutTree(view: TreeView, elk: ElkLike): Promise<LaidOutT
     edges.push({ ...te, points, labelBox });
   }
   const root = abs.get('root')!;
-  return { title: view.title, subtitle: view.subtitle, width: root.width, height: root.height, nodes, edges, groups };
+  return { title: view.title, subtitle: view.subtitle, modeName: view.modeName, width: root.width, height: root.height, nodes, edges, groups };
 }
 
 /** Where a polyline first enters a box (for drawing the barrier mark on a crossing edge). */

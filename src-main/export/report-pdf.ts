@@ -113,7 +113,7 @@ export async function reportToPdf(input: ReportInput): Promise<Uint8Array> {
   const y0 = doc.y;
   drawScene(doc, scene, 42, y0, scale);
   doc.y = y0 + scene.height * scale + 8;
-  para(doc, `Dashed outlines mark galvanic barriers; bars across an edge mark a winding that crosses one. Figures are for the mode "${input.tree.subtitle.replace(/^.*"(.*)".*$/, '$1')}" at nominal input.`, { size: 8, color: '#5b6878' });
+  para(doc, `Dashed outlines mark galvanic barriers; bars across an edge mark a winding that crosses one. ${input.tree.modeName ? `Figures are for the mode "${input.tree.modeName}" at nominal input.` : 'No roll-up figures.'}`, { size: 8, color: '#5b6878' });
 
   // 3 Reasons (back to portrait)
   doc.addPage({ size: 'A4', layout: 'portrait', margin: 42 });
@@ -135,7 +135,7 @@ export async function reportToPdf(input: ReportInput): Promise<Uint8Array> {
   for (const o of rollup.sourceOverloads) para(doc, `Source over its limit: ${o.text}.`, { bold: true, size: 8.5, color: '#b5452f' });
   for (const m of rollup.modes) {
     const c = m.cases.nom;
-    para(doc, `Mode "${m.modeName}" (${fmtPct(m.share)} of the time): source ${q(c.sourcePower, 'W')}, loads ${q(c.loadPower, 'W')}, losses ${q(c.loss, 'W')}, efficiency ${fmtPct(c.efficiency)}; source current ${VIN_CASES.map((k) => `${q(Object.values(m.cases[k].sources)[0]?.i ?? 0, 'A')} (${k})`).join(', ')}.`, { bold: true, size: 8.5 });
+    para(doc, `Mode "${m.modeName}" (${fmtPct(m.share)} of the time): source ${q(c.sourcePower, 'W')}, loads ${q(c.loadPower, 'W')}, losses ${q(c.loss, 'W')}, efficiency ${fmtPct(c.efficiency)}; source current ${req.sources.map((src) => `${req.sources.length > 1 ? `${src.name} ` : ''}${VIN_CASES.map((k) => `${q(m.cases[k].sources[src.id]?.i ?? 0, 'A')} (${k})`).join(', ')}`).join('; ')}.`, { bold: true, size: 8.5 });
     table(doc, [
       { header: 'Stage', width: 120 }, { header: 'Vin', width: 55, align: 'right' }, { header: 'Iin', width: 55, align: 'right' },
       { header: 'Pin', width: 60, align: 'right' }, { header: 'Pout', width: 60, align: 'right' }, { header: 'Loss', width: 60, align: 'right' },
