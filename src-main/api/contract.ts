@@ -172,6 +172,8 @@ export interface PlanView {
   bom: BomView | null;
   /** What could not be computed and why (a missing module, an evaluation error). */
   notes: string[];
+  /** Mode whose figures are drawn on the tree; null = the heaviest mode. */
+  drawingModeId: Id | null;
 }
 
 export interface Snapshot {
@@ -227,6 +229,8 @@ export interface Requests {
   'plan.start': (args: Record<string, never>) => PlanJob;
   'plan.cancel': (args: { jobId: string }) => { cancelled: boolean };
   'plan.select': (args: { planId: Id }) => Snapshot;
+  /** Operating mode whose figures the tree shows (null = the mode with the most load power). */
+  'plan.drawingMode': (args: { modeId: Id | null }) => Snapshot;
 
   'library.get': (args: Record<string, never>) => LibraryView;
 

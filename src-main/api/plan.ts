@@ -15,6 +15,11 @@ export const planHandlers = {
     s.planJob.abort.abort();
     return { cancelled: true };
   }),
+  'plan.drawingMode': handler('plan.drawingMode', z.object({ modeId: z.string().min(1).max(200).nullable() }).strict(), (s: Session, a) => {
+    if (a.modeId !== null && !s.requirements.modes.some((m) => m.id === a.modeId)) throw new ApiFailure(`modeId: no operating mode "${a.modeId}"`, 'modeId');
+    s.drawingModeId = a.modeId;
+    return buildSnapshot(s);
+  }),
   'plan.select': handler('plan.select', z.object({ planId: z.string().min(1).max(200) }).strict(), (s: Session, a) => {
     const r = s.planResult;
     if (!r) throw new ApiFailure('planId: there is no plan yet (run the planner first)', 'planId');

@@ -51,6 +51,8 @@ export class Session {
   library: unknown = null;
   planResult: PlanResult | null = null;
   selectedId: Id | null = null;
+  /** Mode whose figures the drawing shows (null = heaviest). */
+  drawingModeId: Id | null = null;
   /** Requirements revision the plan result was computed at. */
   path: string | null = null;
   dirty = false;

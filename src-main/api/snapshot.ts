@@ -98,13 +98,14 @@ export async function buildPlanView(s: Session): Promise<PlanView | null> {
       notes.push(`BOM: ${(e as Error).message}`);
     }
     try {
-      layout = await computeLayout(s, selected, treeFigures(s, rollup));
+      const mode = s.drawingModeId && s.requirements.modes.some((m) => m.id === s.drawingModeId) ? s.drawingModeId : undefined;
+      layout = await computeLayout(s, selected, treeFigures(s, rollup, mode));
     } catch (e) {
       notes.push(`Drawing: ${(e as Error).message}`);
     }
   }
   if (rollup) notes.push(...rollup.view.messages);
-  return { result, selectedId: selected?.id ?? null, selected, stale: s.planStale(), rollup: rollup?.view ?? null, layout, bom, notes };
+  return { result, selectedId: selected?.id ?? null, selected, stale: s.planStale(), rollup: rollup?.view ?? null, layout, bom, notes, drawingModeId: s.drawingModeId };
 }
 
 export async function buildSnapshot(s: Session): Promise<Snapshot> {

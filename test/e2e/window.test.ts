@@ -112,6 +112,16 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
     expect(await page.locator('[data-kind=rail]').count()).toBeGreaterThan(3);
     await page.waitForTimeout(300);
     await shot('03-tree');
+    // The figures on the drawing follow the chosen operating mode; the blocks stay put.
+    const source = page.locator('[data-kind=source]').first();
+    const modes = page.locator('[data-drawmode]');
+    expect(await modes.count()).toBeGreaterThan(1);
+    await modes.nth(0).click();
+    const first = await source.textContent();
+    const box = await source.locator('rect').getAttribute('x');
+    await modes.nth(2).click();
+    await expect.poll(() => source.textContent()).not.toBe(first);
+    expect(await source.locator('rect').getAttribute('x')).toBe(box);
   });
 
   it('inspects a stage: numbers, window and reasons', async () => {
