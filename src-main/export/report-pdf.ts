@@ -132,6 +132,7 @@ export async function reportToPdf(input: ReportInput): Promise<Uint8Array> {
     const sc = w.sourceCurrent[s.id]!;
     para(doc, `${s.name}: time-weighted current ${q(sc.min, 'A')} at Vin min ${q(s.vMin, 'V')}, ${q(sc.nom, 'A')} at nominal ${q(s.vNom, 'V')}, ${q(sc.max, 'A')} at Vin max ${q(s.vMax, 'V')}.`);
   }
+  if (rollup.unfed.length) para(doc, `Rails no stage of this plan feeds (left out of the figures): ${rollup.unfed.map((id) => railName.get(id) ?? id).join(', ')}.`, { bold: true, size: 8.5, color: '#b5452f' });
   for (const o of rollup.sourceOverloads) para(doc, `Source over its limit: ${o.text}.`, { bold: true, size: 8.5, color: '#b5452f' });
   for (const m of rollup.modes) {
     const c = m.cases.nom;
