@@ -96,5 +96,11 @@ export interface PlanResult {
   /** Pareto alternatives (including the best), each complete. */
   alternatives: Plan[];
   infeasible: Infeasibility[];
-  stats: { explored: number; provedOptimal: boolean; elapsedMs: number; cancelled: boolean };
+  stats: {
+    explored: number; provedOptimal: boolean; elapsedMs: number; cancelled: boolean;
+    /** When the first complete feasible tree was found (ms from the start), if any. */
+    firstFeasibleMs?: number;
+    /** When the returned best tree was found (ms from the start), if any. */
+    bestFoundMs?: number;
+  };
 }

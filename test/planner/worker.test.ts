@@ -12,7 +12,7 @@ describe('runPlanInWorker', () => {
     const progress: PlanProgress[] = [];
     const viaWorker = await runPlanInWorker(req, { budgetMs: 120_000 }, (p) => progress.push(p));
     const direct = new PlanSolver(req, { evaluator: engineEvaluator(), budgetMs: 120_000 }).solve();
-    const strip = (r: typeof direct) => JSON.stringify({ ...r, stats: { ...r.stats, elapsedMs: 0 } });
+    const strip = (r: typeof direct) => JSON.stringify({ ...r, stats: { ...r.stats, elapsedMs: 0, firstFeasibleMs: 0, bestFoundMs: 0 } });
     expect(strip(viaWorker)).toBe(strip(direct));
     expect(viaWorker.revision).toBe(req.meta.revision);
     for (const p of progress) expect(['rails', 'candidates', 'search', 'done']).toContain(p.phase);

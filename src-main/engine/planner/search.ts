@@ -37,7 +37,8 @@ export interface SearchOutcome {
 interface Frame {
   rem: number;
   partial: number;
-  options: { block: Block; bound: number }[];
+  /** `i` is the block's position in the list this search was given. */
+  options: { block: Block; i: number; bound: number }[];
   next: number;
 }
 
@@ -102,7 +103,7 @@ export function* branchAndBound(
       const m = mask[i]!;
       if ((m & rem) >>> 0 !== m) continue;
       const b = partial + score[i]! + bound((rem & ~m) >>> 0);
-      if (b < incumbent - EPS) options.push({ block: blocks[i]!, bound: b });
+      if (b < incumbent - EPS) options.push({ block: blocks[i]!, i, bound: b });
     }
     options.sort((a, b) => a.bound - b.bound || (a.block.key < b.block.key ? -1 : 1));
     return { rem, partial, options, next: 0 };
@@ -119,7 +120,7 @@ export function* branchAndBound(
     const opt = top.options[top.next++]!;
     if (opt.bound >= incumbent - EPS) { top.next = top.options.length; continue; }
     out.explored++;
-    const rem = (top.rem & ~mask[opt.block.index]!) >>> 0;
+    const rem = (top.rem & ~mask[opt.i]!) >>> 0;
     // Exact score of the chosen blocks with the load they put on each other so far (a lower
     // bound of their final score: loads only grow as more blocks are chosen).
     chosen.push(opt.block);

@@ -55,6 +55,11 @@ export const EXACT_RAILS = 12;
 /** Safety cap of an exact run (it never hangs). */
 export const EXACT_SEARCH_CAP_MS = 120_000;
 
+/** Node cap of the source-only seeding search. */
+const SEED_SEARCH_NODES = 20_000;
+
+interface Seed { blocks: Block[]; score: number; sel: SelectionEval }
+
 const LABEL_OF: Record<Objective, PlanLabel> = { loss: 'lowest-loss', cost: 'lowest-cost', parts: 'fewest-parts', balanced: 'balanced' };
 
 export class PlanSolver {
@@ -155,6 +160,12 @@ export class PlanSolver {
       case 'search': {
         if (!this.search) { this.nextSearch(); return !this.result; }
         const r = this.search.it.next();
+        if (this.search.objective === this.objective && this.search.out.best !== this.seenBest) {
+          this.seenBest = this.search.out.best;
+          const t = this.now() - this.t0;
+          this.firstFeasibleMs ??= t;
+          this.bestFoundMs = t;
+        }
         if (r.done) {
           this.recordSearch(r.value, true);
           this.search = null;
@@ -228,10 +239,22 @@ export class PlanSolver {
     const remaining = Math.max(0, this.deadline - this.now());
     const share = remaining / (this.queue.length + 1);
     // Seed with the best plan found for an earlier objective, rescored under this one.
-    let seed: { blocks: Block[]; score: number } | null = null;
+    let seed: Seed | null = null;
     for (const v of this.found.values()) {
       const s = v.sel.evals.reduce((a, e) => a + scorer.score(e), 0);
-      if (!seed || s < seed.score) seed = { blocks: v.blocks, score: s };
+      if (!seed || s < seed.score) seed = { blocks: v.blocks, score: s, sel: v.sel };
+    }
+    // And with the best tree that draws every stage from a source: no coupling between its
+    // stages, so its additive optimum is found fast, and it bounds the full search from above.
+    const sourceOnly = this.blocks.filter((b) => b.shape.input.kind === 'source');
+    if (sourceOnly.length) {
+      const o: SearchOutcome = { best: null, explored: 0, leaves: 0, complete: false, leafFailures: new Map() };
+      const it = branchAndBound(f, sourceOnly, scorer, seed, o);
+      for (let k = 0; k < SEED_SEARCH_NODES && !it.next().done; k++) { /* bounded */ }
+      if (o.best && (!seed || o.best.score < seed.score)) {
+        seed = { blocks: o.best.blocks, score: o.best.score, sel: o.best.sel };
+        this.trace.push(`objective ${obj}: a tree fed only from the sources scores ${o.best.score.toFixed(4)} (${o.explored} nodes); it seeds the search`);
+      }
     }
     const out: SearchOutcome = { best: null, explored: 0, leaves: 0, complete: false, leafFailures: new Map() };
     this.search = { objective: obj, scorer, it: branchAndBound(f, this.blocks, scorer, seed, out), deadline: this.now() + share, out };
@@ -239,7 +262,10 @@ export class PlanSolver {
     this.pendingSeed = seed;
   }
 
-  private pendingSeed: { blocks: Block[]; score: number } | null = null;
+  private pendingSeed: Seed | null = null;
+  private seenBest: SearchOutcome['best'] = null;
+  private firstFeasibleMs: number | undefined;
+  private bestFoundMs: number | undefined;
 
   private recordSearch(out: SearchOutcome, finished: boolean): void {
     const s = this.search!;
@@ -250,9 +276,8 @@ export class PlanSolver {
     if (!finished || !out.complete) this.allComplete = false;
     let chosen = out.best ? { blocks: out.best.blocks, sel: out.best.sel } : null;
     if (!chosen && this.pendingSeed) {
-      // The seed was already optimal for this objective.
-      const prev = [...this.found.values()].find((v) => v.blocks === this.pendingSeed!.blocks);
-      if (prev) chosen = { blocks: prev.blocks, sel: prev.sel };
+      // Nothing beat the seed: it is the best for this objective.
+      chosen = { blocks: this.pendingSeed.blocks, sel: this.pendingSeed.sel };
     }
     if (chosen) {
       this.found.set(s.objective, { ...chosen, complete: finished && out.complete, scorer: s.scorer });
@@ -309,7 +334,11 @@ export class PlanSolver {
       best,
       alternatives: plans,
       infeasible,
-      stats: { explored: this.explored, provedOptimal, elapsedMs, cancelled: this.cancelled },
+      stats: {
+        explored: this.explored, provedOptimal, elapsedMs, cancelled: this.cancelled,
+        ...(best && this.firstFeasibleMs !== undefined ? { firstFeasibleMs: this.firstFeasibleMs } : {}),
+        ...(best && this.bestFoundMs !== undefined ? { bestFoundMs: this.bestFoundMs } : {}),
+      },
     };
     this.progress = { ...this.progress, phase: 'done', fraction: 1, message: best ? 'plan ready' : (this.cancelled ? 'cancelled' : 'no feasible plan') };
     this.trace.push(`done in ${elapsedMs.toFixed(1)} ms: ${best ? `best weighted ${best.score.weighted.toFixed(4)}, ${plans.length} alternative(s)` : 'no plan'}${provedOptimal ? ', proved optimal' : ''}`);
