@@ -9,7 +9,7 @@ import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts'
 import { OpenError, PROJECT_EXTENSION, ProjectStore, StoreError, writeFileAtomic } from '../store/project-store.ts';
 import type { PlanResult } from '../engine/plan-types.ts';
 import type { PartLibraryRow } from '../engine/model.ts';
-import { describeProblem, fromStoreRows, rowsToTable, tableToRows, toStoreRows, type LibraryRow } from '../engine/library.ts';
+import { describeProblem, fromStoreRows, libraryCostModel, rowsToTable, tableToRows, toStoreRows, type LibraryRow } from '../engine/library.ts';
 import { plan as planProject } from '../engine/planner/solver.ts';
 import { engineEvaluator } from '../engine/planner/evaluator.ts';
 import { readCsv, writeCsv, CsvError } from '../export/csv.ts';
@@ -104,6 +104,7 @@ const exportCmd: CliCommand = {
         io.out(`wrote ${libCsv}`);
       }
       if (Object.keys(targets).length === 0) return 0;
+      const library = projectLibrary(store, io);
       const saved = store.getPlanResult();
       let result: PlanResult;
       let replanned = false;
@@ -112,7 +113,7 @@ const exportCmd: CliCommand = {
       } else {
         io.err(saved ? (saved.stale ? 'the saved plan is stale (the requirements changed since); planning again for this export' : 'the saved plan has no feasible tree; planning again for this export')
           : 'the project has no saved plan; planning it for this export');
-        result = planProject(req, { evaluator: engineEvaluator() });
+        result = planProject(req, { evaluator: engineEvaluator(), costModel: libraryCostModel(library) });
         replanned = true;
       }
       const modeFlag = flags.mode as string | undefined;
@@ -122,7 +123,7 @@ const exportCmd: CliCommand = {
         if (!m) throw new CliError(`--mode ${modeFlag}: no such operating mode (${req.modes.map((x) => x.name).join(', ')})`, 2);
         modeId = m.id;
       }
-      const bundle = await prepareExport({ req, result, library: projectLibrary(store, io), elk: await elk(), modeId, replanned });
+      const bundle = await prepareExport({ req, result, library, elk: await elk(), modeId, replanned });
       for (const line of await writeAll(bundle, targets)) io.out(line);
       if (bundle.bom.problems.length) io.err(`note: ${bundle.bom.problems.length} part(s) have no fitting library row; they are listed without cost`);
       for (const o of bundle.rollup.sourceOverloads) io.err(`note: ${o.text}`);

@@ -10,6 +10,7 @@
 import type { PartLibraryRow } from './model.ts';
 import { magneticSpec } from './magnetics.ts';
 import type { CoupledBuckDesign } from './stages/index.ts';
+import type { CostModel, PartCounts } from './planner/types.ts';
 
 export type PartClass =
   | 'controller'
@@ -551,4 +552,46 @@ export function partsForStage(stageId: string, design: unknown, library: Library
     return picks;
   }
   return [missing(stageId, `stage of kind ${String(d.kind)}`, 'U', 'controller', '', '', 1, `no part mapping for stage kind ${String(d.kind)}`)];
+}
+
+// ---------------------------------------------------------------------------------------
+// The library as the planner's cost model
+
+/** Median unit cost of the rows of some classes (0 when the library has none). */
+function medianCost(library: LibraryRow[], classes: PartClass[], extra: (r: LibraryRow) => number = () => 0): number {
+  const xs = library.filter((r) => classes.includes(r.partClass)).map((r) => r.cost + extra(r)).sort((a, b) => a - b);
+  if (xs.length === 0) return 0;
+  const m = Math.floor(xs.length / 2);
+  return xs.length % 2 ? xs[m]! : (xs[m - 1]! + xs[m]!) / 2;
+}
+
+/**
+ * Unit prices per planner part category taken from the library (the median row of each
+ * class, a custom magnetic with two secondaries), so the planner ranks plans with the
+ * project's own prices. The planner counts parts by category; the BOM then picks the rows.
+ */
+export function libraryUnitCosts(library: LibraryRow[]): Record<keyof PartCounts, number> {
+  return {
+    controller: medianCost(library, ['controller']),
+    switch: medianCost(library, ['switch']),
+    magnetic: medianCost(library, ['inductor']),
+    coupledMagnetic: medianCost(library, ['magnetic-custom'], (r) => 2 * numParam(r, 'costPerWinding', 0)),
+    rectifier: medianCost(library, ['rectifier']),
+    capacitor: medianCost(library, ['cap-ceramic']),
+    resistor: medianCost(library, ['resistor']),
+    ldo: medianCost(library, ['ldo']),
+  };
+}
+
+/** A planner cost model priced from the library (see libraryUnitCosts). */
+export function libraryCostModel(library: LibraryRow[]): CostModel {
+  const unit = libraryUnitCosts(library);
+  const price = (p: PartCounts) => {
+    let c = 0;
+    for (const k of Object.keys(unit) as (keyof PartCounts)[]) c += (p[k] ?? 0) * unit[k];
+    return Math.round(c * 1e6) / 1e6;
+  };
+  // Reference stage: a synchronous buck (controller, two switches, inductor, four capacitors, divider).
+  const ref: PartCounts = { controller: 1, switch: 2, magnetic: 1, coupledMagnetic: 0, rectifier: 0, capacitor: 4, resistor: 2, ldo: 0 };
+  return { cost: (p) => price(p), referenceStageCost: price(ref) || 1, referenceStageParts: 10 };
 }
