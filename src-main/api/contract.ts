@@ -150,6 +150,8 @@ export interface BomLineView {
   unitCost: number;
   extended: number;
   estimate: boolean;
+  /** Why the line has no library part or no cost (null when it is fine). */
+  problem: string | null;
 }
 
 export interface BomView {
