@@ -524,6 +524,7 @@ export class BlockFactory {
       localId: 's0', kind: 'cwbuck', name: `Coupled-winding buck ${primaryName}`, inputNode: 'input', outputs, barriers, design: run.design, spec,
     });
     let parts = stageParts('cwbuck', shape.secondaries.length);
+    parts.barrier = barriers.length;
     const lossPerMode: number[] = run.perMode.map((e) => e.loss);
     const windows: OutputWindow[] = [];
     run.windows.forEach((w, i) => { if (i === 0 ? shape.primary !== null : !taps.has(shape.secondaries[i - 1]!)) windows.push(w); });

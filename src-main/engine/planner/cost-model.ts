@@ -18,10 +18,12 @@ export const INVENTED_UNIT_COST: Readonly<Record<keyof PartCounts, number>> = {
   capacitor: 0.03,
   resistor: 0.005,
   ldo: 0.22,
+  /** Insulation system of one barrier on a magnetic (invented estimate). */
+  barrier: 0.6,
 };
 
 export function emptyParts(): PartCounts {
-  return { controller: 0, switch: 0, magnetic: 0, coupledMagnetic: 0, rectifier: 0, capacitor: 0, resistor: 0, ldo: 0 };
+  return { controller: 0, switch: 0, magnetic: 0, coupledMagnetic: 0, rectifier: 0, capacitor: 0, resistor: 0, ldo: 0, barrier: 0 };
 }
 
 export function addParts(a: PartCounts, b: PartCounts): PartCounts {
@@ -30,15 +32,16 @@ export function addParts(a: PartCounts, b: PartCounts): PartCounts {
   return out;
 }
 
+/** Number of parts (barriers are priced, not counted). */
 export function countParts(p: PartCounts): number {
   let n = 0;
-  for (const k of Object.keys(p) as (keyof PartCounts)[]) n += p[k];
+  for (const k of Object.keys(p) as (keyof PartCounts)[]) if (k !== 'barrier') n += p[k];
   return n;
 }
 
 /** Parts of a typical synchronous buck: controller, two switches, inductor, in/out caps, divider. */
 export const TYPICAL_BUCK_PARTS: PartCounts = {
-  controller: 1, switch: 2, magnetic: 1, coupledMagnetic: 0, rectifier: 0, capacitor: 4, resistor: 2, ldo: 0,
+  controller: 1, switch: 2, magnetic: 1, coupledMagnetic: 0, rectifier: 0, capacitor: 4, resistor: 2, ldo: 0, barrier: 0,
 };
 
 export function priceParts(p: PartCounts, unit: Readonly<Record<keyof PartCounts, number>>): number {

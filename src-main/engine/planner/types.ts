@@ -31,6 +31,11 @@ export interface PartCounts {
   capacitor: number;
   resistor: number;
   ldo: number;
+  /**
+   * Galvanic barriers a magnetic crosses (one per isolated domain it feeds). Not a part: it
+   * prices the insulation system (insulated winding wire, bobbin, Y-capacitor, qualification).
+   */
+  barrier: number;
 }
 
 /** Prices parts. Invented default in cost-model.ts; the part library may replace it. */
