@@ -11,6 +11,7 @@ import type { PartLibraryRow } from './model.ts';
 import { magneticSpec } from './magnetics.ts';
 import type { CoupledBuckDesign } from './stages/index.ts';
 import type { CostModel, PartCounts } from './planner/types.ts';
+import { INVENTED_UNIT_COST, TYPICAL_BUCK_PARTS } from './planner/cost-model.ts';
 
 export type PartClass =
   | 'controller'
@@ -569,9 +570,12 @@ function medianCost(library: LibraryRow[], classes: PartClass[], extra: (r: Libr
  * Unit prices per planner part category taken from the library (the median row of each
  * class, a custom magnetic with two secondaries), so the planner ranks plans with the
  * project's own prices. The planner counts parts by category; the BOM then picks the rows.
+ * Categories the library has no class for (such as the insulation system of a barrier) keep
+ * the planner's invented estimate.
  */
 export function libraryUnitCosts(library: LibraryRow[]): Record<keyof PartCounts, number> {
   return {
+    ...INVENTED_UNIT_COST,
     controller: medianCost(library, ['controller']),
     switch: medianCost(library, ['switch']),
     magnetic: medianCost(library, ['inductor']),
@@ -588,10 +592,10 @@ export function libraryCostModel(library: LibraryRow[]): CostModel {
   const unit = libraryUnitCosts(library);
   const price = (p: PartCounts) => {
     let c = 0;
-    for (const k of Object.keys(unit) as (keyof PartCounts)[]) c += (p[k] ?? 0) * unit[k];
+    for (const k of Object.keys(p) as (keyof PartCounts)[]) c += (p[k] ?? 0) * (unit[k] ?? 0);
     return Math.round(c * 1e6) / 1e6;
   };
-  // Reference stage: a synchronous buck (controller, two switches, inductor, four capacitors, divider).
-  const ref: PartCounts = { controller: 1, switch: 2, magnetic: 1, coupledMagnetic: 0, rectifier: 0, capacitor: 4, resistor: 2, ldo: 0 };
-  return { cost: (p) => price(p), referenceStageCost: price(ref) || 1, referenceStageParts: 10 };
+  // Reference stage: the planner's typical synchronous buck.
+  const refParts = (Object.keys(TYPICAL_BUCK_PARTS) as (keyof PartCounts)[]).filter((k) => String(k) !== 'barrier').reduce((a, k) => a + TYPICAL_BUCK_PARTS[k], 0);
+  return { cost: (p) => price(p), referenceStageCost: price(TYPICAL_BUCK_PARTS) || 1, referenceStageParts: refParts };
 }

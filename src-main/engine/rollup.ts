@@ -145,7 +145,9 @@ export class RollupError extends Error {}
 // ---------------------------------------------------------------------------------------
 // Evaluation cache: per design object, keyed by the operating point's numbers
 
-const cache = new WeakMap<object, Map<string, StageEvaluation>>();
+// Designs are treated as immutable: a changed design must be a new object (or call
+// clearRollupCache after changing one in place).
+let cache = new WeakMap<object, Map<string, StageEvaluation>>();
 
 function evaluateCached(models: StageModels, design: unknown, op: OperatingPoint): StageEvaluation {
   if (design === null || typeof design !== 'object') return models.evaluate(design, op);
@@ -161,7 +163,13 @@ function evaluateCached(models: StageModels, design: unknown, op: OperatingPoint
   return ev;
 }
 
-const windowCache = new WeakMap<object, Map<string, OutputWindow[]>>();
+let windowCache = new WeakMap<object, Map<string, OutputWindow[]>>();
+
+/** Forget every cached stage result (after a design object was changed in place). */
+export function clearRollupCache(): void {
+  cache = new WeakMap();
+  windowCache = new WeakMap();
+}
 
 function windowsCached(models: StageModels, design: unknown, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }): OutputWindow[] {
   if (design === null || typeof design !== 'object') return models.windows(design, corners);

@@ -6,6 +6,7 @@ import { join } from 'node:path';
 import { handRequirements } from '../export/hand-plan.ts';
 import { designedHandPlan } from '../export/hand-designs.ts';
 import { buildBom, compactRefs } from '../../src-main/engine/bom.ts';
+import { emptyParts } from '../../src-main/engine/planner/cost-model.ts';
 import { libraryCostModel, libraryUnitCosts, numParam, partsForStage, tableToRows, type LibraryRow } from '../../src-main/engine/library.ts';
 import { readCsv } from '../../src-main/export/csv.ts';
 import type { CoupledBuckDesign, StageDesign } from '../../src-main/engine/stages/index.ts';
@@ -143,7 +144,7 @@ describe('library as the planner cost model', () => {
     const ldo = lib.filter((r) => r.partClass === 'ldo').map((r) => r.cost).sort((a, b) => a - b);
     const mid = ldo.length % 2 ? ldo[(ldo.length - 1) / 2]! : (ldo[ldo.length / 2 - 1]! + ldo[ldo.length / 2]!) / 2;
     expect(u.ldo).toBeCloseTo(mid, 12);
-    const parts = { controller: 1, switch: 0, magnetic: 1, coupledMagnetic: 0, rectifier: 0, capacitor: 3, resistor: 2, ldo: 1 };
+    const parts = { ...emptyParts(), controller: 1, magnetic: 1, capacitor: 3, resistor: 2, ldo: 1 };
     const base = libraryCostModel(lib).cost(parts, 'buck');
     expect(base).toBeCloseTo(u.controller + u.magnetic + 3 * u.capacitor + 2 * u.resistor + u.ldo, 6);
     const doubled = libraryCostModel(lib.map((r) => ({ ...r, cost: 2 * r.cost }))).cost(parts, 'buck');

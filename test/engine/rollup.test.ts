@@ -5,7 +5,7 @@ import fc from 'fast-check';
 import { handRequirements } from '../export/hand-plan.ts';
 import { designedHandPlan } from '../export/hand-designs.ts';
 import { bigPlan, bigRequirements } from '../export/big-plan.ts';
-import { rollupPlan, RollupError, VIN_CASES, type Rollup } from '../../src-main/engine/rollup.ts';
+import { clearRollupCache, rollupPlan, RollupError, STAGE_MODELS, VIN_CASES, type Rollup } from '../../src-main/engine/rollup.ts';
 import type { Requirements } from '../../src-main/engine/model.ts';
 import type { PlanResult } from '../../src-main/engine/plan-types.ts';
 import type { LdoDesign } from '../../src-main/engine/stages/index.ts';
@@ -140,6 +140,27 @@ describe('roll-up arithmetic', () => {
       expect(v).toBeGreaterThanOrEqual(Math.min(w.min, w.max) - 1e-9);
       expect(v).toBeLessThanOrEqual(Math.max(w.min, w.max) + 1e-9);
     }
+  });
+});
+
+describe('roll-up cache', () => {
+  it('reuses stage results for the same design and point, and forgets them on request', () => {
+    const req = handRequirements();
+    const pr = designedHandPlan(req);
+    let calls = 0;
+    const models = {
+      evaluate: (d: unknown, op: Parameters<typeof STAGE_MODELS.evaluate>[1]) => { calls++; return STAGE_MODELS.evaluate(d, op); },
+      windows: STAGE_MODELS.windows,
+    };
+    const a = rollupPlan(req, pr.rails, pr.best!, models);
+    const first = calls;
+    expect(first).toBeGreaterThan(0);
+    const b = rollupPlan(req, pr.rails, pr.best!, models);
+    expect(calls).toBe(first);
+    expect(b.weighted).toEqual(a.weighted);
+    clearRollupCache();
+    rollupPlan(req, pr.rails, pr.best!, models);
+    expect(calls).toBe(2 * first);
   });
 });
 
