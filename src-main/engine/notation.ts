@@ -259,8 +259,10 @@ function engineeringPlain(value: number, sig: number): string {
   if (value === 0) return '0';
   const r = Number(value.toPrecision(Math.max(1, Math.min(15, sig))));
   if (Math.abs(r) >= 1e15 || Math.abs(r) < 1e-6) return String(r);
-  const intDigits = Math.max(1, Math.floor(Math.log10(Math.abs(r)) + 1e-12) + 1);
-  return trimZeros(r.toFixed(Math.max(0, sig - intDigits)));
+  // Significant digits count from the first non-zero digit: 0.012 at 3 digits is "0.012",
+  // not "0.01" (leading zeros of a value below one are not significant).
+  const magnitude = Math.floor(Math.log10(Math.abs(r)) + 1e-12) + 1;
+  return trimZeros(r.toFixed(Math.min(20, Math.max(0, sig - magnitude))));
 }
 
 /** A tolerance ratio as "±5 %" (0.05), "±0.5 %" (0.005). */
@@ -276,6 +278,11 @@ export function formatShorthand(value: number, kind: QuantityKind, sigDigits = 3
   if (!Number.isFinite(value)) return formatQuantity(value, kind, sigDigits);
   const { mantissa, prefix } = engineering(value, sigDigits);
   if (/e/i.test(mantissa) || (value !== 0 && Math.abs(Number(mantissa)) < 1)) return formatQuantity(value, kind, sigDigits);
+  // Without a prefix only volts (V) and ohms (R) have a letter to stand for the decimal
+  // point; other kinds keep the ordinary form, so 1.5 A never prints as "15".
+  if (prefix === '' && kind !== 'voltage' && kind !== 'resistance' && mantissa.includes('.')) {
+    return formatQuantity(value, kind, sigDigits);
+  }
   const ascii = prefix === 'µ' ? 'u' : prefix;
   const mark = kind === 'voltage' && prefix === '' ? 'V'
     : kind === 'resistance' && prefix === '' ? 'R'

@@ -218,7 +218,10 @@ function toProblems(issues: readonly z.core.$ZodIssue[]): Problem[] {
     if (is.code === 'invalid_type') {
       message = input === undefined ? 'required field is missing' : `expected ${is.expected}, got ${describeInput(input)}`;
     } else if (is.code === 'unrecognized_keys') {
-      for (const k of is.keys) out.push({ path: path ? `${path}.${k}` : k, message: 'unknown field' });
+      for (const k of is.keys) {
+        const key = k === '' ? '(empty name)' : k;
+        out.push({ path: path ? `${path}.${key}` : key, message: 'unknown field' });
+      }
       continue;
     } else if (is.code === 'invalid_value') {
       message = `${describeInput(input)} is not one of ${is.values.map((v) => JSON.stringify(v)).join(', ')}`;
@@ -259,9 +262,29 @@ export function importProjectJson(text: string): ImportResult {
   return importProjectValue(data);
 }
 
+/** Deepest nesting a document may have: far beyond any real project, well below the stack. */
+const MAX_DEPTH = 64;
+
+/** Path of the first value nested deeper than `limit`, or null. Iterative: no recursion. */
+function findTooDeep(root: unknown, limit: number): string | null {
+  const stack: { v: unknown; path: (string | number)[] }[] = [{ v: root, path: [] }];
+  while (stack.length) {
+    const { v, path } = stack.pop()!;
+    if (typeof v !== 'object' || v === null) continue;
+    if (path.length >= limit) return formatPath(path);
+    if (Array.isArray(v)) v.forEach((x, i) => stack.push({ v: x, path: [...path, i] }));
+    else for (const [k, x] of Object.entries(v)) stack.push({ v: x, path: [...path, k] });
+  }
+  return null;
+}
+
 export function importProjectValue(data: unknown): ImportResult {
   if (typeof data !== 'object' || data === null || Array.isArray(data)) {
     return { ok: false, problems: [{ path: '(document)', message: 'expected a JSON object' }] };
+  }
+  const deep = findTooDeep(data, MAX_DEPTH);
+  if (deep !== null) {
+    return { ok: false, problems: [{ path: deep || '(document)', message: `nested more than ${MAX_DEPTH} levels deep; a project document never needs that` }] };
   }
   docSchemaCache ??= documentSchema();
   const r = docSchemaCache.safeParse(data, { reportInput: true });
