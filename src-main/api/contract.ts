@@ -213,6 +213,24 @@ export interface PlanJob {
   jobId: string;
 }
 
+export interface LeakageLimitView {
+  id: string;
+  label: string;
+  limit: number;
+  standard: string;
+  source: string;
+}
+
+export interface BarrierCheckView {
+  current: number;
+  limit: LeakageLimitView;
+  ok: boolean;
+  margin: number;
+  maxCapacitance: number;
+  text: string;
+  cautions: string[];
+}
+
 export interface Requests {
   'project.snapshot': (args: Record<string, never>) => Snapshot;
   'project.new': (args: { discard?: boolean }) => Snapshot;
@@ -235,6 +253,11 @@ export interface Requests {
   'plan.drawingMode': (args: { modeId: Id | null }) => Snapshot;
 
   'library.get': (args: Record<string, never>) => LibraryView;
+
+  /** Leakage limits to compare a barrier against (labelled with standard and edition). */
+  'isolation.limits': (args: Record<string, never>) => LeakageLimitView[];
+  /** Y-capacitor leakage across a barrier, I = 2π·f·C·V, against the chosen limit. */
+  'isolation.check': (args: { capacitance: string; voltageRms: string; frequency: string; limitId: string }) => BarrierCheckView;
 
   'export.file': (args: { kind: ExportKind; path?: string; stageId?: Id }) => ExportFile;
 }

@@ -11,6 +11,7 @@ import { libraryHandlers } from './library.ts';
 import { planHandlers } from './plan.ts';
 import { exportHandlers } from './export.ts';
 import { fileHandlers } from './files.ts';
+import { isolationHandlers } from './isolation.ts';
 
 export const HANDLERS = {
   ...projectHandlers,
@@ -19,6 +20,7 @@ export const HANDLERS = {
   ...planHandlers,
   ...libraryHandlers,
   ...exportHandlers,
+  ...isolationHandlers,
 } satisfies HandlerTable;
 
 export interface Api {

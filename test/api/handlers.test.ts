@@ -187,3 +187,19 @@ describe('planning job', () => {
     expect(api.session.planJob).toBeNull();
   });
 });
+
+describe('barrier leakage check', () => {
+  it('computes I = 2π·f·C·V from notation and names bad fields', async () => {
+    const api = demoApi();
+    const limits = await ok<{ id: string; limit: number }[]>(api.request('isolation.limits', {}));
+    expect(limits.length).toBeGreaterThan(2);
+    const r = await ok<{ current: number; ok: boolean; maxCapacitance: number }>(api.request('isolation.check', { capacitance: '2n2', voltageRms: '250', frequency: '50', limitId: limits[0]!.id }));
+    // Capacitive reactance Xc = 1/(2πfC), I = V/Xc (any circuits textbook): 2π·50·2.2e-9·250 = 172.79 µA.
+    expect(r.current).toBeCloseTo(172.79e-6, 9);
+    expect(r.ok).toBe(r.current <= limits[0]!.limit);
+    expect(r.maxCapacitance).toBeCloseTo(limits[0]!.limit / (2 * Math.PI * 50 * 250), 15);
+    const bad = await api.request('isolation.check', { capacitance: '2 nH', voltageRms: '250', frequency: '50', limitId: limits[0]!.id });
+    expect(bad.ok).toBe(false);
+    if (!bad.ok) expect(bad.error.field).toBe('capacitance');
+  });
+});
