@@ -194,8 +194,8 @@ describe('barrier leakage check', () => {
     const limits = await ok<{ id: string; limit: number }[]>(api.request('isolation.limits', {}));
     expect(limits.length).toBeGreaterThan(2);
     const r = await ok<{ current: number; ok: boolean; maxCapacitance: number }>(api.request('isolation.check', { capacitance: '2n2', voltageRms: '250', frequency: '50', limitId: limits[0]!.id }));
-    // Capacitive reactance Xc = 1/(2πfC), I = V/Xc (any circuits textbook): 2π·50·2.2e-9·250 = 172.79 µA.
-    expect(r.current).toBeCloseTo(172.79e-6, 9);
+    // Capacitive reactance Xc = 1/(2πfC), I = V/Xc (any circuits textbook): 2π·50·2.2e-9·250 = 172.788 µA.
+    expect(r.current).toBeCloseTo(172.788e-6, 8);
     expect(r.ok).toBe(r.current <= limits[0]!.limit);
     expect(r.maxCapacitance).toBeCloseTo(limits[0]!.limit / (2 * Math.PI * 50 * 250), 15);
     const bad = await api.request('isolation.check', { capacitance: '2 nH', voltageRms: '250', frequency: '50', limitId: limits[0]!.id });
