@@ -125,7 +125,9 @@ export function explainInfeasible(
       const need = (Math.abs(rail.voltage) * rail.tolerance + rj.shortfall) / Math.abs(rail.voltage);
       remedies.push(`relax the tolerance of ${rail.name} to ±${(Math.ceil(need * 1000) / 10).toFixed(1)} %`);
       if (!allowed.has('ldo')) remedies.push('allow LDO post-regulation');
-      remedies.push(`raise maxSecondaries (now ${f.req.preferences.maxSecondaries}) so a tap winding and LDO fit on a shared magnetic`);
+      if (near.shape.kind === 'cwbuck' && !/behind a tap winding/.test(rj.text)) {
+        remedies.push(`raise maxSecondaries (now ${f.req.preferences.maxSecondaries}) so a tap winding and LDO fit on a shared magnetic`);
+      }
     } else if (rj.constraint === 'ripple') {
       remedies.push(`relax the ripple limit of ${rail.name} to ${((rail.rippleLimit + rj.shortfall) * 1e3).toFixed(2)} mV`);
       if (!allowed.has('ldo')) remedies.push('allow LDO post-regulation');

@@ -135,8 +135,19 @@ export class BlockFactory {
     } catch (e) {
       res = { ok: false, rejections: [{ constraint: 'engine-error', shortfall: 0, unit: '', text: `the stage engine failed: ${(e as Error)?.message ?? String(e)}` }] };
     }
+    if (!res.ok) res = { ok: false, rejections: res.rejections.map((r) => ({ ...r, text: this.readable(r.text) })) };
     this.cache.set(key, res);
     return res;
+  }
+
+  /** Engine messages quote node ids; a reviewer reads rail names. */
+  readable(text: string): string {
+    if (!text.includes('rail:')) return text;
+    let out = text;
+    for (const r of this.ctx.rails) {
+      out = out.split(`tap:${r.id}`).join(`the tap for ${r.name}`).split(r.id).join(r.name);
+    }
+    return out;
   }
 
   private inputWindow(input: FeedInput): { min: number; nom: number; max: number; ripple: number; sign: number } {

@@ -120,6 +120,7 @@ export class PlanSolver {
       this.allComplete = false;
       this.trace.push(`budget of ${this.budgetMs} ms reached while designing candidates; searching the ${this.factory?.evaluations ?? 0} designed so far`);
       this.gen = null;
+      this.candidatesCut = true;
       this.startSearches();
     }
     return this.result !== null;
@@ -264,6 +265,7 @@ export class PlanSolver {
 
   private pendingSeed: Seed | null = null;
   private seenBest: SearchOutcome['best'] = null;
+  private candidatesCut = false;
   private firstFeasibleMs: number | undefined;
   private bestFoundMs: number | undefined;
 
@@ -324,6 +326,13 @@ export class PlanSolver {
     }
     const best = plans.find((p) => p.labels.includes('best')) ?? null;
     if (!best && this.factory && !this.earlyInfeasible.length && !this.cancelled) {
+      if (this.candidatesCut) {
+        infeasible.push({
+          railId: this.rails[0]?.id ?? '', constraint: 'budget', shortfall: 0, unit: '',
+          text: `the time budget (${this.budgetMs} ms) ran out after ${this.factory.evaluations} stage designs, before every candidate was designed; the reasons below cover only those`,
+          remedies: ['raise the time budget (--budget-ms)'],
+        });
+      }
       infeasible.push(...explainInfeasible(this.factory, this.blocks, this.misses, this.leafFailures));
     }
     const provedOptimal = !this.cancelled && this.allComplete && this.found.get(this.objective)?.complete === true;
