@@ -555,7 +555,7 @@ export class BlockFactory {
     reasons.push({
       code: 'shared-magnetic',
       subjectId: shape.primary === null ? 'bus' : rails[shape.primary]!.id,
-      text: `${secNames.join(', ')} share one coupled-winding magnetic with the ${primaryName} primary (from ${src.name}): ` +
+      text: `${secNames.join(', ')} ${secNames.length === 1 ? 'shares' : 'share'} one coupled-winding magnetic with the ${primaryName} primary (from ${src.name}): ` +
         `duty ${pct(run.atMin.duty)} at Vin min ${fmtV(vin.min)}, turns ${turns.length ? turns.join(':') : 'n/a'}, mode-weighted loss ${fmtW(loss)}` +
         (isoDomains.length ? `; the windings cross the barrier into ${isoDomains.join(', ')}` : ''),
       data: { loss, secondaries: shape.secondaries.length, duty: run.atMin.duty ?? NaN },
