@@ -123,6 +123,14 @@ export async function reportToPdf(input: ReportInput): Promise<Uint8Array> {
       s.outputs.map((o) => `${railName.get(o.nodeId) ?? o.nodeId}${o.role !== 'output' ? ` (${o.role}${o.turns !== undefined ? `, ${o.turns} T` : ''})` : ''}`).join('; ')]));
   if (plan.reasons.length === 0) para(doc, 'The plan carries no reasons.');
   for (const r of plan.reasons) para(doc, `• ${r.text}`, { size: 8.5 });
+  if (result.alternatives.length > 1) {
+    para(doc, 'Alternatives the planner kept (time-weighted loss, estimated cost, part count):', { bold: true, size: 8.5 });
+    table(doc, [
+      { header: 'Plan', width: 90 }, { header: 'Labels', width: 150 }, { header: 'Stages', width: 50, align: 'right' },
+      { header: 'Loss', width: 70, align: 'right' }, { header: 'Cost (est.)', width: 70, align: 'right' }, { header: 'Parts', width: W - 430, align: 'right' },
+    ], result.alternatives.map((a) => [a.id === plan.id ? `${a.id} (this report)` : a.id, a.labels.join(', '), String(a.stages.length),
+      q(a.score.loss, 'W'), a.score.cost.toFixed(2), String(a.score.parts)]), { size: 7.5 });
+  }
 
   // 4 Roll-up
   heading(doc, REPORT_SECTIONS[3]);
