@@ -131,6 +131,20 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
     expect(text).toMatch(/Loss/);
     expect(text).toMatch(/η/);
     await shot('04-inspector');
+    // A stage that carries a barrier offers the leakage check; find one and use it.
+    const stages = page.locator('[data-kind=stage]');
+    for (let i = 0; i < (await stages.count()) && !(await page.locator('[data-testid=barrier-check]').count()); i++) {
+      await stages.nth(i).click({ force: true });
+    }
+    expect(await page.locator('[data-testid=barrier-check]').count()).toBe(1);
+    {
+      const form = page.locator('[data-testid=barrier-check]');
+      await form.locator('input').first().fill('2n2');
+      await form.locator('button[type=submit]').click();
+      await expect.poll(() => form.textContent()).toMatch(/173 µA|172.8 µA/);
+      await form.scrollIntoViewIfNeeded();
+      await shot('04a-barrier-check');
+    }
     await page.locator('[data-kind=rail]').first().click();
     await expect.poll(() => page.locator('[data-testid=window] svg').count()).toBeGreaterThan(0);
     expect(await page.locator('[data-testid=window]').first().textContent()).toMatch(/inside|OUTSIDE/);
