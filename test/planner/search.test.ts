@@ -163,3 +163,23 @@ describe('infeasibility explanations', () => {
     expect(r.infeasible[0]!.text).toMatch(/source .*vMin/);
   });
 });
+
+describe('bad input never crashes the planner', () => {
+  it('reports no loads, negative or non-finite currents and a missing domain by field', () => {
+    const base = () => randomRequirements({ rails: 3, seed: 1 });
+    const cases: [string, (r: ReturnType<typeof base>) => void, RegExp][] = [
+      ['no loads', (r) => { r.loads = []; }, /loads: the project has no loads/],
+      ['negative current', (r) => { r.loads[0]!.current.run = -1 as never; }, /current in mode run must be a finite number/],
+      ['NaN current', (r) => { r.loads[0]!.current.run = NaN as never; }, /current in mode run must be a finite number/],
+      ['unknown domain', (r) => { r.loads[0]!.domainId = 'nowhere'; }, /domain nowhere does not exist/],
+      ['no source', (r) => { r.sources = []; }, /sources: the project has no input source/],
+    ];
+    for (const [name, mutate, re] of cases) {
+      const req = base();
+      mutate(req);
+      const r = new PlanSolver(req, { evaluator: firstOrderEvaluator }).solve();
+      expect(r.best, name).toBeNull();
+      expect(r.infeasible.map((i) => i.text).join(' | '), name).toMatch(re);
+    }
+  });
+});

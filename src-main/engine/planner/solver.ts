@@ -201,7 +201,10 @@ export class PlanSolver {
       if (!(s.vMin > 0 && s.vMin <= s.vNom && s.vNom <= s.vMax)) problems.push({ railId: '', constraint: 'input', shortfall: 0, unit: 'V', text: `source ${s.name}: needs 0 < vMin ≤ vNom ≤ vMax (got ${s.vMin}, ${s.vNom}, ${s.vMax})`, remedies: ['correct the source voltages'] });
     }
     this.rails = groupRails(req);
+    if (!this.rails.length) problems.push({ railId: '', constraint: 'input', shortfall: 0, unit: '', text: 'loads: the project has no loads, so there is nothing to feed', remedies: ['add loads'] });
     for (const r of this.rails) {
+      const bad = Object.entries(r.current).find(([, a]) => !(Number.isFinite(a) && a >= 0));
+      if (bad) problems.push({ railId: r.id, constraint: 'input', shortfall: 0, unit: 'A', text: `${r.name}: current in mode ${bad[0]} must be a finite number ≥ 0 (got ${bad[1]})`, remedies: ['correct the load currents'] });
       if (!req.domains.some((d) => d.id === r.domainId)) problems.push({ railId: r.id, constraint: 'input', shortfall: 0, unit: '', text: `${r.name}: domain ${r.domainId} does not exist`, remedies: ['assign the loads to an existing domain'] });
       if (!(r.tolerance > 0) || r.voltage === 0) problems.push({ railId: r.id, constraint: 'input', shortfall: 0, unit: '', text: `${r.name}: needs a non-zero voltage and a positive tolerance`, remedies: ['correct the load'] });
     }
