@@ -102,6 +102,24 @@ describe('BOM CSV (read back with csv-parse)', () => {
   });
 });
 
+describe('degenerate plans', () => {
+  it('exports a plan with no stages (every rail unfed) without crashing, and says so', async () => {
+    const req = handRequirements();
+    const pr = designedHandPlan(req);
+    const empty = { ...pr, best: { ...pr.best!, stages: [], internalNodes: [] } };
+    const bb = await prepareExport({ req, result: empty, library: defaultLibraryRows(), elk: new ELK() as unknown as ElkLike });
+    expect(bb.rollup.unfed).toHaveLength(pr.rails.length);
+    expect(bb.bom.lines).toEqual([]);
+    expect((parse(exportBomCsv(bb), { relax_column_count: true }) as string[][])[1]![0]).toBe('Total');
+    const wb = new ExcelJS.Workbook();
+    await wb.xlsx.load((await exportBomXlsx(bb)).buffer as ArrayBuffer);
+    expect(wb.getWorksheet('BOM')!.getRow(2).getCell(1).value).toBe('Total');
+    expect(new XMLParser().parse(exportTreeSvg(bb), true)).toBeDefined();
+    expect(await pdfPlainText(await exportReportPdf(bb))).toContain('Rails no stage of this plan feeds');
+    expect(exportNetlists(bb).files).toEqual([]);
+  });
+});
+
 describe('BOM CSV formula neutralising end to end', () => {
   it('prefixes a library name that would run as a formula, and keeps negative values readable', async () => {
     const req = handRequirements();
