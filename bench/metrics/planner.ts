@@ -8,7 +8,8 @@
  * - `plan_ms_demo_engine` and `plan_ms_rails_6_engine` plan with the real stage engine, where
  *   the engine's designs and worst-case windows dominate the time.
  *
- * plan_ms_rails_N (N ≤ 12): whole exact solve of the balanced objective (proved optimal).
+ * plan_ms_rails_N (N ≤ 12): whole exact solve of the balanced objective (to the proof, or to
+ * the exact-mode cap of 60 s), seeds 1–5.
  * plan_ms_rails_16/24: time at which the returned best was found within a 10 s budget;
  * plan_first_feasible_ms_rails_24: time to the first complete feasible tree.
  */
@@ -39,13 +40,14 @@ function exactMs(rails: number): Metric {
   return {
     name: `plan_ms_rails_${rails}`, unit: 'ms',
     async sample() {
+      // Every seed counts, proved or not (an unproved run stops at the exact-mode cap).
       const xs: number[] = [];
-      for (const seed of feasibleSeeds(rails, SEEDS.length)) {
+      for (const seed of SEEDS) {
         const t0 = performance.now();
-        const r = new PlanSolver(randomRequirements({ rails, seed }), { evaluator: firstOrderEvaluator, singleObjective: true, budgetMs: 10_000 }).solve();
-        xs.push(r.stats.provedOptimal ? performance.now() - t0 : NaN);
+        new PlanSolver(randomRequirements({ rails, seed }), { evaluator: firstOrderEvaluator, singleObjective: true, budgetMs: 10_000 }).solve();
+        xs.push(performance.now() - t0);
       }
-      return xs.filter((x) => Number.isFinite(x));
+      return xs;
     },
   };
 }

@@ -53,7 +53,7 @@ export interface PlanProgress {
 /** Rails up to which the planner finishes its search (the proof) whatever the budget. */
 export const EXACT_RAILS = 12;
 /** Safety cap of an exact run (it never hangs). */
-export const EXACT_SEARCH_CAP_MS = 120_000;
+export const EXACT_SEARCH_CAP_MS = 60_000;
 
 /** Node cap of the source-only seeding search. */
 const SEED_SEARCH_NODES = 20_000;
