@@ -120,6 +120,17 @@ describe('degenerate plans', () => {
   });
 });
 
+describe('text outside the PDF fonts', () => {
+  it('writes names the standard fonts cannot show as readable stand-ins, without failing', async () => {
+    const req = handRequirements();
+    req.meta.name = 'Ω-Rig 电源 θ η − ≤ 😀';
+    const bb = await prepareExport({ req, result: designedHandPlan(req), library: defaultLibraryRows(), elk: new ELK() as unknown as ElkLike });
+    const text = await pdfPlainText(await exportTreePdf(bb));
+    // WinAnsi (the standard PDF fonts' encoding) has no Ω, θ, η, −, ≤, CJK or emoji: spelled out or '?'.
+    expect(text).toContain('ohm-Rig ?? theta eff - <= ?');
+  });
+});
+
 describe('BOM CSV formula neutralising end to end', () => {
   it('prefixes a library name that would run as a formula, and keeps negative values readable', async () => {
     const req = handRequirements();
