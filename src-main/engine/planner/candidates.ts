@@ -659,7 +659,7 @@ export function stageParts(kind: StageKind, secondaries: number): PartCounts {
 }
 
 /** Enumerate the candidate shapes of a requirements set (before evaluation). */
-export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { singles: BlockShape[]; coupled: (size: number, ok: (p: number | null, secs: number[]) => boolean) => BlockShape[]; pairShapes: BlockShape[] } {
+export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { singles: BlockShape[]; coupled: (size: number) => BlockShape[]; pairShapes: BlockShape[] } {
   const rails = f.ctx.rails;
   const req = f.req;
   const singles: BlockShape[] = [];
@@ -712,23 +712,15 @@ export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { sin
       }
     }
   }
-  /**
-   * Shapes with `size` secondaries on each primary whose every subset of size − 1 was feasible
-   * (checked with `ok`): an a-priori rule (a winding set is tried only if all its smaller sets
-   * worked), which keeps the number of engine designs small.
-   */
-  const coupled = (size: number, ok: (p: number | null, secs: number[]) => boolean): BlockShape[] => {
+  /** Every shape with `size` secondaries on each primary (generateBlocks filters them a-priori style). */
+  const coupled = (size: number): BlockShape[] => {
     const out: BlockShape[] = [];
     if (size > opts.maxSecondaries) return out;
     for (const p of primaries) {
       const cand: number[] = [];
-      for (let j = 0; j < n; j++) if (j !== p.primary && ok(p.primary, [j])) cand.push(j);
+      for (let j = 0; j < n; j++) if (j !== p.primary) cand.push(j);
       const rec = (start: number, chosen: number[]) => {
-        if (chosen.length === size) {
-          for (let drop = 0; drop < size; drop++) if (!ok(p.primary, chosen.filter((_, k) => k !== drop))) return;
-          out.push(cw(p, [...chosen]));
-          return;
-        }
+        if (chosen.length === size) { out.push(cw(p, [...chosen])); return; }
         for (let q = start; q < cand.length; q++) { chosen.push(cand[q]!); rec(q + 1, chosen); chosen.pop(); }
       };
       rec(0, []);
@@ -783,7 +775,8 @@ export function* generateBlocks(
   };
   const { singles, coupled, pairShapes } = enumerateShapes(f, opts);
   for (const s of singles) { add(s); yield; }
-  // Feasible winding sets per primary, by size (input source folded into the primary key).
+  // A set of k secondaries on a primary is tried only if each of its subsets of k − 1 was
+  // feasible on that primary (a-priori rule). Feasible winding sets per primary, by size (input source folded into the primary key).
   const feasibleSets = new Set<string>();
   const setKey = (s: BlockShape & { kind: 'cwbuck' }) => `${s.input.id}|${s.primary ?? `bus${s.busVoltage}`}|${s.secondaries.join(',')}`;
   for (const s of pairShapes) {
@@ -791,7 +784,7 @@ export function* generateBlocks(
     yield;
   }
   for (let size = 2; size <= opts.maxSecondaries; size++) {
-    const level = coupled(size, () => true);
+    const level = coupled(size);
     const okSet = (sh: BlockShape & { kind: 'cwbuck' }) => feasibleSets.has(setKey(sh));
     for (const s of level) {
       if (s.kind !== 'cwbuck') continue;

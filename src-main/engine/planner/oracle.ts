@@ -16,9 +16,13 @@ export interface OracleResult {
   bestKeys: string[] | null;
   /** Complete trees evaluated. */
   trees: number;
+  /** False when stopped by `maxMs` (then bestScore is only an upper bound). */
+  complete: boolean;
 }
 
-export function oracleBest(f: BlockFactory, blocks: readonly Block[], scorer: Scorer): OracleResult {
+export function oracleBest(f: BlockFactory, blocks: readonly Block[], scorer: Scorer, opts: { maxMs?: number } = {}): OracleResult {
+  const stopAt = opts.maxMs !== undefined ? performance.now() + opts.maxMs : Infinity;
+  let stopped = false;
   const n = f.ctx.rails.length;
   if (n > ORACLE_MAX_RAILS) throw new RangeError(`the oracle handles up to ${ORACLE_MAX_RAILS} rails (got ${n})`);
   const perRail: Block[][] = Array.from({ length: n }, (_, r) => blocks.filter((b) => b.covers.includes(r)));
@@ -27,6 +31,7 @@ export function oracleBest(f: BlockFactory, blocks: readonly Block[], scorer: Sc
   let bestKeys: string[] | null = null;
   let trees = 0;
   const rec = (r: number): void => {
+    if (stopped || ((trees & 1023) === 0 && performance.now() > stopAt)) { stopped = true; return; }
     if (r === n) {
       // Consistency: a block chosen for one rail must be the choice of all the rails it covers.
       const chosen = new Set<Block>();
@@ -58,5 +63,5 @@ export function oracleBest(f: BlockFactory, blocks: readonly Block[], scorer: Sc
     }
   };
   rec(0);
-  return { bestScore, bestKeys, trees };
+  return { bestScore, bestKeys, trees, complete: !stopped };
 }
