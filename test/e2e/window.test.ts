@@ -144,6 +144,8 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
       await expect.poll(() => form.textContent()).toMatch(/173 µA|172.8 µA/);
       await form.scrollIntoViewIfNeeded();
       await shot('04a-barrier-check');
+      await page.locator('[data-testid=inspector] h3', { hasText: 'Design values' }).scrollIntoViewIfNeeded();
+      await shot('04c-design-values');
     }
     await page.locator('[data-kind=rail]').first().click();
     await expect.poll(() => page.locator('[data-testid=window] svg').count()).toBeGreaterThan(0);
