@@ -47,7 +47,8 @@ async function render(s: Session, kind: ExportKind, stageId: string | undefined)
   elk ??= new ELK();
   let b;
   try {
-    b = await prepareExport({ req: s.requirements, result: { ...r, best: selected }, library: libraryRows(s), elk, replanned: false });
+    const modeId = s.drawingModeId && s.requirements.modes.some((m) => m.id === s.drawingModeId) ? s.drawingModeId : undefined;
+    b = await prepareExport({ req: s.requirements, result: { ...r, best: selected }, library: libraryRows(s), elk, replanned: false, ...(modeId ? { modeId } : {}) });
   } catch (e) {
     if (e instanceof ExportError) throw new ApiFailure(`${kind}: ${e.message}`, 'kind');
     throw e;

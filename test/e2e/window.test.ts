@@ -144,6 +144,11 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
       await expect.poll(() => form.textContent()).toMatch(/173 µA|172.8 µA/);
       await form.scrollIntoViewIfNeeded();
       await shot('04a-barrier-check');
+      // The stage's own netlist downloads from the inspector (a SPICE deck ends with .end).
+      const [dl] = await Promise.all([page.waitForEvent('download'), page.click('[data-testid=stage-netlist]')]);
+      const deck = join(tmp, 'stage.cir');
+      await dl.saveAs(deck);
+      expect(readFileSync(deck, 'utf8')).toMatch(/^\.end\s*$/im);
       await page.locator('[data-testid=inspector] h3', { hasText: 'Design values' }).scrollIntoViewIfNeeded();
       await shot('04c-design-values');
     }
