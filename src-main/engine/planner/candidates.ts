@@ -56,7 +56,7 @@ export interface GenerationOptions {
   allowed: ReadonlySet<StageKind>;
 }
 
-interface StageRun { ok: true; design: unknown; perMode: StageEvaluation[]; atMin: StageEvaluation; windows: OutputWindow[]; worstRipple: number[] }
+interface StageRun { ok: true; design: unknown; perMode: StageEvaluation[]; atMin: StageEvaluation; windows: OutputWindow[]; modeCurrents: number[][] }
 
 /** A rejected candidate and why, kept per rail for reasons and infeasibility reports. */
 export interface Miss { shape: BlockShape; rejection: Rejection }
@@ -262,7 +262,7 @@ export class BlockFactory {
       this.check(spec, rej, ev, `in mode ${this.req.modes[m]?.name ?? m} at Vin nominal`, railOf);
     }
     if (rej.length) return { ok: false, rejections: rej };
-    return { ok: true, design: heavy.design, perMode, atMin: heavy.atMin, windows: heavy.windows, worstRipple: [] };
+    return { ok: true, design: heavy.design, perMode, atMin: heavy.atMin, windows: heavy.windows, modeCurrents };
   }
 
   /** The expensive part: design, the two full-load corners, the windows. */
@@ -328,6 +328,7 @@ export class BlockFactory {
     const stage: BlockStage = {
       localId: 's0', kind: shape.kind, name: `${shape.kind === 'ldo' ? 'LDO' : 'Buck'} ${r.name}`,
       inputNode: 'input', outputs: [{ nodeId: r.id, role: 'output' }], barriers: [], design: run.design, spec,
+      modeCurrents: run.modeCurrents, lossPerMode: run.perMode.map((e) => e.loss),
     };
     const lossPerMode: number[] = run.perMode.map((e) => e.loss);
     const inputName = shape.input.kind === 'source' ? (this.sources.get(shape.input.id)?.name ?? shape.input.id) : this.ctx.rails[shape.input.rail]!.name;
@@ -378,7 +379,7 @@ export class BlockFactory {
 
   /** Tap + LDO for one secondary: pick the lowest tap voltage whose LDO is feasible. */
   private designTap(rail: number, currents: number[], variant: { tolerance: number; headroom: number }): {
-    ok: true; tapV: number; spec: StageSpec; design: unknown; perMode: StageEvaluation[]; window: OutputWindow; tapOutput: OutputSpec; iinPerMode: number[];
+    ok: true; tapV: number; spec: StageSpec; design: unknown; perMode: StageEvaluation[]; modeCurrents: number[][]; window: OutputWindow; tapOutput: OutputSpec; iinPerMode: number[];
   } | { ok: false; rejections: Rejection[] } {
     const r = this.ctx.rails[rail]!;
     const a = Math.abs(r.voltage);
@@ -400,7 +401,7 @@ export class BlockFactory {
       rippleLimit: tapRipple as Volts,
     };
     const w = run.windows[0]!;
-    return { ok: true, tapV: tapMag * Math.sign(r.voltage || 1), spec, design: run.design, perMode: run.perMode, window: { ...w, min: Math.min(mirror * w.min, mirror * w.max) as Volts, max: Math.max(mirror * w.min, mirror * w.max) as Volts }, tapOutput, iinPerMode };
+    return { ok: true, tapV: tapMag * Math.sign(r.voltage || 1), spec, design: run.design, perMode: run.perMode, modeCurrents: run.modeCurrents, window: { ...w, min: Math.min(mirror * w.min, mirror * w.max) as Volts, max: Math.max(mirror * w.min, mirror * w.max) as Volts }, tapOutput, iinPerMode };
   }
 
   private evalCoupled(shape: BlockShape & { kind: 'cwbuck' }, extra?: ReadonlyMap<number, readonly number[]>): BlockResult {
@@ -501,8 +502,8 @@ export class BlockFactory {
   private assembleCoupled(
     shape: BlockShape & { kind: 'cwbuck' }, src: Source, vin: { min: number; nom: number; max: number },
     spec: StageSpec,
-    run: { design: unknown; perMode: StageEvaluation[]; atMin: StageEvaluation; windows: OutputWindow[] },
-    taps: Map<number, { tapV: number; spec: StageSpec; design: unknown; perMode: StageEvaluation[]; window: OutputWindow; iinPerMode: number[] }>,
+    run: { design: unknown; perMode: StageEvaluation[]; atMin: StageEvaluation; windows: OutputWindow[]; modeCurrents: number[][] },
+    taps: Map<number, { tapV: number; spec: StageSpec; design: unknown; perMode: StageEvaluation[]; modeCurrents: number[][]; window: OutputWindow; iinPerMode: number[] }>,
     directMiss: Map<number, Rejection>, primaryName: string,
   ): BlockEval {
     const rails = this.ctx.rails;
@@ -533,6 +534,7 @@ export class BlockFactory {
     });
     stages.push({
       localId: 's0', kind: 'cwbuck', name: `Coupled-winding buck ${primaryName}`, inputNode: 'input', outputs, barriers, design: run.design, spec,
+      modeCurrents: run.modeCurrents, lossPerMode: run.perMode.map((e) => e.loss),
     });
     let parts = stageParts('cwbuck', shape.secondaries.length);
     parts.barrier = barriers.length;
@@ -542,7 +544,10 @@ export class BlockFactory {
     for (const [s, t] of taps) {
       const r = rails[s]!;
       internalNodes.push({ id: `tap:${r.id}`, name: `Tap ${fmtV(t.tapV)} for ${r.name}`, domainId: r.domainId, voltage: t.tapV as Volts, kind: 'tap' });
-      stages.push({ localId: `ldo:${s}`, kind: 'ldo', name: `LDO ${r.name}`, inputNode: `tap:${r.id}`, outputs: [{ nodeId: r.id, role: 'output' }], barriers: [], design: t.design, spec: t.spec });
+      stages.push({
+        localId: `ldo:${s}`, kind: 'ldo', name: `LDO ${r.name}`, inputNode: `tap:${r.id}`, outputs: [{ nodeId: r.id, role: 'output' }], barriers: [], design: t.design, spec: t.spec,
+        modeCurrents: t.modeCurrents, lossPerMode: t.perMode.map((e) => e.loss),
+      });
       parts = addParts(parts, stageParts('ldo', 0));
       for (let m = 0; m < nModes; m++) lossPerMode[m]! += t.perMode[m]!.loss;
       windows.push(t.window);

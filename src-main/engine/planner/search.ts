@@ -48,10 +48,15 @@ export function* branchAndBound(
   seed?: { blocks: Block[]; score: number } | null,
   /** Filled as the search goes, so a caller that stops early still reads the incumbent. */
   out: SearchOutcome = { best: null, explored: 0, leaves: 0, complete: false, leafFailures: new Map() },
+  /** Per block (aligned with `blocks`): a lower bound of the cost its input adds upstream. */
+  floors?: readonly number[],
 ): Generator<void, SearchOutcome> {
   const n = f.ctx.rails.length;
   const full = n === 32 ? 0xffffffff : ((1 << n) >>> 0) - 1;
-  const score = blocks.map((b) => scorer.score(b.base));
+  // Bounding scores: the block's own score plus its coupling floor.
+  const score = blocks.map((b, i) => scorer.score(b.base) + (floors?.[i] ?? 0));
+  const floorOf = new Map<Block, number>();
+  if (floors) blocks.forEach((b, i) => floorOf.set(b, floors[i] ?? 0));
   const mask = blocks.map((b) => b.covers.reduce((m, r) => (m | (1 << r)) >>> 0, 0));
   const byRail: number[][] = Array.from({ length: n }, () => []);
   blocks.forEach((b, i) => { for (const r of b.covers) byRail[r]!.push(i); });
@@ -138,9 +143,14 @@ export function* branchAndBound(
     }
     let exact = 0;
     for (const e of ev.evals) exact += scorer.score(e);
+    const scoreOnly = exact;
+    // Chosen blocks whose feeding rail is still open: their floor is not in `exact` yet.
+    if (floors && rem !== 0) {
+      for (const b of chosen) if (b.shape.input.kind === 'rail' && (rem & (1 << b.shape.input.rail)) !== 0) exact += floorOf.get(b) ?? 0;
+    }
     if (rem === 0) {
       out.leaves++;
-      if (exact < incumbent - EPS) { incumbent = exact; out.best = { blocks: [...chosen], sel: ev, score: exact }; }
+      if (scoreOnly < incumbent - EPS) { incumbent = scoreOnly; out.best = { blocks: [...chosen], sel: ev, score: scoreOnly }; }
       chosen.pop();
     } else if (exact + bound(rem) >= incumbent - EPS) {
       chosen.pop();

@@ -17,7 +17,7 @@ import type { Infeasibility, Plan, PlanLabel, PlanResult } from '../plan-types.t
 import { assemblePlan, explainInfeasible } from './assemble.ts';
 import { BlockFactory, generateBlocks, type GenerationOptions, type Miss } from './candidates.ts';
 import { inventedCostModel } from './cost-model.ts';
-import { makeScorer, OBJECTIVES, type Objective, type Scorer, type SelectionEval } from './score.ts';
+import { couplingFloorsW, floorScores, makeScorer, OBJECTIVES, type Objective, type Scorer, type SelectionEval } from './score.ts';
 import { branchAndBound, MAX_RAILS, type SearchOutcome } from './search.ts';
 import type { Block, CostModel, StageEvaluator } from './types.ts';
 
@@ -261,7 +261,8 @@ export class PlanSolver {
       }
     }
     const out: SearchOutcome = { best: null, explored: 0, leaves: 0, complete: false, leafFailures: new Map() };
-    this.search = { objective: obj, scorer, it: branchAndBound(f, this.blocks, scorer, seed, out), deadline: this.now() + share, out };
+    this.floorsW ??= couplingFloorsW(f, this.blocks);
+    this.search = { objective: obj, scorer, it: branchAndBound(f, this.blocks, scorer, seed, out, floorScores(this.floorsW, scorer)), deadline: this.now() + share, out };
     this.progress = { ...this.progress, objective: obj, message: `searching for the ${LABEL_OF[obj]} plan` };
     this.pendingSeed = seed;
   }
@@ -269,6 +270,7 @@ export class PlanSolver {
   private pendingSeed: Seed | null = null;
   private seenBest: SearchOutcome['best'] = null;
   private candidatesCut = false;
+  private floorsW: number[] | null = null;
   private firstFeasibleMs: number | undefined;
   private bestFoundMs: number | undefined;
 

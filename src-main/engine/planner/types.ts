@@ -76,6 +76,9 @@ export interface BlockStage {
   barriers: Barrier[];
   design: unknown;
   spec: StageSpec;
+  /** Output currents per mode (A) and this stage's loss per mode (W), at Vin nominal. */
+  modeCurrents?: number[][];
+  lossPerMode?: number[];
 }
 
 /** Evaluated, feasible block at a given extra load on its outputs. */
