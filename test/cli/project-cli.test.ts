@@ -96,7 +96,7 @@ describe('railwright project commands', () => {
     expect(r.out).toMatch(/Rails \(12\)/);
     expect(r.out).toMatch(/Main 3V3 +3\.3 V ±5 %, ripple ≤ 30 mV, standard, peak 325 mA/);
     expect(r.out).toMatch(/Short-range radio +20 mA +250 mA +500 µA/);
-    expect(r.out).toMatch(/Isolated front end 4V096 quiet +4\.096 V ±1 %/);
+    expect(r.out).toMatch(/Isolated front end 4V096 quiet +4\.096 V ±2 %/);
     expect(r.out).toMatch(/Caution: .*certifies nothing/);
   });
 

@@ -52,7 +52,9 @@ describe('killed save', () => {
       expect(['A', 'B']).toContain(req.meta.name);
       expect(req.loads).toEqual(want.loads);
     }
-    // The worker spends nearly all its time saving; about 3 kills in 4 land mid-save (measured).
-    expect(midSave).toBeGreaterThan(0);
+    // Where the kills land depends on the machine's load; test/hardening/kill.test.ts kills
+    // 200 times and asserts that at least half land inside a save. Here six kills are a quick
+    // smoke check of the same guarantee, so the count is only reported.
+    console.info(`killed-save smoke: ${midSave} of 6 kills landed inside a save`);
   });
 });
