@@ -18,7 +18,7 @@ const ldoAccuracy = GENERIC_DEFAULTS.ldo.accuracy;
 function planDemo(mutate?: (r: Requirements) => void): { req: Requirements; result: PlanResult } {
   const req = demoDocument().requirements;
   mutate?.(req);
-  const result = new PlanSolver(req, { evaluator: engineEvaluator() }).solve();
+  const result = new PlanSolver(req, { evaluator: engineEvaluator(), budgetMs: 60_000 }).solve();
   return { req, result };
 }
 

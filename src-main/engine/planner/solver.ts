@@ -96,13 +96,12 @@ export class PlanSolver {
   }
 
   /**
-   * Up to EXACT_RAILS rails the planner is exact: candidate design always completes (it is
-   * finite: a few thousand engine designs at most) and the search may run to the proof for up
-   * to EXACT_SEARCH_CAP_MS; beyond that the budget cuts both (anytime).
+   * The budget binds in every mode: up to EXACT_RAILS rails the search is exact and normally
+   * proves its optimum well inside the budget; when the budget runs out first (a slow machine,
+   * an adversarial instance) the planner returns the incumbent with `provedOptimal: false`, or
+   * an explanation, and never runs past the budget. EXACT_SEARCH_CAP_MS caps the budget itself.
    */
-  private get exact(): boolean { return this.rails.length > 0 && this.rails.length <= EXACT_RAILS; }
-
-  private get deadline(): number { return this.t0 + (this.exact ? Math.max(this.budgetMs, EXACT_SEARCH_CAP_MS) : this.budgetMs); }
+  private get deadline(): number { return this.t0 + Math.min(this.budgetMs, EXACT_SEARCH_CAP_MS); }
 
   cancel(): void { this.cancelled = true; }
 
@@ -114,8 +113,10 @@ export class PlanSolver {
     for (let u = 0; u < units; u++) {
       if (this.cancelled) { this.finish(); return true; }
       if (!this.advance()) return true;
+      // A candidate design can take tens of milliseconds: look at the clock after each one.
+      if (this.progress.phase === 'candidates' && this.now() > this.deadline) break;
     }
-    if (this.progress.phase === 'candidates' && this.gen && !this.exact && this.now() > this.deadline) {
+    if (this.progress.phase === 'candidates' && this.gen && this.now() > this.deadline) {
       // Out of time while designing candidates: search with the blocks designed so far.
       this.allComplete = false;
       this.trace.push(`budget of ${this.budgetMs} ms reached while designing candidates; searching the ${this.factory?.evaluations ?? 0} designed so far`);
@@ -175,10 +176,10 @@ export class PlanSolver {
           this.explored++;
           this.progress.explored = this.explored;
           // Cut at the objective's time share once it has an incumbent (or at twice the budget).
-          if ((this.explored & 63) === 0) {
+          if ((this.explored & 7) === 0) {
             const t = this.now();
             const has = this.search.out.best !== null || this.pendingSeed !== null;
-            if ((t > this.search.deadline && has) || t > this.deadline + this.budgetMs) {
+            if ((t > this.search.deadline && has) || t > this.deadline) {
               this.trace.push(`objective ${this.search.objective}: time share used up after ${this.search.out.explored} nodes; keeping the incumbent`);
               this.recordSearch(this.search.out, false);
               this.search = null;
