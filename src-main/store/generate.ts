@@ -17,17 +17,9 @@ export interface GenerateOptions {
   isolatedDomains?: number;
 }
 
-/** Small deterministic PRNG (mulberry32), enough for test data. */
-export function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** The project's seeded generator (engine/random.ts), under the name the tests use. */
+export { seededRandom as prng } from '../engine/random.ts';
+import { seededRandom as prng } from '../engine/random.ts';
 
 const DIGITAL: [number, number, NoiseClass][] = [[1.0, 0.03, 'rugged'], [1.2, 0.03, 'rugged'], [1.8, 0.05, 'standard'], [2.5, 0.05, 'standard'], [3.3, 0.05, 'standard'], [5, 0.05, 'rugged'], [12, 0.1, 'rugged']];
 const ANALOG: [number, number, NoiseClass][] = [[15, 0.05, 'quiet'], [-15, 0.05, 'quiet'], [12, 0.05, 'quiet'], [-12, 0.05, 'quiet'], [5, 0.02, 'quiet'], [2.5, 0.01, 'quiet'], [3.3, 0.05, 'standard']];

@@ -5,17 +5,8 @@
 import type { Amps, Hertz, Ratio, Volts } from '../units.ts';
 import { DEFAULT_LIMITS, DEFAULT_PREFERENCES, type Domain, type Load, type NoiseClass, type Requirements, type StageKind } from '../model.ts';
 
-/** Small deterministic PRNG (mulberry32). */
-export function seededRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+export { seededRandom } from '../random.ts';
+import { seededRandom } from '../random.ts';
 
 export interface InstanceOptions {
   rails: number;

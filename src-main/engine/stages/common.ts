@@ -75,17 +75,8 @@ export function thermalFlags(parts: DissipatingPart[], tjMax: number): StageFlag
       { role: p.role, tj: r3(p.tj), limit: tjMax, power: r3(p.power) }));
 }
 
-/** Deterministic PRNG (mulberry32) for the seeded Monte Carlo. */
-export function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** Deterministic PRNG for the seeded Monte Carlo (the project's one generator). */
+export { seededRandom as mulberry32 } from '../random.ts';
 
 /** Warn for every output whose ripple passes its limit. */
 export function rippleFlags(outputs: { nodeId: string; ripplePP: number }[], specs: { rippleLimit: number }[]): StageFlag[] {
