@@ -35,10 +35,17 @@ export function decadeValues(series: ESeriesName): number[] {
   return m.map((x) => x / scale);
 }
 
-function candidates(series: ESeriesName, x: number): number[] {
+/** Candidate lists depend only on the series and the decade of x: computed once each. */
+const candidateCache = new Map<string, readonly number[]>();
+
+function candidates(series: ESeriesName, x: number): readonly number[] {
   const e = Math.floor(Math.log10(x));
+  const key = `${series}|${e}`;
+  const hit = candidateCache.get(key);
+  if (hit) return hit;
   const out: number[] = [];
   for (const d of [e - 1, e, e + 1]) for (const v of decadeValues(series)) out.push(roundSig(v * 10 ** d));
+  candidateCache.set(key, out);
   return out;
 }
 
@@ -99,6 +106,20 @@ export interface DividerChoice {
  * larger bottom resistor (less divider current). Returns null when target ≤ vref.
  */
 export function bestDivider(target: number, vref: number, rBottomMin = 10e3, rBottomMax = 100e3): DividerChoice | null {
+  // A pure function of its arguments, called for every design: remembered (callers get a copy).
+  const key = `${target}|${vref}|${rBottomMin}|${rBottomMax}`;
+  let hit = dividerCache.get(key);
+  if (hit === undefined) {
+    hit = searchDivider(target, vref, rBottomMin, rBottomMax);
+    if (dividerCache.size > 4096) dividerCache.clear();
+    dividerCache.set(key, hit);
+  }
+  return hit && { ...hit };
+}
+
+const dividerCache = new Map<string, DividerChoice | null>();
+
+function searchDivider(target: number, vref: number, rBottomMin: number, rBottomMax: number): DividerChoice | null {
   const t = Math.abs(target);
   if (!(t > vref)) return null;
   const want = t / vref - 1;

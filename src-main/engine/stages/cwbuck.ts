@@ -134,7 +134,7 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
   const k = w.coupling;
   const llk = (n * n * d.inductance * (1 - k * k)) / (k * k);
   const T = 1 / d.fsw;
-  const vf = (i: number) => vfScale * diodeVf(w.rectifier, i);
+  const rect = w.rectifier;
   let vsec = vguess;
   let sp: SecondaryPoint | null = null;
   for (let it = 0; it < 6; it++) {
@@ -150,7 +150,7 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     }
     const ic = (isec * T) / toff;
     const rd = vfScale * ((w.rectifier.n * VT) / ic + w.rectifier.rs);
-    const v0 = vf(ic) - rd * ic;
+    const v0 = vfScale * diodeVf(rect, ic) - rd * ic;
     const rt = rd + (w.resistance as number);
     const tau = llk / rt;
     const x = toff / tau;
@@ -191,14 +191,14 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
       const t = ((m + 0.5) / N) * toff;
       const i = Math.max(0, alpha * -Math.expm1(-t / tau) + beta * t);
       s2 += i * i;
-      pr += vf(i) * i;
+      pr += vfScale * diodeVf(rect, i) * i;
       short += Math.max(0, isec - i);
     }
     const ms = (s2 / N) * (toff / T);
     const vrev = Math.max(n * von + vsec + v0, 1e-3);
     const tdec = (iend * llk) / vrev;
     const irms = Math.sqrt(ms + (iend * iend * tdec) / (3 * T));
-    const pRect = (pr / N) * (toff / T) + vf(iend / 2) * (iend / 2) * (tdec / T);
+    const pRect = (pr / N) * (toff / T) + vfScale * diodeVf(rect, iend / 2) * (iend / 2) * (tdec / T);
     // The capacitor carries the load through the on-time and while the rising winding current
     // is still below it; the leakage's decay charge at turn-on gives some back.
     const qdef = Math.max(0, isec * (T - toff) - qdec + (short / N) * toff);

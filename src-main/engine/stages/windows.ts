@@ -75,6 +75,13 @@ function outputsAt(d: WindowDesign, vin: number, iout: number[], x: Draw): { lo:
   return [{ lo: p.vout - p.ripple / 2, hi: p.vout + p.ripple / 2 }];
 }
 
+/** "min/max/…": which outputs are at their largest current in a corner. */
+function cornerLoads(n: number, mask: number): string {
+  const parts: string[] = [];
+  for (let i = 0; i < n; i++) parts.push(mask & (1 << i) ? 'max' : 'min');
+  return parts.join('/');
+}
+
 function bandOf(o: OutputSpec): { min: number; max: number } {
   const a = (o.voltage as number) * (1 - o.tolerance);
   const b = (o.voltage as number) * (1 + o.tolerance);
@@ -111,14 +118,18 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
   for (const vin of corners.vin) {
     for (let mask = 0; mask < 1 << n; mask++) {
       const iout = corners.iout.map((c, i) => (mask & (1 << i) ? c.max : c.min) as number);
-      const loads = iout.map((_, i) => (mask & (1 << i) ? 'max' : 'min')).join('/');
       for (const tc of tolCases) {
         const vals = outputsAt(d, vin, iout, tc.x);
-        vals.forEach((v, i) => {
-          const where = `Vin ${r3(vin)} V, loads ${loads}, ${tc.label}`;
-          if (v.lo < lo[i]!) { lo[i] = v.lo; loAt[i] = where; }
-          if (v.hi > hi[i]!) { hi[i] = v.hi; hiAt[i] = where; }
-        });
+        // The corner's label is built only when it sets a new extreme.
+        let where: string | null = null;
+        for (let i = 0; i < vals.length; i++) {
+          const v = vals[i]!;
+          const low = v.lo < lo[i]!, high = v.hi > hi[i]!;
+          if (!low && !high) continue;
+          where ??= `Vin ${r3(vin)} V, loads ${cornerLoads(iout.length, mask)}, ${tc.label}`;
+          if (low) { lo[i] = v.lo; loAt[i] = where; }
+          if (high) { hi[i] = v.hi; hiAt[i] = where; }
+        }
       }
     }
   }
