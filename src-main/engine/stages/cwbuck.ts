@@ -82,6 +82,12 @@ export interface CoupledEvalOptions {
   vPrimary?: number;
   /** Scale every rectifier drop (1 ± spread for the windows). */
   vfScale?: number;
+  /**
+   * What the caller reads besides the voltages and duty: 'full' (default) every current and
+   * loss; 'ripple' the ripple terms but not the RMS currents and rectifier losses (left 0);
+   * 'voltages' neither (ripple and loss terms left 0). The voltages are the same in all three.
+   */
+  detail?: 'full' | 'ripple' | 'voltages';
 }
 
 /** Internal numbers of one operating point, shared with the netlist writer and tests. */
@@ -129,7 +135,7 @@ function dt(d: CoupledBuckDesign): number {
  * Solve one secondary for its voltage. The off-time drive falls linearly as the primary
  * winding current (and so its resistive drop) falls: n·Voff(t) = n·(voff0 − sl·t).
  */
-function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number, sl: number, von: number, toff: number, iload: number, vfScale: number, vguess: number, full: boolean): SecondaryPoint {
+function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number, sl: number, von: number, toff: number, iload: number, vfScale: number, vguess: number, full: boolean, losses: boolean): SecondaryPoint {
   const n = Math.abs(w.turns) / d.primaryTurns;
   const k = w.coupling;
   const llk = (n * n * d.inductance * (1 - k * k)) / (k * k);
@@ -154,7 +160,8 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     const rt = rd + (w.resistance as number);
     const tau = llk / rt;
     const x = toff / tau;
-    const shape = toff - tau * -Math.expm1(-x);
+    const rise = -Math.expm1(-x);
+    const shape = toff - tau * rise;
     // Loop: Llk·di/dt = E0 − b·t − Rt·i, i(0) = 0, with b = n·sl. Solution
     // i(t) = α(1 − e^(−t/τ)) + β·t, β = −b/Rt, α = (E0 + Llk·b/Rt)/Rt.
     const b = n * sl;
@@ -163,14 +170,14 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     let E0 = 0;
     let alpha = 0;
     let iend = 0;
+    // After the high side turns on the winding reverses; the current decays through the
+    // leakage at (n·Von + Vsec + V0)/Llk and still charges the output meanwhile.
+    const vrev0 = Math.max(n * von + vsec + v0, 1e-3);
     for (let j = 0; j < 4; j++) {
       alpha = (isec * T - qdec - (beta * toff * toff) / 2) / shape;
       E0 = alpha * rt - (llk * b) / rt;
-      iend = Math.max(0, alpha * -Math.expm1(-x) + beta * toff);
-      // After the high side turns on the winding reverses; the current decays through the
-      // leakage at (n·Von + Vsec + V0)/Llk and still charges the output meanwhile.
-      const vrev = Math.max(n * von + vsec + v0, 1e-3);
-      qdec = Math.min((iend * iend * llk) / (2 * vrev), 0.5 * isec * T);
+      iend = Math.max(0, alpha * rise + beta * toff);
+      qdec = Math.min((iend * iend * llk) / (2 * vrev0), 0.5 * isec * T);
     }
     const vPrev = vsec;
     // A rectified output cannot reverse: past its range the model's voltage stops at zero.
@@ -190,15 +197,17 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     for (let m = 0; m < N; m++) {
       const t = ((m + 0.5) / N) * toff;
       const i = Math.max(0, alpha * -Math.expm1(-t / tau) + beta * t);
-      s2 += i * i;
-      pr += vfScale * diodeVf(rect, i) * i;
+      if (losses) {
+        s2 += i * i;
+        pr += vfScale * diodeVf(rect, i) * i;
+      }
       short += Math.max(0, isec - i);
     }
     const ms = (s2 / N) * (toff / T);
     const vrev = Math.max(n * von + vsec + v0, 1e-3);
     const tdec = (iend * llk) / vrev;
-    const irms = Math.sqrt(ms + (iend * iend * tdec) / (3 * T));
-    const pRect = (pr / N) * (toff / T) + vfScale * diodeVf(rect, iend / 2) * (iend / 2) * (tdec / T);
+    const irms = losses ? Math.sqrt(ms + (iend * iend * tdec) / (3 * T)) : 0;
+    const pRect = losses ? (pr / N) * (toff / T) + vfScale * diodeVf(rect, iend / 2) * (iend / 2) * (tdec / T) : 0;
     // The capacitor carries the load through the on-time and while the rising winding current
     // is still below it; the leakage's decay charge at turn-on gives some back.
     const qdef = Math.max(0, isec * (T - toff) - qdec + (short / N) * toff);
@@ -211,6 +220,7 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
 export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], opts: CoupledEvalOptions = {}): CoupledPoint {
   const vpri = opts.vPrimary ?? d.divider.vout;
   const vfScale = opts.vfScale ?? 1;
+  const detail = opts.detail ?? 'full';
   const ipri = Math.max(0, Math.abs(iout[0] ?? 0));
   const rhs = d.highSide.rdsOn * d.rdsHotFactor;
   const rls = d.lowSide.rdsOn * d.rdsHotFactor;
@@ -261,7 +271,9 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
     const voff0 = voff + (sl * toff) / 2;
     const last = it === MAX_IT - 1;
     const prevDuty = duty0;
-    sec = d.secondaries.map((w, i) => solveSecondary(d, w, voff0, sl, von, toff, Math.abs(iout[i + 1] ?? 0), vfScale, sec[i]!.vsec, last));
+    const full = last && detail !== 'voltages';
+    const losses = detail === 'full';
+    sec = d.secondaries.map((w, i) => solveSecondary(d, w, voff0, sl, von, toff, Math.abs(iout[i + 1] ?? 0), vfScale, sec[i]!.vsec, full, losses));
     iend = im - dim / 2 - sec.reduce((a, s) => a + s.n * s.ipk, 0);
     if (last) break;
     // Converged: finish with one pass that also integrates the RMS currents and losses.
@@ -351,7 +363,7 @@ function regulatedPoint(d: CoupledBuckDesign, vin: number, iout: number[], opts:
 
 /** Output voltages (signed) and ripple only, for the windows: no losses, no flags. */
 export function coupledOutputs(d: CoupledBuckDesign, vin: number, iout: number[], opts: CoupledEvalOptions = {}): { voltage: number; ripplePP: number }[] {
-  const p = regulatedPoint(d, vin, iout, opts);
+  const p = regulatedPoint(d, vin, iout, { detail: 'ripple', ...opts });
   const fsw = d.fsw as number;
   const ipri = Math.max(0, Math.abs(iout[0] ?? 0));
   return [
@@ -568,8 +580,8 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     const dsg = template(turnsP, turnsS);
     // The band's extremes: light load at Vin max (most off-time, least drop) and full load at
     // Vin min (least off-time, most drop).
-    const a = coupledPoint(dsg, spec.vinMax as number, light);
-    const b = coupledPoint(dsg, spec.vinMin as number, heavy);
+    const a = coupledPoint(dsg, spec.vinMax as number, light, { detail: 'voltages' });
+    const b = coupledPoint(dsg, spec.vinMin as number, heavy, { detail: 'voltages' });
     return secs.map((o, i) => {
       const t = Math.abs(o.voltage);
       const va = a.sec[i]!.vsec;
