@@ -27,6 +27,11 @@ import { GENERIC_DEFAULTS, VT, diodeVf, type ControllerParams, type DiodeModel, 
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from './common.ts';
 import { feasibility, specErrors, switchingFlags } from './buck.ts';
 
+// Module-local bindings for the innermost loops (saves a lookup through the module namespace
+// on every call when the sources run through a CommonJS transform).
+const vfOfDiode = diodeVf;
+const THERMAL_VOLTAGE = VT;
+
 export interface SecondaryWinding {
   nodeId: string;
   /** Signed turns: a negative count is a reversed winding with its rectifier reversed. */
@@ -155,8 +160,8 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
       continue;
     }
     const ic = (isec * T) / toff;
-    const rd = vfScale * ((w.rectifier.n * VT) / ic + w.rectifier.rs);
-    const v0 = vfScale * diodeVf(rect, ic) - rd * ic;
+    const rd = vfScale * ((w.rectifier.n * THERMAL_VOLTAGE) / ic + w.rectifier.rs);
+    const v0 = vfScale * vfOfDiode(rect, ic) - rd * ic;
     const rt = rd + (w.resistance as number);
     const tau = llk / rt;
     const x = toff / tau;
@@ -199,7 +204,7 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
       const i = Math.max(0, alpha * -Math.expm1(-t / tau) + beta * t);
       if (losses) {
         s2 += i * i;
-        pr += vfScale * diodeVf(rect, i) * i;
+        pr += vfScale * vfOfDiode(rect, i) * i;
       }
       short += Math.max(0, isec - i);
     }
@@ -207,7 +212,7 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     const vrev = Math.max(n * von + vsec + v0, 1e-3);
     const tdec = (iend * llk) / vrev;
     const irms = losses ? Math.sqrt(ms + (iend * iend * tdec) / (3 * T)) : 0;
-    const pRect = losses ? (pr / N) * (toff / T) + vfScale * diodeVf(rect, iend / 2) * (iend / 2) * (tdec / T) : 0;
+    const pRect = losses ? (pr / N) * (toff / T) + vfScale * vfOfDiode(rect, iend / 2) * (iend / 2) * (tdec / T) : 0;
     // The capacitor carries the load through the on-time and while the rising winding current
     // is still below it; the leakage's decay charge at turn-on gives some back.
     const qdef = Math.max(0, isec * (T - toff) - qdec + (short / N) * toff);
@@ -234,13 +239,19 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
   let im = ipri, dim = 0, iend = 0, voff = vpri, von = vin - vpri, toff = (1 - duty) / d.fsw;
   const MAX_IT = 12;
   let duty0 = -1;
+  const nSec = d.secondaries.length;
+  const loads = new Array<number>(nSec);
+  for (let i = 0; i < nSec; i++) loads[i] = Math.abs(iout[i + 1] ?? 0);
+  const losses = detail === 'full';
   for (let it = 0; it < MAX_IT; it++) {
-    const sumN = sec.reduce((a, s) => a + s.n * s.isec, 0);
+    // Plain loops (same summation order as a left fold): this runs for every corner.
+    let sumN = 0;
+    for (let i = 0; i < nSec; i++) sumN += sec[i]!.n * sec[i]!.isec;
     im = ipri + sumN;
     const ioff = ipri - (sumN * duty) / (1 - duty);
     voff = vpri + ioff * (rls + rp);
     von = vin - vpri - im * (rhs + rp);
-    const vfb = diodeVf(d.bodyDiode, Math.abs(im));
+    const vfb = vfOfDiode(d.bodyDiode, Math.abs(im));
     // The dead time after the high side turns off holds the switch node one body-diode drop
     // below ground; so does the one before it turns on while the primary current is positive.
     const vdead = vpri + vfb;
@@ -272,9 +283,15 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
     const last = it === MAX_IT - 1;
     const prevDuty = duty0;
     const full = last && detail !== 'voltages';
-    const losses = detail === 'full';
-    sec = d.secondaries.map((w, i) => solveSecondary(d, w, voff0, sl, von, toff, Math.abs(iout[i + 1] ?? 0), vfScale, sec[i]!.vsec, full, losses));
-    iend = im - dim / 2 - sec.reduce((a, s) => a + s.n * s.ipk, 0);
+    const next = new Array<SecondaryPoint>(nSec);
+    let sumPk = 0;
+    for (let i = 0; i < nSec; i++) {
+      const sp = solveSecondary(d, d.secondaries[i]!, voff0, sl, von, toff, loads[i]!, vfScale, sec[i]!.vsec, full, losses);
+      next[i] = sp;
+      sumPk += sp.n * sp.ipk;
+    }
+    sec = next;
+    iend = im - dim / 2 - sumPk;
     if (last) break;
     // Converged: finish with one pass that also integrates the RMS currents and losses.
     if (Math.abs(duty - prevDuty) < 1e-12 && it > 1) it = MAX_IT - 2;
@@ -576,7 +593,18 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     const v = Math.abs(o.voltage);
     return (o.tolerance as number) - setTol - (rect.vfSpread * diodeVf(rect, o.currentMax as number)) / v - (o.rippleLimit as number) / 2 / v;
   });
+  // The same turns are often asked for twice (the refined combination is one of the ±1
+  // trials when every secondary moved the same way): solved once.
+  const errorsSeen = new Map<string, { centre: number; half: number }[]>();
   const errorsFor = (turnsP: number, turnsS: number[]) => {
+    const key = `${turnsP}:${turnsS.join(':')}`;
+    const seen = errorsSeen.get(key);
+    if (seen) return seen;
+    const e = solveErrors(turnsP, turnsS);
+    errorsSeen.set(key, e);
+    return e;
+  };
+  const solveErrors = (turnsP: number, turnsS: number[]) => {
     const dsg = template(turnsP, turnsS);
     // The band's extremes: light load at Vin max (most off-time, least drop) and full load at
     // Vin min (least off-time, most drop).

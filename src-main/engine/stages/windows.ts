@@ -115,8 +115,15 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
     const label = `${d.kind === 'ldo' ? 'accuracy' : 'reference and divider'} ${s < 0 ? 'low' : 'high'}${hasVf ? `, rectifier drop ${f < 0 ? 'low' : 'high'}` : ''}`;
     tolCases.push({ x, label });
   }
-  for (const vin of corners.vin) {
+  // An output whose smallest and largest currents are equal, or an input voltage given twice,
+  // repeats corners already evaluated: they cannot set a new (strict) extreme, so skip them.
+  let fixed = 0;
+  corners.iout.forEach((c, i) => { if (c.min === c.max) fixed |= 1 << i; });
+  for (let k = 0; k < corners.vin.length; k++) {
+    const vin = corners.vin[k]!;
+    if (corners.vin.indexOf(vin) < k) continue;
     for (let mask = 0; mask < 1 << n; mask++) {
+      if (mask & fixed) continue;
       const iout = corners.iout.map((c, i) => (mask & (1 << i) ? c.max : c.min) as number);
       for (const tc of tolCases) {
         const vals = outputsAt(d, vin, iout, tc.x);
