@@ -140,7 +140,20 @@ function dt(d: CoupledBuckDesign): number {
  * Solve one secondary for its voltage. The off-time drive falls linearly as the primary
  * winding current (and so its resistive drop) falls: n·Voff(t) = n·(voff0 − sl·t).
  */
-function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number, sl: number, von: number, toff: number, iload: number, vfScale: number, vguess: number, full: boolean, losses: boolean): SecondaryPoint {
+function fillPoint(
+  o: SecondaryPoint, n: number, llk: number, isec: number, iload: number, ipre: number, vsec: number, ipk: number,
+  irms: number, iinf: number, beta: number, tau: number, pRect: number, qdef: number,
+): SecondaryPoint {
+  o.n = n; o.llk = llk; o.isec = isec; o.iload = iload; o.ipre = ipre; o.vsec = vsec; o.ipk = ipk;
+  o.irms = irms; o.iinf = iinf; o.beta = beta; o.tau = tau; o.pRect = pRect; o.qdef = qdef;
+  return o;
+}
+
+/**
+ * The result is written into `out` (the caller's point for this winding, read before the
+ * call and replaced by it: the operating-point loop allocates nothing per pass).
+ */
+function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number, sl: number, von: number, toff: number, iload: number, vfScale: number, vguess: number, full: boolean, losses: boolean, out: SecondaryPoint): SecondaryPoint {
   const n = Math.abs(w.turns) / d.primaryTurns;
   const k = w.coupling;
   const llk = (n * n * d.inductance * (1 - k * k)) / (k * k);
@@ -154,7 +167,7 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     // Below a nanoampere the winding is treated as unloaded (keeps the diode's small-signal
     // resistance finite).
     if (!(isec > 1e-9)) {
-      sp = { n, llk, isec: 0, iload, ipre: 0, vsec: n * voff0, ipk: 0, irms: 0, iinf: 0, beta: 0, tau: 0, pRect: 0, qdef: 0 };
+      sp = fillPoint(out, n, llk, 0, iload, 0, n * voff0, 0, 0, 0, 0, 0, 0, 0);
       if (Math.abs(sp.vsec - vsec) < 1e-12) break;
       vsec = sp.vsec;
       continue;
@@ -189,10 +202,11 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     vsec = Math.max(0, n * voff0 - v0 - E0);
     const iinf = alpha;
     const settled = !w.preload || Math.abs(vsec - vPrev) < 1e-10 * Math.max(1, Math.abs(vsec));
+    // Only the pass that ends the loop is returned: earlier passes skip the sampling below.
+    if (!settled && it < 5) continue;
     if (!full) {
-      sp = { n, llk, isec, iload, ipre, vsec, ipk: iend, irms: 0, iinf, beta, tau, pRect: 0, qdef: 0 };
-      if (settled) break;
-      continue;
+      sp = fillPoint(out, n, llk, isec, iload, ipre, vsec, iend, 0, iinf, beta, tau, 0, 0);
+      break;
     }
     // RMS and rectifier loss by sampling the waveform.
     const N = 32;
@@ -216,8 +230,8 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     // The capacitor carries the load through the on-time and while the rising winding current
     // is still below it; the leakage's decay charge at turn-on gives some back.
     const qdef = Math.max(0, isec * (T - toff) - qdec + (short / N) * toff);
-    sp = { n, llk, isec, iload, ipre, vsec, ipk: iend, irms, iinf, beta, tau, pRect, qdef };
-    if (settled) break;
+    sp = fillPoint(out, n, llk, isec, iload, ipre, vsec, iend, irms, iinf, beta, tau, pRect, qdef);
+    break;
   }
   return sp!;
 }
@@ -232,7 +246,7 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
   const rp = d.primaryResistance as number;
   const tdf = dt(d);
   let duty = vpri / vin;
-  let sec: SecondaryPoint[] = d.secondaries.map((w) => ({
+  const sec: SecondaryPoint[] = d.secondaries.map((w) => ({
     n: Math.abs(w.turns) / d.primaryTurns, llk: 0, isec: 0, iload: 0, ipre: 0,
     vsec: (Math.abs(w.turns) / d.primaryTurns) * vpri - 0.4, ipk: 0, irms: 0, iinf: 0, beta: 0, tau: 0, pRect: 0, qdef: 0,
   }));
@@ -283,14 +297,11 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
     const last = it === MAX_IT - 1;
     const prevDuty = duty0;
     const full = last && detail !== 'voltages';
-    const next = new Array<SecondaryPoint>(nSec);
     let sumPk = 0;
     for (let i = 0; i < nSec; i++) {
-      const sp = solveSecondary(d, d.secondaries[i]!, voff0, sl, von, toff, loads[i]!, vfScale, sec[i]!.vsec, full, losses);
-      next[i] = sp;
+      const sp = solveSecondary(d, d.secondaries[i]!, voff0, sl, von, toff, loads[i]!, vfScale, sec[i]!.vsec, full, losses, sec[i]!);
       sumPk += sp.n * sp.ipk;
     }
-    sec = next;
     iend = im - dim / 2 - sumPk;
     if (last) break;
     // Converged: finish with one pass that also integrates the RMS currents and losses.
