@@ -3,10 +3,11 @@
  * and `railwright library` (import/export the project's part library as CSV). Thin shells
  * over the store, the planner and the pure exports.
  */
+import { openStore } from './open-project.ts';
 import { mkdirSync, readFileSync } from 'node:fs';
 import { dirname } from 'node:path';
 import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
-import { OpenError, PROJECT_EXTENSION, ProjectStore, StoreError, writeFileAtomic } from '../store/project-store.ts';
+import { PROJECT_EXTENSION, ProjectStore, StoreError, writeFileAtomic } from '../store/project-store.ts';
 import type { PlanResult } from '../engine/plan-types.ts';
 import type { PartLibraryRow } from '../engine/model.ts';
 import { describeProblem, fromStoreRows, libraryCostModel, rowsToTable, tableToRows, toStoreRows, type LibraryRow } from '../engine/library.ts';
@@ -24,15 +25,6 @@ const CAUTION =
   'safety standard and local codes; a qualified engineer and the test lab decide. The tool certifies nothing; ' +
   'costs are estimates (invented in the default library).';
 
-function openStore(path: string | undefined): ProjectStore {
-  if (!path) throw new CliError('missing project file (see --help)', 2);
-  try {
-    return ProjectStore.open(path);
-  } catch (e) {
-    if (e instanceof OpenError) throw new CliError(e.message);
-    throw e;
-  }
-}
 
 /** The project's library as typed rows; the default library when the project has none. */
 function projectLibrary(store: ProjectStore, io: CliIo): LibraryRow[] {

@@ -2,6 +2,7 @@
  * Project commands: demo, new, validate, import, export-json, summary.
  * Thin shells over the store, the JSON format and validation.
  */
+import { openStore } from './open-project.ts';
 import { existsSync, readFileSync, statSync } from 'node:fs';
 import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
 import { groupRails, railPeakCurrent } from '../engine/rails.ts';
@@ -9,7 +10,7 @@ import { formatQuantity, formatTolerance } from '../engine/notation.ts';
 import { validateRequirements, type Problem } from '../engine/validate.ts';
 import type { Requirements } from '../engine/model.ts';
 import { exportProjectJson, importProjectJson } from '../store/json-format.ts';
-import { OpenError, PROJECT_EXTENSION, ProjectStore, StoreError, hasProjectExtension, writeFileAtomic } from '../store/project-store.ts';
+import { PROJECT_EXTENSION, ProjectStore, StoreError, hasProjectExtension, writeFileAtomic } from '../store/project-store.ts';
 import { demoDocument } from '../store/demo.ts';
 
 const ISOLATION_CAUTION =
@@ -30,15 +31,6 @@ function refuseOverwrite(path: string, force: boolean): void {
   if (!force) throw new CliError(`${path} already exists (use --force to overwrite it)`);
 }
 
-function openStore(path: string | undefined): ProjectStore {
-  if (!path) throw new CliError('missing project file (see --help)', 2);
-  try {
-    return ProjectStore.open(path);
-  } catch (e) {
-    if (e instanceof OpenError) throw new CliError(e.message);
-    throw e;
-  }
-}
 
 function problemLines(problems: Problem[]): string[] {
   return problems.map((p) => `  ${p.path}: ${p.message}`);
