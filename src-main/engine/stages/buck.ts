@@ -17,17 +17,19 @@ export interface ThermalParams {
   inductor: number;
 }
 
-export interface BuckDesign {
-  kind: 'buck';
+/**
+ * What every synchronous switching stage's design holds, the plain buck and the
+ * coupled-winding buck alike: input range, switching frequency, the magnetic's inductance
+ * and saturation current, capacitors, the feedback divider, the switch pair and controller.
+ */
+export interface SwitchingDesignBase {
   vinMin: Volts;
   vinNom: Volts;
   vinMax: Volts;
-  /** One output (index 0). */
   outputs: OutputSpec[];
   fsw: Hertz;
+  /** Inductance (for a coupled-winding stage: the magnetizing inductance of the primary). */
   inductance: Henries;
-  /** Inductor winding resistance. */
-  dcr: Ohms;
   /** Required saturation current (peak at Vin max, full load, with margin). */
   isat: Amps;
   /** κ of the labelled core-loss model P = κ·½·L·ΔI²·fsw. */
@@ -43,6 +45,14 @@ export interface BuckDesign {
   controller: ControllerParams;
   thetaJA: ThermalParams;
   tjMax: Celsius;
+}
+
+export interface BuckDesign extends SwitchingDesignBase {
+  kind: 'buck';
+  /** One output (index 0). */
+  outputs: OutputSpec[];
+  /** Inductor winding resistance. */
+  dcr: Ohms;
 }
 
 /** Internal numbers of one buck operating point, shared with the netlist writer. */

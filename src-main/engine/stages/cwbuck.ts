@@ -19,13 +19,13 @@
  * leakage term), for τ ≪ Toff E = Rt·Isec/(1−D) (the resistive term): the two limits of
  * Vsec ≈ n·Vpri − Vf − 2·Llk·fsw·Isec/(1−D)² − R·Isec/(1−D).
  */
-import type { Amps, Celsius, Henries, Hertz, Ohms, Ratio, Volts, Watts } from '../units.ts';
+import type { Amps, Henries, Ohms, Ratio, Volts, Watts } from '../units.ts';
 import type { OperatingPoint, OutputResult, OutputSpec, StageEvaluation, StageFlag, StageSpec } from './types.ts';
 import type { IsolationClass } from '../model.ts';
-import { bestDivider, nearest, type DividerChoice } from '../eseries.ts';
-import { GENERIC_DEFAULTS, VT, diodeVf, type ControllerParams, type DiodeModel, type SwitchParams } from './defaults.ts';
+import { bestDivider, nearest } from '../eseries.ts';
+import { GENERIC_DEFAULTS, VT, diodeVf, type ControllerParams, type DiodeModel } from './defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from './common.ts';
-import { feasibility, specErrors, switchingFlags } from './buck.ts';
+import { feasibility, specErrors, switchingFlags, type SwitchingDesignBase } from './buck.ts';
 
 // Module-local bindings for the innermost loops (saves a lookup through the module namespace
 // on every call when the sources run through a CommonJS transform).
@@ -49,31 +49,13 @@ export interface SecondaryWinding {
   thetaJA: number;
 }
 
-export interface CoupledBuckDesign {
+export interface CoupledBuckDesign extends SwitchingDesignBase {
   kind: 'cwbuck';
-  vinMin: Volts;
-  vinNom: Volts;
-  vinMax: Volts;
   /** outputs[0] is the regulated primary, outputs[1..] the secondaries in winding order. */
   outputs: OutputSpec[];
-  fsw: Hertz;
   primaryTurns: number;
-  /** Magnetizing (primary) inductance. */
-  inductance: Henries;
   primaryResistance: Ohms;
-  isat: Amps;
-  coreLossFraction: number;
   secondaries: SecondaryWinding[];
-  cout: CapacitorChoice;
-  cin: CapacitorChoice;
-  divider: DividerChoice;
-  highSide: SwitchParams;
-  lowSide: SwitchParams;
-  rdsHotFactor: number;
-  bodyDiode: DiodeModel;
-  controller: ControllerParams;
-  thetaJA: { highSide: number; lowSide: number; controller: number; inductor: number };
-  tjMax: Celsius;
   /** Preferences the flags compare against. */
   maxSecondaries: number;
   powerLimit: Watts;
