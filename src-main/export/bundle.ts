@@ -14,19 +14,12 @@ import type { Amps, Volts } from '../engine/units.ts';
 import { bomToCsv, bomToXlsx } from './bom-files.ts';
 import { treeToSvg } from './tree-svg.ts';
 import { treeToPdf } from './tree-pdf.ts';
-import { reportToPdf } from './report-pdf.ts';
+import { reportToPdf, type PlannedProject } from './report-pdf.ts';
 import { magneticSpecMarkdown } from './magnetic-spec.ts';
 import { buckNetlist, coupledBuckNetlist } from './spice.ts';
 
-export interface ExportBundle {
-  req: Requirements;
-  result: PlanResult;
-  plan: Plan;
-  rollup: Rollup;
-  bom: Bom;
-  tree: LaidOutTree;
+export interface ExportBundle extends PlannedProject {
   names: Map<string, string>;
-  replanned: boolean;
 }
 
 export class ExportError extends Error {}

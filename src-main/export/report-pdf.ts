@@ -33,17 +33,21 @@ export const SAFETY_CAUTIONS = [
   'Costs are estimates from the project part library; rows marked "invented estimate" are invented figures, not quotations.',
 ];
 
-export interface ReportInput {
+/** A planned project with everything computed from it: what every export starts from. */
+export interface PlannedProject {
   req: Requirements;
   result: PlanResult;
   plan: Plan;
   rollup: Rollup;
   bom: Bom;
   tree: LaidOutTree;
-  /** Custom magnetics: designator, stage and spec file name. */
-  magnetics: Array<{ ref: string; stageId: string; stageName: string; specRef: string; summary: string }>;
   /** Whether the plan had to be recomputed for this export (stale or missing). */
   replanned: boolean;
+}
+
+export interface ReportInput extends PlannedProject {
+  /** Custom magnetics: designator, stage and spec file name. */
+  magnetics: Array<{ ref: string; stageId: string; stageName: string; specRef: string; summary: string }>;
 }
 
 const q = fmtQty;
