@@ -3,7 +3,7 @@
  * and `railwright library` (import/export the project's part library as CSV). Thin shells
  * over the store, the planner and the pure exports.
  */
-import { openStore } from './open-project.ts';
+import { openStore, projectLibrary } from './open-project.ts';
 import { mkdirSync, readFileSync } from 'node:fs';
 import { dirname } from 'node:path';
 import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
@@ -25,16 +25,6 @@ const CAUTION =
   'safety standard and local codes; a qualified engineer and the test lab decide. The tool certifies nothing; ' +
   'costs are estimates (invented in the default library).';
 
-
-/** The project's library as typed rows; the default library when the project has none. */
-function projectLibrary(store: ProjectStore, io: CliIo): LibraryRow[] {
-  const stored = store.getLibrary();
-  const rows = stored.length ? stored : defaultLibrary();
-  if (!stored.length) io.err('note: the project has no part library yet; using the default library (invented cost estimates)');
-  const r = fromStoreRows(rows);
-  if (!r.ok) throw new CliError(`the project's part library has problems: ${r.problems.slice(0, 5).map(describeProblem).join('; ')}`);
-  return r.rows;
-}
 
 function libraryCsv(rows: PartLibraryRow[]): string {
   const typed = fromStoreRows(rows);
@@ -105,7 +95,7 @@ const exportCmd: CliCommand = {
       } else {
         io.err(saved ? (saved.stale ? 'the saved plan is stale (the requirements changed since); planning again for this export' : 'the saved plan has no feasible tree; planning again for this export')
           : 'the project has no saved plan; planning it for this export');
-        result = planProject(req, { evaluator: engineEvaluator(), costModel: libraryCostModel(library) });
+        result = planProject(req, { evaluator: engineEvaluator({ library }), costModel: libraryCostModel(library, { powerDerating: req.limits.powerDerating, electrolyticDerating: req.limits.electrolyticDerating }) });
         replanned = true;
       }
       const modeFlag = flags.mode as string | undefined;

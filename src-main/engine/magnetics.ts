@@ -65,7 +65,7 @@ function winding(name: string, role: WindingSpec['role'], turns: number | null, 
   };
 }
 
-export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentDensity?: number; core?: MagneticDesignOptions } = {}): MagneticSpec {
+export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentDensity?: number; core?: MagneticDesignOptions; withCore?: boolean } = {}): MagneticSpec {
   const density = opts.currentDensity ?? DEFAULT_CURRENT_DENSITY;
   if (d.kind === 'buck') {
     // Worst inductor current: Vin max (largest ripple) at full load.
@@ -105,7 +105,7 @@ export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentD
   const worst = coupledPoint(d, d.vinMax, full);
   const ipkFlux = Math.max(peak[0]!, worst.impk);
   const swing = d.vinMax - vpri;
-  const core = designMagneticCore({
+  const core = opts.withCore === false ? null : designMagneticCore({
     inductance: d.inductance, peakCurrent: ipkFlux, rippleCurrent: worst.dim, fsw: d.fsw,
     isolation: d.isolation?.class ?? 'none',
     windings: [
@@ -123,7 +123,7 @@ export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentD
   });
   // The construction's estimated leakage, referred to each secondary (× n²), must not exceed
   // what the stage design assumed, or the secondaries sag below the computed windows.
-  core.leakage.forEach((l, i) => {
+  core?.leakage.forEach((l, i) => {
     const w = d.secondaries[i]!;
     const n = Math.abs(w.turns) / d.primaryTurns;
     const atSec = l * n * n;
@@ -132,7 +132,7 @@ export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentD
       core.ok = false;
     }
   });
-  if (!core.ok) cautions.push(`The core design did not close: ${core.problems.join('; ')}.`);
+  if (core && !core.ok) cautions.push(`The core design did not close: ${core.problems.join('; ')}.`);
   return {
     kind: 'coupled',
     core,
