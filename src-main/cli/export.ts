@@ -14,7 +14,7 @@ import { plan as planProject } from '../engine/planner/solver.ts';
 import { engineEvaluator } from '../engine/planner/evaluator.ts';
 import { readCsv, writeCsv, CsvError } from '../export/csv.ts';
 import { prepareExport, ExportError } from '../export/bundle.ts';
-import { checkTargets, existsMessage, writeAll, writeFiles, TargetError, type ExportTargets } from '../export/write-all.ts';
+import { checkTargets, existsMessage, writeAll, writeFiles, TargetError, TargetExists, type ExportTargets } from '../export/write-all.ts';
 import { existsSync } from 'node:fs';
 import { defaultLibrary } from '../api/default-library.ts';
 import { RollupError } from '../engine/rollup.ts';
@@ -87,9 +87,9 @@ const exportCmd: CliCommand = {
     try {
       checkTargets(targets, force);
       if (libCsv !== undefined && !/\.csv$/i.test(libCsv)) throw new TargetError(`--library-csv ${libCsv}: the name must end in .csv`);
-      if (libCsv !== undefined && !force && existsSync(libCsv)) throw new TargetError(existsMessage('--library-csv', libCsv));
+      if (libCsv !== undefined && !force && existsSync(libCsv)) throw new TargetExists(existsMessage('--library-csv', libCsv));
     } catch (e) {
-      if (e instanceof TargetError) throw new CliError(e.message, 2);
+      if (e instanceof TargetError) throw new CliError(e.message, e instanceof TargetExists ? 1 : 2);
       throw e;
     }
     const store = openStore(positional[0]);

@@ -27,6 +27,9 @@ export interface ExportTargets {
 
 export class TargetError extends Error {}
 
+/** A target that already exists (not a usage mistake: the CLI exits with 1, not 2). */
+export class TargetExists extends TargetError {}
+
 function ext(p: string): string {
   return extname(p).toLowerCase();
 }
@@ -53,7 +56,7 @@ export function checkTargets(t: ExportTargets, force = false): void {
     if (p.trim() === '') throw new TargetError(`--${opt}: the file name is empty`);
     if (!allowed.includes(ext(p))) throw new TargetError(`--${opt} ${p}: the name must end in ${allowed.join(' or ')}`);
     if (existsSync(p) && statSync(p).isDirectory()) throw new TargetError(`--${opt} ${p}: is a folder, not a file`);
-    if (!force && existsSync(p)) throw new TargetError(existsMessage(`--${opt}`, p));
+    if (!force && existsSync(p)) throw new TargetExists(existsMessage(`--${opt}`, p));
   };
   const dir = (opt: string, p: string | undefined) => {
     if (p === undefined) return;
@@ -75,7 +78,7 @@ const enc = new TextEncoder();
  */
 export function writeFiles(files: { option: string; path: string; bytes: Uint8Array }[], force = false): string[] {
   if (!force) {
-    for (const f of files) if (existsSync(f.path)) throw new TargetError(existsMessage(f.option, f.path));
+    for (const f of files) if (existsSync(f.path)) throw new TargetExists(existsMessage(f.option, f.path));
   }
   const done: string[] = [];
   for (const f of files) {
@@ -84,7 +87,7 @@ export function writeFiles(files: { option: string; path: string; bytes: Uint8Ar
       writeFileAtomic(f.path, f.bytes, { replace: force });
     } catch (e) {
       if ((e as NodeJS.ErrnoException).code === 'EEXIST') {
-        throw new TargetError(`${existsMessage(f.option, f.path)}; it appeared while exporting${done.length ? ` (already written: ${done.map((l) => l.slice(6)).join(', ')})` : ''}`);
+        throw new TargetExists(`${existsMessage(f.option, f.path)}; it appeared while exporting${done.length ? ` (already written: ${done.map((l) => l.slice(6)).join(', ')})` : ''}`);
       }
       throw e;
     }

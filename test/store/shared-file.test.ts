@@ -13,6 +13,7 @@ import { copyFileSync, existsSync, readFileSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { OpenError, ProjectStore, SaveRefused, StoreError } from '../../src-main/store/project-store.ts';
 import { demoDocument } from '../../src-main/store/demo.ts';
+import { listRecovery, restoreRecovery, writeRecovery } from '../../src-main/store/recovery.ts';
 import { crashMidTransaction, crashWithWal, holdWriteLock } from '../helpers/sqlite-writer.ts';
 import { fixedClock, sha256, tempDir } from './tmp.ts';
 
@@ -239,5 +240,24 @@ describe('lost updates', () => {
     expect(e.kind).toBe('changed');
     expect(e).toBeInstanceOf(StoreError);
     s.close();
+  });
+
+  it('a restored autosave copy keeps the identity its original was opened with', () => {
+    const dir = tempDir();
+    const p = savedDemo(dir);
+    const rec = join(dir, 'recovery');
+    const a = ProjectStore.open(p);
+    rename(a, 'unsaved work');
+    writeRecovery(a, rec, 'k');
+    a.close();
+    // Unchanged original: the restored copy saves over it.
+    const r1 = restoreRecovery(listRecovery(rec)[0]!);
+    r1.save();
+    expect(ProjectStore.open(p).getRequirements().meta.name).toBe('unsaved work');
+    // Changed since (here by the restored copy's own save): a second restore of the old copy refuses.
+    const r2 = restoreRecovery(listRecovery(rec)[0]!);
+    expect(refusal(() => r2.save()).kind).toBe('changed');
+    r1.close();
+    r2.close();
   });
 });
