@@ -34,6 +34,12 @@ export async function crashMidTransaction(file: string): Promise<void> {
   await killed(await start('crash', file));
 }
 
+/** The same writer, still running (its transaction open, the file already changed). */
+export async function writerMidTransaction(file: string): Promise<{ kill(): Promise<void> }> {
+  const child = await start('crash', file);
+  return { kill: () => killed(child) };
+}
+
 /** Crash an SQLite writer in write-ahead-log mode after a commit still held in `file-wal`. */
 export async function crashWithWal(file: string): Promise<void> {
   await killed(await start('wal', file));

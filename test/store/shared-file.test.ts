@@ -14,7 +14,7 @@ import { join } from 'node:path';
 import { OpenError, ProjectStore, SaveRefused, StoreError } from '../../src-main/store/project-store.ts';
 import { demoDocument } from '../../src-main/store/demo.ts';
 import { listRecovery, restoreRecovery, writeRecovery } from '../../src-main/store/recovery.ts';
-import { crashMidTransaction, crashWithWal, holdWriteLock } from '../helpers/sqlite-writer.ts';
+import { crashMidTransaction, crashWithWal, holdWriteLock, writerMidTransaction } from '../helpers/sqlite-writer.ts';
 import { fixedClock, sha256, tempDir } from './tmp.ts';
 
 function savedDemo(dir: string, name = 'p.rwproj'): string {
@@ -108,6 +108,31 @@ describe('a hot rollback journal from a crashed SQLite writer', () => {
     early.save();
     expect(ProjectStore.open(p).getRequirements().meta.name).toBe('edited in the window');
     for (const x of [committed, early, other, back]) x.close();
+  });
+});
+
+describe('an SQLite writer still in the middle of a transaction', () => {
+  it('is told apart from a crashed one: "another program is writing", then, once it is killed, the hot journal', { timeout: 60_000 }, async () => {
+    const dir = tempDir();
+    const p = savedDemo(dir);
+    const early = ProjectStore.open(p);
+    rename(early, 'edited in the window');
+    const w = await writerMidTransaction(p);
+    let fileHash: string;
+    try {
+      fileHash = sha256(p);
+      const e = openRefusal(p);
+      expect(e.kind).toBe('in-use');
+      expect(e.message).toContain(`another program is writing ${p}`);
+      const s = refusal(() => early.save());
+      expect(s.kind).toBe('locked');
+      expect(sha256(p)).toBe(fileHash);
+    } finally {
+      await w.kill();
+    }
+    expect(openRefusal(p).kind).toBe('side-file');
+    expect(sha256(p)).toBe(fileHash);
+    early.close();
   });
 });
 
