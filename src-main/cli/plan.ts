@@ -4,7 +4,7 @@
  * project file with the requirements revision it was computed from.
  */
 import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
-import { OpenError, ProjectStore, StoreError } from '../store/project-store.ts';
+import { OpenError, ProjectStore, SaveRefused, StoreError } from '../store/project-store.ts';
 import { validateRequirements } from '../engine/validate.ts';
 import { formatQuantity } from '../engine/notation.ts';
 import type { Requirements } from '../engine/model.ts';
@@ -138,6 +138,9 @@ export const planCommands: CliCommand[] = [{
         store.setPlanResult(result);
         store.save();
       } catch (e) {
+        if (e instanceof SaveRefused && e.kind === 'changed') {
+          throw new CliError(`the plan could not be saved: ${positional[0]} changed on disk while planning (another program or window saved it), and it was left as that program wrote it; run plan again`);
+        }
         if (e instanceof StoreError) throw new CliError(`the plan could not be saved: ${e.message}`);
         throw e;
       }
