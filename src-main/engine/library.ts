@@ -55,6 +55,9 @@ const num = (key: string, unit: string, doc: string, min = 0, max = Infinity, re
   ({ key, kind: 'number', unit, required, min, max, doc });
 const str = (key: string, doc: string, required = true): ParamSpec => ({ key, kind: 'string', required, doc });
 const pkg = str('package', 'package name (generic outline)');
+/** What procurement orders: empty for a generic row, which the BOM labels generic. */
+const maker = str('manufacturer', 'manufacturer (empty: a generic row, to be chosen by procurement)', false);
+const mpn = str('partNumber', 'manufacturer part number (empty: a generic row)', false);
 
 /** What each class's params mean. Numbers are base SI (V, A, Ω, F, H, s, W, K/W). */
 export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
@@ -71,6 +74,12 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('rdsLs', 'Ω', 'integrated low-side on-resistance at 25 °C (integrated = 1)', 0, 10, false),
     num('negLimit', 'A', 'low-side negative current limit', 0, 100, false),
     num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance', 1, 1000),
+    num('vinMin', 'V', 'lowest input voltage it regulates from', 0, 2000, false),
+    num('uvlo', 'V', 'undervoltage-lockout rising threshold', 0, 2000, false),
+    num('vref', 'V', 'feedback reference voltage', 0.1, 10, false),
+    num('vrefTolerance', '', 'reference tolerance over temperature, as a ratio (0.01 = ±1 %)', 0, 0.2, false),
+    num('iLimit', 'A', 'peak (cycle-by-cycle) current limit', 0, 1000, false),
+    maker, mpn,
   ],
   switch: [
     pkg,
@@ -80,6 +89,10 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('qg', 'C', 'total gate charge', 0, 1e-6),
     num('coss', 'F', 'output capacitance', 0, 1e-8),
     num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance', 1, 1000),
+    num('tr', 's', 'switch-node rise time in the circuit', 0, 1e-6, false),
+    num('tf', 's', 'switch-node fall time in the circuit', 0, 1e-6, false),
+    num('rdsTempFactor', '', 'Rds(on) at the hot junction over its 25 °C value (common practice 1.3–1.5)', 1, 3, false),
+    maker, mpn,
   ],
   ldo: [
     pkg,
@@ -90,6 +103,9 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('psrrDb', 'dB', 'ripple rejection at a few hundred kHz', 0, 120),
     num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance (JEDEC JESD51-2 style figure)', 1, 1000),
     num('negative', '', '1 = negative-voltage regulator', 0, 1, false),
+    num('accuracy', '', 'output accuracy over line, load and temperature, as a ratio', 0, 0.2, false),
+    num('dropoutFloor', 'V', 'dropout at no load', 0, 5, false),
+    maker, mpn,
   ],
   rectifier: [
     pkg,
@@ -97,6 +113,9 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('if', 'A', 'average forward current rating', 0.001, 1000),
     num('vf', 'V', 'forward drop at rated current', 0.05, 5),
     num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance', 1, 1000),
+    num('cj', 'F', 'junction capacitance at a few volts reverse', 0, 1e-8, false),
+    num('trr', 's', 'reverse-recovery time (0 for a Schottky)', 0, 1e-5, false),
+    maker, mpn,
   ],
   'cap-ceramic': [
     pkg,
@@ -105,6 +124,8 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('cMin', 'F', 'smallest value offered in this package and rating', 0, 1),
     num('cMax', 'F', 'largest value offered in this package and rating', 0, 1),
     num('esr', 'Ω', 'typical ESR', 0, 100, false),
+    num('iRipple', 'A', 'ripple current rating', 0, 100, false),
+    maker, mpn,
   ],
   'cap-aluminium': [
     pkg,
@@ -113,6 +134,7 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('cMax', 'F', 'largest value offered', 0, 10),
     num('esr', 'Ω', 'typical ESR', 0, 100),
     num('iRipple', 'A', 'ripple current rating', 0, 100, false),
+    maker, mpn,
   ],
   'cap-polymer': [
     pkg,
@@ -121,11 +143,13 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('cMax', 'F', 'largest value offered', 0, 10),
     num('esr', 'Ω', 'typical ESR', 0, 100),
     num('iRipple', 'A', 'ripple current rating', 0, 100, false),
+    maker, mpn,
   ],
   resistor: [
     pkg,
     num('power', 'W', 'rated power', 0.001, 1000),
     num('tolerance', '', 'tolerance as a ratio (0.01 = 1 %)', 0, 0.5),
+    maker, mpn,
   ],
   inductor: [
     pkg,
@@ -133,6 +157,8 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('lMax', 'H', 'largest inductance offered in this size', 0, 1),
     num('iSat', 'A', 'saturation current at the largest value (scales as √(lMax/L) below it)', 0.001, 1000),
     num('dcr', 'Ω', 'DC resistance at the largest value (scales as √(L/lMax))', 0, 100),
+    num('iRms', 'A', 'RMS (heating) current rating at the largest value', 0, 1000, false),
+    maker, mpn,
   ],
   'magnetic-custom': [
     pkg,
@@ -140,6 +166,7 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('pMax', 'W', 'largest throughput power', 0.1, 10000),
     num('costPerWinding', '', 'estimated cost added per winding beyond the primary', 0, 1e6),
     num('isolation', '', 'best isolation class the construction supports: 0 functional, 1 basic, 2 reinforced', 0, 2),
+    maker, mpn,
   ],
 };
 
@@ -351,6 +378,9 @@ export interface PartPick {
   quantity: number;
   unitCost: number;
   costNote: string;
+  /** From the row's manufacturer and partNumber (absent or empty: a generic row). */
+  manufacturer?: string;
+  partNumber?: string;
   /** For custom magnetics: the file name of the specification sheet. */
   specRef?: string;
   problem?: string;
@@ -385,7 +415,8 @@ interface DividerLike { rTop: number; rBottom: number; vout: number }
 function pickFromRow(stageId: string, role: string, prefix: PartPick['prefix'], row: LibraryRow, value: string, rating: string, quantity: number, extra: Partial<PartPick> = {}): PartPick {
   return {
     stageId, role, prefix, partClass: row.partClass, libraryId: row.id, description: row.name, value, rating,
-    package: strParam(row, 'package'), quantity, unitCost: row.cost, costNote: costNote(row), ...extra,
+    package: strParam(row, 'package'), quantity, unitCost: row.cost, costNote: costNote(row),
+    manufacturer: strParam(row, 'manufacturer'), partNumber: strParam(row, 'partNumber'), ...extra,
   };
 }
 

@@ -10,7 +10,11 @@ import { writeCsv, type CsvCell } from './csv.ts';
 export const BOM_HEADER = [
   'Line', 'References', 'Qty (pcs)', 'Part class', 'Description', 'Value', 'Rating', 'Package',
   'Unit cost (currency units, estimate)', 'Extended cost (currency units, estimate)', 'Cost source', 'Library id', 'Stages', 'Specification sheet', 'Problem',
+  'Manufacturer', 'Part number',
 ] as const;
+
+/** What the manufacturer column says for a generic library row (no maker, no part number). */
+export const GENERIC_MAKER = 'generic (procurement chooses a part meeting the rating)';
 
 export const BOM_NOTES = [
   'Costs are estimates from the project part library; rows marked "invented estimate" are invented figures, not quotations.',
@@ -26,6 +30,7 @@ export function bomRows(bom: Bom): CsvCell[][] {
   return bom.lines.map((l) => [
     l.line, compactRefs(l.refs), l.quantity, l.partClass, l.description, l.value, l.rating, l.package,
     round(l.unitCost), round(l.extendedCost), l.costNote, l.libraryId ?? '', l.stages.join(' '), l.specRef ?? '', l.problem ?? '',
+    l.manufacturer || (l.libraryId ? GENERIC_MAKER : ''), l.partNumber,
   ]);
 }
 
@@ -33,7 +38,7 @@ export function bomToCsv(bom: Bom, title: string): string {
   const rows: CsvCell[][] = [
     [...BOM_HEADER],
     ...bomRows(bom),
-    ['Total', '', bom.totalParts, '', `${bom.lines.length} lines`, '', '', '', '', round(bom.totalCost), '', '', '', '', bom.problems.length ? `${bom.problems.length} parts not in the library` : ''],
+    ['Total', '', bom.totalParts, '', `${bom.lines.length} lines`, '', '', '', '', round(bom.totalCost), '', '', '', '', bom.problems.length ? `${bom.problems.length} parts not in the library` : '', '', ''],
     [],
     ...BOM_NOTES.map((n) => ['Note', n]),
     ['Project', title],
@@ -52,14 +57,14 @@ export async function bomToXlsx(bom: Bom, title: string): Promise<Uint8Array> {
   for (const r of bomRows(bom)) ws.addRow(r);
   const first = 2;
   const last = bom.lines.length + 1;
-  const total = ws.addRow(['Total', '', null, '', `${bom.lines.length} lines`, '', '', '', '', null, '', '', '', '', bom.problems.length ? `${bom.problems.length} parts not in the library` : '']);
+  const total = ws.addRow(['Total', '', null, '', `${bom.lines.length} lines`, '', '', '', '', null, '', '', '', '', bom.problems.length ? `${bom.problems.length} parts not in the library` : '', '', '']);
   total.getCell(3).value = bom.lines.length ? { formula: `SUM(C${first}:C${last})`, result: bom.totalParts } : 0;
   total.getCell(10).value = bom.lines.length ? { formula: `SUM(J${first}:J${last})`, result: round(bom.totalCost) } : 0;
   total.font = { bold: true };
   ws.addRow([]);
   for (const n of BOM_NOTES) ws.addRow(['Note', n]);
   ws.addRow(['Project', title]);
-  const widths = [6, 18, 9, 16, 44, 22, 22, 14, 14, 14, 18, 18, 20, 26, 40];
+  const widths = [6, 18, 9, 16, 44, 22, 22, 14, 14, 14, 18, 18, 20, 26, 40, 24, 22];
   widths.forEach((w, i) => { ws.getColumn(i + 1).width = w; });
   ws.getColumn(9).numFmt = '0.000';
   ws.getColumn(10).numFmt = '0.000';

@@ -154,3 +154,33 @@ describe('property: over random plans, every BOM line is the part the evaluation
     expect(stagesSeen).toBeGreaterThan(10);
   }, 120_000);
 });
+
+describe('what procurement orders', () => {
+  it('a BOM line carries the row\'s manufacturer and part number; generic rows are labelled generic', async () => {
+    const { bomToCsv, GENERIC_MAKER } = await import('../../src-main/export/bom-files.ts');
+    const { parse } = await import('csv-parse/sync');
+    const r = designStage({ ...buckSpec(3.3, 0.8), library: lib });
+    expect(r.ok).toBe(true);
+    if (!r.ok || r.design.kind !== 'buck') return;
+    const regId = r.design.parts![0]!.libraryId;
+    // An invented maker and part number on the chosen row (test data, not a real part).
+    const named = lib.map((row) => (row.id === regId ? { ...row, params: { ...row.params, manufacturer: 'Maker A (invented)', partNumber: 'PN-0001' } } : row));
+    const req = randomRequirements({ rails: 1, seed: 1 });
+    const planLike = { id: 'p', labels: [], internalNodes: [], reasons: [], score: { loss: 0, cost: 0, parts: 0, weighted: 0 },
+      stages: [{ id: 'st1', kind: 'buck', name: 'Buck', inputNode: 'in', outputs: [], barriers: [], design: r.design }] } as unknown as Parameters<typeof buildBom>[1];
+    const bom = buildBom(req, planLike, named);
+    const csv = bomToCsv(bom, 'invented test project');
+    // Read back with an independent CSV parser (csv-parse).
+    const rows = parse(csv, { relax_column_count: true }) as string[][];
+    const header = rows[0]!;
+    const mi = header.indexOf('Manufacturer');
+    const pi = header.indexOf('Part number');
+    const li = header.indexOf('Library id');
+    expect(mi).toBeGreaterThan(0);
+    const reg = rows.find((x) => x[li] === regId)!;
+    expect(reg[mi]).toBe('Maker A (invented)');
+    expect(reg[pi]).toBe('PN-0001');
+    const generic = rows.find((x) => x[li] && x[li] !== regId && x[li] !== 'Library id')!;
+    expect(generic[mi]).toBe(GENERIC_MAKER);
+  });
+});
