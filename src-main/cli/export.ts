@@ -18,6 +18,7 @@ import { prepareExport, ExportError } from '../export/bundle.ts';
 import { checkTargets, writeAll, TargetError, type ExportTargets } from '../export/write-all.ts';
 import { defaultLibrary } from '../api/default-library.ts';
 import { RollupError } from '../engine/rollup.ts';
+import { validateRequirements } from '../engine/validate.ts';
 import type { ElkLike } from '../engine/layout.ts';
 
 const CAUTION =
@@ -90,6 +91,13 @@ const exportCmd: CliCommand = {
     const store = openStore(positional[0]);
     try {
       const req = store.getRequirements();
+      // The same gate as `plan`: no drawing, BOM or report of requirements it refuses.
+      const problems = Object.keys(targets).length ? validateRequirements(req) : [];
+      if (problems.length) {
+        io.err('the requirements have problems; fix them before exporting (nothing was written):');
+        for (const p of problems) io.err(`  ${p.path}: ${p.message}`);
+        return 1;
+      }
       if (libCsv) {
         mkdirSync(dirname(libCsv), { recursive: true });
         writeFileAtomic(libCsv, new TextEncoder().encode(libraryCsv(store.getLibrary().length ? store.getLibrary() : defaultLibrary())));
