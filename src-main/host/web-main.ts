@@ -3,11 +3,11 @@
  * user's project (first run: the demo, saved into the user data folder), the handlers over
  * HTTP on 127.0.0.1 with a per-run token, autosave to the recovery folder.
  */
-import { mkdirSync, existsSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
 import { homedir, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { createApi, type Api } from '../api/index.ts';
-import { autosave, loadRecent, openDemo, openPath, recoverIfAny, saveTo, newProject } from '../api/files.ts';
+import { autosave, loadRecent, openAtStart, openPath } from '../api/files.ts';
 import { makePathPolicy } from './paths.ts';
 import { startWebHost, type WebHost } from './web-host.ts';
 
@@ -33,22 +33,11 @@ export async function startWebMain(opts: WebMainOptions): Promise<{ api: Api; ho
   const policy = makePathPolicy({ allowedRoots: [projects, homedir(), tmpdir(), ...(opts.allowedRoots ?? [])], baseDir: projects });
   const api = createApi({ host: 'web', userDataDir: opts.userDataDir, pathPolicy: policy, autosaveMs: opts.autosaveMs ?? 30_000 });
   const s = api.session;
-  loadRecent(s);
   if (opts.project) {
+    loadRecent(s);
     openPath(s, opts.project);
-  } else if (!recoverIfAny(s)) {
-    const demoFile = join(projects, 'demo.rwproj');
-    const last = s.recent.find((p) => existsSync(p));
-    try {
-      if (last) openPath(s, last);
-      else if (existsSync(demoFile)) openPath(s, demoFile);
-      else {
-        openDemo(s);
-        saveTo(s, demoFile);
-      }
-    } catch {
-      newProject(s);
-    }
+  } else {
+    await openAtStart(s, { demoFile: join(projects, 'demo.rwproj') });
   }
   const host = await startWebHost({ api, rendererDir: opts.rendererDir, port: opts.port });
   s.emit = (event, payload) => host.broadcast(event, payload);
