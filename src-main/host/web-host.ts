@@ -153,7 +153,14 @@ export async function startWebHost(opts: WebHostOptions): Promise<WebHost> {
         }
         const p = (parsed && typeof parsed === 'object' ? parsed : {}) as { name?: unknown; args?: unknown };
         const result = await opts.api.request(p.name, p.args);
-        return send(res, 200, JSON.stringify(result), 'application/json');
+        let text: string;
+        try {
+          text = JSON.stringify(result);
+        } catch (e) {
+          // An answer that cannot be written (a value nested too deeply) is still an answer.
+          text = JSON.stringify({ ok: false, error: { message: `the answer to ${String(p.name).slice(0, 80)} could not be sent (${(e as Error).message}); the open project may hold a value nested too deeply: open another project` } });
+        }
+        return send(res, 200, text, 'application/json');
       }
       if (url.pathname === '/api/events' && req.method === 'GET') {
         res.statusCode = 200;

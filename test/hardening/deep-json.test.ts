@@ -138,4 +138,18 @@ describe('the web host with a 10,000-level JSON cell', () => {
     expect(imp.body.ok).toBe(false);
     expect((await call('project.snapshot', {})).body.ok).toBe(true);
   });
+
+  it('a session holding a deep value (however it got there) fails each request with a message, and a new project recovers', { timeout: 60_000 }, async () => {
+    let deep: unknown = {};
+    for (let i = 0; i < LEVELS; i++) deep = { d: deep };
+    (api.session.requirements.meta as unknown as Record<string, unknown>).deep = deep;
+    for (const name of ['project.snapshot', 'plan.start']) {
+      const r = await call(name, {});
+      expect(r.status, name).toBe(200);
+      expect(r.body.ok, name).toBe(false);
+      expect(r.body.error?.message, name).toMatch(/Maximum call stack size exceeded/);
+    }
+    expect((await call('project.new', { discard: true })).body.ok).toBe(true);
+    expect((await call('project.snapshot', {})).body.ok).toBe(true);
+  });
 });
