@@ -99,7 +99,20 @@ function withExtra(known: Row, extraText: unknown, where: string): Row {
 function splitExtra(obj: Row, known: readonly string[]): string {
   const extra: Row = {};
   for (const [k, v] of Object.entries(obj)) if (!known.includes(k) && v !== undefined) extra[k] = v;
-  return JSON.stringify(extra);
+  return storableJson(extra, `extra fields of ${String(obj.id)}`);
+}
+
+/** JSON text of a value to store, refused (StoreError) when the reader would refuse it. */
+function storableJson(value: unknown, what: string): string {
+  let text: string;
+  try {
+    text = JSON.stringify(value);
+  } catch (e) {
+    throw new StoreError(`${what} refused: ${(e as Error).message}`);
+  }
+  const problem = jsonTextProblem(text);
+  if (problem) throw new StoreError(`${what} refused: ${problem}`);
+  return text;
 }
 
 let saveCounter = 0;
@@ -372,7 +385,7 @@ export class ProjectStore {
     if (problems.length) throw new StoreError('plan result refused', problems);
     this.db.prepare(`INSERT INTO plan_results (slot, revision, computed_at, result) VALUES (1, ?, ?, ?)
       ON CONFLICT(slot) DO UPDATE SET revision = excluded.revision, computed_at = excluded.computed_at, result = excluded.result`)
-      .run(result.revision, computedAt, JSON.stringify(result));
+      .run(result.revision, computedAt, storableJson(result, 'plan result'));
     this.isDirty = true;
   }
 
@@ -396,7 +409,7 @@ export class ProjectStore {
     db.transaction(() => {
       db.exec('DELETE FROM part_library');
       const ins = db.prepare('INSERT INTO part_library (id, pos, part_class, name, cost, params) VALUES (?, ?, ?, ?, ?, ?)');
-      rows.forEach((r, i) => ins.run(r.id, i, r.partClass, r.name, r.cost, JSON.stringify(r.params)));
+      rows.forEach((r, i) => ins.run(r.id, i, r.partClass, r.name, r.cost, storableJson(r.params, `part library row ${r.id}`)));
     })();
     this.isDirty = true;
   }

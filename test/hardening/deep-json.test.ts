@@ -68,6 +68,25 @@ describe('stored JSON values are bounded like imported ones', () => {
   });
 });
 
+describe('the store never writes a value its reader would refuse', () => {
+  it('refuses a deep plan result, library parameter or extra field, and keeps what it had', () => {
+    const s = ProjectStore.fromDocument(demoDocument());
+    const deep = JSON.parse('['.repeat(100) + ']'.repeat(100)) as unknown;
+    const lib = s.getLibrary();
+    expect(() => s.setLibrary([{ id: 'x', partClass: 'capacitor', name: 'x', cost: 1, params: { deep } }])).toThrow(/part library row x refused: nested more than 64 levels/);
+    expect(s.getLibrary()).toEqual(lib);
+    const req = s.getRequirements();
+    const before = JSON.stringify(req);
+    (req.loads[0] as unknown as Record<string, unknown>).deep = deep;
+    expect(() => s.setRequirements(req)).toThrow(/extra fields of .* refused: nested more than 64 levels/);
+    expect(JSON.stringify(s.getRequirements())).toBe(before);
+    const result = { revision: s.revision, rails: [deep], best: null, alternatives: [], infeasible: [], stats: {} };
+    expect(() => s.setPlanResult(result as never)).toThrow(/plan result refused: nested more than 64 levels/);
+    expect(s.getPlanResult()).toBeNull();
+    s.close();
+  });
+});
+
 describe('the CLI on a project with a 10,000-level JSON cell', () => {
   let file: string;
   let before: Buffer;
