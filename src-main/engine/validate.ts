@@ -214,4 +214,9 @@ function checkPhysicalRange(req: Requirements, add: (path: string, message: stri
       if (tooHigh(a, MAX_AMPS)) add(`loads[${i}].current.${modeId}`, `current is ${amps(a)}, above the ${amps(MAX_AMPS)} this tool plans for (check the unit)`);
     }
   });
+  // Temperatures in °C: nothing is colder than absolute zero, and no board runs at 1000 °C.
+  for (const k of ['ambient', 'tjMax'] as const) {
+    const t = req.limits[k];
+    if (isNum(t) && (t < -273.15 || t > 1000)) add(`limits.${k}`, `${k} is ${t} °C, outside −273.15 °C (absolute zero) to 1000 °C (check the unit)`);
+  }
 }
