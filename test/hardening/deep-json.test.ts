@@ -106,10 +106,11 @@ describe('the CLI on a project with a 10,000-level JSON cell', () => {
 });
 
 describe('the planning worker', () => {
-  it('a value that cannot be handed to the worker ends it: the process exits by itself', { timeout: 90_000 }, () => {
+  it('a value that cannot be handed to the worker, or a failure inside it, ends it: the process exits by itself', { timeout: 90_000 }, () => {
     const r = spawnSync(process.execPath, [join(import.meta.dirname, 'deep-worker-child.mjs')], { cwd: ROOT, encoding: 'utf8', timeout: 60_000 });
     expect(r.signal, `the child did not exit within 60 s: ${r.stdout}${r.stderr}`).toBeNull();
     expect(r.stdout).toMatch(/RESULT refused: planner: the requirements could not be handed to the planner/);
+    expect(r.stdout).toMatch(/RESULT2 refused: planner: \S/);
     expect(r.status).toBe(0);
   });
 });

@@ -16,3 +16,10 @@ try {
 } catch (e) {
   console.log(`RESULT refused: ${e.message}`);
 }
+// A failure inside the worker (requirements of the wrong shape make the planner throw).
+try {
+  await runPlanInWorker({ sources: 'not a list' }, { budgetMs: 2000 });
+  console.log('RESULT2 planned');
+} catch (e) {
+  console.log(`RESULT2 refused: ${e.message}`);
+}
