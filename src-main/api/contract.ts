@@ -14,7 +14,18 @@ export interface ApiError {
   /** Dotted path of the offending argument or cell, e.g. `loads.L3.voltage`. */
   field?: string;
   message: string;
+  /** Set when the window can offer a way on (see ApiErrorCode); absent for plain refusals. */
+  code?: ApiErrorCode;
 }
+
+/**
+ * Refusals that protect a file shared with other programs; nothing was written.
+ * - `exists`: the target file exists; ask the user, then repeat with `overwrite: true`.
+ * - `changed`: the project's file changed on disk since it was opened; offer Save As or Reopen.
+ * - `locked`: another program is writing the file right now.
+ * - `side-file`: another program's unfinished change (journal, write-ahead log) is beside it.
+ */
+export type ApiErrorCode = 'exists' | 'changed' | 'locked' | 'side-file';
 
 export type ApiResult<T> = { ok: true; value: T } | { ok: false; error: ApiError };
 
@@ -238,7 +249,13 @@ export interface Requests {
   'project.new': (args: { discard?: boolean }) => Snapshot;
   'project.open': (args: { path: string; discard?: boolean }) => Snapshot;
   'project.openDemo': (args: { discard?: boolean }) => Snapshot;
-  'project.save': (args: { path?: string }) => ProjectState;
+  /**
+   * Save to the project's file, or to `path` (Save As). An existing file other than the
+   * project's own is replaced only with `overwrite: true` (else code `exists`); the
+   * project's own file is never replaced when it changed on disk since it was opened
+   * (code `changed`), whatever `overwrite` says.
+   */
+  'project.save': (args: { path?: string; overwrite?: boolean }) => ProjectState;
   'project.importJson': (args: { text: string; discard?: boolean }) => Snapshot;
   'project.rename': (args: { name: string }) => Snapshot;
 
@@ -261,7 +278,8 @@ export interface Requests {
   /** Y-capacitor leakage across a barrier, I = 2π·f·C·V, against the chosen limit. */
   'isolation.check': (args: { capacitance: string; voltageRms: string; frequency: string; limitId: string }) => BarrierCheckView;
 
-  'export.file': (args: { kind: ExportKind; path?: string; stageId?: Id }) => ExportFile;
+  /** An existing file at `path` is replaced only with `overwrite: true` (else code `exists`). */
+  'export.file': (args: { kind: ExportKind; path?: string; stageId?: Id; overwrite?: boolean }) => ExportFile;
 }
 
 export type RequestName = keyof Requests;

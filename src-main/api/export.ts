@@ -9,6 +9,7 @@ import {
   exportBomCsv, exportBomXlsx, exportMagneticSpecs, exportNetlists, exportReportPdf, exportTreePdf, exportTreeSvg,
   prepareExport, ExportError,
 } from '../export/bundle.ts';
+import { existsSync } from 'node:fs';
 import { writeFileAtomic } from '../store/project-store.ts';
 import { ApiFailure, handler } from './registry.ts';
 import type { Session } from './session.ts';
@@ -80,13 +81,30 @@ async function render(s: Session, kind: ExportKind, stageId: string | undefined)
   }
 }
 
+function exists(target: string): ApiFailure {
+  return new ApiFailure(`${target} already exists: nothing was written. Confirm that it may be replaced, or choose another name`, 'path', 'exists');
+}
+
 export const exportHandlers = {
-  'export.file': handler('export.file', z.object({ kind: kinds, path: z.string().min(1).max(1024).optional(), stageId: z.string().max(200).optional() }).strict(),
+  'export.file': handler('export.file', z.object({
+    kind: kinds, path: z.string().min(1).max(1024).optional(), stageId: z.string().max(200).optional(), overwrite: z.boolean().optional(),
+  }).strict(),
     async (s: Session, a): Promise<ExportFile> => {
       const meta = META[a.kind];
       const target = a.path !== undefined ? s.pathPolicy(a.path, 'export', meta.ext) : null;
+      const replace = a.overwrite === true;
+      if (target && !replace && existsSync(target)) throw exists(target);
       const bytes = await render(s, a.kind, a.stageId);
-      if (target) writeFileAtomic(target, bytes);
+      if (target) {
+        try {
+          // Without the confirmation the file is only created, never replaced, even if
+          // it appeared while the export was rendered.
+          writeFileAtomic(target, bytes, { replace });
+        } catch (e) {
+          if ((e as NodeJS.ErrnoException).code === 'EEXIST') throw exists(target);
+          throw new ApiFailure(`could not write ${target}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`, 'path');
+        }
+      }
       return {
         fileName: `${baseName(s)}${meta.suffix}${meta.ext}`,
         mime: meta.mime,

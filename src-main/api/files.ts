@@ -3,11 +3,11 @@
  * cycle. The session keeps the working copy; the project store (SQLite, atomic save) holds
  * the file. Paths from the window pass the host's path policy first.
  */
-import { join } from 'node:path';
+import { join, resolve } from 'node:path';
 import { z } from 'zod';
 import { PROJECT_EXTENSION } from '../../electron.config.ts';
 import type { PartLibraryRow, Requirements } from '../engine/model.ts';
-import { ProjectStore, OpenError, StoreError } from '../store/project-store.ts';
+import { ProjectStore, OpenError, SaveRefused, StoreError } from '../store/project-store.ts';
 import { demoDocument } from '../store/demo.ts';
 import { checkLibraryShape, checkRequirementsShape, importProjectJson, type ProjectDocument } from '../store/json-format.ts';
 import { existsSync } from 'node:fs';
@@ -145,7 +145,8 @@ export function openPath(s: Session, raw: string): void {
       if (e.kind === 'not-found' && s.userDataDir) {
         try { s.recent = removeRecent(s.userDataDir, path).map((x) => x.path); } catch { /* ignore */ }
       }
-      throw new ApiFailure(e.message, 'path');
+      const code = e.kind === 'side-file' ? 'side-file' : e.kind === 'in-use' ? 'locked' : undefined;
+      throw new ApiFailure(e.message, 'path', code);
     }
     throw e;
   }
@@ -195,13 +196,21 @@ export async function openAtStart(s: Session, opts: { demoFile: string; approve?
   s.notice = notice;
 }
 
-export function saveTo(s: Session, raw: string | undefined): void {
+/**
+ * Save (no path) or Save As. `overwrite` is the user's confirmation that an existing file
+ * at a new path may be replaced; it never lets a save replace the project's own file
+ * after someone else changed it (the store refuses that; the window offers Save As or
+ * Reopen).
+ */
+export function saveTo(s: Session, raw: string | undefined, overwrite = false): void {
   const target = raw !== undefined ? s.pathPolicy(raw, 'save-project', PROJECT_EXTENSION) : s.path;
   if (!target) throw new ApiFailure('path: the project has no file yet: choose a file name (Save as)', 'path');
+  const own = s.path !== null && resolve(target) === resolve(s.path);
   const store = syncStore(s);
   try {
-    store.save(target);
+    store.save(target, { overwrite: overwrite && !own });
   } catch (e) {
+    if (e instanceof SaveRefused) throw new ApiFailure(e.message, 'path', e.kind);
     if (e instanceof StoreError) throw new ApiFailure(e.message, 'path');
     throw e;
   }
@@ -243,8 +252,8 @@ export const fileHandlers = {
     clearRecovery(s);
     return buildSnapshot(s);
   }),
-  'project.save': handler('project.save', z.object({ path: z.string().min(1).max(1024).optional() }).strict(), (s: Session, a) => {
-    saveTo(s, a.path);
+  'project.save': handler('project.save', z.object({ path: z.string().min(1).max(1024).optional(), overwrite: z.boolean().optional() }).strict(), (s: Session, a) => {
+    saveTo(s, a.path, a.overwrite === true);
     return s.state();
   }),
   'project.importJson': handler('project.importJson', z.object({ text: z.string().max(16_000_000), discard }).strict(), (s: Session, a) => {

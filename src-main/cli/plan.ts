@@ -4,13 +4,14 @@
  * project file with the requirements revision it was computed from.
  */
 import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
-import { OpenError, ProjectStore, StoreError } from '../store/project-store.ts';
+import { OpenError, ProjectStore, SaveRefused, StoreError } from '../store/project-store.ts';
 import { validateRequirements } from '../engine/validate.ts';
 import { formatQuantity } from '../engine/notation.ts';
 import type { Requirements } from '../engine/model.ts';
 import type { Plan, PlanResult } from '../engine/plan-types.ts';
 import type { Objective } from '../engine/planner/score.ts';
 import { runPlanInWorker } from '../worker/run-plan.ts';
+import { projectLibrary } from './open-project.ts';
 
 const OBJECTIVES: Objective[] = ['loss', 'cost', 'parts', 'balanced'];
 
@@ -43,7 +44,7 @@ export function renderPlan(req: Requirements, result: PlanResult, plan: Plan): s
   const byInput = new Map<string, Plan['stages']>();
   for (const st of plan.stages) byInput.set(st.inputNodeId, [...(byInput.get(st.inputNodeId) ?? []), st]);
   const s = plan.score;
-  out.push(`Plan ${plan.id} [${plan.labels.join(', ')}]: loss ${formatQuantity(s.loss, 'power', 3)} (mode-weighted), cost ${s.cost.toFixed(2)} (invented estimates unless a part library priced it), ${s.parts} parts, score ${s.weighted.toFixed(4)}`);
+  out.push(`Plan ${plan.id} [${plan.labels.join(', ')}]: loss ${formatQuantity(s.loss, 'power', 3)} (mode-weighted), cost ${s.cost.toFixed(2)} and ${s.parts} parts (the BOM of the parts the stages were designed with, priced by the project's part library; default rows are invented estimates), score ${s.weighted.toFixed(4)}`);
   const walk = (nodeId: string, depth: number, seen: Set<string>) => {
     for (const st of byInput.get(nodeId) ?? []) {
       if (seen.has(st.id)) continue;
@@ -121,9 +122,12 @@ export const planCommands: CliCommand[] = [{
       }
       const verbose = flags.verbose === true;
       let last = '';
+      // The project's part library designs and prices the stages (the default library when
+      // the project has none), as in the window: the BOM then lists the analysed parts.
+      const library = projectLibrary(store, io);
       const result = await runPlanInWorker(
         req,
-        { objective: objective as Objective, ...(budgetMs !== undefined ? { budgetMs } : {}) },
+        { objective: objective as Objective, ...(budgetMs !== undefined ? { budgetMs } : {}), library },
         verbose ? (p) => { const line = `[${p.phase}] ${p.message}: ${p.candidates} stage designs, ${p.explored} nodes${p.incumbent !== undefined ? `, incumbent ${p.incumbent.toFixed(4)}` : ''}`; if (line !== last) io.err(line); last = line; } : undefined,
         undefined,
         verbose ? (lines) => { for (const l of lines) io.err(`trace: ${l}`); } : undefined,
@@ -134,6 +138,9 @@ export const planCommands: CliCommand[] = [{
         store.setPlanResult(result);
         store.save();
       } catch (e) {
+        if (e instanceof SaveRefused && e.kind === 'changed') {
+          throw new CliError(`the plan could not be saved: ${positional[0]} changed on disk while planning (another program or window saved it), and it was left as that program wrote it; run plan again`);
+        }
         if (e instanceof StoreError) throw new CliError(`the plan could not be saved: ${e.message}`);
         throw e;
       }

@@ -36,9 +36,10 @@ function problemLines(problems: Problem[]): string[] {
   return problems.map((p) => `  ${p.path}: ${p.message}`);
 }
 
-function saveNew(store: ProjectStore, path: string): void {
+/** Save a new project file; `force` is the user's --force (replace an existing file). */
+function saveNew(store: ProjectStore, path: string, force: boolean): void {
   try {
-    store.save(path);
+    store.save(path, { overwrite: force });
   } catch (e) {
     if (e instanceof StoreError) throw new CliError(e.message);
     throw e;
@@ -71,7 +72,7 @@ const demo: CliCommand = {
     // Same content as the window's demo: the invented project with the default part library.
     const doc = demoDocument();
     if (!doc.library?.length) doc.library = await defaultLibrary();
-    saveNew(ProjectStore.fromDocument(doc), target);
+    saveNew(ProjectStore.fromDocument(doc), target, flags.force === true);
     io.out(`wrote ${target} (invented demonstration project)`);
     return 0;
   },
@@ -105,7 +106,7 @@ const newCmd: CliCommand = {
       req.meta.name = flags.name;
       store.setRequirements(req, { keepRevision: true });
     }
-    saveNew(store, target);
+    saveNew(store, target, flags.force === true);
     io.out(`wrote ${target}`);
     return 0;
   },
@@ -196,7 +197,7 @@ const importCmd: CliCommand = {
       if (e instanceof StoreError) throw new CliError(e.message);
       throw e;
     }
-    saveNew(store, target);
+    saveNew(store, target, flags.force === true);
     io.out(`wrote ${target}`);
     if (r.problems.length) {
       io.err(`warning: ${r.problems.length} problem(s) to fix (railwright validate ${target}):`);
@@ -232,8 +233,9 @@ const exportJson: CliCommand = {
       return 0;
     }
     try {
-      writeFileAtomic(out, Buffer.from(text, 'utf8'));
+      writeFileAtomic(out, Buffer.from(text, 'utf8'), { replace: flags.force === true });
     } catch (e) {
+      if ((e as NodeJS.ErrnoException).code === 'EEXIST') throw new CliError(`${out} already exists (use --force to overwrite it)`);
       throw new CliError(`could not write ${out}: ${(e as Error).message}`);
     }
     io.out(`wrote ${out}`);

@@ -425,6 +425,40 @@ function pickDivider(lib: LibraryRow[], stageId: string, d: DividerLike, o: Pick
 
 const ISOLATION_RANK: Record<string, number> = { none: -1, functional: 0, basic: 1, reinforced: 2 };
 
+interface PartRefLike { role: string; libraryId: string }
+
+/**
+ * The parts the stage designer chose from the library (design.parts) for some roles, as BOM
+ * picks of exactly those rows. A row the library no longer holds is listed with a problem
+ * (the design was analysed with it: plan again after editing the library).
+ */
+function picksFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[], roles: (role: string) => boolean, value: (ref: PartRefLike, row: LibraryRow) => { value: string; rating: string; prefix: PartPick['prefix']; quantity?: number }): PartPick[] | null {
+  const chosen = refs.filter((r) => roles(r.role));
+  if (chosen.length === 0) return null;
+  return chosen.map((ref) => {
+    const row = lib.find((r) => r.id === ref.libraryId);
+    if (!row) return missing(stageId, ref.role, 'U', 'controller', '', '', 1, `the design was analysed with library part ${ref.libraryId}, which the library no longer holds: plan again`);
+    const v = value(ref, row);
+    return pickFromRow(stageId, ref.role, v.prefix, row, v.value, v.rating, v.quantity ?? 1);
+  });
+}
+
+const SWITCHER_ROLES = new Set(['regulator (integrated switches)', 'controller', 'high-side switch', 'low-side switch']);
+
+function switcherFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[] | undefined): PartPick[] | null {
+  if (!refs) return null;
+  return picksFromRefs(lib, stageId, refs, (r) => SWITCHER_ROLES.has(r), (ref, row) => row.partClass === 'switch'
+    ? { prefix: 'Q', value: '', rating: `${numParam(row, 'vds')} V, ${numParam(row, 'id')} A` }
+    : { prefix: 'U', value: '', rating: ref.role === 'controller' ? `${numParam(row, 'vinMax')} V` : `${numParam(row, 'vinMax')} V, ${numParam(row, 'iMax')} A` });
+}
+
+function capFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[] | undefined, c: CapLike, o: PickOptions): PartPick {
+  const ref = refs?.find((r) => r.role === c.role);
+  const row = ref ? lib.find((r) => r.id === ref.libraryId) : undefined;
+  if (ref && row) return pickFromRow(stageId, c.role, 'C', row, eng(c.value, 'F'), `${numParam(row, 'vRated')} V ${strParam(row, 'dielectric')}`, c.count);
+  return pickCap(lib, stageId, c, o);
+}
+
 /** Switching stage: one integrated regulator, or a controller plus two external switches, whichever costs less. */
 function pickSwitcher(lib: LibraryRow[], stageId: string, vinMax: number, iNeed: number, needForcedPwm: boolean, ipk: number): PartPick[] {
   const options: PartPick[][] = [];
@@ -464,6 +498,7 @@ interface AnyDesign {
   isolation?: { class: string; workingVoltage: number } | null;
   ratedCurrent?: number;
   package?: { name: string; thetaJA: number };
+  parts?: PartRefLike[];
 }
 
 /**
@@ -478,16 +513,17 @@ export function partsForStage(stageId: string, design: unknown, library: Library
   if (!out0) return [missing(stageId, 'stage', 'U', 'controller', '', '', 1, 'the stage carries no design')];
   if (d.kind === 'buck') {
     const iMax = out0.currentMax;
-    picks.push(...pickSwitcher(library, stageId, d.vinMax ?? 0, iMax, false, d.isat ?? iMax));
+    picks.push(...(switcherFromRefs(library, stageId, d.parts) ?? pickSwitcher(library, stageId, d.vinMax ?? 0, iMax, false, d.isat ?? iMax)));
     const L = d.inductance ?? 0;
     const isat = d.isat ?? iMax;
-    const ind = cheapest(library, 'inductor', (r) =>
+    const fromRef = d.parts ? picksFromRefs(library, stageId, d.parts, (r) => r === 'inductor', () => ({ prefix: 'L', value: eng(L, 'H'), rating: `Isat ≥ ${eng(isat, 'A')}` })) : null;
+    const ind = fromRef ? null : cheapest(library, 'inductor', (r) =>
       numParam(r, 'lMin') <= L * (1 + 1e-9) && numParam(r, 'lMax') >= L * (1 - 1e-9) && numParam(r, 'iSat') * Math.sqrt(numParam(r, 'lMax') / L) >= isat);
-    picks.push(ind
+    picks.push(...(fromRef ?? [ind
       ? pickFromRow(stageId, 'inductor', 'L', ind, eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1)
-      : missing(stageId, 'inductor', 'L', 'inductor', eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1, `no inductor in the library offers ${eng(L, 'H')} with ${eng(isat, 'A')} saturation current`));
-    if (d.cin) picks.push(pickCap(library, stageId, d.cin, o));
-    if (d.cout) picks.push(pickCap(library, stageId, d.cout, o));
+      : missing(stageId, 'inductor', 'L', 'inductor', eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1, `no inductor in the library offers ${eng(L, 'H')} with ${eng(isat, 'A')} saturation current`)]));
+    if (d.cin) picks.push(capFromRefs(library, stageId, d.parts, d.cin, o));
+    if (d.cout) picks.push(capFromRefs(library, stageId, d.parts, d.cout, o));
     if (d.divider) picks.push(...pickDivider(library, stageId, d.divider, o));
     return picks;
   }
@@ -497,7 +533,7 @@ export function partsForStage(stageId: string, design: unknown, library: Library
     // magnetic saturates no lower than that plus the usual 30 % margin.
     let peak = (d.isat ?? out0.currentMax) / 1.3;
     try {
-      const spec = magneticSpec(design as CoupledBuckDesign);
+      const spec = magneticSpec(design as CoupledBuckDesign, { withCore: false });
       peak = Math.max(peak, ...spec.windings.filter((w) => w.role === 'primary').map((w) => w.peakCurrent));
     } catch { /* an incomplete design: keep the design's own figure */ }
     const isat = Math.max(d.isat ?? 0, peak * 1.3);
@@ -542,14 +578,16 @@ export function partsForStage(stageId: string, design: unknown, library: Library
     const vinMax = Math.abs(d.vinMax ?? 0);
     const fits = (r: LibraryRow) => numParam(r, 'iMax') >= out0.currentMax && numParam(r, 'vinMax') >= vinMax && numParam(r, 'negative', 0) === neg
       && numParam(r, 'thetaJA') <= (d.package?.thetaJA ?? Infinity) + 1e-9;
-    const samePkg = cheapest(library, 'ldo', (r) => fits(r) && strParam(r, 'package') === d.package?.name);
-    const row = samePkg ?? cheapest(library, 'ldo', fits);
+    const ref = d.parts?.find((r) => r.role === 'LDO' || r.role === 'negative LDO');
+    const refRow = ref ? library.find((r) => r.id === ref.libraryId) ?? null : null;
+    const samePkg = refRow ? null : cheapest(library, 'ldo', (r) => fits(r) && strParam(r, 'package') === d.package?.name);
+    const row = refRow ?? samePkg ?? cheapest(library, 'ldo', fits);
     picks.push(row
       ? pickFromRow(stageId, neg ? 'negative LDO' : 'LDO', 'U', row, eng(out0.voltage, 'V', 4), `${numParam(row, 'iMax')} A, ${numParam(row, 'vinMax')} V in`, 1)
       : missing(stageId, 'LDO', 'U', 'ldo', eng(out0.voltage, 'V', 4), `≥ ${eng(out0.currentMax, 'A')}, θJA ≤ ${d.package?.thetaJA ?? '—'} K/W`, 1,
         `no ${neg ? 'negative ' : ''}LDO in the library carries ${eng(out0.currentMax, 'A')} from ${eng(vinMax, 'V')} with θJA ≤ ${d.package?.thetaJA} K/W`));
-    if (d.cin) picks.push(pickCap(library, stageId, d.cin, o));
-    if (d.cout) picks.push(pickCap(library, stageId, d.cout, o));
+    if (d.cin) picks.push(capFromRefs(library, stageId, d.parts, d.cin, o));
+    if (d.cout) picks.push(capFromRefs(library, stageId, d.parts, d.cout, o));
     return picks;
   }
   return [missing(stageId, `stage of kind ${String(d.kind)}`, 'U', 'controller', '', '', 1, `no part mapping for stage kind ${String(d.kind)}`)];
@@ -587,8 +625,26 @@ export function libraryUnitCosts(library: LibraryRow[]): Record<keyof PartCounts
   };
 }
 
-/** A planner cost model priced from the library (see libraryUnitCosts). */
-export function libraryCostModel(library: LibraryRow[]): CostModel {
+/**
+ * Cost and part count of some stages from the parts partsForStage lists for their designs:
+ * the numbers the BOM shows for the same stages (barriers are in the magnetic's row).
+ */
+export function priceStagesFromLibrary(library: LibraryRow[], stages: readonly { localId: string; design: unknown; barriers?: readonly { isolation: string; workingVoltage: number }[] }[], opts: Partial<PickOptions> = {}): { cost: number; parts: number } {
+  let cost = 0;
+  let parts = 0;
+  for (const st of stages) {
+    const iso = (st.barriers ?? []).map((b) => ({ class: b.isolation, workingVoltage: b.workingVoltage }))
+      .sort((a, b) => (ISOLATION_RANK[b.class] ?? -1) - (ISOLATION_RANK[a.class] ?? -1) || b.workingVoltage - a.workingVoltage)[0] ?? null;
+    for (const p of partsForStage(st.localId, st.design, library, { ...opts, isolation: iso })) {
+      cost += p.unitCost * p.quantity;
+      parts += p.quantity;
+    }
+  }
+  return { cost: Math.round(cost * 1e6) / 1e6, parts };
+}
+
+/** A planner cost model priced from the library (see libraryUnitCosts, priceStagesFromLibrary). */
+export function libraryCostModel(library: LibraryRow[], opts: Partial<PickOptions> = {}): CostModel {
   const unit = libraryUnitCosts(library);
   const price = (p: PartCounts) => {
     let c = 0;
@@ -597,5 +653,8 @@ export function libraryCostModel(library: LibraryRow[]): CostModel {
   };
   // Reference stage: the planner's typical synchronous buck.
   const refParts = (Object.keys(TYPICAL_BUCK_PARTS) as (keyof PartCounts)[]).filter((k) => String(k) !== 'barrier').reduce((a, k) => a + TYPICAL_BUCK_PARTS[k], 0);
-  return { cost: (p) => price(p), referenceStageCost: price(TYPICAL_BUCK_PARTS) || 1, referenceStageParts: refParts };
+  return {
+    cost: (p) => price(p), referenceStageCost: price(TYPICAL_BUCK_PARTS) || 1, referenceStageParts: refParts,
+    priceStages: (stages) => priceStagesFromLibrary(library, stages, opts),
+  };
 }

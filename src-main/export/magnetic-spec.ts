@@ -20,6 +20,51 @@ export const MAGNETIC_CAUTIONS = [
 
 const cell = (s: string) => s.replace(/\|/g, '/').replace(/\r?\n/g, ' ');
 
+/**
+ * The core, turns, gap, wire and loss the tool designed (engine/core-design.ts), with the
+ * tolerances the design assumed and the turns-ratio convention, so a winding shop can quote
+ * and build it; every value is a first design to be confirmed on a sample.
+ */
+function coreSection(spec: MagneticSpec, d: CoupledBuckDesign, q: (x: number, u: string) => string): string[] {
+  const c = spec.core;
+  if (!c) return [];
+  const mm = (x: number) => `${(x * 1e3).toFixed(x < 1e-3 ? 3 : 2)} mm`;
+  const physical = c.windings.map((w) => w.turns);
+  return [
+    '## Core and construction (first design)',
+    '',
+    c.ok ? `Designed on a ${cell(c.core.name)} core, ${cell(c.material.name)}.` : `**No core of the table passes every check** (${cell(c.problems.join('; '))}); the best attempt is shown and needs a larger core or a custom bobbin.`,
+    '',
+    '| Parameter | Value |',
+    '| --- | --- |',
+    `| Core shape (generic family) | ${cell(c.core.name)}: Ae ${(c.core.ae * 1e6).toFixed(1)} mm², le ${mm(c.core.le)}, Ve ${(c.core.ve * 1e9).toFixed(0)} mm³, bobbin window ${(c.core.aw * 1e6).toFixed(1)} mm² |`,
+    `| Material | ${cell(c.material.name)}: µr ${c.material.mur}, Bsat ${(c.material.bsatHot * 1e3).toFixed(0)} mT at 100 °C (${cell(c.material.source)}) |`,
+    `| Area product | ${(c.areaProduct * 1e12).toFixed(0)} mm⁴ available, ${(c.areaProductNeeded * 1e12).toFixed(0)} mm⁴ needed (Ap = L·Ipk·ΣIrms/(Bmax·J·Ku)) |`,
+    `| Turns as wound | ${physical.map((t) => Math.abs(t)).join(' : ')} (the design ratio ${[d.primaryTurns, ...d.secondaries.map((w) => w.turns)].map((t) => Math.abs(t)).join(' : ')} × ${c.turnsMultiplier}); reversed sense: ${physical.slice(1).some((t) => t < 0) ? physical.map((t, i) => (t < 0 ? `S${i}` : '')).filter(Boolean).join(', ') : 'none'} |`,
+    `| Peak flux density | ${(c.peakFlux * 1e3).toFixed(0)} mT at the worst peak current, limit ${(c.fluxLimit * 1e3).toFixed(0)} mT; flux swing ${(c.fluxSwing * 1e3).toFixed(0)} mT peak to peak |`,
+    `| Air gap (centre leg, fringing ignored) | ${c.gap > 0 ? mm(c.gap) : 'none'}; AL ${(c.inductanceFactor * 1e9).toFixed(0)} nH/turn²; a ±25 % permeability spread moves Lp by ${(c.inductanceSpread * 100).toFixed(0)} % |`,
+    `| Window fill | ${(c.fill * 100).toFixed(0)} % copper of the bobbin window (allowed ${(c.windowUtilisation * 100).toFixed(0)} %) |`,
+    `| Skin depth at fsw, 100 °C | ${mm(c.skinDepth)} |`,
+    `| Core loss (Steinmetz, estimate) | ${q(c.coreLoss, 'W')} |`,
+    `| Copper loss (DC + Dowell AC factor) | ${q(c.copperLoss, 'W')} |`,
+    `| Temperature rise (surface estimate) | ${c.temperatureRise.toFixed(0)} K |`,
+    ...c.leakage.map((l, i) => `| Leakage estimate P–S${i + 1}, referred to the primary | ${q(l, 'H')} |`),
+    '',
+    '| Winding | Turns as wound | Wire | Layers | Turns per layer | DC resistance at 100 °C | AC factor at fsw | Copper loss |',
+    '| --- | --- | --- | --- | --- | --- | --- | --- |',
+    ...c.windings.map((w) => `| ${cell(w.name)} | ${Math.abs(w.turns)}${w.turns < 0 ? ' (reversed)' : ''} | ${w.strands > 1 ? `${w.strands} × ` : ''}AWG ${w.awg}, ${w.insulation} | ${w.layers} | ${w.turnsPerLayer} | ${q(w.rdc, 'Ω')} | ${w.fr.toFixed(2)} | ${q(w.copperLoss, 'W')} |`),
+    '',
+    'Winding order, from the bobbin outwards:',
+    '',
+    ...c.windingOrder.map((l, i) => `${i + 1}. ${cell(l)}`),
+    '',
+    'Tolerances the design assumed: Lp ±20 %; each secondary\'s coupling at least the value in the electrical table. Turns-ratio convention: the ratio is that of the open-circuit winding voltages (mutual inductance over the primary inductance); leakage is stated as measured at each secondary with the primary shorted. A winding shop that splits the leakage differently must keep those two measured quantities, not only the turns.',
+    '',
+    c.reasons.map((r) => `- ${cell(r)}`).join('\n'),
+    '',
+  ];
+}
+
 export function magneticSpecMarkdown(req: Requirements, stage: PlanStage, d: CoupledBuckDesign, ref: string, names: Map<string, string>): { text: string; spec: MagneticSpec; saturation: number } {
   const spec = magneticSpec(d);
   const q = (x: number, u: string) => cell(fmtQty(x, u));
@@ -66,6 +111,7 @@ export function magneticSpecMarkdown(req: Requirements, stage: PlanStage, d: Cou
     '',
     'Wire diameters follow the AWG series of ASTM B258; copper resistivity 1/58 Ω·mm²/m at 20 °C rising 0.393 %/K. Parallel strands or foil may replace a single wire if the winder prefers.',
     '',
+    ...coreSection(spec, d, q),
     '## Isolation',
     '',
     iso ? `Isolation class **${iso.class}**, working voltage **${fmtQty(iso.workingVoltage, 'V')}**, between the primary and the windings that cross the barrier.`

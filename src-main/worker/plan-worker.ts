@@ -6,6 +6,7 @@ import { parentPort } from 'node:worker_threads';
 import { PlanSolver } from '../engine/planner/solver.ts';
 import { engineEvaluator } from '../engine/planner/evaluator.ts';
 import { inventedCostModel } from '../engine/planner/cost-model.ts';
+import { libraryCostModel } from '../engine/library.ts';
 import type { FromWorker, ToWorker } from './protocol.ts';
 
 const port = parentPort;
@@ -22,8 +23,10 @@ port.on('message', (m: ToWorker) => {
   if (m.type !== 'plan' || solver) return;
   try {
     solver = new PlanSolver(m.requirements, {
-      evaluator: engineEvaluator(),
-      ...(m.options.unitCosts ? { costModel: inventedCostModel(m.options.unitCosts) } : {}),
+      evaluator: engineEvaluator(m.options.library ? { library: m.options.library } : {}),
+      ...(m.options.library
+        ? { costModel: libraryCostModel(m.options.library, { powerDerating: m.requirements.limits.powerDerating, electrolyticDerating: m.requirements.limits.electrolyticDerating }) }
+        : m.options.unitCosts ? { costModel: inventedCostModel(m.options.unitCosts) } : {}),
       ...(m.options.objective ? { objective: m.options.objective } : {}),
       ...(m.options.budgetMs !== undefined ? { budgetMs: m.options.budgetMs } : {}),
       ...(m.options.allowRailFeeds !== undefined ? { allowRailFeeds: m.options.allowRailFeeds } : {}),

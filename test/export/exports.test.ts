@@ -267,6 +267,18 @@ describe('magnetic specification sheet', () => {
     expect(spec!.text).toContain(`≥ ${fmtQty(need, 'A')} (`);
     expect(b.bom.lines.find((l) => l.partClass === 'magnetic-custom')!.rating).toContain(`Isat ≥ ${fmtQty(need, 'A')}`);
   });
+
+  it('hands the winding shop a core, the turns as wound, the gap, the wire per layer and the assumed tolerances', () => {
+    const [spec] = exportMagneticSpecs(b);
+    const st = b.plan.stages.find((s) => s.kind === 'cwbuck')!;
+    const c = magneticSpec(st.design as CoupledBuckDesign).core!;
+    const md = spec!.text;
+    expect(md).toContain('## Core and construction');
+    expect(md).toContain(`| Turns as wound | ${c.windings.map((w) => Math.abs(w.turns)).join(' : ')}`);
+    expect(md).toContain(c.core.name);
+    for (const k of ['Air gap', 'Window fill', 'Core loss', 'Copper loss', 'Temperature rise', 'Winding order', 'Lp ±20 %', 'Turns-ratio convention']) expect(md).toContain(k);
+    for (const w of c.windings) expect(md).toMatch(new RegExp(`\\| ${w.name} \\| ${Math.abs(w.turns)}`));
+  });
 });
 
 describe('netlist folder', () => {

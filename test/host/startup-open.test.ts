@@ -36,7 +36,7 @@ function goodProject(path: string, name: string): void {
   const doc = demoDocument();
   doc.requirements.meta.name = name;
   const s = ProjectStore.fromDocument(doc);
-  s.save(path);
+  s.save(path, { overwrite: true }); // replaces the hostile file on purpose
   s.close();
 }
 

@@ -28,7 +28,9 @@ describe('railwright plan', () => {
       const path = makeProject(dir);
       const c = io();
       const code = await runCli(['plan', path, '--objective', 'loss'], c.io);
-      expect(c.err).toEqual([]);
+      // A project without its own part library is designed with the default library, and says so.
+      expect(c.err.filter((l) => !l.startsWith('note: the project has no part library'))).toEqual([]);
+      expect(c.err.join('\n')).toMatch(/using the default library/);
       const text = c.out.join('\n');
       expect(code).toBe(0);
       expect(text).toMatch(/Reasons:/);

@@ -74,6 +74,11 @@ export function railBand(r: Rail): { min: number; nom: number; max: number } {
 
 /** Everything the evaluation of shapes needs about one requirements set. */
 export class BlockFactory {
+  /** Cost and count of a block: from the parts its designs name when the cost model can, else by category. */
+  private price(parts: PartCounts, kind: StageKind, stages: readonly BlockStage[]): { cost: number; parts: number } {
+    return this.costModel.priceStages?.(stages) ?? { cost: this.costModel.cost(parts, kind), parts: countParts(parts) };
+  }
+
   readonly ctx: PlanContext;
   private readonly domains: Map<Id, Domain>;
   private readonly sources: Map<Id, Source>;
@@ -352,8 +357,7 @@ export class BlockFactory {
         iinPerMode: run.perMode.map((e) => Math.abs(e.iin)),
         iinAtMin: run.perMode.map((e) => Math.abs(e.iin) * (vin.nom / Math.max(vin.min, 1e-9))),
         pinPerMode: run.perMode.map((e) => Math.abs(e.pin)),
-        cost: this.costModel.cost(parts, shape.kind),
-        parts: countParts(parts),
+        ...this.price(parts, shape.kind, [stage]),
         partCounts: parts,
         stages: [stage],
         internalNodes: [],
@@ -600,8 +604,7 @@ export class BlockFactory {
       loss, lossPerMode, iinPerMode,
       iinAtMin: iinPerMode.map((i) => i * (vin.nom / Math.max(vin.min, 1e-9))),
       pinPerMode,
-      cost: this.costModel.cost(parts, 'cwbuck'),
-      parts: countParts(parts), partCounts: parts,
+      ...this.price(parts, 'cwbuck', stages), partCounts: parts,
       stages, internalNodes, windows, reasons,
       notes: { duty: run.atMin.duty ?? NaN, taps: taps.size },
     };

@@ -9,6 +9,7 @@ import type { OperatingPoint, OutputSpec, StageEvaluation, StageFlag, StageSpec 
 import { bestDivider, nearest, type DividerChoice } from '../eseries.ts';
 import { GENERIC_DEFAULTS, diodeVf, type ControllerParams, type DiodeModel, type SwitchParams } from './defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from './common.ts';
+import { chooseCeramicRow, chooseInductor, chooseSwitcher, type StagePartRef } from './part-choice.ts';
 
 export interface ThermalParams {
   highSide: number;
@@ -45,6 +46,32 @@ export interface SwitchingDesignBase {
   controller: ControllerParams;
   thetaJA: ThermalParams;
   tjMax: Celsius;
+  /**
+   * True when controller and switches are one package (an integrated regulator): they then
+   * share one junction temperature, from the sum of their losses.
+   */
+  integrated?: boolean;
+  /** The library rows the design was built from (absent: generic defaults from memory). */
+  parts?: StagePartRef[];
+}
+
+/** Where a design's thermal resistances came from. */
+export function thetaSourceOf(d: { parts?: StagePartRef[] }): 'library' | 'default-from-memory' {
+  return d.parts && d.parts.length > 0 ? 'library' : 'default-from-memory';
+}
+
+/**
+ * The dissipating parts of the switch pair and controller: one package with one Tj when the
+ * switches are integrated, three otherwise.
+ */
+export function switchingParts(d: SwitchingDesignBase, hs: number, ls: number, ctl: number, ta: number) {
+  const src = thetaSourceOf(d);
+  if (d.integrated) return [part('regulator (integrated switches)', hs + ls + ctl, d.thetaJA.controller, ta, src)];
+  return [
+    part('high-side switch', hs, d.thetaJA.highSide, ta, src),
+    part('low-side switch', ls, d.thetaJA.lowSide, ta, src),
+    part('controller', ctl, d.thetaJA.controller, ta, src),
+  ];
 }
 
 export interface BuckDesign extends SwitchingDesignBase {
@@ -140,9 +167,10 @@ export function evaluateBuck(d: BuckDesign, op: OperatingPoint): StageEvaluation
   const ripplePP = ripple * d.cout.esr + ripple / (8 * fsw * d.cout.effective);
   const ta = op.ambient as number;
   const parts = [
-    part('high-side switch', loss['hs-conduction']! + loss['hs-switching']! + loss['output-capacitance']! / 2, d.thetaJA.highSide, ta),
-    part('low-side switch', loss['ls-conduction']! + loss['dead-time']! + loss['output-capacitance']! / 2, d.thetaJA.lowSide, ta),
-    part('controller', loss['gate-drive']! + loss.quiescent!, d.thetaJA.controller, ta),
+    ...switchingParts(d,
+      loss['hs-conduction']! + loss['hs-switching']! + loss['output-capacitance']! / 2,
+      loss['ls-conduction']! + loss['dead-time']! + loss['output-capacitance']! / 2,
+      loss['gate-drive']! + loss.quiescent!, ta),
     part('inductor', loss['inductor-copper']! + loss['inductor-core']!, d.thetaJA.inductor, ta),
   ];
   const outputs = [{ nodeId: d.outputs[0]!.nodeId, voltage: p.vout as Volts, current: io as Amps, ripplePP: ripplePP as Volts }];
@@ -241,31 +269,81 @@ export function designBuck(spec: StageSpec): { ok: true; design: BuckDesign; rea
   if (vout >= spec.vinMin) {
     return { ok: false, flags: [flag('no-headroom', 'error', `output ${r3(vout)} V is not below the lowest input ${r3(spec.vinMin)} V`, { vout, vinMin: spec.vinMin })] };
   }
-  const ctl: ControllerParams = { ...GENERIC_DEFAULTS.controller };
-  const divider = bestDivider(vout, ctl.vref);
-  if (!divider) return { ok: false, flags: [flag('below-reference', 'error', `output ${r3(vout)} V is not above the ${ctl.vref} V reference`, { vout, vref: ctl.vref })] };
-  reasons.push(`feedback divider ${divider.rTop} Ω / ${divider.rBottom} Ω (E96) gives ${r3(divider.vout)} V, error ${r3(divider.error * 100)} %`);
   const fsw = spec.fsw as number;
   const imax = Math.max(o.currentMax as number, 0.05);
   const target = GENERIC_DEFAULTS.rippleTarget;
   const dMax = vout / spec.vinMax;
   const lCalc = ((spec.vinMax - vout) * dMax) / (target * imax * fsw);
-  const L = nearest('E12', lCalc);
-  reasons.push(`L = ${r3(L * 1e6)} µH (E12) for ${target * 100} % ripple of ${r3(imax)} A at Vin ${r3(spec.vinMax)} V (calculated ${r3(lCalc * 1e6)} µH)`);
+  let L = nearest('E12', lCalc);
+  const lib = spec.library;
+  // With a library the inductance must be one a library inductor offers: the E12 values
+  // nearest the target first, within a ripple of about 15–80 % of the load [common practice].
+  let inductorPick: ReturnType<typeof chooseInductor> | null = null;
+  if (lib) {
+    const tried: number[] = [];
+    for (const k of [1, 1.2, 0.82, 1.5, 0.68, 1.8, 0.56, 2.2, 0.47]) {
+      const Lk = nearest('E12', L * k);
+      if (tried.includes(Lk)) continue;
+      tried.push(Lk);
+      const rip = ((spec.vinMax - vout) * dMax) / (Lk * fsw);
+      const pick = chooseInductor(lib, Lk, (imax + rip / 2) * (1 + GENERIC_DEFAULTS.saturationMargin));
+      if (!('problem' in pick)) { L = Lk; inductorPick = pick; break; }
+      inductorPick ??= pick;
+    }
+  }
   const ripple = ((spec.vinMax - vout) * dMax) / (L * fsw);
   const ipk = imax + ripple / 2;
   const isat = ipk * (1 + GENERIC_DEFAULTS.saturationMargin);
-  const dcr = (GENERIC_DEFAULTS.inductorDcrCoeff * Math.sqrt(L / 1e-6)) / Math.sqrt(isat);
+  // Parts: from the project's library when it is given (their parameters drive the analysis),
+  // else the generic defaults from memory.
+  const refs: StagePartRef[] = [];
+  let ctl: ControllerParams = { ...GENERIC_DEFAULTS.controller };
+  let highSide = { ...GENERIC_DEFAULTS.highSide };
+  let lowSide = { ...GENERIC_DEFAULTS.lowSide };
+  let rdsHotFactor: number = GENERIC_DEFAULTS.rdsHotFactor;
+  let thetaJA: ThermalParams = { highSide: GENERIC_DEFAULTS.switchThetaJA, lowSide: GENERIC_DEFAULTS.switchThetaJA, controller: GENERIC_DEFAULTS.controllerThetaJA, inductor: GENERIC_DEFAULTS.inductorThetaJA };
+  let integrated = false;
+  let dcr = (GENERIC_DEFAULTS.inductorDcrCoeff * Math.sqrt(L / 1e-6)) / Math.sqrt(isat);
+  if (lib) {
+    const sw = chooseSwitcher(lib, { vinMin: spec.vinMin, vinMax: spec.vinMax, iNeed: o.currentMax as number, ipk, forcedPwm: false, ...(spec.margins ? { margins: spec.margins } : {}) });
+    if ('problem' in sw) return { ok: false, flags: [flag('no-library-part', 'error', sw.problem, { vinMax: spec.vinMax, current: o.currentMax })] };
+    ({ controller: ctl, highSide, lowSide, rdsHotFactor, integrated } = sw);
+    thetaJA = { ...sw.thetaJA, inductor: GENERIC_DEFAULTS.inductorThetaJA };
+    refs.push(...sw.refs);
+    reasons.push(`parts: ${sw.reason}`);
+    const ind = inductorPick!;
+    if ('problem' in ind) return { ok: false, flags: [flag('no-library-part', 'error', `${ind.problem} (nor a neighbouring E12 value)`, { inductance: L, isat })] };
+    dcr = ind.dcr;
+    refs.push(ind.ref);
+  }
+  const divider = bestDivider(vout, ctl.vref);
+  if (!divider) return { ok: false, flags: [flag('below-reference', 'error', `output ${r3(vout)} V is not above the ${ctl.vref} V reference`, { vout, vref: ctl.vref })] };
+  reasons.push(`feedback divider ${divider.rTop} Ω / ${divider.rBottom} Ω (E96) gives ${r3(divider.vout)} V, error ${r3(divider.error * 100)} %`);
+  reasons.push(`L = ${r3(L * 1e6)} µH (E12${lib ? ', offered by the library' : ''}) for ${r3((ripple / imax) * 100)} % ripple of ${r3(imax)} A at Vin ${r3(spec.vinMax)} V (calculated ${r3(lCalc * 1e6)} µH for ${target * 100} %)`);
   const rippleLimit = o.rippleLimit as number;
-  const esr = GENERIC_DEFAULTS.ceramicEsr;
-  const budget = Math.max(rippleLimit * 0.5 - ripple * esr, rippleLimit * 0.1);
-  // ΔV = ΔI/(8·fsw·C)  [Erickson & Maksimović] solved for C; at least 10 µF [common practice]
-  const coutNeed = Math.max(ripple / (8 * fsw * budget), 10e-6);
-  const cout = chooseCeramic('output', coutNeed, vout * (1 + o.tolerance), spec.ceramicDerating);
-  reasons.push(`output capacitor ${cout.count} × ${r3(cout.value * 1e6)} µF ${cout.ratedVoltage} V ceramic (${r3(cout.effective * 1e6)} µF left at ${r3(vout)} V) for half the ${r3(rippleLimit * 1e3)} mV ripple limit`);
+  // ΔV = ΔI·ESR + ΔI/(8·fsw·C)  [Erickson & Maksimović] solved for C with the ESR of the whole
+  // bank (parts in parallel), at least 10 µF [common practice]; the count and the bank's ESR
+  // depend on each other, so iterate to a fixed point.
+  let cout = chooseCeramic('output', 10e-6, vout * (1 + o.tolerance), spec.ceramicDerating);
+  for (let k = 0; k < 6; k++) {
+    const budget = Math.max(rippleLimit * 0.5 - ripple * cout.esr, rippleLimit * 0.1);
+    const next = chooseCeramic('output', Math.max(ripple / (8 * fsw * budget), 10e-6), vout * (1 + o.tolerance), spec.ceramicDerating);
+    const same = next.count === cout.count && next.value === cout.value;
+    cout = next;
+    if (same) break;
+  }
   // Cin ≥ Io·D(1−D)/(fsw·ΔVin) with D(1−D) ≤ ¼, ΔVin = 1 % of Vin min [common practice]
   const cinNeed = Math.max((imax * 0.25) / (fsw * 0.01 * spec.vinMin), 1e-6);
-  const cin = chooseCeramic('input', cinNeed, spec.vinMax, spec.ceramicDerating);
+  let cin = chooseCeramic('input', cinNeed, spec.vinMax, spec.ceramicDerating);
+  if (lib) {
+    for (const which of ['cout', 'cin'] as const) {
+      const pick = chooseCeramicRow(lib, which === 'cout' ? cout : cin);
+      if (!pick) continue; // the BOM then looks for a polymer or aluminium part and says so
+      if (which === 'cout') cout = pick.bank; else cin = pick.bank;
+      refs.push(pick.ref);
+    }
+  }
+  reasons.push(`output capacitor ${cout.count} × ${r3(cout.value * 1e6)} µF ${cout.ratedVoltage} V ceramic (${r3(cout.effective * 1e6)} µF left at ${r3(vout)} V) for half the ${r3(rippleLimit * 1e3)} mV ripple limit`);
   const icinRms = imax * 0.5;
   reasons.push(`input capacitor ${cin.count} × ${r3(cin.value * 1e6)} µF ${cin.ratedVoltage} V ceramic; RMS current up to ${r3(icinRms)} A (Io·√(D(1−D)))`);
   const design: BuckDesign = {
@@ -278,13 +356,13 @@ export function designBuck(spec: StageSpec): { ok: true; design: BuckDesign; rea
     isat: isat as Amps,
     coreLossFraction: GENERIC_DEFAULTS.coreLossFraction,
     cout, cin, divider,
-    highSide: { ...GENERIC_DEFAULTS.highSide },
-    lowSide: { ...GENERIC_DEFAULTS.lowSide },
-    rdsHotFactor: GENERIC_DEFAULTS.rdsHotFactor,
+    highSide, lowSide, rdsHotFactor,
     bodyDiode: { ...GENERIC_DEFAULTS.bodyDiode },
     controller: ctl,
-    thetaJA: { highSide: GENERIC_DEFAULTS.switchThetaJA, lowSide: GENERIC_DEFAULTS.switchThetaJA, controller: GENERIC_DEFAULTS.controllerThetaJA, inductor: GENERIC_DEFAULTS.inductorThetaJA },
+    thetaJA,
     tjMax: spec.tjMax,
+    ...(integrated ? { integrated } : {}),
+    ...(refs.length ? { parts: refs } : {}),
   };
   const flags = feasibility(design, spec.ambient as number, [o.currentMax as number]);
   if (flags.some((f) => f.severity === 'error')) return { ok: false, flags };

@@ -7,6 +7,8 @@
  */
 import type { Amps, Celsius, Hertz, KelvinPerWatt, Ratio, Volts, Watts } from '../units.ts';
 import type { Id, IsolationClass, StageKind } from '../model.ts';
+import type { LibraryRow } from '../library.ts';
+import type { RatingMargins } from './part-choice.ts';
 
 /** One output the planner wants from a stage. */
 export interface OutputSpec {
@@ -43,6 +45,14 @@ export interface StageSpec {
   coupling?: number;
   /** Coupled-winding stages: the barrier the windings cross, carried onto the magnetic's spec. */
   isolation?: { class: IsolationClass; workingVoltage: Volts } | null;
+  /**
+   * The project's part library. When given, the designer chooses the stage's parts from it
+   * and the design carries their parameters and references (stages/part-choice.ts); without
+   * it the generic defaults from memory stand in.
+   */
+  library?: readonly LibraryRow[];
+  /** Rating margins of the part choice (stages/part-choice.ts DEFAULT_MARGINS). */
+  margins?: Partial<RatingMargins>;
 }
 
 /** Severity `error` makes a stage infeasible; `warning` is shown but allowed. */
