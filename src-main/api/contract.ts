@@ -44,6 +44,8 @@ export interface ProjectState {
   redoLabel: string | null;
   /** True when the project came back from an autosave after an unclean exit. */
   recovered: boolean;
+  /** A message from the host for the user, e.g. why the last project was not reopened at start; null when none. */
+  notice: string | null;
   recent: string[];
   /** The host the handlers run in; the window adapts file dialogs to it. */
   host: 'electron' | 'web' | 'test';

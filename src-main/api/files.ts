@@ -10,7 +10,8 @@ import type { PartLibraryRow, Requirements } from '../engine/model.ts';
 import { ProjectStore, OpenError, SaveRefused, StoreError } from '../store/project-store.ts';
 import { demoDocument } from '../store/demo.ts';
 import { checkLibraryShape, checkRequirementsShape, importProjectJson, type ProjectDocument } from '../store/json-format.ts';
-import { addRecent, readRecent, removeRecent } from '../store/recent.ts';
+import { existsSync } from 'node:fs';
+import { addRecent, lastProjectToReopen, markRecentFailed, readRecent, removeRecent } from '../store/recent.ts';
 import { discardRecovery, listRecovery, restoreRecovery, writeRecovery } from '../store/recovery.ts';
 import { ApiFailure, handler } from './registry.ts';
 import type { Session } from './session.ts';
@@ -151,6 +152,48 @@ export function openPath(s: Session, raw: string): void {
   }
   adoptStore(s, store, path, { dirty: false });
   remember(s, path);
+}
+
+/**
+ * What a host opens at start-up: the autosave copy after an unclean exit, else the last
+ * project (unless it failed to open at an earlier start), else the demo file in the user's
+ * projects folder (written on first run). A project that fails to open, or whose first
+ * view cannot be built, is marked in the recent list so it is never reopened
+ * automatically again; the demo opens instead and the window shows why (state.notice).
+ * `approve` lets a host whitelist the paths it opens here.
+ */
+export async function openAtStart(s: Session, opts: { demoFile: string; approve?: (path: string) => void }): Promise<void> {
+  loadRecent(s);
+  if (recoverIfAny(s)) return;
+  const dir = settingsDir(s);
+  const last = dir ? lastProjectToReopen(dir) : null;
+  let notice: string | null = null;
+  if (last && existsSync(last.path)) {
+    try {
+      opts.approve?.(last.path);
+      openPath(s, last.path);
+      await buildSnapshot(s);
+      return;
+    } catch (e) {
+      const why = (e as Error)?.message ?? String(e);
+      try { markRecentFailed(dir!, last.path, why); } catch { /* a read-only settings folder */ }
+      loadRecent(s);
+      notice = `The last project (${last.path}) could not be opened, so the demo is shown; it will not be reopened automatically (choose it under Open to try again). ${why}`;
+    }
+  }
+  try {
+    opts.approve?.(opts.demoFile);
+    if (existsSync(opts.demoFile)) {
+      openPath(s, opts.demoFile);
+    } else {
+      openDemo(s);
+      saveTo(s, opts.demoFile);
+    }
+    await buildSnapshot(s);
+  } catch {
+    try { openDemo(s); } catch { newProject(s); }
+  }
+  s.notice = notice;
 }
 
 /**

@@ -18,6 +18,7 @@ import { checkTargets, existsMessage, writeAll, writeFiles, TargetError, TargetE
 import { existsSync } from 'node:fs';
 import { defaultLibrary } from '../api/default-library.ts';
 import { RollupError } from '../engine/rollup.ts';
+import { validateRequirements } from '../engine/validate.ts';
 import type { ElkLike } from '../engine/layout.ts';
 
 const CAUTION =
@@ -85,6 +86,13 @@ const exportCmd: CliCommand = {
     const store = openStore(positional[0]);
     try {
       const req = store.getRequirements();
+      // The same gate as `plan`: no drawing, BOM or report of requirements it refuses.
+      const problems = Object.keys(targets).length ? validateRequirements(req) : [];
+      if (problems.length) {
+        io.err('the requirements have problems; fix them before exporting (nothing was written):');
+        for (const p of problems) io.err(`  ${p.path}: ${p.message}`);
+        return 1;
+      }
       // The library CSV is written with the other files, after every target was checked.
       const extra = libCsv
         ? [{ option: '--library-csv', path: libCsv, bytes: new TextEncoder().encode(libraryCsv(store.getLibrary().length ? store.getLibrary() : defaultLibrary())) }]

@@ -178,5 +178,45 @@ export function validateRequirements(req: Requirements): Problem[] {
   if (!isNum(pref.budgetMs) || pref.budgetMs < 10 || pref.budgetMs > 3_600_000) {
     add('preferences.budgetMs', 'planner time budget must be between 10 ms and 1 h');
   }
+  checkPhysicalRange(req, add);
   return out;
+}
+
+/** Largest voltage (magnitude) a source, load or barrier may have in a board-level power tree. */
+export const MAX_VOLTS = 1e3;
+/** Largest current a load may draw in one mode, or a source may deliver. */
+export const MAX_AMPS = 1e3;
+
+/**
+ * Values that are finite but physically absurd for the products this tool plans (a typed
+ * unit slip such as "5k" for "5m", or a crafted 1e308): above 1 kV or 1 kA. The stage
+ * models are not meant for them, and the planner would only blame on-time or E-series
+ * values far downstream; say what is wrong where it was typed instead.
+ */
+function checkPhysicalRange(req: Requirements, add: (path: string, message: string) => void): void {
+  // Prefixes stop at giga: beyond that, plain scientific notation reads better.
+  const volts = (x: number) => (Math.abs(x) < 1e12 ? formatQuantity(x, 'voltage', 4) : `${x.toExponential(3)} V`);
+  const amps = (x: number) => (Math.abs(x) < 1e12 ? formatQuantity(x, 'current', 4) : `${x.toExponential(3)} A`);
+  const tooHigh = (x: unknown, max: number): x is number => isNum(x) && Math.abs(x) > max;
+  req.sources.forEach((s, i) => {
+    for (const k of ['vNom', 'vMin', 'vMax'] as const) {
+      if (tooHigh(s[k], MAX_VOLTS)) add(`sources[${i}].${k}`, `${k} is ${volts(s[k])}, above the ${volts(MAX_VOLTS)} this tool plans for (check the unit)`);
+    }
+    if (tooHigh(s.currentLimit, MAX_AMPS)) add(`sources[${i}].currentLimit`, `current limit is ${amps(s.currentLimit)}, above the ${amps(MAX_AMPS)} this tool plans for (check the unit)`);
+  });
+  req.domains.forEach((d, i) => {
+    if (tooHigh(d.workingVoltage, MAX_VOLTS)) add(`domains[${i}].workingVoltage`, `working voltage is ${volts(d.workingVoltage)}, above the ${volts(MAX_VOLTS)} this tool plans for (check the unit)`);
+  });
+  req.loads.forEach((l, i) => {
+    if (tooHigh(l.voltage, MAX_VOLTS)) add(`loads[${i}].voltage`, `voltage is ${volts(l.voltage)}, above the ${volts(MAX_VOLTS)} this tool plans for (check the unit)`);
+    if (tooHigh(l.rippleLimit, MAX_VOLTS)) add(`loads[${i}].rippleLimit`, `ripple limit is ${volts(l.rippleLimit)}, above ${volts(MAX_VOLTS)} (check the unit)`);
+    for (const [modeId, a] of Object.entries(l.current ?? {})) {
+      if (tooHigh(a, MAX_AMPS)) add(`loads[${i}].current.${modeId}`, `current is ${amps(a)}, above the ${amps(MAX_AMPS)} this tool plans for (check the unit)`);
+    }
+  });
+  // Temperatures in °C: nothing is colder than absolute zero, and no board runs at 1000 °C.
+  for (const k of ['ambient', 'tjMax'] as const) {
+    const t = req.limits[k];
+    if (isNum(t) && (t < -273.15 || t > 1000)) add(`limits.${k}`, `${k} is ${t} °C, outside −273.15 °C (absolute zero) to 1000 °C (check the unit)`);
+  }
 }

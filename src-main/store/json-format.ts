@@ -263,7 +263,35 @@ export function importProjectJson(text: string): ImportResult {
 }
 
 /** Deepest nesting a document may have: far beyond any real project, well below the stack. */
-const MAX_DEPTH = 64;
+export const MAX_DEPTH = 64;
+/** Longest JSON text accepted, imported or stored (the window's import limit). */
+export const MAX_JSON_CHARS = 16_000_000;
+
+/**
+ * Check JSON text before parsing it: a reason when it is longer than MAX_JSON_CHARS or
+ * nests objects and arrays deeper than `limit`, else null. One pass over the characters,
+ * no recursion (brackets inside strings do not count), so hostile text cannot exhaust the
+ * stack here or in whatever walks the parsed value later.
+ */
+export function jsonTextProblem(text: string, limit = MAX_DEPTH): string | null {
+  if (text.length > MAX_JSON_CHARS) return `${text.length} characters of JSON, more than the ${MAX_JSON_CHARS} a project value may have`;
+  let depth = 0;
+  let inString = false;
+  for (let i = 0; i < text.length; i++) {
+    const c = text.charCodeAt(i);
+    if (inString) {
+      if (c === 0x5c) i++; // backslash: skip the escaped character
+      else if (c === 0x22) inString = false;
+    } else if (c === 0x22) {
+      inString = true;
+    } else if (c === 0x7b || c === 0x5b) {
+      if (++depth > limit) return `nested more than ${limit} levels deep; a project document never needs that`;
+    } else if (c === 0x7d || c === 0x5d) {
+      depth--;
+    }
+  }
+  return null;
+}
 
 /** Path of the first value nested deeper than `limit`, or null. Iterative: no recursion. */
 function findTooDeep(root: unknown, limit: number): string | null {

@@ -25,7 +25,7 @@ import {
 } from '../engine/model.ts';
 import type { PlanResult } from '../engine/plan-types.ts';
 import {
-  checkLibraryShape, checkPlanShape, checkRequirementsShape, type ProjectDocument, type StoredPlan,
+  checkLibraryShape, checkPlanShape, checkRequirementsShape, jsonTextProblem, type ProjectDocument, type StoredPlan,
 } from './json-format.ts';
 import { APPLICATION_ID, expectedTables, migrate, schemaVersion, userVersion } from './migrations.ts';
 import {
@@ -98,9 +98,17 @@ export function newRequirements(): Requirements {
 
 type Row = Record<string, unknown>;
 
+/**
+ * Parse one stored JSON value. `where` names the table, row and column. The same depth and
+ * size limits as the JSON importer apply, checked on the text before parsing (no
+ * recursion), so a hostile cell is refused here instead of overflowing the stack later.
+ */
 function parseJson(text: unknown, where: string): unknown {
+  const t = String(text);
+  const problem = jsonTextProblem(t);
+  if (problem) throw new Error(`damaged value in ${where}: ${problem}`);
   try {
-    return JSON.parse(String(text));
+    return JSON.parse(t);
   } catch {
     throw new Error(`damaged value in ${where}`);
   }
@@ -115,7 +123,20 @@ function withExtra(known: Row, extraText: unknown, where: string): Row {
 function splitExtra(obj: Row, known: readonly string[]): string {
   const extra: Row = {};
   for (const [k, v] of Object.entries(obj)) if (!known.includes(k) && v !== undefined) extra[k] = v;
-  return JSON.stringify(extra);
+  return storableJson(extra, `extra fields of ${String(obj.id)}`);
+}
+
+/** JSON text of a value to store, refused (StoreError) when the reader would refuse it. */
+function storableJson(value: unknown, what: string): string {
+  let text: string;
+  try {
+    text = JSON.stringify(value);
+  } catch (e) {
+    throw new StoreError(`${what} refused: ${(e as Error).message}`);
+  }
+  const problem = jsonTextProblem(text);
+  if (problem) throw new StoreError(`${what} refused: ${problem}`);
+  return text;
 }
 
 let saveCounter = 0;
@@ -275,7 +296,7 @@ export class ProjectStore {
 
   private getMetaValue(key: string): unknown {
     const row = this.db.prepare('SELECT value FROM meta WHERE key = ?').get(key) as { value: string } | undefined;
-    return row ? parseJson(row.value, `meta.${key}`) : undefined;
+    return row ? parseJson(row.value, `meta.${key} (table meta, row "${key}", column value)`) : undefined;
   }
 
   private setMetaValue(key: string, value: unknown): void {
@@ -289,17 +310,17 @@ export class ProjectStore {
     const meta: Row = { name: '', description: '', revision: 0 };
     for (const r of metaRows) {
       if (r.key === 'created' || r.key === 'modified') continue;
-      meta[r.key] = parseJson(r.value, `meta.${r.key}`);
+      meta[r.key] = parseJson(r.value, `meta.${r.key} (table meta, row "${r.key}", column value)`);
     }
     const sources = (db.prepare('SELECT * FROM sources ORDER BY pos').all() as Row[]).map((r) => withExtra({
       id: r.id, name: r.name, vNom: r.v_nom, vMin: r.v_min, vMax: r.v_max, currentLimit: r.current_limit,
-    }, r.extra, `source ${String(r.id)}`));
+    }, r.extra, `source ${String(r.id)} (table sources, row "${String(r.id)}", column extra)`));
     const domains = (db.prepare('SELECT * FROM domains ORDER BY pos').all() as Row[]).map((r) => withExtra({
       id: r.id, name: r.name, isolation: r.isolation, workingVoltage: r.working_voltage,
-    }, r.extra, `domain ${String(r.id)}`));
+    }, r.extra, `domain ${String(r.id)} (table domains, row "${String(r.id)}", column extra)`));
     const modes = (db.prepare('SELECT * FROM modes ORDER BY pos').all() as Row[]).map((r) => withExtra({
       id: r.id, name: r.name, share: r.share,
-    }, r.extra, `mode ${String(r.id)}`));
+    }, r.extra, `mode ${String(r.id)} (table modes, row "${String(r.id)}", column extra)`));
     const currents = new Map<string, Row>();
     for (const c of db.prepare('SELECT load_id, mode_id, current FROM load_currents ORDER BY load_id, pos').all() as Row[]) {
       const id = String(c.load_id);
@@ -313,12 +334,12 @@ export class ProjectStore {
         current: currents.get(String(r.id)) ?? {}, rippleLimit: r.ripple_limit, noiseClass: r.noise_class,
       };
       if (r.rail_key !== null) known.railKey = r.rail_key;
-      return withExtra(known, r.extra, `load ${String(r.id)}`);
+      return withExtra(known, r.extra, `load ${String(r.id)} (table loads, row "${String(r.id)}", column extra)`);
     });
     const kv = (table: 'limits' | 'preferences') => {
       const o: Row = {};
       for (const r of db.prepare(`SELECT key, value FROM ${table} ORDER BY rowid`).all() as { key: string; value: string }[]) {
-        o[r.key] = parseJson(r.value, `${table}.${r.key}`);
+        o[r.key] = parseJson(r.value, `${table}.${r.key} (table ${table}, row "${r.key}", column value)`);
       }
       return o;
     };
@@ -386,7 +407,7 @@ export class ProjectStore {
     const row = this.db.prepare('SELECT revision, computed_at, result FROM plan_results WHERE slot = 1').get() as
       { revision: number; computed_at: string; result: string } | undefined;
     if (!row) return null;
-    const result = parseJson(row.result, 'plan result') as PlanResult;
+    const result = parseJson(row.result, 'plan result (table plan_results, column result)') as PlanResult;
     return { revision: row.revision, computedAt: row.computed_at, result, stale: row.revision !== this.revision };
   }
 
@@ -396,7 +417,7 @@ export class ProjectStore {
     if (problems.length) throw new StoreError('plan result refused', problems);
     this.db.prepare(`INSERT INTO plan_results (slot, revision, computed_at, result) VALUES (1, ?, ?, ?)
       ON CONFLICT(slot) DO UPDATE SET revision = excluded.revision, computed_at = excluded.computed_at, result = excluded.result`)
-      .run(result.revision, computedAt, JSON.stringify(result));
+      .run(result.revision, computedAt, storableJson(result, 'plan result'));
     this.isDirty = true;
   }
 
@@ -407,7 +428,7 @@ export class ProjectStore {
   getLibrary(): PartLibraryRow[] {
     return (this.db.prepare('SELECT id, part_class, name, cost, params FROM part_library ORDER BY pos').all() as Row[]).map((r) => ({
       id: String(r.id), partClass: String(r.part_class), name: String(r.name), cost: Number(r.cost),
-      params: parseJson(r.params, `part library row ${String(r.id)}`) as Record<string, unknown>,
+      params: parseJson(r.params, `part library row ${String(r.id)} (table part_library, row "${String(r.id)}", column params)`) as Record<string, unknown>,
     }));
   }
 
@@ -420,7 +441,7 @@ export class ProjectStore {
     db.transaction(() => {
       db.exec('DELETE FROM part_library');
       const ins = db.prepare('INSERT INTO part_library (id, pos, part_class, name, cost, params) VALUES (?, ?, ?, ?, ?, ?)');
-      rows.forEach((r, i) => ins.run(r.id, i, r.partClass, r.name, r.cost, JSON.stringify(r.params)));
+      rows.forEach((r, i) => ins.run(r.id, i, r.partClass, r.name, r.cost, storableJson(r.params, `part library row ${r.id}`)));
     })();
     this.isDirty = true;
   }

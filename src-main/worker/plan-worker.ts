@@ -15,6 +15,9 @@ if (!port) throw new Error('plan-worker.ts must run in a worker thread');
 let solver: PlanSolver | null = null;
 const post = (m: FromWorker) => port.postMessage(m);
 
+// A message that cannot be read is answered, so the caller ends this worker at once.
+port.on('messageerror', (e) => post({ type: 'error', message: `the planning request could not be read (${(e as Error)?.message ?? String(e)})` }));
+
 port.on('message', (m: ToWorker) => {
   if (m.type === 'cancel') { solver?.cancel(); return; }
   if (m.type !== 'plan' || solver) return;
