@@ -409,7 +409,7 @@ function eng(value: number, unit: string, digits = 3): string {
   return `${Number.parseFloat(value.toPrecision(digits))} ${unit}`;
 }
 
-interface CapLike { role: string; value: number; count: number; ratedVoltage: number; workingVoltage: number }
+interface CapLike { role: string; value: number; count: number; ratedVoltage: number; workingVoltage: number; rmsCurrent?: number }
 interface DividerLike { rTop: number; rBottom: number; vout: number }
 
 function pickFromRow(stageId: string, role: string, prefix: PartPick['prefix'], row: LibraryRow, value: string, rating: string, quantity: number, extra: Partial<PartPick> = {}): PartPick {
@@ -433,7 +433,10 @@ function pickCap(lib: LibraryRow[], stageId: string, c: CapLike, o: PickOptions)
   for (const cls of ['cap-polymer', 'cap-aluminium'] as const) {
     const row = cheapest(lib, cls, (r) =>
       numParam(r, 'vRated') * o.electrolyticDerating >= c.workingVoltage && numParam(r, 'cMin') <= c.value && numParam(r, 'cMax') >= c.value);
-    if (row) return pickFromRow(stageId, c.role, 'C', row, value, `${numParam(row, 'vRated')} V`, c.count);
+    if (row) {
+      const problem = rippleProblem(row, c);
+      return pickFromRow(stageId, c.role, 'C', row, value, `${numParam(row, 'vRated')} V`, c.count, problem ? { problem } : {});
+    }
   }
   return missing(stageId, c.role, 'C', 'cap-ceramic', value, `≥ ${c.ratedVoltage} V`, c.count,
     `no capacitor in the library offers ${value} at ${c.ratedVoltage} V or more`);
@@ -483,10 +486,23 @@ function switcherFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[
     : { prefix: 'U', value: '', rating: ref.role === 'controller' ? `${numParam(row, 'vinMax')} V` : `${numParam(row, 'vinMax')} V, ${numParam(row, 'iMax')} A` });
 }
 
+/** The BOM's check of a bank's ripple current against its parts' rating (× count). */
+function rippleProblem(row: LibraryRow, c: CapLike): string | undefined {
+  const rating = numParam(row, 'iRipple');
+  if (!(c.rmsCurrent !== undefined && c.rmsCurrent > 0) || !(rating > 0)) return undefined;
+  const total = rating * c.count;
+  return c.rmsCurrent > total * (1 + 1e-9)
+    ? `ripple current ${eng(c.rmsCurrent, 'A')} rms exceeds the bank's rating ${c.count} × ${eng(rating, 'A')} = ${eng(total, 'A')}`
+    : undefined;
+}
+
 function capFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[] | undefined, c: CapLike, o: PickOptions): PartPick {
   const ref = refs?.find((r) => r.role === c.role);
   const row = ref ? lib.find((r) => r.id === ref.libraryId) : undefined;
-  if (ref && row) return pickFromRow(stageId, c.role, 'C', row, eng(c.value, 'F'), `${numParam(row, 'vRated')} V ${strParam(row, 'dielectric')}`, c.count);
+  if (ref && row) {
+    const problem = rippleProblem(row, c);
+    return pickFromRow(stageId, c.role, 'C', row, eng(c.value, 'F'), `${numParam(row, 'vRated')} V${strParam(row, 'dielectric') ? ' ' + strParam(row, 'dielectric') : ''}`, c.count, problem ? { problem } : {});
+  }
   return pickCap(lib, stageId, c, o);
 }
 

@@ -335,17 +335,23 @@ export function designBuck(spec: StageSpec): { ok: true; design: BuckDesign; rea
   // Cin ≥ Io·D(1−D)/(fsw·ΔVin) with D(1−D) ≤ ¼, ΔVin = 1 % of Vin min [common practice]
   const cinNeed = Math.max((imax * 0.25) / (fsw * 0.01 * spec.vinMin), 1e-6);
   let cin = chooseCeramic('input', cinNeed, spec.vinMax, spec.ceramicDerating);
+  // RMS ripple each bank carries [Erickson & Maksimović]: input Io·√(D(1−D)), largest at the
+  // duty nearest ½ over the input range; output ΔIL/√12 at Vin max (the largest ripple).
+  const dLo = vout / spec.vinMax;
+  const dHi = Math.min(1, vout / spec.vinMin);
+  const dWorst = dLo <= 0.5 && dHi >= 0.5 ? 0.5 : (Math.abs(dLo - 0.5) < Math.abs(dHi - 0.5) ? dLo : dHi);
+  cin = { ...cin, rmsCurrent: imax * Math.sqrt(dWorst * (1 - dWorst)) };
+  cout = { ...cout, rmsCurrent: ripple / Math.sqrt(12) };
   if (lib) {
     for (const which of ['cout', 'cin'] as const) {
-      const pick = chooseCeramicRow(lib, which === 'cout' ? cout : cin);
+      const pick = chooseCeramicRow(lib, which === 'cout' ? cout : cin, spec.electrolyticDerating);
       if (!pick) continue; // the BOM then looks for a polymer or aluminium part and says so
       if (which === 'cout') cout = pick.bank; else cin = pick.bank;
       refs.push(pick.ref);
     }
   }
-  reasons.push(`output capacitor ${cout.count} × ${r3(cout.value * 1e6)} µF ${cout.ratedVoltage} V ceramic (${r3(cout.effective * 1e6)} µF left at ${r3(vout)} V) for half the ${r3(rippleLimit * 1e3)} mV ripple limit`);
-  const icinRms = imax * 0.5;
-  reasons.push(`input capacitor ${cin.count} × ${r3(cin.value * 1e6)} µF ${cin.ratedVoltage} V ceramic; RMS current up to ${r3(icinRms)} A (Io·√(D(1−D)))`);
+  reasons.push(`output capacitor ${cout.count} × ${r3(cout.value * 1e6)} µF ${cout.ratedVoltage} V ${cout.partKind ?? 'ceramic'} (${r3(cout.effective * 1e6)} µF left at ${r3(vout)} V) for half the ${r3(rippleLimit * 1e3)} mV ripple limit`);
+  reasons.push(`input capacitor ${cin.count} × ${r3(cin.value * 1e6)} µF ${cin.ratedVoltage} V ${cin.partKind ?? 'ceramic'}; RMS current up to ${r3(cin.rmsCurrent ?? 0)} A (Io·√(D(1−D)))`);
   const design: BuckDesign = {
     kind: 'buck',
     vinMin: spec.vinMin, vinNom: spec.vinNom, vinMax: spec.vinMax,

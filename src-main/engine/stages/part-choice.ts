@@ -177,13 +177,45 @@ export function chooseInductor(lib: readonly LibraryRow[], L: number, isat: numb
   return { ref: { role: 'inductor', libraryId: row.id, used: { dcr, iSat: num(row, 'iSat') * Math.sqrt(num(row, 'lMax') / L) }, generic: [] }, dcr, cost: row.cost };
 }
 
+/** Parts needed so the bank's ripple rating covers its RMS current (1 when either is unknown). */
+function rippleCount(row: LibraryRow, rms: number | undefined): number {
+  if (!(rms !== undefined && rms > 0) || !has(row, 'iRipple') || !(num(row, 'iRipple') > 0)) return 1;
+  return Math.ceil(rms / num(row, 'iRipple') - 1e-9);
+}
+
 /**
- * The cheapest ceramic row that offers the bank's part value at its rating or above; the
- * bank's ESR becomes the row's ESR over the count (when the row states one).
+ * The cheapest capacitor row for a bank: a ceramic offering the part value at the bank's
+ * rating or above; failing that, a polymer or aluminium part within its voltage derating
+ * [DESIGN §4: aluminium ≤ 70–80 % of the rating], with enough parts in parallel that the
+ * bank's capacitance and its ripple-current rating (× count) both hold. The bank's ESR
+ * becomes the row's ESR over the count (when the row states one).
  */
-export function chooseCeramicRow(lib: readonly LibraryRow[], c: CapacitorChoice): { ref: StagePartRef; bank: CapacitorChoice; cost: number } | null {
-  const row = cheapestOf(lib, 'cap-ceramic', (r) => num(r, 'vRated') >= c.ratedVoltage - 1e-9 && num(r, 'cMin') <= c.value * (1 + 1e-9) && num(r, 'cMax') >= c.value * (1 - 1e-9));
-  if (!row) return null;
+export function chooseCeramicRow(lib: readonly LibraryRow[], c: CapacitorChoice, electrolyticDerating = 0.8): { ref: StagePartRef; bank: CapacitorChoice; cost: number } | null {
+  const row = cheapestOf(lib, 'cap-ceramic', (r) => num(r, 'vRated') >= c.ratedVoltage - 1e-9 && num(r, 'cMin') <= c.value * (1 + 1e-9) && num(r, 'cMax') >= c.value * (1 - 1e-9)
+    && (!has(r, 'iRipple') || rippleCount(r, c.rmsCurrent) <= c.count));
+  if (!row) {
+    // Electrolytic banks: value per part within the row's range, count from capacitance and ripple.
+    let best: { row: LibraryRow; count: number; value: number; cost: number } | null = null;
+    for (const cls of ['cap-polymer', 'cap-aluminium'] as const) {
+      for (const r of lib) {
+        if (r.partClass !== cls || !(num(r, 'vRated') * electrolyticDerating >= c.workingVoltage)) continue;
+        const total = c.value * c.count;
+        const value = Math.min(num(r, 'cMax'), Math.max(num(r, 'cMin'), total));
+        const count = Math.max(Math.ceil(total / value - 1e-9), rippleCount(r, c.rmsCurrent));
+        const cost = r.cost * count;
+        if (!best || cost < best.cost) best = { row: r, count, value, cost };
+      }
+    }
+    if (!best) return null;
+    const r = best.row;
+    const esr = num(r, 'esr') / best.count;
+    const kind = r.partClass === 'cap-polymer' ? 'polymer' : 'aluminium';
+    return {
+      ref: { role: c.role, libraryId: r.id, used: { value: best.value, count: best.count, vRated: num(r, 'vRated'), esr: num(r, 'esr'), iRipple: has(r, 'iRipple') ? num(r, 'iRipple') : NaN }, generic: has(r, 'iRipple') ? [] : ['iRipple'] },
+      bank: { ...c, value: best.value, count: best.count, ratedVoltage: num(r, 'vRated'), esr, effective: best.value * best.count, stress: c.workingVoltage / num(r, 'vRated'), partKind: kind },
+      cost: best.cost,
+    };
+  }
   const generic: string[] = [];
   let esr = c.esr;
   if (has(row, 'esr')) esr = num(row, 'esr') / c.count;

@@ -51,6 +51,8 @@ export interface StageSpec {
    * it the generic defaults from memory stand in.
    */
   library?: readonly LibraryRow[];
+  /** Share of an aluminium or polymer capacitor's rating it may see (default 0.8). */
+  electrolyticDerating?: Ratio;
   /** Rating margins of the part choice (stages/part-choice.ts DEFAULT_MARGINS). */
   margins?: Partial<RatingMargins>;
 }
