@@ -110,7 +110,7 @@ const exportCmd: CliCommand = {
       } else {
         io.err(saved ? (saved.stale ? 'the saved plan is stale (the requirements changed since); planning again for this export' : 'the saved plan has no feasible tree; planning again for this export')
           : 'the project has no saved plan; planning it for this export');
-        result = planProject(req, { evaluator: engineEvaluator({ library, electrolyticDerating: req.limits.electrolyticDerating }), costModel: libraryCostModel(library, { powerDerating: req.limits.powerDerating, electrolyticDerating: req.limits.electrolyticDerating }) });
+        result = planProject(req, { evaluator: engineEvaluator({ library, electrolyticDerating: req.limits.electrolyticDerating, margins: { controllerInput: req.limits.inputRatingMargin ?? 0.1 } }), costModel: libraryCostModel(library, { powerDerating: req.limits.powerDerating, electrolyticDerating: req.limits.electrolyticDerating }) });
         replanned = true;
       }
       const modeFlag = flags.mode as string | undefined;

@@ -76,6 +76,11 @@ export interface DesignLimits {
   electrolyticDerating: Ratio;
   /** Fraction of a resistor's or semiconductor's rated power it may dissipate. */
   powerDerating: Ratio;
+  /**
+   * Margin of a regulator's or controller's input rating above the highest input: rated
+   * ≥ (1 + margin)·Vin max [common practice 10–20 %]. Absent in older files: 0.1.
+   */
+  inputRatingMargin?: Ratio;
 }
 
 export interface PlannerPreferences {
@@ -114,6 +119,7 @@ export const DEFAULT_LIMITS: DesignLimits = {
   ceramicDerating: 0.6 as Ratio,
   electrolyticDerating: 0.8 as Ratio,
   powerDerating: 0.5 as Ratio,
+  inputRatingMargin: 0.1 as Ratio,
 };
 
 export const DEFAULT_PREFERENCES: PlannerPreferences = {

@@ -153,6 +153,9 @@ export function validateRequirements(req: Requirements): Problem[] {
   for (const k of ['ceramicDerating', 'electrolyticDerating', 'powerDerating'] as const) {
     if (!isNum(lim[k]) || lim[k] <= 0 || lim[k] > 1) add(`limits.${k}`, `${k} must be above 0 and at most 1 (got ${String(lim[k])})`);
   }
+  if (lim.inputRatingMargin !== undefined && (!isNum(lim.inputRatingMargin) || lim.inputRatingMargin < 0 || lim.inputRatingMargin > 1)) {
+    add('limits.inputRatingMargin', `input rating margin must be from 0 to 1 (100 %) (got ${String(lim.inputRatingMargin)})`);
+  }
 
   // Planner preferences.
   const pref = req.preferences;

@@ -119,6 +119,7 @@ function requirementsShape(mode: Mode) {
     ceramicDerating: quantity('ratio', mode),
     electrolyticDerating: quantity('ratio', mode),
     powerDerating: quantity('ratio', mode),
+    inputRatingMargin: quantity('ratio', mode).optional(),
   };
   const prefFields = {
     weights: z.strictObject({ loss: z.number(), cost: z.number(), parts: z.number() }),

@@ -23,7 +23,10 @@ port.on('message', (m: ToWorker) => {
   if (m.type !== 'plan' || solver) return;
   try {
     solver = new PlanSolver(m.requirements, {
-      evaluator: engineEvaluator(m.options.library ? { library: m.options.library, electrolyticDerating: m.requirements.limits.electrolyticDerating } : {}),
+      evaluator: engineEvaluator(m.options.library ? {
+        library: m.options.library, electrolyticDerating: m.requirements.limits.electrolyticDerating,
+        margins: { controllerInput: m.requirements.limits.inputRatingMargin ?? 0.1 },
+      } : {}),
       ...(m.options.library
         ? { costModel: libraryCostModel(m.options.library, { powerDerating: m.requirements.limits.powerDerating, electrolyticDerating: m.requirements.limits.electrolyticDerating }) }
         : m.options.unitCosts ? { costModel: inventedCostModel(m.options.unitCosts) } : {}),
