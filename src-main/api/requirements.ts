@@ -7,6 +7,7 @@ import { z } from 'zod';
 import type { Domain, Id, Load, OperatingMode, Requirements, Source } from '../engine/model.ts';
 import { ISOLATION_CLASSES, NOISE_CLASSES } from '../engine/model.ts';
 import { parseQuantity, parseTolerance } from '../engine/notation.ts';
+import { checkText, showText } from '../engine/text-rules.ts';
 import type { Amps, Ratio, Volts } from '../engine/units.ts';
 import type { CellEdit, TableName } from './contract.ts';
 import { ApiFailure, handler, noArgs } from './registry.ts';
@@ -31,7 +32,7 @@ function rowLabel(req: Requirements, table: TableName, rowId: Id): string {
   if (table === 'limits' || table === 'preferences') return table;
   const rows = req[table as 'sources' | 'domains' | 'modes' | 'loads'] as { id: Id; name: string }[];
   const r = rows.find((x) => x.id === rowId);
-  return `${table} › ${r?.name || rowId}`;
+  return `${table} › ${showText(r?.name || rowId)}`;
 }
 
 /** Parse one typed value for a column; throws ApiFailure naming `where`. */
@@ -42,6 +43,8 @@ export function parseCell(col: ColumnDef, text: string, where: string, req: Requ
     case 'text': {
       if (t === '' && !k.optional) throw new ApiFailure(`${where}: must not be empty`, field);
       if (t.length > 120) throw new ApiFailure(`${where}: longer than 120 characters`, field);
+      const bad = checkText(t, 'name');
+      if (bad) throw new ApiFailure(`${where}: ${bad}`, field);
       return t;
     }
     case 'enum': {
