@@ -30,14 +30,17 @@ export function bomRows(bom: Bom): CsvCell[][] {
   ]);
 }
 
+/** Text cells with control, line-break and bidi characters shown as \u{..} (text-rules.ts). */
+const safeCell = (c: CsvCell) => (typeof c === 'string' ? showText(c) : c);
+
 export function bomToCsv(bom: Bom, title: string): string {
   const rows: CsvCell[][] = [
     [...BOM_HEADER],
-    ...bomRows(bom),
+    ...bomRows(bom).map((r) => r.map(safeCell)),
     ['Total', '', bom.totalParts, '', `${bom.lines.length} lines`, '', '', '', '', round(bom.totalCost), '', '', '', '', bom.problems.length ? `${bom.problems.length} parts not in the library` : ''],
     [],
     ...BOM_NOTES.map((n) => ['Note', n]),
-    ['Project', title],
+    ['Project', showText(title)],
   ];
   return writeCsv(rows);
 }
@@ -52,8 +55,7 @@ export async function bomToXlsx(bom: Bom, title: string): Promise<Uint8Array> {
   ws.getRow(1).font = { bold: true };
   // exceljs writes text into sharedStrings.xml as is: what XML 1.0 forbids (and other
   // control, line-break and bidi characters) is written as \u{..} first (text-rules.ts).
-  const safe = (c: CsvCell) => (typeof c === 'string' ? showText(c) : c);
-  for (const r of bomRows(bom)) ws.addRow(r.map(safe));
+  for (const r of bomRows(bom)) ws.addRow(r.map(safeCell));
   const first = 2;
   const last = bom.lines.length + 1;
   const total = ws.addRow(['Total', '', null, '', `${bom.lines.length} lines`, '', '', '', '', null, '', '', '', '', bom.problems.length ? `${bom.problems.length} parts not in the library` : '']);

@@ -5,7 +5,8 @@
 //  - nothing an export writes can run a command in ngspice (the exported netlists are
 //    simulated in `ngspice -b` in an empty folder and no marker file may appear);
 //  - every writer's output is well formed (SVG and the XLSX parts read back with
-//    fast-xml-parser, the XLSX with exceljs, Markdown scanned for raw HTML and line breaks);
+//    fast-xml-parser, the XLSX with exceljs, the BOM CSV with csv-parse, Markdown scanned
+//    for raw HTML and line breaks);
 //  - the terminal never sees a raw control or bidi character (the CLI run as a child);
 //  - validation, JSON import, the window's edit requests and the library CSV import refuse
 //    each hostile name with the field's path and change nothing.
@@ -20,6 +21,7 @@ import { existsSync, mkdirSync, readdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { XMLParser, XMLValidator } from 'fast-xml-parser';
 import ExcelJS from 'exceljs';
+import { parse as parseCsv } from 'csv-parse/sync';
 import JSZip from 'jszip';
 import type { Requirements } from '../../src-main/engine/model.ts';
 import { DEFAULT_LIMITS, DEFAULT_PREFERENCES } from '../../src-main/engine/model.ts';
@@ -32,7 +34,7 @@ import type { ElkLike } from '../../src-main/engine/layout.ts';
 import { ProjectStore } from '../../src-main/store/project-store.ts';
 import { exportProjectJson, exportProjectValue, importProjectJson } from '../../src-main/store/json-format.ts';
 import { defaultLibrary } from '../../src-main/api/default-library.ts';
-import { exportBomXlsx, exportMagneticSpecs, exportNetlists, exportTreeSvg, prepareExport } from '../../src-main/export/bundle.ts';
+import { exportBomCsv, exportBomXlsx, exportMagneticSpecs, exportNetlists, exportTreeSvg, prepareExport } from '../../src-main/export/bundle.ts';
 import { createApi } from '../../src-main/api/index.ts';
 import { ngspice } from '../helpers/tools.ts';
 import { ROOT, scratchDir } from './bundle.ts';
@@ -240,6 +242,12 @@ describe('other writers on a hostile project', () => {
       expect(svg).not.toContain('<b>');
       new XMLParser().parse(svg, true);
 
+      // BOM CSV: RFC 4180 (read back with csv-parse), no raw control character in any cell.
+      const csvText = exportBomCsv(b);
+      expect(csvText).not.toMatch(RAW_BAD);
+      const csvRows = parseCsv(csvText, { relax_column_count: true }) as string[][];
+      expect(csvRows.find((r) => r[0] === 'Project')![1]).toContain('\\u{1B}]0;owned');
+
       // XLSX: every XML part well formed, read back by exceljs.
       const xlsx = await exportBomXlsx(b);
       const zip = await JSZip.loadAsync(xlsx);
@@ -265,12 +273,14 @@ describe('other writers on a hostile project', () => {
         expect(s.text).not.toMatch(/^\s*\.control/m);
         const headings = s.text.split('\n').filter((l) => l.startsWith('#'));
         expect(headings.map((h) => h.replace(/^#+ /, '').split(' ')[0])).toEqual(['Magnetic', 'Electrical', 'Windings', 'Isolation', 'Cautions']);
-        for (const row of s.text.split('\n').filter((l) => l.startsWith('|'))) {
-          // Every unescaped pipe is a column separator: each row of a table has the same count.
-          expect(row.endsWith('|'), row).toBe(true);
+        // Every row of a table has as many unescaped pipes (cell separators) as its header.
+        let header = -1;
+        for (const line of s.text.split('\n')) {
+          if (!line.startsWith('|')) { header = -1; continue; }
+          const pipes = line.replace(/\\\|/g, '').split('|').length;
+          if (header < 0) header = pipes;
+          else expect(pipes, line).toBe(header);
         }
-        const electrical = s.text.split('\n').filter((l) => l.startsWith('| ') && !l.startsWith('| ---'));
-        for (const row of electrical) expect(row.replace(/\\\|/g, '').split('|').length - 2, row).toBeGreaterThanOrEqual(2);
         expect(s.text).toContain('&lt;b&gt;');
       }
     }
