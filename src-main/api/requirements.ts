@@ -218,7 +218,22 @@ export function projectProblems(req: Requirements): { field?: string; message: s
   if (!req.sources.length) out.push({ field: 'sources', message: 'sources: the project has no source' });
   if (!req.loads.length) out.push({ field: 'loads', message: 'loads: the project has no load' });
   for (const l of req.loads) {
-    if (!req.domains.some((d) => d.id === l.domainId)) out.push({ field: `loads.${l.id}.domainId`, message: `loads › ${l.name}: domain "${l.domainId}" does not exist` });
+    if (!req.domains.some((d) => d.id === l.domainId)) out.push({ field: `loads.${l.id}.domainId`, message: `loads › ${showText(l.name)}: domain "${showText(l.domainId)}" does not exist` });
+  }
+  // Text that breaks the one rule (a file from elsewhere may hold it): shown, escaped.
+  const bad = (field: string, label: string, text: unknown, kind: 'name' | 'description' = 'name') => {
+    const why = typeof text === 'string' ? checkText(text, kind) : null;
+    if (why) out.push({ field, message: `${label}: ${why}` });
+  };
+  bad('meta.name', 'project name', req.meta.name);
+  bad('meta.description', 'project description', req.meta.description, 'description');
+  for (const table of ['sources', 'domains', 'modes', 'loads'] as const) {
+    for (const r of req[table] as { id: Id; name: string; railKey?: string }[]) {
+      const label = `${table} › ${showText(String(r.name || r.id))}`;
+      bad(`${table}.${showText(String(r.id))}.id`, `${label} › id`, r.id);
+      bad(`${table}.${showText(String(r.id))}.name`, `${label} › name`, r.name);
+      if (table === 'loads') bad(`loads.${showText(String(r.id))}.railKey`, `${label} › rail key`, r.railKey);
+    }
   }
   return out;
 }

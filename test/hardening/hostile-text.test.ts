@@ -36,6 +36,7 @@ import { exportProjectJson, exportProjectValue, importProjectJson } from '../../
 import { defaultLibrary } from '../../src-main/api/default-library.ts';
 import { exportBomCsv, exportBomXlsx, exportMagneticSpecs, exportNetlists, exportTreeSvg, prepareExport } from '../../src-main/export/bundle.ts';
 import { createApi } from '../../src-main/api/index.ts';
+import { makePathPolicy } from '../../src-main/host/paths.ts';
 import { ngspice } from '../helpers/tools.ts';
 import { ROOT, scratchDir } from './bundle.ts';
 
@@ -425,6 +426,28 @@ describe('the one rule for user text', () => {
     }
     expect(JSON.stringify({ r: session.requirements, l: session.library })).toBe(before);
     expect(session.dirty).toBe(false);
+  });
+
+  it('the window opens a hostile file, lists each breach beside the grids, and refuses to plan it', async () => {
+    const dir = scratchDir('rw-hostile-open-');
+    const path = join(dir, 'hostile.rwproj');
+    const st = ProjectStore.create();
+    st.setRequirements(hostileRequirements());
+    st.save(path);
+    st.close();
+    const api = createApi({ host: 'test', userDataDir: null, pathPolicy: makePathPolicy({ allowedRoots: [dir], baseDir: dir }) });
+    const opened = await api.request('project.open', { path });
+    expect(opened.ok, opened.ok ? '' : opened.error.message).toBe(true);
+    if (!opened.ok) return;
+    const problems = (opened.value as { problems: Array<{ field?: string; message: string }> }).problems;
+    const text = problems.map((p) => `${p.field}: ${p.message}`).join('\n');
+    expect(text).toMatch(/^meta\.name: project name: contains a line break \(U\+000A\)/m);
+    expect(text).toMatch(/loads\.core\.railKey: .*contains a line break/);
+    expect(text).toMatch(/modes\.run\.name: .*contains a line break \(U\+0085\)/);
+    expect(text).not.toMatch(RAW_BAD);
+    const planned = await api.request('plan.start', {});
+    expect(planned.ok).toBe(false);
+    if (!planned.ok) expect(planned.error.message).toMatch(/cannot plan yet: meta\.name: contains a line break/);
   });
 
   it('the library CSV import refuses a hostile part name or package', () => {
