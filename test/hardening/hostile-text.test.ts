@@ -34,7 +34,7 @@ import type { ElkLike } from '../../src-main/engine/layout.ts';
 import { ProjectStore } from '../../src-main/store/project-store.ts';
 import { exportProjectJson, exportProjectValue, importProjectJson } from '../../src-main/store/json-format.ts';
 import { defaultLibrary } from '../../src-main/api/default-library.ts';
-import { exportBomCsv, exportBomXlsx, exportMagneticSpecs, exportNetlists, exportTreeSvg, prepareExport } from '../../src-main/export/bundle.ts';
+import { exportBomCsv, exportBomXlsx, exportReportPdf, exportTreePdf, exportMagneticSpecs, exportNetlists, exportTreeSvg, prepareExport } from '../../src-main/export/bundle.ts';
 import { createApi } from '../../src-main/api/index.ts';
 import { makePathPolicy } from '../../src-main/host/paths.ts';
 import { ngspice } from '../helpers/tools.ts';
@@ -231,7 +231,7 @@ describe('netlists from a hostile project', () => {
 });
 
 describe('other writers on a hostile project', () => {
-  it('SVG, XLSX and the magnetic specification are well formed and carry no raw control character', async () => {
+  it('SVG, XLSX, BOM CSV and the magnetic specification are well formed and carry no raw control character; the PDFs are written', async () => {
     const dir = scratchDir('rw-hostile-w-');
     const { bundle, craftedBundle } = await hostileBundle(dir);
     for (const b of [bundle, craftedBundle]) {
@@ -242,6 +242,9 @@ describe('other writers on a hostile project', () => {
       expect(svg).not.toContain('<script');
       expect(svg).not.toContain('<b>');
       new XMLParser().parse(svg, true);
+
+      // PDF report and tree: keep their own character handling; they must still be written.
+      for (const pdf of [await exportReportPdf(b), await exportTreePdf(b)]) expect(Buffer.from(pdf.subarray(0, 5)).toString('latin1')).toBe('%PDF-');
 
       // BOM CSV: RFC 4180 (read back with csv-parse), no raw control character in any cell.
       const csvText = exportBomCsv(b);
