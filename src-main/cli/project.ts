@@ -12,7 +12,7 @@ import type { Requirements } from '../engine/model.ts';
 import { exportProjectJson, importProjectJson } from '../store/json-format.ts';
 import { PROJECT_EXTENSION, ProjectStore, StoreError, hasProjectExtension, writeFileAtomic } from '../store/project-store.ts';
 import { demoDocument } from '../store/demo.ts';
-import { showText } from '../engine/text-rules.ts';
+import { checkText, showText } from '../engine/text-rules.ts';
 
 const ISOLATION_CAUTION =
   'Caution: isolated domains and mains-connected inputs can kill. Railwright records the isolation ' +
@@ -102,6 +102,8 @@ const newCmd: CliCommand = {
     }
     if (typeof flags.name === 'string') {
       if (flags.name.trim() === '') { store.close(); throw new CliError('--name must not be empty', 2); }
+      const bad = checkText(flags.name, 'name');
+      if (bad) { store.close(); throw new CliError(`--name: ${bad}`, 2); }
       const req = store.getRequirements();
       req.meta.name = flags.name;
       store.setRequirements(req, { keepRevision: true });

@@ -323,6 +323,11 @@ describe('the terminal never sees a raw control character', () => {
         expect(r.stdout + r.stderr).toMatch(/meta\.name: contains a line break \(U\+000A\)/);
       }
     }
+    // `new --name` applies the same rule and writes nothing.
+    const nn = spawnSync(process.execPath, [join(ROOT, 'bin/railwright.mjs'), 'new', 'x.rwproj', '--name', 'a\u001b[2Jb'], { cwd: dir, encoding: 'utf8', timeout: 60_000 });
+    expect(nn.status).toBe(2);
+    expect(nn.stderr).toMatch(/--name: contains a control character \(U\+001B\)/);
+    expect(nn.stderr).not.toMatch(RAW_BAD);
     expect(readdirSync(dir).sort()).toEqual(['hostile.rwproj']);
   }, 200_000);
 });
