@@ -88,7 +88,6 @@ export function editLibraryCell(lib: unknown, rowId: string, field: string, text
     if (!/^(true|false|yes|no)$/i.test(t)) throw new ApiFailure(`${where}: write true or false`, field);
     holder[leaf] = /^(true|yes)$/i.test(t);
   } else {
-    if (t.length > 200) throw new ApiFailure(`${where}: longer than 200 characters`, field);
     const bad = checkText(t, 'name');
     if (bad) throw new ApiFailure(`${where}: ${bad}`, field);
     holder[leaf] = t;

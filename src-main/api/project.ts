@@ -30,7 +30,7 @@ export function guardDiscard(s: Session, discard: boolean | undefined): void {
 
 export const projectHandlers = {
   'project.snapshot': handler('project.snapshot', noArgs, (s: Session) => buildSnapshot(s)),
-  'project.rename': handler('project.rename', z.object({ name: z.string().trim().min(1).max(120) }).strict(), (s: Session, a) => {
+  'project.rename': handler('project.rename', z.object({ name: z.string().trim().min(1).max(500) }).strict(), (s: Session, a) => {
     const bad = checkText(a.name, 'name');
     if (bad) throw new ApiFailure(`project name: ${bad}`, 'name');
     s.edit('Rename the project', (req) => { req.meta.name = a.name; });

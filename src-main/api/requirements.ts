@@ -42,7 +42,7 @@ export function parseCell(col: ColumnDef, text: string, where: string, req: Requ
   switch (k.type) {
     case 'text': {
       if (t === '' && !k.optional) throw new ApiFailure(`${where}: must not be empty`, field);
-      if (t.length > 120) throw new ApiFailure(`${where}: longer than 120 characters`, field);
+      // The one rule for names (engine/text-rules.ts), length included.
       const bad = checkText(t, 'name');
       if (bad) throw new ApiFailure(`${where}: ${bad}`, field);
       return t;
