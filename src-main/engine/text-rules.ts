@@ -26,6 +26,9 @@ export const DESCRIPTION_MAX_LENGTH = 20_000;
 const BIDI = new Set([0x061c, 0x200e, 0x200f, 0x202a, 0x202b, 0x202c, 0x202d, 0x202e, 0x2066, 0x2067, 0x2068, 0x2069]);
 const LINE_BREAKS = new Set([0x0a, 0x0b, 0x0c, 0x0d, 0x85, 0x2028, 0x2029]);
 
+/** Matches every string holding a forbidden character (and some that do not). */
+const MAYBE_FORBIDDEN = /[\u0000-\u001f\u007f-\u009f\u061c\u200e\u200f\u2028-\u202e\u2066-\u2069\ud800-\udfff\ufdd0-\ufdef\ufffe\uffff]/;
+
 /** What kind of forbidden character a code point is, or null when it is allowed in a name. */
 export function forbiddenKind(cp: number): string | null {
   if (LINE_BREAKS.has(cp)) return 'a line break';
@@ -62,7 +65,7 @@ export function checkText(text: string, kind: TextKind = 'name'): string | null 
   return null;
 }
 
-/** Every breach of the rule in one requirements-like value, by path (for validation). */
+/** The breach of the rule in one field as a validation problem `{ path, message }`, or null. */
 export function textProblem(path: string, text: unknown, kind: TextKind = 'name'): { path: string; message: string } | null {
   if (typeof text !== 'string') return null;
   const m = checkText(text, kind);
@@ -75,6 +78,8 @@ export function textProblem(path: string, text: unknown, kind: TextKind = 'name'
  * messages whose lines the program itself broke); everything else is still escaped.
  */
 export function showText(text: string, opts: { keepLineFeeds?: boolean } = {}): string {
+  // Fast path for the usual text (astral characters take the slow path, which is exact).
+  if (!MAYBE_FORBIDDEN.test(text)) return text;
   let out = '';
   let changed = false;
   for (const ch of text) {
