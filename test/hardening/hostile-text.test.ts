@@ -42,9 +42,12 @@ import { ROOT, scratchDir } from './bundle.ts';
 
 const spice = ngspice();
 
-/** A script block that would touch `marker`, its lines joined by `br`. */
+/**
+ * A script block that would touch `marker`, its lines joined by `br`; whatever the writer
+ * appends after the name lands in a comment line (an attacker would do the same).
+ */
 function payload(marker: string, br: string): string {
-  return `Main${br}.control${br}shell touch ${marker}${br}.endc`;
+  return `Main${br}.control${br}shell touch ${marker}${br}.endc${br}* `;
 }
 
 const v = (x: number) => x as Volts;
@@ -86,18 +89,18 @@ const NETLIST_VARIANTS: Array<[string, (r: Requirements) => void]> = [
   ['project name, LF', (r) => { r.meta.name = payload('m', '\n'); }],
   ['project name, CR', (r) => { r.meta.name = payload('m', '\r'); }],
   ['project name, CRLF', (r) => { r.meta.name = payload('m', '\r\n'); }],
-  ['project name, *# command', (r) => { r.meta.name = 'x\n*#shell touch m'; }],
-  ['project name, indented *# command', (r) => { r.meta.name = 'x\n  *#shell touch m'; }],
-  ['project name, + continuation', (r) => { r.meta.name = `x\n+ y\n${payload('m', '\n')}`; }],
+  ['project name, *# command', (r) => { r.meta.name = 'x\n*#shell touch m #'; }],
+  ['project name, indented *# command', (r) => { r.meta.name = 'x\n  *#shell touch m #'; }],
+  ['project name, + continuation', (r) => { r.meta.name = 'x\n+ y\n.control\nshell touch m\n.endc\n* '; }],
   ['domain name, LF', (r) => { r.domains[0]!.name = payload('m', '\n'); }],
-  ['domain id, LF', (r) => { renameMainDomain(r, `main\n${payload('m', '\n')}`); }],
+  ['domain id, LF', (r) => { renameMainDomain(r, `main${payload('m', '\n')}`); }],
   ['mode name, LF', (r) => { r.modes[0]!.name = payload('m', '\n'); }],
   ['mode name, U+2028', (r) => { r.modes[0]!.name = payload('m', '\u2028'); }],
   ['mode name, U+0085', (r) => { r.modes[0]!.name = payload('m', '\u0085'); }],
   ['source name, LF', (r) => { r.sources[0]!.name = payload('m', '\n'); }],
   ['load name, LF', (r) => { r.loads[0]!.name = payload('m', '\n'); }],
   ['rail key, LF', (r) => { r.loads[0]!.railKey = payload('m', '\n'); }],
-  ['rail key, leading dot', (r) => { r.loads[0]!.railKey = '.control\nshell touch m\n.endc'; }],
+  ['rail key, leading dot', (r) => { r.loads[0]!.railKey = '.include x\n.control\nshell touch m\n.endc\n* '; }],
 ];
 
 /**
