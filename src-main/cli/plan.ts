@@ -12,6 +12,7 @@ import type { Plan, PlanResult } from '../engine/plan-types.ts';
 import type { Objective } from '../engine/planner/score.ts';
 import { runPlanInWorker } from '../worker/run-plan.ts';
 import { projectLibrary } from './open-project.ts';
+import { safeJsonText } from '../store/json-format.ts';
 
 const OBJECTIVES: Objective[] = ['loss', 'cost', 'parts', 'balanced'];
 
@@ -132,7 +133,7 @@ export const planCommands: CliCommand[] = [{
         undefined,
         verbose ? (lines) => { for (const l of lines) io.err(`trace: ${l}`); } : undefined,
       );
-      if (flags.json === true) io.out(JSON.stringify(result, null, 2));
+      if (flags.json === true) io.out(safeJsonText(result));
       else renderResult(req, result, io);
       try {
         store.setPlanResult(result);

@@ -9,6 +9,7 @@
 
 import type { PartLibraryRow } from './model.ts';
 import { magneticSpec } from './magnetics.ts';
+import { checkText } from './text-rules.ts';
 import type { CoupledBuckDesign } from './stages/index.ts';
 import type { CostModel, PartCounts } from './planner/types.ts';
 import { INVENTED_UNIT_COST, TYPICAL_BUCK_PARTS } from './planner/cost-model.ts';
@@ -184,6 +185,7 @@ export function validateRow(r: LibraryRow, index = 0): RowProblem[] {
   if (typeof r.id !== 'string' || !/^[A-Za-z0-9._:-]{1,64}$/.test(r.id)) p('id', 'must be 1–64 letters, digits or . _ : -');
   if (!PART_CLASSES.includes(r.partClass)) { p('class', `unknown part class "${String(r.partClass)}" (one of ${PART_CLASSES.join(', ')})`); return out; }
   if (typeof r.name !== 'string' || r.name.trim() === '' || r.name.length > 200) p('name', 'must be 1–200 characters');
+  else { const bad = checkText(r.name, 'name'); if (bad) p('name', bad); }
   if (typeof r.cost !== 'number' || !Number.isFinite(r.cost) || r.cost < 0 || r.cost > 1e6) p('cost', 'must be a number from 0 to 1e6');
   const specs = CLASS_PARAMS[r.partClass];
   for (const s of specs) {
@@ -198,10 +200,18 @@ export function validateRow(r: LibraryRow, index = 0): RowProblem[] {
       if (s.max !== undefined && v > s.max) p(s.key, `must be at most ${s.max}${s.unit ? ' ' + s.unit : ''}`);
     } else if (typeof v !== 'string') {
       p(s.key, 'must be text');
+    } else {
+      const bad = checkText(v, 'name');
+      if (bad) p(s.key, bad);
     }
   }
   for (const k of Object.keys(r.params ?? {})) {
-    if (k === COST_NOTE) { if (typeof r.params[k] !== 'string') p('cost_note', 'must be text'); continue; }
+    if (k === COST_NOTE) {
+      const note = r.params[k];
+      if (typeof note !== 'string') p('cost_note', 'must be text');
+      else { const bad = checkText(note, 'name'); if (bad) p('cost_note', bad); }
+      continue;
+    }
     if (!specs.some((s) => s.key === k)) p(k, `is not a parameter of class ${r.partClass}`);
   }
   const pr = r.params ?? {};

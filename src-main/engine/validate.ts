@@ -6,6 +6,7 @@
  */
 import { ISOLATION_CLASSES, NOISE_CLASSES, STAGE_KINDS, type Requirements } from './model.ts';
 import { formatQuantity, formatTolerance } from './notation.ts';
+import { showText, textProblem } from './text-rules.ts';
 
 export interface Problem {
   path: string;
@@ -23,6 +24,26 @@ export function validateRequirements(req: Requirements): Problem[] {
   const out: Problem[] = [];
   const add = (path: string, message: string) => out.push({ path, message });
   const v = (x: number) => formatQuantity(x, 'voltage', 4);
+  // User text quoted in a message is shown escaped: the message may reach a terminal.
+  const t = (x: unknown) => showText(String(x));
+  const text = (path: string, x: unknown, kind: 'name' | 'description' = 'name') => {
+    const p = textProblem(path, x, kind);
+    if (p) out.push(p);
+  };
+
+  // Every piece of user text follows the one rule of text-rules.ts.
+  text('meta.name', req.meta.name);
+  text('meta.description', req.meta.description, 'description');
+  for (const [list, path] of [[req.sources, 'sources'], [req.domains, 'domains'], [req.modes, 'modes'], [req.loads, 'loads']] as const) {
+    (list as readonly { id: unknown; name: unknown }[]).forEach((it, i) => {
+      text(`${path}[${i}].id`, it.id);
+      text(`${path}[${i}].name`, it.name);
+    });
+  }
+  req.loads.forEach((l, i) => {
+    text(`loads[${i}].domainId`, l.domainId);
+    text(`loads[${i}].railKey`, l.railKey);
+  });
 
   const uniqueIds = (items: { id: string }[], path: string, what: string) => {
     const seen = new Map<string, number>();
@@ -32,7 +53,7 @@ export function validateRequirements(req: Requirements): Problem[] {
         return;
       }
       const prev = seen.get(it.id);
-      if (prev !== undefined) add(`${path}[${i}].id`, `${what} id "${it.id}" is already used by ${path}[${prev}]`);
+      if (prev !== undefined) add(`${path}[${i}].id`, `${what} id "${t(it.id)}" is already used by ${path}[${prev}]`);
       else seen.set(it.id, i);
     });
   };
@@ -68,7 +89,7 @@ export function validateRequirements(req: Requirements): Problem[] {
   req.domains.forEach((d, i) => {
     const p = `domains[${i}]`;
     if (!ISOLATION_CLASSES.includes(d.isolation)) {
-      add(`${p}.isolation`, `isolation class "${String(d.isolation)}" is not one of ${ISOLATION_CLASSES.join(', ')}`);
+      add(`${p}.isolation`, `isolation class "${t(d.isolation)}" is not one of ${ISOLATION_CLASSES.join(', ')}`);
     }
     if (!isNum(d.workingVoltage) || d.workingVoltage < 0) {
       add(`${p}.workingVoltage`, 'working voltage must be a finite number ≥ 0 V');
@@ -101,7 +122,7 @@ export function validateRequirements(req: Requirements): Problem[] {
   const modeIds = new Set(req.modes.map((m) => m.id));
   req.loads.forEach((l, i) => {
     const p = `loads[${i}]`;
-    if (!domainIds.has(l.domainId)) add(`${p}.domainId`, `domain "${l.domainId}" does not exist`);
+    if (!domainIds.has(l.domainId)) add(`${p}.domainId`, `domain "${t(l.domainId)}" does not exist`);
     if (!isNum(l.voltage)) add(`${p}.voltage`, 'voltage is not a finite number');
     else if (Math.abs(l.voltage) < 1e-3) add(`${p}.voltage`, `voltage must not be 0 V (got ${v(l.voltage)})`);
     if (!isNum(l.tolerance) || l.tolerance <= 0 || l.tolerance >= 0.5) {
@@ -109,11 +130,11 @@ export function validateRequirements(req: Requirements): Problem[] {
     }
     if (!isNum(l.rippleLimit) || l.rippleLimit <= 0) add(`${p}.rippleLimit`, 'ripple limit must be above 0 V');
     if (!NOISE_CLASSES.includes(l.noiseClass)) {
-      add(`${p}.noiseClass`, `noise class "${String(l.noiseClass)}" is not one of ${NOISE_CLASSES.join(', ')}`);
+      add(`${p}.noiseClass`, `noise class "${t(l.noiseClass)}" is not one of ${NOISE_CLASSES.join(', ')}`);
     }
     for (const [modeId, a] of Object.entries(l.current ?? {})) {
-      const cp = `${p}.current.${modeId}`;
-      if (!modeIds.has(modeId)) add(cp, `mode "${modeId}" does not exist`);
+      const cp = `${p}.current.${t(modeId)}`;
+      if (!modeIds.has(modeId)) add(cp, `mode "${t(modeId)}" does not exist`);
       if (!isNum(a)) add(cp, 'current is not a finite number');
       else if (a < 0) add(cp, `current must not be negative (got ${formatQuantity(a, 'current')})`);
     }
@@ -132,9 +153,9 @@ export function validateRequirements(req: Requirements): Problem[] {
     for (const i of idx.slice(1)) {
       const l = req.loads[i]!;
       if (l.domainId !== first.domainId) {
-        add(`loads[${i}].railKey`, `rail "${key}" joins loads of different domains ("${first.domainId}" and "${l.domainId}")`);
+        add(`loads[${i}].railKey`, `rail "${t(key)}" joins loads of different domains ("${t(first.domainId)}" and "${t(l.domainId)}")`);
       } else if (isNum(l.voltage) && isNum(first.voltage) && Math.abs(l.voltage - first.voltage) >= SAME_VOLTAGE) {
-        add(`loads[${i}].railKey`, `rail "${key}" joins loads at different voltages (${v(first.voltage)} and ${v(l.voltage)})`);
+        add(`loads[${i}].railKey`, `rail "${t(key)}" joins loads at different voltages (${v(first.voltage)} and ${v(l.voltage)})`);
       }
     }
   }
@@ -171,7 +192,7 @@ export function validateRequirements(req: Requirements): Problem[] {
     add('preferences.allowedKinds', 'at least one stage kind must be allowed');
   } else {
     pref.allowedKinds.forEach((k, i) => {
-      if (!STAGE_KINDS.includes(k)) add(`preferences.allowedKinds[${i}]`, `stage kind "${String(k)}" is not one of ${STAGE_KINDS.join(', ')}`);
+      if (!STAGE_KINDS.includes(k)) add(`preferences.allowedKinds[${i}]`, `stage kind "${t(k)}" is not one of ${STAGE_KINDS.join(', ')}`);
       else if (pref.allowedKinds.indexOf(k) !== i) add(`preferences.allowedKinds[${i}]`, `stage kind "${k}" is listed twice`);
     });
   }

@@ -6,6 +6,7 @@ import ExcelJS from 'exceljs';
 import type { Bom } from '../engine/bom.ts';
 import { compactRefs } from '../engine/bom.ts';
 import { writeCsv, type CsvCell } from './csv.ts';
+import { showText } from '../engine/text-rules.ts';
 
 export const BOM_HEADER = [
   'Line', 'References', 'Qty (pcs)', 'Part class', 'Description', 'Value', 'Rating', 'Package',
@@ -34,14 +35,17 @@ export function bomRows(bom: Bom): CsvCell[][] {
   ]);
 }
 
+/** Text cells with control, line-break and bidi characters shown as \u{..} (text-rules.ts). */
+const safeCell = (c: CsvCell) => (typeof c === 'string' ? showText(c) : c);
+
 export function bomToCsv(bom: Bom, title: string): string {
   const rows: CsvCell[][] = [
     [...BOM_HEADER],
-    ...bomRows(bom),
+    ...bomRows(bom).map((r) => r.map(safeCell)),
     ['Total', '', bom.totalParts, '', `${bom.lines.length} lines`, '', '', '', '', round(bom.totalCost), '', '', '', '', bom.problems.length ? `${bom.problems.length} parts not in the library` : '', '', ''],
     [],
     ...BOM_NOTES.map((n) => ['Note', n]),
-    ['Project', title],
+    ['Project', showText(title)],
   ];
   return writeCsv(rows);
 }
@@ -54,7 +58,9 @@ export async function bomToXlsx(bom: Bom, title: string): Promise<Uint8Array> {
   const ws = wb.addWorksheet('BOM', { views: [{ state: 'frozen', ySplit: 1 }] });
   ws.addRow([...BOM_HEADER]);
   ws.getRow(1).font = { bold: true };
-  for (const r of bomRows(bom)) ws.addRow(r);
+  // exceljs writes text into sharedStrings.xml as is: what XML 1.0 forbids (and other
+  // control, line-break and bidi characters) is written as \u{..} first (text-rules.ts).
+  for (const r of bomRows(bom)) ws.addRow(r.map(safeCell));
   const first = 2;
   const last = bom.lines.length + 1;
   const total = ws.addRow(['Total', '', null, '', `${bom.lines.length} lines`, '', '', '', '', null, '', '', '', '', bom.problems.length ? `${bom.problems.length} parts not in the library` : '', '', '']);
@@ -63,7 +69,7 @@ export async function bomToXlsx(bom: Bom, title: string): Promise<Uint8Array> {
   total.font = { bold: true };
   ws.addRow([]);
   for (const n of BOM_NOTES) ws.addRow(['Note', n]);
-  ws.addRow(['Project', title]);
+  ws.addRow(['Project', showText(title)]);
   const widths = [6, 18, 9, 16, 44, 22, 22, 14, 14, 14, 18, 18, 20, 26, 40, 24, 22];
   widths.forEach((w, i) => { ws.getColumn(i + 1).width = w; });
   ws.getColumn(9).numFmt = '0.000';

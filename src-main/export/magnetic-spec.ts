@@ -11,6 +11,7 @@ import type { CoupledBuckDesign } from '../engine/stages/index.ts';
 import { magneticSpec, type MagneticSpec } from '../engine/magnetics.ts';
 import { fmtQty } from '../engine/layout.ts';
 import { GENERIC_DEFAULTS } from '../engine/stages/index.ts';
+import { showText } from '../engine/text-rules.ts';
 
 export const MAGNETIC_CAUTIONS = [
   'Mains and isolation barriers can kill. Creepage, clearance, insulation system, hi-pot test voltage and touch current follow the applicable safety standard and local codes; this sheet does not compute them.',
@@ -18,7 +19,19 @@ export const MAGNETIC_CAUTIONS = [
   'Windings run hot: check the hot-spot temperature at the highest ambient on the real board.',
 ];
 
-const cell = (s: string) => s.replace(/\|/g, '/').replace(/\r?\n/g, ' ');
+/**
+ * Any text as inline Markdown that renders as itself: control, line-break and bidi
+ * characters written as `\u{..}` (text-rules.ts), so it stays on its line; HTML's
+ * `& < >` as entities, so no tag or entity is formed; and the inline Markdown marks
+ * (`\ \` * _ [ ] ~ | #`) backslash-escaped, so no emphasis, code, link, table cell or
+ * heading closer is formed. Every name, id and figure in the sheet goes through it.
+ */
+export function markdownText(s: string): string {
+  return showText(String(s))
+    .replace(/[\\`*_[\]~|#]/g, (c) => `\\${c}`)
+    .replace(/[&<>]/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;' })[c]!);
+}
+const cell = markdownText;
 
 /**
  * The core, turns, gap, wire and loss the tool designed (engine/core-design.ts), with the
@@ -70,9 +83,9 @@ export function magneticSpecMarkdown(req: Requirements, stage: PlanStage, d: Cou
   const q = (x: number, u: string) => cell(fmtQty(x, u));
   const name = (id: string) => cell(names.get(id) ?? id);
   const barriers = stage.barriers.map((b) => {
-    const from = req.domains.find((x) => x.id === b.fromDomainId)?.name ?? b.fromDomainId;
-    const to = req.domains.find((x) => x.id === b.toDomainId)?.name ?? b.toDomainId;
-    return `${from} → ${to}: ${b.isolation} isolation, ${fmtQty(b.workingVoltage, 'V')} working voltage`;
+    const from = cell(req.domains.find((x) => x.id === b.fromDomainId)?.name ?? b.fromDomainId);
+    const to = cell(req.domains.find((x) => x.id === b.toDomainId)?.name ?? b.toDomainId);
+    return `${from} → ${to}: ${cell(String(b.isolation))} isolation, ${q(b.workingVoltage, 'V')} working voltage`;
   });
   const iso = spec.isolation && spec.isolation.class !== 'none'
     ? spec.isolation
@@ -85,9 +98,9 @@ export function magneticSpecMarkdown(req: Requirements, stage: PlanStage, d: Cou
     ? `worst primary peak ${fmtQty(worstPeak, 'A')} + ${Math.round(GENERIC_DEFAULTS.saturationMargin * 100)} % margin; the stage design assumed ${fmtQty(spec.saturationCurrent, 'A')}`
     : `worst peak + ${Math.round(spec.saturationMargin * 100)} % margin`;
   const lines = [
-    `# Magnetic specification ${ref}: ${stage.name}`,
+    `# Magnetic specification ${cell(ref)}: ${cell(stage.name)}`,
     '',
-    `Project: ${req.meta.name} (requirements revision ${req.meta.revision}). Stage: ${stage.name} (${stage.id}), coupled-winding buck.`,
+    `Project: ${cell(req.meta.name)} (requirements revision ${cell(String(req.meta.revision))}). Stage: ${cell(stage.name)} (${cell(stage.id)}), coupled-winding buck.`,
     '',
     'Custom part. This sheet states what the circuit needs from the magnetic; the winder chooses core, gap, bobbin and construction and confirms every value.',
     '',
@@ -100,27 +113,27 @@ export function magneticSpecMarkdown(req: Requirements, stage: PlanStage, d: Cou
     `| Input voltage | ${q(d.vinMin, 'V')} … ${q(d.vinMax, 'V')} (nominal ${q(d.vinNom, 'V')}) |`,
     `| Saturation current (at ${req.limits.ambient} °C ambient and above) | ≥ ${q(needSat, 'A')} (${cell(satNote)}) |`,
     ...spec.leakageTargets.map((l, i) => `| Leakage of secondary ${i + 1} (${name(l.nodeId)}), measured at the secondary with the primary shorted | ≤ ${q(l.maxLeakage, 'H')} (coupling ≥ ${l.minCoupling}) |`),
-    `| Turns Np : Ns | ${[d.primaryTurns, ...d.secondaries.map((w) => w.turns)].join(' : ')} (integers; a negative count is a reversed winding) |`,
+    `| Turns Np : Ns | ${cell([d.primaryTurns, ...d.secondaries.map((w) => w.turns)].join(' : '))} (integers; a negative count is a reversed winding) |`,
     `| Worst operating point for the currents | ${cell(spec.worstCase)} |`,
     '',
     '## Windings',
     '',
     '| Winding | Turns | Feeds | Peak voltage across | RMS current | Peak current | Suggested wire | Winding resistance (design value) |',
     '| --- | --- | --- | --- | --- | --- | --- | --- |',
-    ...spec.windings.map((w, i) => `| ${w.name} (${w.role}) | ${w.turns ?? '—'} | ${name(w.nodeId)} | ${q(spec.windingVoltages[i] ?? 0, 'V')} | ${q(w.rmsCurrent, 'A')} | ${q(w.peakCurrent, 'A')} | ${w.wire.strands > 1 ? `${w.wire.strands} × ` : ''}AWG ${w.wire.awg} (${w.wire.diameterMm.toFixed(3)} mm, ${w.wire.currentDensity.toFixed(1)} A/mm², ${q(w.ohmsPerMetreHot, 'Ω')}/m at 100 °C) | ≤ ${q(w.resistance, 'Ω')} |`),
+    ...spec.windings.map((w, i) => `| ${cell(w.name)} (${cell(w.role)}) | ${cell(String(w.turns ?? '—'))} | ${name(w.nodeId)} | ${q(spec.windingVoltages[i] ?? 0, 'V')} | ${q(w.rmsCurrent, 'A')} | ${q(w.peakCurrent, 'A')} | ${w.wire.strands > 1 ? `${w.wire.strands} × ` : ''}AWG ${w.wire.awg} (${w.wire.diameterMm.toFixed(3)} mm, ${w.wire.currentDensity.toFixed(1)} A/mm², ${q(w.ohmsPerMetreHot, 'Ω')}/m at 100 °C) | ≤ ${q(w.resistance, 'Ω')} |`),
     '',
     'Wire diameters follow the AWG series of ASTM B258; copper resistivity 1/58 Ω·mm²/m at 20 °C rising 0.393 %/K. Parallel strands or foil may replace a single wire if the winder prefers.',
     '',
     ...coreSection(spec, d, q),
     '## Isolation',
     '',
-    iso ? `Isolation class **${iso.class}**, working voltage **${fmtQty(iso.workingVoltage, 'V')}**, between the primary and the windings that cross the barrier.`
+    iso ? `Isolation class **${cell(String(iso.class))}**, working voltage **${q(iso.workingVoltage, 'V')}**, between the primary and the windings that cross the barrier.`
       : 'No galvanic barrier is required by the domains this magnetic serves (functional insulation between windings only).',
     ...barriers.map((x) => `- ${x}`),
     '',
     '## Cautions',
     '',
-    ...[...spec.cautions, ...MAGNETIC_CAUTIONS].filter((c, i, a) => a.indexOf(c) === i).map((c) => `- ${c}`),
+    ...[...spec.cautions, ...MAGNETIC_CAUTIONS].filter((c, i, a) => a.indexOf(c) === i).map((c) => `- ${cell(c)}`),
     '',
   ];
   return { text: lines.join('\n'), spec, saturation: needSat };
