@@ -4,7 +4,7 @@
  * rectifier drop parameters and capacitances, output capacitors), evaluated with the primary
  * at its simulated voltage and every load at its simulated current.
  */
-import { evaluateCoupledBuck, type CoupledBuckDesign } from '../../src-main/engine/stages/cwbuck.ts';
+import { coupledPoint, evaluateCoupledBuck, rectifierPeakReverse, type CoupledBuckDesign } from '../../src-main/engine/stages/cwbuck.ts';
 import { GENERIC_DEFAULTS } from '../../src-main/engine/stages/defaults.ts';
 import type { CapacitorChoice } from '../../src-main/engine/stages/common.ts';
 import type { StageFlag } from '../../src-main/engine/stages/types.ts';
@@ -53,19 +53,20 @@ export function engineDesign(p: GridPoint): CoupledBuckDesign {
       turns: Math.sign(s.n) * Math.abs(s.n) * s.k,
       coupling: s.k,
       resistance: s.r as Ohms,
-      rectifier: { is: s.diode.is, n: s.diode.n, rs: s.diode.rs, vfSpread: 0.1 },
+      rectifier: { is: s.diode.is, n: s.diode.n, rs: s.diode.rs, vfSpread: 0.1, cjo: s.diode.cjo, vj: s.diode.vj, m: s.diode.m, tt: s.diode.tt },
       rectifierReverseVoltage: 0 as Volts,
       cout: cap(`secondary ${i + 1} output`, s.c, s.esr, Math.abs(s.n) * vpri),
       preload: null,
       thetaJA: 90,
+      ...(s.snubber ? { snubber: { r: s.snubber.r as Ohms, c: s.snubber.c } } : {}),
     })),
     maxSecondaries: 3,
     powerLimit: 1000 as Watts,
     dutyWarn: 0.99 as Ratio,
     isolation: null,
   };
-  // The engine has no field yet for the capacitances or the secondary-to-secondary coupling.
-  void couplingOf;
+  // Secondary-to-secondary coupling as the winding arrangement gives it.
+  if (p.kss) d.secondaryCoupling = p.sec.map((_, i) => p.sec.map((__, j) => couplingOf(p, i + 1, j + 1)));
   return d;
 }
 
@@ -78,6 +79,8 @@ export interface GridRow {
   etaEngine: number;
   etaSim: number;
   flags: StageFlag[];
+  /** No secondary flagged outside the region the model claims. */
+  validated: boolean;
 }
 
 export function compareGrid(p: GridPoint, sim: GridSimulated): GridRow {
@@ -88,6 +91,7 @@ export function compareGrid(p: GridPoint, sim: GridSimulated): GridRow {
   const etaEngine = (ev.pout as number) / ((ev.pout as number) + modelled);
   const pout = iout.reduce((a, i, k) => a + i * Math.abs(sim.v[k]!), 0);
   const etaSim = pout / (sim.iin * p.vin);
+  const cp = coupledPoint(d, p.vin, iout, { vPrimary: sim.v[0]! });
   return {
     name: p.name, vin: p.vin, duty: p.duty, arrangement: p.arrangement,
     outputs: p.sec.map((s, i) => {
@@ -96,10 +100,10 @@ export function compareGrid(p: GridPoint, sim: GridSimulated): GridRow {
       return {
         index: i + 1, n: s.n, k: s.k, share: s.share, cj: s.diode.cjo, diode: s.diode.kind,
         engine, sim: vs, errorPct: ((engine - vs) / Math.abs(vs)) * 100,
-        vrEngine: d.secondaries[i]!.rectifierReverseVoltage as number, vrSim: sim.vrMax[i]!,
+        vrEngine: rectifierPeakReverse(d, cp, i), vrSim: sim.vrMax[i]!,
       };
     }),
-    etaEngine, etaSim, flags: ev.flags,
+    etaEngine, etaSim, flags: ev.flags, validated: !ev.flags.some((f) => f.code === 'outside-validated-region'),
   };
 }
 
@@ -108,13 +112,13 @@ export function formatGridTable(rows: GridRow[]): string {
     'Independent grid: engine against ngspice (netlists by test/reference/independent-grid.ts, open loop at D;',
     'the engine is evaluated with the simulated primary voltage and the simulated load currents).',
     '',
-    '| point | Vin (V) | D | n | k | load share | Cj (pF) | rectifier | arrangement | engine (V) | ngspice (V) | error % | η engine | η ngspice | Δη (pt) |',
-    '|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|',
+    '| point | Vin (V) | D | n | k | load share | Cj (pF) | rectifier | arrangement | engine (V) | ngspice (V) | error % | Vr peak engine / ngspice (V) | η engine | η ngspice | Δη (pt) | validated |',
+    '|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|',
   ];
   for (const r of rows) {
     r.outputs.forEach((o, i) => {
       const first = i === 0;
-      lines.push(`| ${first ? r.name : ''} | ${first ? r.vin : ''} | ${first ? r.duty : ''} | ${o.n} | ${o.k} | ${(o.share * 100).toFixed(0)} % | ${(o.cj * 1e12).toFixed(0)} | ${o.diode} | ${first ? r.arrangement : ''} | ${o.engine.toFixed(3)} | ${o.sim.toFixed(3)} | ${o.errorPct.toFixed(2)} | ${first ? (r.etaEngine * 100).toFixed(1) : ''} | ${first ? (r.etaSim * 100).toFixed(1) : ''} | ${first ? ((r.etaEngine - r.etaSim) * 100).toFixed(1) : ''} |`);
+      lines.push(`| ${first ? r.name : ''} | ${first ? r.vin : ''} | ${first ? r.duty : ''} | ${o.n} | ${o.k} | ${(o.share * 100).toFixed(0)} % | ${(o.cj * 1e12).toFixed(0)} | ${o.diode} | ${first ? r.arrangement : ''} | ${o.engine.toFixed(3)} | ${o.sim.toFixed(3)} | ${o.errorPct.toFixed(2)} | ${o.vrEngine.toFixed(0)} / ${o.vrSim.toFixed(0)} | ${first ? (r.etaEngine * 100).toFixed(1) : ''} | ${first ? (r.etaSim * 100).toFixed(1) : ''} | ${first ? ((r.etaEngine - r.etaSim) * 100).toFixed(1) : ''} | ${first ? (r.validated ? 'yes' : 'flagged') : ''} |`);
     });
   }
   return lines.join('\n');
