@@ -288,7 +288,8 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     let short = 0;
     for (let m = 0; m < N; m++) {
       const t = ((m + 0.5) / N) * toff;
-      const i = Math.max(0, alpha * -Math.expm1(-t / tau) + beta * t + i0 * Math.exp(-t / tau));
+      const ex = Math.exp(-t / tau);
+      const i = Math.max(0, alpha * (1 - ex) + beta * t + i0 * ex);
       if (losses) {
         s2 += i * i;
         pr += vfScale * vfOfDiode(rect, i) * i;
@@ -435,7 +436,11 @@ export function primaryMeanSquares(p: CoupledPoint): { msOn: number; msOff: numb
   for (let m = 0; m < N; m++) {
     const t = ((m + 0.5) / N) * p.toff;
     let i = p.impk - slope * t;
-    for (const s of p.sec) if (s.tau > 0) i -= s.n * Math.max(0, s.iinf * -Math.expm1(-t / s.tau) + s.beta * t + s.i0 * Math.exp(-t / s.tau));
+    for (const s of p.sec) {
+      if (!(s.tau > 0)) continue;
+      const ex = Math.exp(-t / s.tau);
+      i -= s.n * Math.max(0, s.iinf * (1 - ex) + s.beta * t + s.i0 * ex);
+    }
     s2 += i * i;
   }
   return { msOn, msOff: s2 / N };
@@ -462,7 +467,11 @@ export function primaryRipple(p: CoupledPoint, ipri: number, cap: CapacitorChoic
   for (let m = 0; m < N; m++) {
     const t = ((m + 0.5) / N) * toff;
     let i = p.impk - slope * t;
-    for (const s of p.sec) if (s.tau > 0) i -= s.n * Math.max(0, s.iinf * -Math.expm1(-t / s.tau) + s.beta * t + s.i0 * Math.exp(-t / s.tau));
+    for (const s of p.sec) {
+      if (!(s.tau > 0)) continue;
+      const ex = Math.exp(-t / s.tau);
+      i -= s.n * Math.max(0, s.iinf * (1 - ex) + s.beta * t + s.i0 * ex);
+    }
     short += (Math.max(0, ipri - i) * toff) / N;
     lo = Math.min(lo, i); hi = Math.max(hi, i);
   }
