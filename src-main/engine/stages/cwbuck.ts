@@ -698,6 +698,92 @@ function preloadFor(o: OutputSpec): number {
   return Math.max(GENERIC_DEFAULTS.preloadShare * (o.currentMax as number), GENERIC_DEFAULTS.preloadFloor);
 }
 
+/** Why a rectifier model cannot be used ("field: reason"), or null. */
+function diodeErrors(d: DiodeModel): string | null {
+  const pos = (v: unknown) => typeof v === 'number' && Number.isFinite(v) && v > 0;
+  const nonNeg = (v: unknown) => typeof v === 'number' && Number.isFinite(v) && v >= 0;
+  if (!pos(d.is)) return 'is: must be a positive saturation current (A)';
+  if (!pos(d.n)) return 'n: must be a positive emission coefficient';
+  if (!nonNeg(d.rs)) return 'rs: must be a series resistance ≥ 0 (Ω)';
+  if (!nonNeg(d.vfSpread) || d.vfSpread >= 0.5) return 'vfSpread: must be between 0 and 0.5';
+  if (d.cjo !== undefined && !nonNeg(d.cjo)) return 'cjo: must be a capacitance ≥ 0 (F)';
+  if (d.vj !== undefined && !pos(d.vj)) return 'vj: must be a positive junction potential (V)';
+  if (d.m !== undefined && !(pos(d.m) && d.m < 1)) return 'm: must be a grading coefficient between 0 and 1';
+  if (d.tt !== undefined && !nonNeg(d.tt)) return 'tt: must be a transit time ≥ 0 (s)';
+  return null;
+}
+
+/**
+ * Why a secondary coupling matrix cannot be used, or null: square with one row per secondary,
+ * symmetric, each entry in (0, 1), and with the primary coupling k the whole matrix
+ * positive definite (a passive magnetic).
+ */
+function couplingMatrixError(kss: number[][], nSecs: number, k: number): string | null {
+  if (!Array.isArray(kss) || kss.length !== nSecs || kss.some((r) => !Array.isArray(r) || r.length !== nSecs)) return `must be ${nSecs}×${nSecs} (one row and column per secondary)`;
+  for (let i = 0; i < nSecs; i++) {
+    for (let j = 0; j < nSecs; j++) {
+      const v = kss[i]![j]!;
+      if (i === j) continue;
+      if (typeof v !== 'number' || !(v > 0 && v < 1)) return `[${i}][${j}] must be between 0 and 1 (got ${String(v)})`;
+      if (Math.abs(v - kss[j]![i]!) > 1e-12) return `must be symmetric ([${i}][${j}] ≠ [${j}][${i}])`;
+    }
+  }
+  const m = nSecs + 1;
+  const at = (a: number, b: number) => (a === b ? 1 : a === 0 || b === 0 ? k : kss[a - 1]![b - 1]!);
+  const L: number[][] = Array.from({ length: m }, () => new Array<number>(m).fill(0));
+  for (let i = 0; i < m; i++) {
+    for (let j = 0; j <= i; j++) {
+      let s = at(i, j);
+      for (let q = 0; q < j; q++) s -= L[i]![q]! * L[j]![q]!;
+      if (i === j) {
+        if (!(s > 0)) return `with coupling ${k} to the primary the inductance matrix is not positive definite (no passive magnetic has these couplings)`;
+        L[i]![i] = Math.sqrt(s);
+      } else L[i]![j] = s / L[j]![j]!;
+    }
+  }
+  return null;
+}
+
+/**
+ * Computed preloads (see designCoupledBuck). Returns, per secondary, whether the chosen
+ * preload reaches the band and the validated region; sets `preload` on the design.
+ */
+function computePreloads(design: CoupledBuckDesign, vinMax: number, light: number[], room: number[] | null): boolean[] {
+  return design.secondaries.map((w, i) => {
+    const o = design.outputs[i + 1]!;
+    const v = Math.abs(o.voltage as number);
+    const limit = room ? v * (1 + Math.max(room[i]!, 0.25 * (o.tolerance as number))) : Infinity;
+    const fits = (ipre: number): boolean => {
+      w.preload = ipre > 0 ? { resistance: (v / ipre) as Ohms, current: ipre as Amps } : null;
+      const p = coupledPoint(design, vinMax, light, { detail: 'voltages' });
+      const s = p.sec[i]!;
+      return s.isec > 0 && s.vsec <= limit && s.tc >= 0.999 * p.toff;
+    };
+    if (fits(0)) { w.preload = null; return true; }
+    const imax = Math.max(o.currentMax as number, 1e-3);
+    let reached = fits(imax);
+    let hi = imax;
+    if (reached) {
+      let lo = 1e-6;
+      for (let k = 0; k < 16; k++) {
+        const mid = Math.sqrt(lo * hi);
+        if (fits(mid)) hi = mid; else lo = mid;
+      }
+    }
+    w.preload = e24Preload(v, hi);
+    if (reached) reached = fits(w.preload.current);
+    w.preload = e24Preload(v, hi);
+    return reached;
+  });
+}
+
+/** The E24 resistor at or just below V/I (drawing at least I), with its current. */
+function e24Preload(v: number, i: number): { resistance: Ohms; current: Amps } {
+  let r = nearest('E24', v / i);
+  if (r > v / i) r = nearest('E24', r * 0.9);
+  return { resistance: r as Ohms, current: (v / r) as Amps };
+}
+
 export interface CoupledSpecExtras {
   maxSecondaries?: number;
   isolation?: { class: IsolationClass; workingVoltage: Volts } | null;
@@ -722,7 +808,15 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
   reasons.push(`feedback divider ${divider.rTop} Ω / ${divider.rBottom} Ω (E96) sets the primary to ${r3(divider.vout)} V, error ${r3(divider.error * 100)} %`);
   const fsw = spec.fsw as number;
   const secs = spec.outputs.slice(1);
-  const rect = { ...GENERIC_DEFAULTS.rectifier };
+  const rect: DiodeModel = { ...GENERIC_DEFAULTS.rectifier, ...(spec.rectifier ?? {}) };
+  const rectBad = diodeErrors(rect);
+  if (rectBad) return { ok: false, flags: [flag('bad-input', 'error', `rectifier.${rectBad}`, { field: `rectifier.${rectBad.split(':')[0]}` })] };
+  const nSecs = spec.outputs.length - 1;
+  const kss = spec.secondaryCoupling;
+  if (kss !== undefined) {
+    const why = couplingMatrixError(kss, nSecs, k);
+    if (why) return { ok: false, flags: [flag('bad-input', 'error', `secondaryCoupling: ${why}`, { field: 'secondaryCoupling' })] };
+  }
   // Magnetizing current at full load with ideal ratios, for the ripple target.
   const n0 = secs.map((o) => (Math.abs(o.voltage) + diodeVf(rect, o.currentMax as number)) / vpri);
   const imFull = Math.max((pri.currentMax as number) + secs.reduce((a, o, i) => a + n0[i]! * (o.currentMax as number), 0), 0.05);
@@ -732,9 +826,12 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
   const Lp = nearest('E12', lCalc);
   reasons.push(`Lp = ${r3(Lp * 1e6)} µH (E12) for ${target * 100} % ripple of the ${r3(imFull)} A magnetizing current at Vin ${r3(spec.vinMax)} V`);
   const ripple = ((spec.vinMax - vpri) * dAtMax) / (Lp * fsw);
-  const isat = (imFull + ripple / 2) * (1 + GENERIC_DEFAULTS.saturationMargin);
+  let isat = (imFull + ripple / 2) * (1 + GENERIC_DEFAULTS.saturationMargin);
   const rp = (GENERIC_DEFAULTS.inductorDcrCoeff * Math.sqrt(Lp / 1e-6)) / Math.sqrt(isat);
   const dMaxEst = Math.min(0.95, vpri / spec.vinMin);
+  // With the rectifier capacitance known, the secondaries are preloaded for continuous
+  // conduction at their lightest load (found below on the ideal ratios before the turns).
+  let cjPreload: number[] | null = null;
   const template = (turnsP: number, turnsS: number[]): CoupledBuckDesign => ({
     kind: 'cwbuck',
     vinMin: spec.vinMin, vinNom: spec.vinNom, vinMax: spec.vinMax,
@@ -754,10 +851,11 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
       // Cout ≥ Isec·D/(fsw·ΔV) [common practice], plus the charge lost while a ramping
       // winding current is still below the load, Isec·(1−D)²/(4·fsw); at least 4.7 µF
       const need = Math.max(((o.currentMax as number) * (dMaxEst + (1 - dMaxEst) ** 2 / 4)) / (fsw * budget), 4.7e-6);
-      const ipre = preloadFor(o);
-      const preload = (o.currentMin as number) < ipre
-        ? { resistance: nearest('E24', Math.abs(o.voltage) / ipre) as Ohms, current: 0 as Amps }
-        : null;
+      const ipre = cjPreload ? cjPreload[i]! : preloadFor(o);
+      const preload = cjPreload ? (ipre > 0 ? e24Preload(Math.abs(o.voltage), ipre) : null)
+        : (o.currentMin as number) < ipre
+          ? { resistance: nearest('E24', Math.abs(o.voltage) / ipre) as Ohms, current: 0 as Amps }
+          : null;
       if (preload) preload.current = (Math.abs(o.voltage) / preload.resistance) as Amps;
       return {
         nodeId: o.nodeId,
@@ -790,6 +888,7 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     powerLimit: GENERIC_DEFAULTS.coupledPowerLimit as Watts,
     dutyWarn: GENERIC_DEFAULTS.coupledDutyWarn as Ratio,
     isolation: spec.isolation ?? null,
+    ...(kss ? { secondaryCoupling: kss.map((row) => [...row]) } : {}),
   });
   // Turns: the smallest Np (from 3, common practice for a defined leakage and flux) whose
   // integer secondaries keep every secondary's band (secondaries light at Vin max, at full
@@ -810,6 +909,14 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     const v = Math.abs(o.voltage);
     return (o.tolerance as number) - setTol - (rect.vfSpread * diodeVf(rect, o.currentMax as number)) / v - (o.rippleLimit as number) / 2 / v;
   });
+  if ((rect.cjo ?? 0) > 0) {
+    const NP = 1000;
+    const probe = template(NP, n0.map((n, i) => Math.round(n * NP) * Math.sign(secs[i]!.voltage)));
+    computePreloads(probe, spec.vinMax as number, light, null);
+    cjPreload = probe.secondaries.map((w) => (w.preload ? w.preload.current : 0));
+    // The preloads' reflected current adds to the magnetizing peak.
+    isat += cjPreload.reduce((a, ip, i) => a + n0[i]! * ip, 0) * (1 + GENERIC_DEFAULTS.saturationMargin);
+  }
   // The same turns are often asked for twice (the refined combination is one of the ±1
   // trials when every secondary moved the same way): solved once.
   const errorsSeen = new Map<string, { centre: number; half: number }[]>();
@@ -884,6 +991,12 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
   // n·(Vin,max − Vpri) + |Vout| (the grid simulates 2.7–2.95 × the plateau).
   const atMax = coupledPoint(design, spec.vinMax as number, spec.outputs.map((o) => o.currentMax as number), { detail: 'voltages' });
   design.secondaries.forEach((w, i) => { w.rectifierReverseVoltage = rectifierPeakReverse(design, atMax, i) as Volts; });
+  // With the rectifier's capacitance known the preload is computed: the smallest that keeps
+  // each secondary, at its lightest load with the primary at full load and Vin max, inside
+  // its band and in continuous conduction (where the grid shows the model within 4 %; a
+  // peak-charged secondary strays 5–50 %). Without it the 2 % rule stays.
+  const computed = (rect.cjo ?? 0) > 0 ? computePreloads(design, spec.vinMax as number, light, room) : null;
+
   // Second pass on the output capacitors with the full ripple model: where an output uses
   // more than half its ripple limit at Vin min or max (full load), enlarge its bank.
   const fullLoad = spec.outputs.map((o) => o.currentMax);
@@ -900,9 +1013,14 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
   }
   reasons.push(`turns ${chosen.np}:${chosen.ns.join(':')} (primary:secondaries, sign = winding sense) centre the secondaries' bands (light load at Vin max to full load at Vin min) at ${chosen.err.map((e) => `${r3(e * 100)} %`).join(', ')} of target`);
   reasons.push(`coupling k = ${k} (leakage ${design.secondaries.map((w) => `${r3(((w.turns / chosen!.np) ** 2 * Lp * (1 - k * k)) / (k * k) * 1e9)} nH`).join(', ')} seen from the secondaries)`);
-  for (const w of design.secondaries) {
-    if (w.preload) reasons.push(`${w.nodeId}: preload ${r3(w.preload.resistance)} Ω (${r3(w.preload.current * 1e3)} mA) because a lightly loaded secondary rises above its target`);
-  }
+  design.secondaries.forEach((w, i) => {
+    if (!w.preload) return;
+    if (computed) {
+      reasons.push(`${w.nodeId}: preload ${r3(w.preload.resistance)} Ω (${r3(w.preload.current * 1e3)} mA, ${r3(w.preload.current * w.preload.current * w.preload.resistance * 1e3)} mW), the smallest E24 value that keeps it inside its band and in continuous conduction at ${r3((secs[i]!.currentMin as number) * 1e3)} mA and Vin ${r3(spec.vinMax)} V: the leakage ring with the rectifier's ${r3((rect.cjo ?? 0) * 1e12)} pF peak-charges a lighter load${computed[i] ? '' : ' (even a full-load preload does not get it there: see the flags)'}`);
+    } else {
+      reasons.push(`${w.nodeId}: preload ${r3(w.preload.resistance)} Ω (${r3(w.preload.current * 1e3)} mA) because a lightly loaded secondary rises above its target`);
+    }
+  });
   // Full load at Vin min and max, and the primary at its lightest with the secondaries at
   // full load (the deepest low-side negative peak).
   const full = spec.outputs.map((o) => o.currentMax);
