@@ -196,7 +196,7 @@ function discontinuousDrive(i0: number, tau: number, q: number): number {
  * The result is written into `out` (the caller's point for this winding, read before the
  * call and replaced by it: the operating-point loop allocates nothing per pass).
  */
-function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number, sl: number, von: number, toff: number, iload: number, vfScale: number, vguess: number, full: boolean, losses: boolean, drop: number, out: SecondaryPoint): SecondaryPoint {
+function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number, sl: number, von: number, toff: number, iload: number, vfScale: number, vguess: number, full: boolean, losses: boolean, drop: number, last: boolean, out: SecondaryPoint): SecondaryPoint {
   const n = Math.abs(w.turns) / d.primaryTurns;
   const k = w.coupling;
   const llk = (n * n * d.inductance * (1 - k * k)) / (k * k);
@@ -209,9 +209,14 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
   // snubber's own charge pumping, so snubbed windings are outside the validated region.
   const cLin = 0;
   const ring = (rect.cjo ?? 0) > 0;
-  const passes = ring ? 24 : 6;
+  // With the ring, passes before the operating point's last one need not settle the voltage:
+  // the outer loop carries it on as the next guess.
+  const passes = ring ? (last ? 24 : 2) : 6;
   let i0 = 0;
   let tc = toff;
+  // Secant on g(v) = (voltage the loop gives for v) − v when the ring feeds back through i0.
+  let xa = NaN;
+  let ga = NaN;
   for (let it = 0; it < passes; it++) {
     const ipre = w.preload ? Math.max(0, vsec) / w.preload.resistance : 0;
     const isec = iload + ipre;
@@ -270,11 +275,20 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     // A rectified output cannot reverse: past its range the model's voltage stops at zero.
     vsec = Math.max(0, n * voff0 - drop - v0 - E0);
     const iinf = alpha;
-    const settled = (!w.preload && !ring) || Math.abs(vsec - vPrev) < 1e-10 * Math.max(1, Math.abs(vsec));
+    const settled = (!w.preload && !ring) || Math.abs(vsec - vPrev) < 1e-10 * Math.max(1, Math.abs(vsec)) || (ring && !last && it === passes - 1);
     // Only the pass that ends the loop is returned: earlier passes skip the sampling below.
     if (!settled && it < passes - 1) {
-      // With the ring the voltage feeds back through i0: halve the step to converge.
-      if (ring) vsec = 0.5 * (vsec + vPrev);
+      if (ring) {
+        const g = vsec - vPrev;
+        let next = vPrev + 0.5 * g;
+        if (Number.isFinite(ga) && g !== ga) {
+          const sec = vPrev - (g * (vPrev - xa)) / (g - ga);
+          if (sec > 0 && Number.isFinite(sec)) next = sec;
+        }
+        xa = vPrev;
+        ga = g;
+        vsec = next;
+      }
       continue;
     }
     if (!full) {
@@ -412,7 +426,7 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
         const row = mutual[i]!;
         for (let j = 0; j < nSec; j++) if (j !== i) drop += (row[j]! * (sec[j]!.ipk - sec[j]!.i0)) / toff;
       }
-      const sp = solveSecondary(d, d.secondaries[i]!, voff0, sl, von, toff, loads[i]!, vfScale, sec[i]!.vsec, full, losses, drop, sec[i]!);
+      const sp = solveSecondary(d, d.secondaries[i]!, voff0, sl, von, toff, loads[i]!, vfScale, sec[i]!.vsec, full, losses, drop, last, sec[i]!);
       sumPk += sp.n * sp.ipk;
     }
     iend = im - dim / 2 - sumPk;
