@@ -1027,6 +1027,10 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
   }
   reasons.push(`turns ${chosen.np}:${chosen.ns.join(':')} (primary:secondaries, sign = winding sense) centre the secondaries' bands (light load at Vin max to full load at Vin min) at ${chosen.err.map((e) => `${r3(e * 100)} %`).join(', ')} of target`);
   reasons.push(`coupling k = ${k} (leakage ${design.secondaries.map((w) => `${r3(((w.turns / chosen!.np) ** 2 * Lp * (1 - k * k)) / (k * k) * 1e9)} nH`).join(', ')} seen from the secondaries)`);
+  design.secondaries.forEach((w, i) => {
+    const plateau = atMax.sec[i]!.n * atMax.von + atMax.sec[i]!.vsec;
+    reasons.push(`${w.nodeId}: rectifier reverse voltage up to ${r3(w.rectifierReverseVoltage)} V at the turn-on edge (Vin ${r3(spec.vinMax)} V), ${r3((w.rectifierReverseVoltage as number) / plateau)} × the ${r3(plateau)} V plateau: the leakage rings with the rectifier capacitance and, lightly damped, keeps ringing (the independent grid simulates 2.7–2.95 ×; its two RC-snubbed windings 1.2 ×)`);
+  });
   if (!computed) {
     reasons.push('rectifier capacitance not given (rectifier.cjo): the leakage ring and the peak charging of lightly loaded secondaries are not modelled, and the 2 % preload rule is a rule of thumb; on the independent ngspice grid a secondary at 1–10 % load read 1.5–57 % above this model');
   }
