@@ -570,10 +570,7 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
     'input-capacitor-esr': icinRms * icinRms * d.cin.esr,
     // An RC snubber across a rectifier charges and discharges its capacitor through its
     // resistor at both edges: Cs·Vr²·fsw with Vr = n·Von + Vsec [common practice].
-    snubber: p.sec.reduce((a, s, i) => {
-      const sn = d.secondaries[i]!.snubber;
-      return sn ? a + sn.c * (s.n * p.von + s.vsec) ** 2 * fsw : a;
-    }, 0),
+    snubber: snubberLoss(d, p),
     preload: p.sec.reduce((a, s) => a + s.vsec * s.ipre, 0),
     quiescent: vin * d.controller.iq,
   };
@@ -639,6 +636,15 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
  * form follows: the point is flagged with its numbers.
  */
 export const VALIDATED_RING_SHARE = 0.45;
+
+function snubberLoss(d: CoupledBuckDesign, p: CoupledPoint): number {
+  let a = 0;
+  for (let i = 0; i < p.sec.length; i++) {
+    const sn = d.secondaries[i]!.snubber;
+    if (sn) a += sn.c * (p.sec[i]!.n * p.von + p.sec[i]!.vsec) ** 2 * d.fsw;
+  }
+  return a;
+}
 /** The grid's span: duty, coupling to the primary, |M/Lp| turns ratio, secondaries per magnetic. */
 export const VALIDATED_SPAN = { duty: [0.075, 0.62], coupling: [0.97, 0.999], ratio: [0.48, 8], secondaries: 3 } as const;
 
@@ -646,24 +652,24 @@ export function regionFlags(d: CoupledBuckDesign, p: CoupledPoint): StageFlag[] 
   const out: StageFlag[] = [];
   const T = 1 / d.fsw;
   const span = VALIDATED_SPAN;
-  const outside = (what: string, v: number, lo: number, hi: number, extra: Record<string, number | string> = {}) => {
-    if (v >= lo && v <= hi) return;
+  const outside = (what: string, key: string, v: number, lo: number, hi: number, nodeId?: string) => {
     out.push(flag('outside-validated-region', 'warning',
       `${what} ${r3(v)} is outside the ${lo}…${hi} the coupled-winding model was checked over (independent ngspice grid)`,
-      { [what.split(' ').pop()!]: r3(v), min: lo, max: hi, ...extra }));
+      { [key]: r3(v), min: lo, max: hi, ...(nodeId ? { nodeId } : {}) }));
   };
-  outside('duty', p.duty, span.duty[0], span.duty[1]);
-  if (d.secondaries.length > span.secondaries) {
-    out.push(flag('outside-validated-region', 'warning', `${d.secondaries.length} secondaries: the model was checked with up to ${span.secondaries}`, { secondaries: d.secondaries.length, max: span.secondaries }));
+  if (p.duty < span.duty[0] || p.duty > span.duty[1]) outside('duty', 'duty', p.duty, span.duty[0], span.duty[1]);
+  const ws = d.secondaries;
+  if (ws.length > span.secondaries) {
+    out.push(flag('outside-validated-region', 'warning', `${ws.length} secondaries: the model was checked with up to ${span.secondaries}`, { secondaries: ws.length, max: span.secondaries }));
   }
-  d.secondaries.forEach((w) => {
-    outside(`${w.nodeId} coupling`, w.coupling, span.coupling[0], span.coupling[1], { nodeId: w.nodeId });
-    outside(`${w.nodeId} ratio`, Math.abs(w.turns) / d.primaryTurns, span.ratio[0], span.ratio[1], { nodeId: w.nodeId });
-  });
-  p.sec.forEach((s, i) => {
-    const w = d.secondaries[i]!;
-    if (!(s.isec > 0)) return;
-    const ringShare = s.tau > 0 ? (s.i0 * s.tau * -Math.expm1(-p.toff / s.tau)) / (s.isec * T) : 0;
+  for (let i = 0; i < ws.length; i++) {
+    const w = ws[i]!;
+    const ratio = Math.abs(w.turns) / d.primaryTurns;
+    if (w.coupling < span.coupling[0] || w.coupling > span.coupling[1]) outside(`${w.nodeId} coupling`, 'coupling', w.coupling, span.coupling[0], span.coupling[1], w.nodeId);
+    if (ratio < span.ratio[0] || ratio > span.ratio[1]) outside(`${w.nodeId} ratio`, 'ratio', ratio, span.ratio[0], span.ratio[1], w.nodeId);
+    const s = p.sec[i]!;
+    if (!(s.isec > 0)) continue;
+    const ringShare = s.i0 > 0 && s.tau > 0 ? (s.i0 * s.tau * -Math.expm1(-p.toff / s.tau)) / (s.isec * T) : 0;
     const discontinuous = s.tc < 0.999 * p.toff;
     if (ringShare > VALIDATED_RING_SHARE || discontinuous || w.snubber) {
       const why = w.snubber ? 'it has a snubber' : discontinuous
@@ -673,7 +679,7 @@ export function regionFlags(d: CoupledBuckDesign, p: CoupledPoint): StageFlag[] 
         `${w.nodeId}: ${r3(s.vsec)} V at ${r3(s.iload * 1e3)} mA is outside the region the coupled-winding model was checked in, because ${why}; a larger load or preload brings it back`,
         { nodeId: w.nodeId, vsec: r3(s.vsec), iload: s.iload, ringShare: r3(ringShare), conductionShare: r3(s.tc / p.toff) }));
     }
-  });
+  }
   return out;
 }
 
