@@ -9,6 +9,7 @@ import type { Amps, Celsius, Hertz, KelvinPerWatt, Ratio, Volts, Watts } from '.
 import type { Id, IsolationClass, StageKind } from '../model.ts';
 import type { LibraryRow } from '../library.ts';
 import type { RatingMargins } from './part-choice.ts';
+import type { DiodeModel } from './defaults.ts';
 
 /** One output the planner wants from a stage. */
 export interface OutputSpec {
@@ -43,6 +44,14 @@ export interface StageSpec {
   maxSecondaries?: number;
   /** Coupled-winding stages: coupling factor of the magnetic (default from stages/defaults.ts). */
   coupling?: number;
+  /**
+   * Coupled-winding stages: the rectifier (e.g. from the part library), with its junction
+   * capacitance (cjo, vj, m) and transit time when known; default: a generic Schottky
+   * without capacitance (the leakage ring is then not modelled and the 2 % preload rule applies).
+   */
+  rectifier?: DiodeModel;
+  /** Coupled-winding stages: coupling between secondaries [i][j] (absent: k·k, no shared leakage). */
+  secondaryCoupling?: number[][];
   /** Coupled-winding stages: the barrier the windings cross, carried onto the magnetic's spec. */
   isolation?: { class: IsolationClass; workingVoltage: Volts } | null;
   /**
