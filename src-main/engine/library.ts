@@ -550,7 +550,8 @@ interface AnyDesign {
   cin?: CapLike;
   cout?: CapLike;
   divider?: DividerLike;
-  secondaries?: Array<{ nodeId: string; turns: number; rectifierReverseVoltage: number; cout: CapLike; preload: { resistance: number; current: number } | null }>;
+  secondaries?: Array<{ nodeId: string; turns: number; rectifierReverseVoltage: number; cout: CapLike; preload: { resistance: number; current: number } | null; snubber?: { r: number; c: number } }>;
+  fsw?: number;
   primaryTurns?: number;
   isolation?: { class: string; workingVoltage: number } | null;
   ratedCurrent?: number;
@@ -594,7 +595,7 @@ export function partsForStage(stageId: string, design: unknown, library: Library
       peak = Math.max(peak, ...spec.windings.filter((w) => w.role === 'primary').map((w) => w.peakCurrent));
     } catch { /* an incomplete design: keep the design's own figure */ }
     const isat = Math.max(d.isat ?? 0, peak * 1.3);
-    picks.push(...pickSwitcher(library, stageId, d.vinMax ?? 0, peak, true, isat));
+    picks.push(...(switcherFromRefs(library, stageId, d.parts) ?? pickSwitcher(library, stageId, d.vinMax ?? 0, peak, true, isat)));
     const pTotal = (d.outputs ?? []).reduce((a, q) => a + Math.abs(q.voltage) * q.currentMax, 0);
     const isoOf = [d.isolation, o.isolation].filter((x): x is { class: string; workingVoltage: number } => !!x && x.class !== 'none')
       .sort((a, b) => (ISOLATION_RANK[b.class] ?? -1) - (ISOLATION_RANK[a.class] ?? -1) || b.workingVoltage - a.workingVoltage)[0] ?? null;
@@ -609,20 +610,29 @@ export function partsForStage(stageId: string, design: unknown, library: Library
     picks.push(mag
       ? { ...pickFromRow(stageId, 'coupled-winding magnetic (custom)', 'T', mag, magValue, magRating, 1, { specRef }), unitCost: mag.cost + numParam(mag, 'costPerWinding', 0) * secs.length }
       : { ...missing(stageId, 'coupled-winding magnetic (custom)', 'T', 'magnetic-custom', magValue, magRating, 1, `no custom-magnetic former in the library takes ${windings} windings, ${eng(pTotal, 'W')}${needIso > 0 ? ` and ${isoOf?.class} isolation` : ''}`), specRef });
-    if (d.cin) picks.push(pickCap(library, stageId, d.cin, o));
-    if (d.cout) picks.push(pickCap(library, stageId, d.cout, o));
+    if (d.cin) picks.push(capFromRefs(library, stageId, d.parts, d.cin, o));
+    if (d.cout) picks.push(capFromRefs(library, stageId, d.parts, d.cout, o));
     if (d.divider) picks.push(...pickDivider(library, stageId, d.divider, o));
     secs.forEach((s, k) => {
       const spec = d.outputs?.find((q) => q.nodeId === s.nodeId);
       const iAvg = (spec?.currentMax ?? 0) + (s.preload?.current ?? 0);
       // Rectifier ratings: Vr ≥ reverse voltage / 0.8 and If ≥ 1.5·average (common practice margins).
       const vr = s.rectifierReverseVoltage / 0.8;
-      const rect = cheapest(library, 'rectifier', (r) => numParam(r, 'vr') >= vr && numParam(r, 'if') >= 1.5 * iAvg);
       const role = `rectifier, winding ${k + 1}`;
+      const rectRef = d.parts?.find((r) => r.role === role);
+      const rect = (rectRef ? library.find((r) => r.id === rectRef.libraryId) : undefined)
+        ?? cheapest(library, 'rectifier', (r) => numParam(r, 'vr') >= vr && numParam(r, 'if') >= 1.5 * iAvg);
       picks.push(rect
         ? pickFromRow(stageId, role, 'D', rect, '', `${numParam(rect, 'vr')} V, ${numParam(rect, 'if')} A`, 1)
         : missing(stageId, role, 'D', 'rectifier', '', `≥ ${eng(vr, 'V')}, ≥ ${eng(1.5 * iAvg, 'A')}`, 1, `no rectifier in the library blocks ${eng(vr, 'V')} and carries ${eng(1.5 * iAvg, 'A')}`));
-      picks.push(pickCap(library, stageId, s.cout, o));
+      picks.push(capFromRefs(library, stageId, d.parts, s.cout, o));
+      if (s.snubber) {
+        // RC snubber across the rectifier: the capacitor sees the (snubbed) reverse peak, the
+        // resistor dissipates Cs·Vr²·fsw (common practice).
+        const vrs = s.rectifierReverseVoltage;
+        picks.push(pickCap(library, stageId, { role: `snubber capacitor, winding ${k + 1}`, value: s.snubber.c, count: 1, ratedVoltage: vrs / 0.8, workingVoltage: vrs }, o));
+        picks.push(pickResistor(library, stageId, `snubber resistor, winding ${k + 1}`, s.snubber.r, s.snubber.c * vrs * vrs * (d.fsw ?? 0), o));
+      }
       if (s.preload) {
         const v = Math.abs(spec?.voltage ?? 0) * 1.1;
         picks.push(pickResistor(library, stageId, `preload, winding ${k + 1}`, s.preload.resistance, (v * v) / s.preload.resistance, o));

@@ -8,6 +8,7 @@ import { numParam, partsForStage, tableToRows, libraryCostModel, type LibraryRow
 import { readCsv } from '../../src-main/export/csv.ts';
 import { designStage, evaluateStage, type StageDesign } from '../../src-main/engine/stages/index.ts';
 import type { StageSpec } from '../../src-main/engine/stages/types.ts';
+import { diodeVf } from '../../src-main/engine/stages/defaults.ts';
 import { plan } from '../../src-main/engine/planner/solver.ts';
 import { engineEvaluator } from '../../src-main/engine/planner/evaluator.ts';
 import { randomRequirements } from '../../src-main/engine/planner/instances.ts';
@@ -59,6 +60,15 @@ function assertDesignMatchesRows(d: StageDesign): void {
         expect(d.cout.esr * d.cout.count).toBeCloseTo(numParam(row, 'esr'), 12);
         expect(d.cout.ratedVoltage).toBe(numParam(row, 'vRated'));
       }
+    }
+    if (d.kind === 'cwbuck' && ref.role.startsWith('rectifier, winding ')) {
+      const w = d.secondaries[Number(ref.role.slice('rectifier, winding '.length)) - 1]!;
+      expect(w.thetaJA).toBe(numParam(row, 'thetaJA'));
+      if (!Number.isNaN(numParam(row, 'cj'))) expect(w.rectifier.cjo).toBe(numParam(row, 'cj'));
+      // The diode model reproduces the row's forward drop at its rated current (Shockley with Rs).
+      expect(diodeVf(w.rectifier, numParam(row, 'if'))).toBeCloseTo(numParam(row, 'vf'), 9);
+      // Rated for the turn-on spike with the 80 % use (common practice).
+      expect(numParam(row, 'vr') * 0.8).toBeGreaterThanOrEqual(w.rectifierReverseVoltage - 1e-9);
     }
     if (d.kind === 'ldo') {
       expect(d.iq).toBe(numParam(row, 'iq'));
@@ -132,8 +142,9 @@ describe('stage design with the part library', () => {
 describe('property: over random plans, every BOM line is the part the evaluation used', () => {
   it('holds for 12 seeded instances, and the tree\'s cost and count equal the BOM\'s', () => {
     let stagesSeen = 0;
+    let cwSeen = 0;
     for (let seed = 1; seed <= 12; seed++) {
-      const req = randomRequirements({ rails: 3 + (seed % 3), seed, isolatedShare: 0.2 });
+      const req = randomRequirements({ rails: 3 + (seed % 3), seed, isolatedShare: 0.4 });
       const result = plan(req, {
         evaluator: engineEvaluator({ library: lib }),
         costModel: libraryCostModel(lib, { powerDerating: req.limits.powerDerating, electrolyticDerating: req.limits.electrolyticDerating }),
@@ -144,7 +155,12 @@ describe('property: over random plans, every BOM line is the part the evaluation
       for (const st of best.stages) {
         const d = st.design as StageDesign;
         assertDesignMatchesRows(d);
-        if (d.kind !== 'cwbuck') expect((d as { parts?: unknown[] }).parts?.length ?? 0, `${d.kind} carries its parts`).toBeGreaterThan(0);
+        expect((d as { parts?: unknown[] }).parts?.length ?? 0, `${d.kind} carries its parts`).toBeGreaterThan(0);
+        // Integrated regulators are one package: one thermal row, never three.
+        const ev = evaluateStage(d, { vin: req.sources[0]!.vNom, iout: d.outputs.map((o) => o.currentMax), ambient: req.limits.ambient });
+        if ((d as { integrated?: boolean }).integrated) expect(ev.parts.some((p) => p.role === 'high-side switch')).toBe(false);
+        expect(ev.parts.filter((p) => p.role !== 'inductor' && p.role !== 'coupled magnetic').every((p) => p.thetaSource === 'library')).toBe(true);
+        if (d.kind === 'cwbuck') cwSeen++;
         stagesSeen++;
       }
       const bom = buildBom(req, best, lib);
@@ -152,6 +168,7 @@ describe('property: over random plans, every BOM line is the part the evaluation
       expect(bom.totalCost, `seed ${seed}`).toBeCloseTo(best.score.cost, 6);
     }
     expect(stagesSeen).toBeGreaterThan(10);
+    expect(cwSeen, 'coupled-winding stages among the plans').toBeGreaterThan(0);
   }, 120_000);
 });
 

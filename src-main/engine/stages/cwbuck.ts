@@ -22,10 +22,12 @@
 import type { Amps, Henries, Ohms, Ratio, Volts, Watts } from '../units.ts';
 import type { OperatingPoint, OutputResult, OutputSpec, StageEvaluation, StageFlag, StageSpec } from './types.ts';
 import type { IsolationClass } from '../model.ts';
+import type { LibraryRow } from '../library.ts';
 import { bestDivider, nearest } from '../eseries.ts';
 import { GENERIC_DEFAULTS, VT, diodeVf, type ControllerParams, type DiodeModel } from './defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from './common.ts';
-import { feasibility, specErrors, switchingFlags, type SwitchingDesignBase } from './buck.ts';
+import { feasibility, specErrors, switchingFlags, switchingParts, thetaSourceOf, type SwitchingDesignBase } from './buck.ts';
+import { chooseCeramicRow, chooseRectifier, chooseSwitcher, diodeFromRow, type StagePartRef } from './part-choice.ts';
 
 // Module-local bindings for the innermost loops (saves a lookup through the module namespace
 // on every call when the sources run through a CommonJS transform).
@@ -591,11 +593,12 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
   ];
   const ta = op.ambient as number;
   const parts = [
-    part('high-side switch', loss['hs-conduction']! + loss['hs-switching']! + loss['output-capacitance']! / 2, d.thetaJA.highSide, ta),
-    part('low-side switch', loss['ls-conduction']! + loss['dead-time']! + loss['output-capacitance']! / 2, d.thetaJA.lowSide, ta),
-    part('controller', loss['gate-drive']! + loss.quiescent!, d.thetaJA.controller, ta),
+    ...switchingParts(d,
+      loss['hs-conduction']! + loss['hs-switching']! + loss['output-capacitance']! / 2,
+      loss['ls-conduction']! + loss['dead-time']! + loss['output-capacitance']! / 2,
+      loss['gate-drive']! + loss.quiescent!, ta),
     part('coupled magnetic', loss['primary-copper']! + loss['secondary-copper']! + loss['magnetic-core']!, d.thetaJA.inductor, ta),
-    ...p.sec.map((s, i) => part(`rectifier D${i + 1}`, s.pRect, d.secondaries[i]!.thetaJA, ta)),
+    ...p.sec.map((s, i) => part(`rectifier D${i + 1}`, s.pRect, d.secondaries[i]!.thetaJA, ta, thetaSourceOf(d))),
   ];
   const flags: StageFlag[] = [...switchingFlags(d, vin, required, p.impk, p.iend), ...thermalFlags(parts, d.tjMax), ...rippleFlags(outputs, d.outputs)];
   if (p.duty > d.dutyWarn) {
@@ -784,8 +787,11 @@ function computePreloads(design: CoupledBuckDesign, vinMax: number, light: numbe
     let reached = fits(imax);
     let hi = imax;
     if (reached) {
-      let lo = 1e-6;
-      for (let k = 0; k < 16; k++) {
+      // Geometric bisection from 0.1 % of full load: eight halvings of the ratio reach about
+      // 3 %, finer than the E24 step the resistor is then rounded to.
+      let lo = imax * 1e-3;
+      if (fits(lo)) hi = lo;
+      for (let k = 0; k < 8 && hi > lo; k++) {
         const mid = Math.sqrt(lo * hi);
         if (fits(mid)) hi = mid; else lo = mid;
       }
@@ -822,13 +828,47 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
   const k = spec.coupling ?? GENERIC_DEFAULTS.coupling;
   if (!(k > 0.5 && k < 1)) return { ok: false, flags: [flag('bad-input', 'error', `coupling: must be between 0.5 and 1 (got ${k})`, { field: 'coupling' })] };
   const reasons: string[] = [];
-  const ctl: ControllerParams = { ...GENERIC_DEFAULTS.controller };
+  const lib = spec.library;
+  const refs: StagePartRef[] = [];
+  let ctl: ControllerParams = { ...GENERIC_DEFAULTS.controller };
+  let switches = {
+    highSide: { ...GENERIC_DEFAULTS.highSide }, lowSide: { ...GENERIC_DEFAULTS.lowSide }, rdsHotFactor: GENERIC_DEFAULTS.rdsHotFactor as number,
+    thetaJA: { highSide: GENERIC_DEFAULTS.switchThetaJA as number, lowSide: GENERIC_DEFAULTS.switchThetaJA as number, controller: GENERIC_DEFAULTS.controllerThetaJA as number },
+    integrated: false,
+  };
+  if (lib) {
+    // The controller's rating is checked against the magnetizing current's peak, which the
+    // preliminary estimate below bounds (all outputs at full load, ideal ratios).
+    const vf0 = (o: OutputSpec) => diodeVf(GENERIC_DEFAULTS.rectifier, o.currentMax as number);
+    const im0 = (pri.currentMax as number) + spec.outputs.slice(1).reduce((a, o) => a + ((Math.abs(o.voltage) + vf0(o)) / vpri) * (o.currentMax as number), 0);
+    const ipk0 = im0 * (1 + GENERIC_DEFAULTS.rippleTarget / 2);
+    const sw = chooseSwitcher(lib, { vinMin: spec.vinMin, vinMax: spec.vinMax, iNeed: ipk0, ipk: ipk0, forcedPwm: true, ...(spec.margins ? { margins: spec.margins } : {}) });
+    if ('problem' in sw) return { ok: false, flags: [flag('no-library-part', 'error', sw.problem, { vinMax: spec.vinMax, current: r3(ipk0) })] };
+    ctl = sw.controller;
+    switches = { highSide: sw.highSide, lowSide: sw.lowSide, rdsHotFactor: sw.rdsHotFactor, thetaJA: sw.thetaJA, integrated: sw.integrated };
+    refs.push(...sw.refs);
+    reasons.push(`parts: ${sw.reason} (forced PWM, synchronous low side)`);
+  }
   const divider = bestDivider(vpri, ctl.vref);
   if (!divider) return { ok: false, flags: [flag('below-reference', 'error', `primary ${r3(vpri)} V is not above the ${ctl.vref} V reference`, { vpri, vref: ctl.vref })] };
   reasons.push(`feedback divider ${divider.rTop} Ω / ${divider.rBottom} Ω (E96) sets the primary to ${r3(divider.vout)} V, error ${r3(divider.error * 100)} %`);
   const fsw = spec.fsw as number;
   const secs = spec.outputs.slice(1);
-  const rect: DiodeModel = { ...GENERIC_DEFAULTS.rectifier, ...(spec.rectifier ?? {}) };
+  let rect: DiodeModel = { ...GENERIC_DEFAULTS.rectifier, ...(spec.rectifier ?? {}) };
+  // With a library the rectifiers are library rows: a first choice from the plateau
+  // n·(Vin,max − Vpri) + |Vout| times the turn-on spike factor on ideal ratios, confirmed
+  // once the turns are known (below). One row for all windings until then.
+  let rectRows: ({ row: LibraryRow; ref: StagePartRef } | null)[] = spec.outputs.slice(1).map(() => null);
+  const thermal = { ambient: spec.ambient as number, tjMax: spec.tjMax as number };
+  if (lib && !spec.rectifier) {
+    rectRows = spec.outputs.slice(1).map((o, i) => {
+      const n = (Math.abs(o.voltage) + 0.5) / vpri;
+      const c = chooseRectifier(lib, 3 * (n * (spec.vinMax - vpri) + Math.abs(o.voltage)), (o.currentMax as number) * 1.1, `rectifier, winding ${i + 1}`, thermal);
+      return 'problem' in c ? null : c;
+    });
+    const first = rectRows.find((r) => r);
+    if (first) rect = diodeFromRow(first.row, GENERIC_DEFAULTS.rectifier);
+  }
   const rectBad = diodeErrors(rect);
   if (rectBad) return { ok: false, flags: [flag('bad-input', 'error', `rectifier.${rectBad}`, { field: `rectifier.${rectBad.split(':')[0]}` })] };
   const nSecs = spec.outputs.length - 1;
@@ -882,11 +922,11 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
         turns: ns,
         coupling: k,
         resistance: (rp * n * n) as Ohms,
-        rectifier: { ...rect },
+        rectifier: rectRows[i] ? diodeFromRow(rectRows[i]!.row, GENERIC_DEFAULTS.rectifier) : { ...rect },
         rectifierReverseVoltage: (n * (spec.vinMax - vpri) + Math.abs(o.voltage)) as Volts,
         cout: chooseCeramic(`secondary ${i + 1} output`, need, Math.abs(o.voltage) * (1 + o.tolerance) * 1.1, spec.ceramicDerating),
         preload,
-        thetaJA: GENERIC_DEFAULTS.rectifierThetaJA,
+        thetaJA: rectRows[i] ? (rectRows[i]!.row.params.thetaJA as number) : GENERIC_DEFAULTS.rectifierThetaJA,
       };
     }),
     // Primary capacitor: the on-time surplus Σn·Isec·D/fsw plus ΔIm/(8·fsw), within half the
@@ -897,13 +937,14 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
       vpri * (1 + pri.tolerance), spec.ceramicDerating),
     cin: chooseCeramic('input', Math.max((imFull * 0.25) / (fsw * 0.01 * spec.vinMin), 1e-6), spec.vinMax, spec.ceramicDerating),
     divider,
-    highSide: { ...GENERIC_DEFAULTS.highSide },
-    lowSide: { ...GENERIC_DEFAULTS.lowSide },
-    rdsHotFactor: GENERIC_DEFAULTS.rdsHotFactor,
+    highSide: { ...switches.highSide },
+    lowSide: { ...switches.lowSide },
+    rdsHotFactor: switches.rdsHotFactor,
     bodyDiode: { ...GENERIC_DEFAULTS.bodyDiode },
     controller: ctl,
-    thetaJA: { highSide: GENERIC_DEFAULTS.switchThetaJA, lowSide: GENERIC_DEFAULTS.switchThetaJA, controller: GENERIC_DEFAULTS.controllerThetaJA, inductor: GENERIC_DEFAULTS.inductorThetaJA },
+    thetaJA: { ...switches.thetaJA, inductor: GENERIC_DEFAULTS.inductorThetaJA },
     tjMax: spec.tjMax,
+    ...(switches.integrated ? { integrated: true } : {}),
     maxSecondaries: spec.maxSecondaries ?? GENERIC_DEFAULTS.maxSecondaries,
     powerLimit: GENERIC_DEFAULTS.coupledPowerLimit as Watts,
     dutyWarn: GENERIC_DEFAULTS.coupledDutyWarn as Ratio,
@@ -929,7 +970,7 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     const v = Math.abs(o.voltage);
     return (o.tolerance as number) - setTol - (rect.vfSpread * diodeVf(rect, o.currentMax as number)) / v - (o.rippleLimit as number) / 2 / v;
   });
-  if ((rect.cjo ?? 0) > 0) {
+  if ((rect.cjo ?? 0) > 0 || rectRows.some((r) => r && (r.row.params.cj as number) > 0)) {
     const NP = 1000;
     const probe = template(NP, n0.map((n, i) => Math.round(n * NP) * Math.sign(secs[i]!.voltage)));
     computePreloads(probe, spec.vinMax as number, light, null);
@@ -1011,11 +1052,53 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
   // n·(Vin,max − Vpri) + |Vout| (the grid simulates 2.7–2.95 × the plateau).
   const atMax = coupledPoint(design, spec.vinMax as number, spec.outputs.map((o) => o.currentMax as number), { detail: 'voltages' });
   design.secondaries.forEach((w, i) => { w.rectifierReverseVoltage = rectifierPeakReverse(design, atMax, i) as Volts; });
+  if (lib && !spec.rectifier) {
+    // Confirm each winding's rectifier against its turn-on spike; a higher-rated row where
+    // the first choice falls short (its drop and capacitance then replace the first).
+    for (let i = 0; i < design.secondaries.length; i++) {
+      const w = design.secondaries[i]!;
+      const o = secs[i]!;
+      const avg = (o.currentMax as number) + (w.preload?.current ?? 0);
+      const got = rectRows[i];
+      const fits = got && (got.row.params.vr as number) * 0.8 >= (w.rectifierReverseVoltage as number) && (got.row.params.if as number) >= 1.5 * avg;
+      if (fits) continue;
+      let c = chooseRectifier(lib, w.rectifierReverseVoltage as number, avg, `rectifier, winding ${i + 1}`, thermal);
+      if ('problem' in c) {
+        // No part blocks the undamped turn-on spike: an RC snubber across the rectifier
+        // [common practice: Cs ≈ 3 × the rectifier's capacitance, Rs ≈ √(Llk/Cj), the ring's
+        // characteristic impedance] holds the peak near 1.3 × the plateau (the independent
+        // grid's snubbed windings: 1.17–1.18 ×), at a loss of Cs·Vr²·fsw.
+        const plateau = atMax.sec[i]!.n * atMax.von + atMax.sec[i]!.vsec;
+        const snubbed = chooseRectifier(lib, 1.3 * plateau, avg, `rectifier, winding ${i + 1}`, thermal);
+        const cj = 'problem' in snubbed ? 0 : (snubbed.row.params.cj as number | undefined) ?? 0;
+        if (!('problem' in snubbed) && cj > 0 && atMax.sec[i]!.llk > 0) {
+          w.snubber = { r: nearest('E24', Math.sqrt(atMax.sec[i]!.llk / cj)) as Ohms, c: nearest('E12', 3 * cj) };
+          reasons.push(`${o.nodeId}: RC snubber ${r3(w.snubber.r)} Ω / ${r3(w.snubber.c * 1e12)} pF across the rectifier: no library part blocks the ${r3(w.rectifierReverseVoltage as number)} V undamped turn-on spike; snubbed, about ${r3(1.3 * plateau)} V, at ${r3(w.snubber.c * plateau * plateau * (spec.fsw as number) * 1e3)} mW`);
+          c = snubbed;
+        }
+      }
+      if ('problem' in c) {
+        return { ok: false, flags: [flag('no-library-part', 'error', `${o.nodeId}: ${c.problem}: the turn-on spike is ${r3((w.rectifierReverseVoltage as number) / (atMax.sec[i]!.n * atMax.von + atMax.sec[i]!.vsec))} × the winding's plateau; a lower turns ratio, a snubber or a higher-rated rectifier in the library is needed`, { nodeId: o.nodeId, reverse: r3(w.rectifierReverseVoltage as number) })] };
+      }
+      rectRows[i] = c;
+      w.rectifier = diodeFromRow(c.row, GENERIC_DEFAULTS.rectifier);
+      w.thetaJA = c.row.params.thetaJA as number;
+    }
+    const again = coupledPoint(design, spec.vinMax as number, spec.outputs.map((o) => o.currentMax as number), { detail: 'voltages' });
+    design.secondaries.forEach((w, i) => { w.rectifierReverseVoltage = rectifierPeakReverse(design, again, i) as Volts; });
+    for (const r of rectRows) if (r) refs.push(r.ref);
+  }
   // With the rectifier's capacitance known the preload is computed: the smallest that keeps
   // each secondary, at its lightest load with the primary at full load and Vin max, inside
   // its band and in continuous conduction (where the grid shows the model within 4 %; a
   // peak-charged secondary strays 5–50 %). Without it the 2 % rule stays.
-  const computed = (rect.cjo ?? 0) > 0 ? computePreloads(design, spec.vinMax as number, light, room) : null;
+  const computed = (rect.cjo ?? 0) > 0 || design.secondaries.some((w) => (w.rectifier.cjo ?? 0) > 0) ? computePreloads(design, spec.vinMax as number, light, room) : null;
+  // The magnetic is specified by this design: its saturation current covers the worst
+  // magnetizing peak with the preloads in place (Vin max, full load), plus the margin.
+  {
+    const pk = coupledPoint(design, spec.vinMax as number, spec.outputs.map((o) => o.currentMax as number), { detail: 'voltages' });
+    design.isat = Math.max(design.isat as number, Math.max(pk.impk, Math.abs(pk.iend)) * (1 + GENERIC_DEFAULTS.saturationMargin)) as Amps;
+  }
 
   // Second pass on the output capacitors with the full ripple model: where an output uses
   // more than half its ripple limit at Vin min or max (full load), enlarge its bank.
@@ -1031,6 +1114,21 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
       else design.secondaries[i - 1]!.cout = grown;
     });
   }
+  if (lib) {
+    // Capacitor banks as library rows (ESR, rating and ripple current of the part).
+    const banks: [CapacitorChoice, (c: CapacitorChoice) => void][] = [
+      [design.cin, (c) => { design.cin = c; }],
+      [design.cout, (c) => { design.cout = c; }],
+      ...design.secondaries.map((w) => [w.cout, (c: CapacitorChoice) => { w.cout = c; }] as [CapacitorChoice, (c: CapacitorChoice) => void]),
+    ];
+    for (const [bank, set] of banks) {
+      const pick = chooseCeramicRow(lib, bank, spec.electrolyticDerating);
+      if (!pick) continue;
+      set(pick.bank);
+      refs.push(pick.ref);
+    }
+    design.parts = refs;
+  }
   reasons.push(`turns ${chosen.np}:${chosen.ns.join(':')} (primary:secondaries, sign = winding sense) centre the secondaries' bands (light load at Vin max to full load at Vin min) at ${chosen.err.map((e) => `${r3(e * 100)} %`).join(', ')} of target`);
   reasons.push(`coupling k = ${k} (leakage ${design.secondaries.map((w) => `${r3(((w.turns / chosen!.np) ** 2 * Lp * (1 - k * k)) / (k * k) * 1e9)} nH`).join(', ')} seen from the secondaries)`);
   design.secondaries.forEach((w, i) => {
@@ -1043,7 +1141,7 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
   design.secondaries.forEach((w, i) => {
     if (!w.preload) return;
     if (computed) {
-      reasons.push(`${w.nodeId}: preload ${r3(w.preload.resistance)} Ω (${r3(w.preload.current * 1e3)} mA, ${r3(w.preload.current * w.preload.current * w.preload.resistance * 1e3)} mW), the smallest E24 value that keeps it inside its band and in continuous conduction at ${r3((secs[i]!.currentMin as number) * 1e3)} mA and Vin ${r3(spec.vinMax)} V: the leakage ring with the rectifier's ${r3((rect.cjo ?? 0) * 1e12)} pF peak-charges a lighter load${computed[i] ? '' : ' (even a full-load preload does not get it there: see the flags)'}`);
+      reasons.push(`${w.nodeId}: preload ${r3(w.preload.resistance)} Ω (${r3(w.preload.current * 1e3)} mA, ${r3(w.preload.current * w.preload.current * w.preload.resistance * 1e3)} mW), the smallest E24 value that keeps it inside its band and in continuous conduction at ${r3((secs[i]!.currentMin as number) * 1e3)} mA and Vin ${r3(spec.vinMax)} V: the leakage ring with the rectifier's ${r3((w.rectifier.cjo ?? 0) * 1e12)} pF peak-charges a lighter load${computed[i] ? '' : ' (even a full-load preload does not get it there: see the flags)'}`);
     } else {
       reasons.push(`${w.nodeId}: preload ${r3(w.preload.resistance)} Ω (${r3(w.preload.current * 1e3)} mA) because a lightly loaded secondary rises above its target`);
     }

@@ -11,7 +11,7 @@
  * which parameters were generic.
  */
 import type { LibraryRow } from '../library.ts';
-import { GENERIC_DEFAULTS, type ControllerParams, type SwitchParams } from './defaults.ts';
+import { GENERIC_DEFAULTS, VT, type ControllerParams, type DiodeModel, type SwitchParams } from './defaults.ts';
 import { ceramicRetained, type CapacitorChoice } from './common.ts';
 
 /** Which library row fills one role of a stage, and what of it the model used. */
@@ -228,4 +228,37 @@ export function chooseCeramicRow(lib: readonly LibraryRow[], c: CapacitorChoice,
     bank: { ...c, esr, ratedVoltage: rated, effective, stress: c.workingVoltage / rated },
     cost: row.cost * c.count,
   };
+}
+
+/** A diode model that reproduces a rectifier row's forward drop at its rated current. */
+export function diodeFromRow(row: LibraryRow, base: { n: number; rs: number; vfSpread: number }): DiodeModel {
+  const iF = num(row, 'if');
+  const vf = num(row, 'vf');
+  // Shockley with series resistance, Vf = n·Vt·ln(1 + I/Is) + Rs·I, solved for Is at the
+  // row's (If, Vf); Rs kept below a third of the drop so the log term stays meaningful.
+  const rs = Math.min(base.rs, (vf / 3) / Math.max(iF, 1e-6));
+  const is = iF / Math.expm1((vf - rs * iF) / (base.n * VT));
+  const d: DiodeModel = { is, n: base.n, rs, vfSpread: base.vfSpread };
+  if (has(row, 'cj') && num(row, 'cj') > 0) d.cjo = num(row, 'cj');
+  // The row's recovery time is not a transit time: the stored charge TT·I depends on how the
+  // part is driven, and the coupled-winding model's recovery term with an undamped ring
+  // multiplies it by √(Llk/Cj). It is kept on the row (and the BOM), not put into the model.
+  return d;
+}
+
+/**
+ * The cheapest rectifier row rated for a reverse voltage (with the usual 80 % use, common
+ * practice) and 1.5 × the average current.
+ */
+export function chooseRectifier(lib: readonly LibraryRow[], reverse: number, average: number, role: string, thermal?: { ambient: number; tjMax: number }): { row: LibraryRow; ref: StagePartRef } | ChoiceMiss {
+  const vr = reverse / 0.8;
+  // Junction estimate Ta + Vf·Iavg·θJA with 10 K kept in hand (the model's conduction loss
+  // adds the RMS part; the stage's thermal check has the last word).
+  const cool = (r: LibraryRow) => !thermal || thermal.ambient + num(r, 'vf') * average * num(r, 'thetaJA') <= thermal.tjMax - 10;
+  const row = cheapestOf(lib, 'rectifier', (r) => num(r, 'vr') >= vr && num(r, 'if') >= 1.5 * average && cool(r));
+  if (!row) return { problem: `no rectifier in the library blocks ${vr.toFixed(0)} V (${reverse.toFixed(0)} V peak / 0.8) and carries ${(1.5 * average).toFixed(3)} A${thermal ? ` within ${thermal.tjMax} °C` : ''}` };
+  const generic: string[] = [];
+  if (!has(row, 'cj')) generic.push('cj');
+  if (!has(row, 'trr')) generic.push('trr');
+  return { row, ref: { role, libraryId: row.id, used: { vr: num(row, 'vr'), if: num(row, 'if'), vf: num(row, 'vf'), cj: has(row, 'cj') ? num(row, 'cj') : NaN, thetaJA: num(row, 'thetaJA') }, generic } };
 }
