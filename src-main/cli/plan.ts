@@ -86,7 +86,9 @@ function renderResult(req: Requirements, result: PlanResult, io: CliIo): void {
     }
   }
   io.out('');
-  io.out(`${result.stats.provedOptimal ? 'Proved optimal' : 'Best found within the budget (not proved optimal)'}; ${result.stats.explored} search nodes, ${result.stats.elapsedMs.toFixed(0)} ms.`);
+  const st = result.stats;
+  io.out(`${st.provedOptimal ? 'Proved optimal' : `Best found, not proved optimal${st.notProved ? ` (${st.notProved})` : ''}`}; ${st.explored} search nodes, ${st.elapsedMs.toFixed(0)} ms.`);
+  if (st.space) io.out(`${st.provedOptimal ? 'Proved over' : 'Searched'}: ${st.space.summary}.`);
   if (result.best.stages.some((s) => s.barriers.length)) { io.out(''); io.out(ISOLATION_CAUTION); }
 }
 

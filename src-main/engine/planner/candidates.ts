@@ -79,6 +79,20 @@ export class BlockFactory {
   private readonly sources: Map<Id, Source>;
   private readonly cache = new Map<string, BlockResult>();
   evaluations = 0;
+  /**
+   * Blocks whose loss, cost or part count fell when their downstream load rose: the bounds of
+   * the search assume this never happens, so any entry withdraws the "proved optimal" claim.
+   */
+  readonly boundViolations: { key: string; text: string }[] = [];
+
+  noteBoundViolation(key: string, base: { loss: number; cost: number; parts: number }, loaded: { loss: number; cost: number; parts: number }): void {
+    if (this.boundViolations.length >= 20 || this.boundViolations.some((v) => v.key === key)) return;
+    this.boundViolations.push({
+      key,
+      text: `${key}: with its downstream load the block scores loss ${loaded.loss.toPrecision(4)} W, cost ${loaded.cost.toPrecision(4)}, ${loaded.parts} parts, ` +
+        `below its unloaded loss ${base.loss.toPrecision(4)} W, cost ${base.cost.toPrecision(4)}, ${base.parts} parts`,
+    });
+  }
 
   constructor(
     readonly req: Requirements,
@@ -491,7 +505,10 @@ export class BlockFactory {
         if (!changed || !this.req.preferences.allowedKinds.includes('ldo')) return run;
         continue;
       }
-      if (shape.secondaries.length === 1) {
+      // The hint is the choice of the unloaded one-secondary block only (a loaded evaluation
+      // must not change where later sets start: the design of a block is a function of it).
+      const loaded = !!extra && [...extra.values()].some((e) => e.some((x) => x > 0));
+      if (shape.secondaries.length === 1 && !loaded) {
         for (const s of shape.secondaries) this.tapHints.set(`${primaryKey}|${s}`, useTap.get(s) ?? -1);
       }
       return { ok: true, eval: this.assembleCoupled(shape, src, vin, spec, run, taps, directMiss, primaryName) };
@@ -664,7 +681,7 @@ export function stageParts(kind: StageKind, secondaries: number): PartCounts {
 }
 
 /** Enumerate the candidate shapes of a requirements set (before evaluation). */
-export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { singles: BlockShape[]; coupled: (size: number) => BlockShape[]; pairShapes: BlockShape[] } {
+export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { singles: BlockShape[]; coupled: (size: number) => Generator<BlockShape>; primaries: { primary: number | null; busVoltage?: number; source: Source }[] } {
   const rails = f.ctx.rails;
   const req = f.req;
   const singles: BlockShape[] = [];
@@ -696,7 +713,6 @@ export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { sin
       }
     }
   }
-  const pairShapes: BlockShape[] = [];
   const primaries: { primary: number | null; busVoltage?: number; source: Source }[] = [];
   if (opts.allowed.has('cwbuck') && opts.maxSecondaries >= 1) {
     for (const s of req.sources) {
@@ -710,29 +726,45 @@ export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { sin
         if (bus > 0) primaries.push({ primary: null, busVoltage: bus, source: s });
       }
     }
-    for (const p of primaries) {
-      for (let j = 0; j < n; j++) {
-        if (j === p.primary) continue;
-        pairShapes.push(cw(p, [j]));
-      }
-    }
   }
-  /** Every shape with `size` secondaries on each primary (generateBlocks filters them a-priori style). */
-  const coupled = (size: number): BlockShape[] => {
-    const out: BlockShape[] = [];
-    if (size > opts.maxSecondaries) return out;
+  /** Every shape with `size` secondaries on each primary, one at a time (no list in memory). */
+  const coupled = function* (size: number): Generator<BlockShape> {
+    if (size > opts.maxSecondaries || size < 1) return;
     for (const p of primaries) {
       const cand: number[] = [];
       for (let j = 0; j < n; j++) if (j !== p.primary) cand.push(j);
-      const rec = (start: number, chosen: number[]) => {
-        if (chosen.length === size) { out.push(cw(p, [...chosen])); return; }
-        for (let q = start; q < cand.length; q++) { chosen.push(cand[q]!); rec(q + 1, chosen); chosen.pop(); }
-      };
-      rec(0, []);
+      if (size > cand.length) continue;
+      // Lexicographic combinations of `size` indices into cand.
+      const idx = Array.from({ length: size }, (_, k) => k);
+      for (;;) {
+        yield cw(p, idx.map((k) => cand[k]!));
+        let k = size - 1;
+        while (k >= 0 && idx[k] === cand.length - size + k) k--;
+        if (k < 0) break;
+        idx[k]!++;
+        for (let q = k + 1; q < size; q++) idx[q] = idx[q - 1]! + 1;
+      }
     }
-    return out;
   };
-  return { singles, coupled, pairShapes };
+  return { singles, coupled, primaries };
+}
+
+/** Size of the decision space: candidate feeds and coupled-winding primaries (counted, not listed). */
+export function spaceSize(f: BlockFactory, opts: GenerationOptions): { candidates: number; primaries: number } {
+  const { singles, primaries } = enumerateShapes(f, opts);
+  const n = f.ctx.rails.length;
+  let candidates = singles.length;
+  for (const p of primaries) {
+    const m = n - (p.primary === null ? 0 : 1);
+    for (let k = 1; k <= Math.min(opts.maxSecondaries, m); k++) candidates += binomial(m, k);
+  }
+  return { candidates, primaries: primaries.length };
+}
+
+function binomial(m: number, k: number): number {
+  let c = 1;
+  for (let i = 1; i <= k; i++) c = (c * (m - k + i)) / i;
+  return Math.round(c);
 }
 
 function cw(p: { primary: number | null; busVoltage?: number; source: Source }, secondaries: number[]): BlockShape {
@@ -759,7 +791,7 @@ export function busVoltageFor(vinMin: number): number {
 export function* generateBlocks(
   f: BlockFactory, opts: GenerationOptions,
   /** Filled as generation goes, so a caller that stops early keeps what was designed. */
-  into: { blocks: Block[]; misses: Map<number, Miss[]> } = { blocks: [], misses: new Map() },
+  into: { blocks: Block[]; misses: Map<number, Miss[]>; designed?: number } = { blocks: [], misses: new Map() },
 ): Generator<void, { blocks: Block[]; misses: Map<number, Miss[]> }> {
   const blocks = into.blocks;
   const misses = into.misses;
@@ -772,35 +804,22 @@ export function* generateBlocks(
       misses.set(rail, list);
     }
   };
+  into.designed = 0;
   const add = (shape: BlockShape): boolean => {
     const res = f.evaluate(shape);
+    into.designed = (into.designed ?? 0) + 1;
     if (!res.ok) { noteMiss(shape, res.rejections); return false; }
     blocks.push({ index: blocks.length, key: BlockFactory.shapeKey(shape), shape, covers: BlockFactory.covers(shape), base: res.eval, score: 0 });
     return true;
   };
-  const { singles, coupled, pairShapes } = enumerateShapes(f, opts);
+  const { singles, coupled } = enumerateShapes(f, opts);
   for (const s of singles) { add(s); yield; }
-  // A set of k secondaries on a primary is tried only if each of its subsets of k − 1 was
-  // feasible on that primary (a-priori rule). Feasible winding sets per primary, by size (input source folded into the primary key).
-  const feasibleSets = new Set<string>();
-  const setKey = (s: BlockShape & { kind: 'cwbuck' }) => `${s.input.id}|${s.primary ?? `bus${s.busVoltage}`}|${s.secondaries.join(',')}`;
-  for (const s of pairShapes) {
-    if (s.kind === 'cwbuck' && opts.maxSecondaries >= 1 && add(s)) feasibleSets.add(setKey(s));
-    yield;
-  }
-  for (let size = 2; size <= opts.maxSecondaries; size++) {
-    const level = coupled(size);
-    const okSet = (sh: BlockShape & { kind: 'cwbuck' }) => feasibleSets.has(setKey(sh));
-    for (const s of level) {
-      if (s.kind !== 'cwbuck') continue;
-      let ok = true;
-      for (let drop = 0; drop < s.secondaries.length && ok; drop++) {
-        ok = okSet({ ...s, secondaries: s.secondaries.filter((_, k) => k !== drop) });
-      }
-      if (!ok) continue;
-      if (add(s)) feasibleSets.add(setKey(s));
-      yield;
-    }
+  // Every winding set from 1 to maxSecondaries secondaries on every primary, smallest sets
+  // first (so a budget cut keeps the small ones). No set is skipped: a set whose subsets all
+  // miss can still be feasible (a ±12 V pair on a 5 V primary where each winding alone misses
+  // its window), so no subset rule is sound for the engine (docs/planner.md).
+  for (let size = 1; size <= opts.maxSecondaries; size++) {
+    for (const s of coupled(size)) { add(s); yield; }
   }
   return { blocks, misses };
 }
