@@ -22,6 +22,7 @@ import type { Domain, Id, Rail, Requirements, Source, StageKind } from '../model
 import type { Barrier, InternalNode, PlanOutput, Reason } from '../plan-types.ts';
 import type { OutputSpec, OutputWindow, StageEvaluation, StageSpec } from '../stages/types.ts';
 import { addParts, countParts, emptyParts } from './cost-model.ts';
+import { formatQuantity } from '../notation.ts';
 import type {
   Block, BlockEval, BlockShape, BlockStage, CostModel, FeedInput, PartCounts, PlanContext, Rejection, StageEvaluator,
 } from './types.ts';
@@ -64,6 +65,8 @@ export interface Miss { shape: BlockShape; rejection: Rejection }
 export type BlockResult = { ok: true; eval: BlockEval } | { ok: false; rejections: Rejection[] };
 
 const fmtV = (v: number) => `${Math.round(v * 1000) / 1000} V`;
+/** A miss or a limit in volts with three significant digits (0.39 mV prints as 390 µV, not 0 mV). */
+const fmtQ = (v: number) => formatQuantity(v, 'voltage', 3);
 const fmtA = (v: number) => `${Math.round(v * 1e4) / 1e4} A`;
 const fmtW = (v: number) => `${Math.round(v * 1e4) / 1e4} W`;
 
@@ -249,7 +252,7 @@ export class BlockFactory {
       if (p.tj > tjLimit + 1e-9 && !rej.some((r) => r.constraint === 'tj')) {
         rej.push({
           constraint: 'tj', shortfall: p.tj - tjLimit, unit: 'K', rail: railOf(0),
-          text: `${p.role} reaches Tj ${p.tj.toFixed(1)} °C ${where}, above the ${tjLimit} °C limit (tjMax − margin) by ${(p.tj - tjLimit).toFixed(1)} K`,
+          text: `${p.role} reaches Tj ${+p.tj.toPrecision(4)} °C ${where}, above the ${tjLimit} °C limit (tjMax − margin) by ${+(p.tj - tjLimit).toPrecision(3)} K`,
         });
       }
     }
@@ -258,7 +261,7 @@ export class BlockFactory {
       if (o.ripplePP > lim * (1 + 1e-9) && !rej.some((r) => r.constraint === 'ripple' && r.rail === railOf(i))) {
         rej.push({
           constraint: 'ripple', shortfall: o.ripplePP - lim, unit: 'V', rail: railOf(i),
-          text: `ripple ${(o.ripplePP * 1e3).toFixed(2)} mV p-p ${where} exceeds the ${(lim * 1e3).toFixed(2)} mV limit`,
+          text: `ripple ${fmtQ(o.ripplePP)} p-p ${where} exceeds the ${fmtQ(lim)} limit by ${fmtQ(o.ripplePP - lim)}`,
         });
       }
     });
@@ -314,7 +317,7 @@ export class BlockFactory {
         const tol = spec.outputs[i]!.tolerance;
         rej.push({
           constraint: 'window', shortfall: miss, unit: 'V', rail: railOf(i),
-          text: `window ${fmtV(a)}…${fmtV(b)} exceeds ±${+(tol * 100).toFixed(2)} % of ${fmtV(mirror * spec.outputs[i]!.voltage)} by ${(miss * 1000).toFixed(0)} mV (${w.minCorner} / ${w.maxCorner})`,
+          text: `window ${fmtV(a)}…${fmtV(b)} exceeds ±${+(tol * 100).toFixed(2)} % of ${fmtV(mirror * spec.outputs[i]!.voltage)} by ${fmtQ(miss)} (${w.minCorner} / ${w.maxCorner})`,
         });
       }
     });

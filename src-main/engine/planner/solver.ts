@@ -14,9 +14,10 @@
 import { groupRails } from '../rails.ts';
 import type { Rail, Requirements, StageKind } from '../model.ts';
 import type { Infeasibility, Plan, PlanLabel, PlanResult, PlanSpace } from '../plan-types.ts';
-import { assemblePlan, explainInfeasible } from './assemble.ts';
+import { assemblePlan, explainInfeasible, type InfeasibleEntry } from './assemble.ts';
 import { BlockFactory, generateBlocks, spaceSize, type GenerationOptions, type Miss } from './candidates.ts';
 import { inventedCostModel } from './cost-model.ts';
+import { generationOptions, railHasFeed } from './remedies.ts';
 import { makeScorer, OBJECTIVES, type Objective, type Scorer, type SelectionEval } from './score.ts';
 import { branchAndBound, MAX_RAILS, type SearchOutcome } from './search.ts';
 import type { Block, CostModel, StageEvaluator } from './types.ts';
@@ -34,6 +35,8 @@ export interface PlannerOptions {
   now?: () => number;
   /** Search only the chosen objective (no alternatives). */
   singleObjective?: boolean;
+  /** Check each remedy by re-planning before offering it (default true). */
+  verifyRemedies?: boolean;
 }
 
 export type PlannerPhase = 'rails' | 'candidates' | 'search' | 'done';
@@ -227,11 +230,7 @@ export class PlanSolver {
     }
     this.trace.push(`${this.rails.length} rails from ${req.loads.length} loads`);
     this.factory = new BlockFactory(req, this.rails, this.options.evaluator, this.costModel);
-    const genOpts: GenerationOptions = {
-      allowRailFeeds: this.options.allowRailFeeds ?? true,
-      maxSecondaries: Math.max(0, Math.floor(req.preferences.maxSecondaries)),
-      allowed: new Set<StageKind>(req.preferences.allowedKinds.filter((k) => k === 'buck' || k === 'cwbuck' || k === 'ldo')),
-    };
+    const genOpts: GenerationOptions = generationOptions(req, this.options.allowRailFeeds ?? true);
     const ignored = req.preferences.allowedKinds.filter((k) => k !== 'buck' && k !== 'cwbuck' && k !== 'ldo');
     if (ignored.length) this.trace.push(`stage kinds not modelled by the planner and left out: ${ignored.join(', ')}`);
     const size = spaceSize(this.factory, genOpts);
@@ -315,6 +314,39 @@ export class PlanSolver {
     this.progress.incumbent = chosen ? chosen.sel.evals.reduce((a, e) => a + s.scorer.score(e), 0) : undefined;
   }
 
+  /**
+   * Keep only the remedies that work: each is applied to a copy of the requirements and
+   * checked by re-planning (the rail's feeds, or the whole tree for a tree-level failure)
+   * within what is left of the budget (at most 10 s); a remedy not confirmed in time is left out.
+   */
+  private verifyRemedies(entries: InfeasibleEntry[]): void {
+    if (this.options.verifyRemedies === false) {
+      for (const e of entries) e.inf.remedies = e.candidates.map((c) => c.text);
+      return;
+    }
+    // Within the budget: the checks use what the planning left, at most 10 s.
+    const total = Math.max(0, Math.min(10_000, this.deadline - this.now()));
+    const deadline = this.now() + total;
+    const count = entries.reduce((a, e) => a + e.candidates.length, 0) || 1;
+    const each = total / count;
+    for (const e of entries) {
+      for (const c of e.candidates) {
+        const req = structuredClone(this.req);
+        c.apply(req);
+        const until = Math.min(deadline, this.now() + each);
+        let ok = false;
+        if (e.railIndex !== undefined) {
+          ok = railHasFeed(req, e.inf.railId, this.options.evaluator, this.costModel, this.options.allowRailFeeds ?? true, until, this.now) === 'yes';
+        } else {
+          const r = new PlanSolver(req, { ...this.options, budgetMs: Math.max(1, until - this.now()), singleObjective: true, verifyRemedies: false }).solve();
+          ok = r.best !== null;
+        }
+        if (ok) e.inf.remedies.push(c.text);
+        this.trace.push(`remedy "${c.text}" for ${e.inf.railId || 'the tree'}: ${ok ? 'verified, offered' : 'does not help within its check, not offered'}`);
+      }
+    }
+  }
+
   private buildPlan(obj: Objective): Plan {
     const v = this.found.get(obj)!;
     const labels: PlanLabel[] = [];
@@ -352,11 +384,13 @@ export class PlanSolver {
       if (this.candidatesCut) {
         infeasible.push({
           railId: this.rails[0]?.id ?? '', constraint: 'budget', shortfall: 0, unit: '',
-          text: `the time budget (${this.budgetMs} ms) ran out after ${this.factory.evaluations} stage designs, before every candidate was designed; the reasons below cover only those`,
+          text: `the design share (${Math.round(DESIGN_SHARE * 100)} %) of the time budget (${this.budgetMs} ms) ran out after ${this.genState?.designed ?? 0} of ${this.space?.candidates ?? 0} candidate feeds (${this.factory.evaluations} stage designs); the reasons below cover only those`,
           remedies: ['raise the time budget (--budget-ms)'],
         });
       }
-      infeasible.push(...explainInfeasible(this.factory, this.blocks, this.misses, this.leafFailures));
+      const entries = explainInfeasible(this.factory, this.blocks, this.misses, this.leafFailures);
+      this.verifyRemedies(entries);
+      infeasible.push(...entries.map((e) => e.inf));
     }
     const violations = this.factory?.boundViolations ?? [];
     const provedOptimal = !this.cancelled && this.allComplete && this.found.get(this.objective)?.complete === true && violations.length === 0;
