@@ -7,7 +7,7 @@ import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts'
 import { OpenError, ProjectStore, StoreError } from '../store/project-store.ts';
 import { validateRequirements } from '../engine/validate.ts';
 import { formatQuantity } from '../engine/notation.ts';
-import type { Requirements } from '../engine/model.ts';
+import { DEFAULT_WINDOW_MARGIN, type Requirements } from '../engine/model.ts';
 import type { Plan, PlanResult } from '../engine/plan-types.ts';
 import type { Objective } from '../engine/planner/score.ts';
 import { runPlanInWorker } from '../worker/run-plan.ts';
@@ -61,6 +61,11 @@ export function renderPlan(req: Requirements, result: PlanResult, plan: Plan): s
   for (const src of req.sources) {
     out.push(`${src.name} (${v(src.vMin)}…${v(src.vMax)})`);
     walk(src.id, 1, new Set());
+  }
+  const marginal = plan.reasons.filter((r) => r.code === 'marginal');
+  if (marginal.length) {
+    out.push('', `Marginal (worst-case window within ${+(100 * (req.limits.windowMargin ?? DEFAULT_WINDOW_MARGIN)).toPrecision(3)} % of its band half-width from an edge): ` +
+      marginal.map((r) => result.rails.find((x) => x.id === r.subjectId)?.name ?? r.subjectId).join(', '));
   }
   out.push('', 'Reasons:');
   for (const r of plan.reasons) out.push(`  - ${r.text}`);

@@ -76,7 +76,16 @@ export interface DesignLimits {
   electrolyticDerating: Ratio;
   /** Fraction of a resistor's or semiconductor's rated power it may dissipate. */
   powerDerating: Ratio;
+  /**
+   * Margin a rail's worst-case window should keep from its band edges, as a share of the
+   * band's half-width (0.1 = 10 %); a plan whose rail comes closer reports it as marginal.
+   * Absent in older projects: DEFAULT_WINDOW_MARGIN applies.
+   */
+  windowMargin?: Ratio;
 }
+
+/** Default window margin: 10 % of a rail's band half-width (common practice, a judgement). */
+export const DEFAULT_WINDOW_MARGIN = 0.1 as Ratio;
 
 export interface PlannerPreferences {
   /** Weights of the objectives in the balanced score (need not sum to 1). */

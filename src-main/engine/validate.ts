@@ -154,6 +154,10 @@ export function validateRequirements(req: Requirements): Problem[] {
     if (!isNum(lim[k]) || lim[k] <= 0 || lim[k] > 1) add(`limits.${k}`, `${k} must be above 0 and at most 1 (got ${String(lim[k])})`);
   }
 
+  if (lim.windowMargin !== undefined && (!isNum(lim.windowMargin) || lim.windowMargin < 0 || lim.windowMargin >= 1)) {
+    add('limits.windowMargin', `windowMargin is a share of the band's half-width, at least 0 and below 1 (got ${String(lim.windowMargin)})`);
+  }
+
   // Planner preferences.
   const pref = req.preferences;
   const w = pref.weights ?? { loss: NaN, cost: NaN, parts: NaN };

@@ -2,7 +2,7 @@
  * Turn a selection of blocks into a complete Plan (stages in upstream-first order, internal
  * nodes, score, reasons), and explain infeasibility when no plan exists.
  */
-import type { Id, Requirements, StageKind } from '../model.ts';
+import { DEFAULT_WINDOW_MARGIN, type Id, type Requirements, type StageKind } from '../model.ts';
 import { formatQuantity } from '../notation.ts';
 import type { Infeasibility, InternalNode, Plan, PlanLabel, PlanStage, Reason } from '../plan-types.ts';
 import { BlockFactory, type Miss } from './candidates.ts';
@@ -88,6 +88,29 @@ export function assemblePlan(
       data: { share: myShare, ...(alt ? { alternativeShare: altShare } : {}) },
     });
   }
+  // Margins: a rail whose worst-case window comes within windowMargin × its band half-width
+  // of a band edge is reported as marginal.
+  const share = f.req.limits.windowMargin ?? DEFAULT_WINDOW_MARGIN;
+  sel.evals.forEach((e) => {
+    for (const w of e.windows) {
+      const rail = rails.find((x) => x.id === w.nodeId);
+      if (!rail) continue;
+      const a = Math.abs(rail.voltage);
+      const half = a * rail.tolerance;
+      const lo = Math.min(Math.abs(w.min), Math.abs(w.max)), hi = Math.max(Math.abs(w.min), Math.abs(w.max));
+      const margin = Math.min(lo - (a - half), a + half - hi);
+      if (margin < share * half) {
+        const side = lo - (a - half) <= a + half - hi ? 'lower' : 'upper';
+        reasons.push({
+          code: 'marginal', subjectId: rail.id,
+          text: `${rail.name} is marginal: its worst-case window ${formatQuantity(lo, 'voltage', 4)}…${formatQuantity(hi, 'voltage', 4)} comes within ` +
+            `${formatQuantity(Math.max(0, margin), 'voltage', 3)} of the ${side} edge of its ±${+(rail.tolerance * 100).toPrecision(3)} % band ` +
+            `(${+(100 * Math.max(0, margin) / half).toPrecision(2)} % of the ${formatQuantity(half, 'voltage', 3)} half-width; the margin asked is ${+(share * 100).toPrecision(3)} %)`,
+          data: { margin, halfWidth: half, share },
+        });
+      }
+    }
+  });
   return {
     id, labels, stages, internalNodes,
     score: planScore(sel, scorer),
