@@ -817,12 +817,32 @@ export function* generateBlocks(
   };
   const { singles, coupled } = enumerateShapes(f, opts);
   for (const s of singles) { add(s); yield; }
-  // Every winding set from 1 to maxSecondaries secondaries on every primary, smallest sets
-  // first (so a budget cut keeps the small ones). No set is skipped: a set whose subsets all
-  // miss can still be feasible (a ±12 V pair on a 5 V primary where each winding alone misses
-  // its window), so no subset rule is sound for the engine (docs/planner.md).
-  for (let size = 1; size <= opts.maxSecondaries; size++) {
-    for (const s of coupled(size)) { add(s); yield; }
+  // Every winding set from 1 to maxSecondaries secondaries on every primary. No set is
+  // skipped: a set whose subsets all miss can still be feasible (a ±12 V pair on a 5 V primary
+  // where each winding alone misses its window), so no subset rule is sound for the engine
+  // (docs/planner.md). The subset rule only orders the work, so that a budget cut keeps the
+  // likeliest sets: first every one-secondary set, then by size the sets whose subsets of one
+  // fewer secondary all designed, then by size every other set.
+  const feasible = new Set<string>();
+  const designed = new Set<string>();
+  const key = (s: BlockShape) => BlockFactory.shapeKey(s);
+  const promising = (s: BlockShape & { kind: 'cwbuck' }) =>
+    s.secondaries.every((_, d) => feasible.has(key({ ...s, secondaries: s.secondaries.filter((__, k) => k !== d) })));
+  const design = (s: BlockShape) => { designed.add(key(s)); if (add(s)) feasible.add(key(s)); };
+  for (const s of coupled(1)) { design(s); yield; }
+  for (let size = 2; size <= opts.maxSecondaries; size++) {
+    for (const s of coupled(size)) {
+      if (s.kind !== 'cwbuck' || !promising(s)) continue;
+      design(s);
+      yield;
+    }
+  }
+  for (let size = 2; size <= opts.maxSecondaries; size++) {
+    for (const s of coupled(size)) {
+      if (designed.has(key(s))) continue;
+      design(s);
+      yield;
+    }
   }
   return { blocks, misses };
 }
