@@ -82,7 +82,23 @@ export interface DesignLimits {
    * Absent in older projects: DEFAULT_WINDOW_MARGIN applies.
    */
   windowMargin?: Ratio;
+  /** Largest secondary-to-primary turns ratio |Ns/Np| a coupled-winding magnetic may have. */
+  maxTurnsRatio?: number;
+  /** Largest reverse voltage a secondary's rectifier may see (at Vin max). */
+  maxRectifierVoltage?: Volts;
 }
+
+/**
+ * Default turns-ratio limit: beyond about 1:10 leakage and cross-regulation make a
+ * coupled-winding buck's secondaries hard to hold (common practice, from memory).
+ */
+export const DEFAULT_MAX_TURNS_RATIO = 10;
+/**
+ * Default rectifier stress limit: 200 V, the top of the common ultrafast and Schottky
+ * rectifier ratings (common practice, from memory); above it the plan needs high-voltage
+ * rectifiers and the secondaries carry hazardous voltages.
+ */
+export const DEFAULT_MAX_RECTIFIER_VOLTAGE = 200 as Volts;
 
 /** Default window margin: 10 % of a rail's band half-width (common practice, a judgement). */
 export const DEFAULT_WINDOW_MARGIN = 0.1 as Ratio;

@@ -62,3 +62,37 @@ describe('window margins', () => {
     expect(JSON.stringify(problems)).toMatch(/limits\.windowMargin/);
   });
 });
+
+describe('turns-ratio and rectifier-voltage limits', () => {
+  /** A 1.2 V primary from 10–14 V making an isolated 15 V rail: a turns ratio above 1:10. */
+  function highRatio(): Requirements {
+    const req = oneRail();
+    req.sources[0] = { id: 'in', name: 'Input', vNom: 12 as Volts, vMin: 10 as Volts, vMax: 14 as Volts, currentLimit: 5 as Amps };
+    req.domains.push({ id: 'iso', name: 'Iso', isolation: 'functional', workingVoltage: 60 as Volts });
+    req.loads = [
+      { id: 'P', name: 'core', domainId: 'main', voltage: 1.2 as Volts, tolerance: 0.05 as Ratio, current: { run: 0.5 as Amps }, rippleLimit: 0.05 as Volts, noiseClass: 'standard' },
+      { id: 'S', name: 'iso supply', domainId: 'iso', voltage: 15 as Volts, tolerance: 0.1 as Ratio, current: { run: 0.05 as Amps }, rippleLimit: 0.1 as Volts, noiseClass: 'standard' },
+    ];
+    req.preferences = { ...req.preferences, allowedKinds: ['buck', 'cwbuck'], maxSecondaries: 1 };
+    return req;
+  }
+
+  it('rejects a winding above the turns-ratio limit with its numbers, and allows it when the limit is raised', async () => {
+    const { BlockFactory } = await import('../../src-main/engine/planner/candidates.ts');
+    const { engineEvaluator } = await import('../../src-main/engine/planner/evaluator.ts');
+    const { inventedCostModel } = await import('../../src-main/engine/planner/cost-model.ts');
+    const { groupRails } = await import('../../src-main/engine/rails.ts');
+    const req = highRatio();
+    const rails = groupRails(req);
+    const p = rails.findIndex((r) => r.voltage === 1.2), s = rails.findIndex((r) => r.voltage === 15);
+    const shape = { kind: 'cwbuck' as const, input: { kind: 'source' as const, id: 'in' }, primary: p, secondaries: [s] };
+    const limited = new BlockFactory(req, rails, engineEvaluator(), inventedCostModel()).evaluate(shape);
+    expect(limited.ok).toBe(false);
+    const rj = !limited.ok ? limited.rejections[0]! : null;
+    expect(rj?.constraint).toMatch(/turns-ratio|rectifier-voltage/);
+    expect(rj?.text).toMatch(/above the .* limit of the design limits/);
+    req.limits.maxTurnsRatio = 100;
+    req.limits.maxRectifierVoltage = 1000 as Volts;
+    expect(new BlockFactory(req, rails, engineEvaluator(), inventedCostModel()).evaluate(shape).ok).toBe(true);
+  });
+});

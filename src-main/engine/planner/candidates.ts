@@ -18,7 +18,7 @@
  *   the engine, and Tj ≤ tjMax − tjMargin.
  */
 import type { Amps, Celsius, Hertz, Ratio, Volts } from '../units.ts';
-import type { Domain, Id, Rail, Requirements, Source, StageKind } from '../model.ts';
+import { DEFAULT_MAX_RECTIFIER_VOLTAGE, DEFAULT_MAX_TURNS_RATIO, type Domain, type Id, type Rail, type Requirements, type Source, type StageKind } from '../model.ts';
 import type { Barrier, InternalNode, PlanOutput, Reason } from '../plan-types.ts';
 import type { OutputSpec, OutputWindow, StageEvaluation, StageSpec } from '../stages/types.ts';
 import { addParts, countParts, emptyParts } from './cost-model.ts';
@@ -508,6 +508,8 @@ export class BlockFactory {
         if (!changed || !this.req.preferences.allowedKinds.includes('ldo')) return run;
         continue;
       }
+      const stress = this.windingStress(run.design, shape, (i) => railOf[i]);
+      if (stress) return { ok: false, rejections: [stress] };
       // The hint is the choice of the unloaded one-secondary block only (a loaded evaluation
       // must not change where later sets start: the design of a block is a function of it).
       const loaded = !!extra && [...extra.values()].some((e) => e.some((x) => x > 0));
@@ -517,6 +519,36 @@ export class BlockFactory {
       return { ok: true, eval: this.assembleCoupled(shape, src, vin, spec, run, taps, directMiss, primaryName) };
     }
     return { ok: false, rejections: [{ constraint: 'window', shortfall: 0, unit: 'V', text: 'no tap voltage keeps every secondary inside its window' }] };
+  }
+
+  /**
+   * Engineering limits on a coupled-winding design (design limits, defaults from common
+   * practice): the turns ratio |Ns/Np| of every secondary and its rectifier's reverse voltage.
+   */
+  private windingStress(design: unknown, shape: BlockShape & { kind: 'cwbuck' }, railOf: (i: number) => number | undefined): Rejection | null {
+    const d = design as { primaryTurns?: number; secondaries?: { nodeId: string; turns: number; rectifierReverseVoltage: number }[] };
+    if (typeof d?.primaryTurns !== 'number' || !Array.isArray(d.secondaries)) return null;
+    const maxRatio = this.req.limits.maxTurnsRatio ?? DEFAULT_MAX_TURNS_RATIO;
+    const maxVr = this.req.limits.maxRectifierVoltage ?? DEFAULT_MAX_RECTIFIER_VOLTAGE;
+    for (let k = 0; k < d.secondaries.length; k++) {
+      const w = d.secondaries[k]!;
+      const rail = railOf(k + 1) ?? shape.secondaries[k];
+      const name = rail !== undefined ? this.ctx.rails[rail]!.name : w.nodeId;
+      const ratio = Math.abs(w.turns) / d.primaryTurns;
+      if (ratio > maxRatio * (1 + 1e-9)) {
+        return {
+          constraint: 'turns-ratio', shortfall: ratio - maxRatio, unit: '', rail,
+          text: `the winding for ${name} needs turns ${d.primaryTurns}:${Math.abs(w.turns)} (ratio 1:${+ratio.toPrecision(3)}), above the 1:${maxRatio} limit of the design limits`,
+        };
+      }
+      if (w.rectifierReverseVoltage > maxVr * (1 + 1e-9)) {
+        return {
+          constraint: 'rectifier-voltage', shortfall: w.rectifierReverseVoltage - maxVr, unit: 'V', rail,
+          text: `the rectifier of ${name} sees ${fmtQ(w.rectifierReverseVoltage)} reverse at Vin max, above the ${fmtQ(maxVr)} limit of the design limits by ${fmtQ(w.rectifierReverseVoltage - maxVr)}`,
+        };
+      }
+    }
+    return null;
   }
 
   private assembleCoupled(

@@ -7,7 +7,8 @@
  * evaluateStage, stageWindows) with the load of the stages it feeds, and returns the best
  * weighted score. It re-implements the documented per-block design rules (design currents
  * rounded outward to two significant digits, tap + LDO after a direct miss, tap choices in
- * order; every block must also design without its downstream load) from the text, not from
+ * order; the turns-ratio and rectifier-voltage limits; every block must also design without
+ * its downstream load) from the text, not from
  * the planner's code. Small cases only (≤ 6 rails).
  *
  * Shared with the planner only what defines the problem: the requirements, the rails
@@ -16,7 +17,7 @@
  */
 import { designStage, evaluateStage, stageWindows, type StageDesign } from '../../../src-main/engine/stages/index.ts';
 import type { OutputSpec, OutputWindow, StageEvaluation, StageSpec } from '../../../src-main/engine/stages/types.ts';
-import type { Domain, Rail, Requirements, StageKind } from '../../../src-main/engine/model.ts';
+import { DEFAULT_MAX_RECTIFIER_VOLTAGE, DEFAULT_MAX_TURNS_RATIO, type Domain, type Rail, type Requirements, type StageKind } from '../../../src-main/engine/model.ts';
 import { groupRails } from '../../../src-main/engine/rails.ts';
 import { makeScorer, type Objective } from '../../../src-main/engine/planner/score.ts';
 import { TAP_VARIANTS } from '../../../src-main/engine/planner/candidates.ts';
@@ -273,7 +274,7 @@ export class IndependentOracle {
    * max} × each output's current range; then each mode at Vin nominal and its exact currents.
    * Returns the per-mode evaluations, or the misses by output index ('window' or 'ripple').
    */
-  private run(spec0: StageSpec, modeCurrents: number[][]): { ok: true; perMode: StageEvaluation[]; atMin: StageEvaluation } | { ok: false; misses: Map<number, { what: 'window' | 'ripple' | 'other'; by: number }> } {
+  private run(spec0: StageSpec, modeCurrents: number[][]): { ok: true; perMode: StageEvaluation[]; atMin: StageEvaluation; design: StageDesign } | { ok: false; misses: Map<number, { what: 'window' | 'ripple' | 'other'; by: number }> } {
     const spec: StageSpec = { ...spec0, outputs: spec0.outputs.map((o) => ({ ...o, currentMax: gridUp(o.currentMax) as Amps, currentMin: gridDown(o.currentMin) as Amps })) };
     const key = JSON.stringify(spec);
     let d = this.designs.get(key);
@@ -308,7 +309,7 @@ export class IndependentOracle {
     const perMode = modeCurrents.map((c) => evaluateStage(d.design, { vin: spec.vinNom, iout: c as Amps[], ambient }));
     for (const ev of perMode) checkEv(ev);
     if (misses.size) return { ok: false, misses };
-    return { ok: true, perMode, atMin };
+    return { ok: true, perMode, atMin, design: d.design };
   }
 
   private parts(kind: 'buck' | 'ldo' | 'cwbuck', secondaries = 0): PartCounts {
@@ -433,6 +434,11 @@ export class IndependentOracle {
         if (!changed || !this.kinds.has('ldo')) break;
         continue;
       }
+      // Design limits on the windings: turns ratio and rectifier reverse voltage.
+      const cw = res.design as { primaryTurns: number; secondaries: { turns: number; rectifierReverseVoltage: number }[] };
+      const maxRatio = this.req.limits.maxTurnsRatio ?? DEFAULT_MAX_TURNS_RATIO;
+      const maxVr = this.req.limits.maxRectifierVoltage ?? DEFAULT_MAX_RECTIFIER_VOLTAGE;
+      if (cw.secondaries.some((w) => Math.abs(w.turns) / cw.primaryTurns > maxRatio * (1 + 1e-9) || w.rectifierReverseVoltage > maxVr * (1 + 1e-9))) break;
       const p = this.parts('cwbuck', secondaries.length);
       p.barrier = isoDomains.size;
       const ldoP = this.parts('ldo');
