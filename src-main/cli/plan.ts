@@ -7,7 +7,7 @@ import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts'
 import { OpenError, ProjectStore, SaveRefused, StoreError } from '../store/project-store.ts';
 import { validateRequirements } from '../engine/validate.ts';
 import { formatQuantity } from '../engine/notation.ts';
-import type { Requirements } from '../engine/model.ts';
+import { DEFAULT_WINDOW_MARGIN, type Requirements } from '../engine/model.ts';
 import type { Plan, PlanResult } from '../engine/plan-types.ts';
 import type { Objective } from '../engine/planner/score.ts';
 import { runPlanInWorker } from '../worker/run-plan.ts';
@@ -64,6 +64,11 @@ export function renderPlan(req: Requirements, result: PlanResult, plan: Plan): s
     out.push(`${src.name} (${v(src.vMin)}…${v(src.vMax)})`);
     walk(src.id, 1, new Set());
   }
+  const marginal = plan.reasons.filter((r) => r.code === 'marginal');
+  if (marginal.length) {
+    out.push('', `Marginal (worst-case window within ${+(100 * (req.limits.windowMargin ?? DEFAULT_WINDOW_MARGIN)).toPrecision(3)} % of its band half-width from an edge): ` +
+      marginal.map((r) => result.rails.find((x) => x.id === r.subjectId)?.name ?? r.subjectId).join(', '));
+  }
   out.push('', 'Reasons:');
   for (const r of plan.reasons) out.push(`  - ${r.text}`);
   return out;
@@ -88,7 +93,9 @@ function renderResult(req: Requirements, result: PlanResult, io: CliIo): void {
     }
   }
   io.out('');
-  io.out(`${result.stats.provedOptimal ? 'Proved optimal' : 'Best found within the budget (not proved optimal)'}; ${result.stats.explored} search nodes, ${result.stats.elapsedMs.toFixed(0)} ms.`);
+  const st = result.stats;
+  io.out(`${st.provedOptimal ? 'Proved optimal' : `Best found, not proved optimal${st.notProved ? ` (${st.notProved})` : ''}`}; ${st.explored} search nodes, ${st.elapsedMs.toFixed(0)} ms.`);
+  if (st.space) io.out(`${st.provedOptimal ? 'Proved over' : 'Searched'}: ${st.space.summary}.`);
   if (result.best.stages.some((s) => s.barriers.length)) { io.out(''); io.out(ISOLATION_CAUTION); }
 }
 

@@ -81,7 +81,32 @@ export interface DesignLimits {
    * ≥ (1 + margin)·Vin max [common practice 10–20 %]. Absent in older files: 0.1.
    */
   inputRatingMargin?: Ratio;
+  /**
+   * Margin a rail's worst-case window should keep from its band edges, as a share of the
+   * band's half-width (0.1 = 10 %); a plan whose rail comes closer reports it as marginal.
+   * Absent in older projects: DEFAULT_WINDOW_MARGIN applies.
+   */
+  windowMargin?: Ratio;
+  /** Largest secondary-to-primary turns ratio |Ns/Np| a coupled-winding magnetic may have. */
+  maxTurnsRatio?: number;
+  /** Largest reverse voltage a secondary's rectifier may see (at Vin max). */
+  maxRectifierVoltage?: Volts;
 }
+
+/**
+ * Default turns-ratio limit: beyond about 1:10 leakage and cross-regulation make a
+ * coupled-winding buck's secondaries hard to hold (common practice, from memory).
+ */
+export const DEFAULT_MAX_TURNS_RATIO = 10;
+/**
+ * Default rectifier stress limit: 200 V, the top of the common ultrafast and Schottky
+ * rectifier ratings (common practice, from memory); above it the plan needs high-voltage
+ * rectifiers and the secondaries carry hazardous voltages.
+ */
+export const DEFAULT_MAX_RECTIFIER_VOLTAGE = 200 as Volts;
+
+/** Default window margin: 10 % of a rail's band half-width (common practice, a judgement). */
+export const DEFAULT_WINDOW_MARGIN = 0.1 as Ratio;
 
 export interface PlannerPreferences {
   /** Weights of the objectives in the balanced score (need not sum to 1). */

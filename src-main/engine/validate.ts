@@ -178,6 +178,14 @@ export function validateRequirements(req: Requirements): Problem[] {
     add('limits.inputRatingMargin', `input rating margin must be from 0 to 1 (100 %) (got ${String(lim.inputRatingMargin)})`);
   }
 
+  if (lim.windowMargin !== undefined && (!isNum(lim.windowMargin) || lim.windowMargin < 0 || lim.windowMargin >= 1)) {
+    add('limits.windowMargin', `windowMargin is a share of the band's half-width, at least 0 and below 1 (got ${String(lim.windowMargin)})`);
+  }
+
+  for (const k of ['maxTurnsRatio', 'maxRectifierVoltage'] as const) {
+    if (lim[k] !== undefined && (!isNum(lim[k]) || !(lim[k]! > 0))) add(`limits.${k}`, `${k} must be a positive number (got ${String(lim[k])})`);
+  }
+
   // Planner preferences.
   const pref = req.preferences;
   const w = pref.weights ?? { loss: NaN, cost: NaN, parts: NaN };

@@ -38,6 +38,9 @@ describe('railwright plan', () => {
       // Isolated domains in the plan: the barrier and the safety caution are printed.
       expect(text).toMatch(/barrier: (basic|functional)/);
       expect(text).toMatch(/Caution: isolation barriers/);
+      // The claim names the space it holds over; "Proved optimal" only with the proof.
+      expect(text).toMatch(/^(Proved optimal;|Best found, not proved optimal \(.+\);)/m);
+      expect(text).toMatch(/^(Proved over|Searched): \d+ rails; feeds: /m);
       const store = ProjectStore.open(path);
       const saved = store.getPlanResult()!;
       expect(saved).not.toBeNull();
@@ -60,9 +63,11 @@ describe('railwright plan', () => {
       const path = makeProject(dir);
       const c = io();
       await runCli(['plan', path, '--json', '--budget-ms', '60000'], c.io);
-      const parsed = JSON.parse(c.out.join('\n')) as { rails: unknown[]; stats: { provedOptimal: boolean } };
+      const parsed = JSON.parse(c.out.join('\n')) as { rails: unknown[]; stats: { provedOptimal: boolean; notProved?: string; space?: { summary: string; candidates: number; designed: number } } };
       expect(parsed.rails.length).toBe(4);
       expect(typeof parsed.stats.provedOptimal).toBe('boolean');
+      expect(parsed.stats.space?.summary).toMatch(/4 rails; feeds: /);
+      expect(parsed.stats.provedOptimal).toBe(parsed.stats.notProved === undefined);
     } finally {
       rmSync(dir, { recursive: true, force: true });
     }
