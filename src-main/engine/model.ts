@@ -99,11 +99,12 @@ export interface DesignLimits {
  */
 export const DEFAULT_MAX_TURNS_RATIO = 10;
 /**
- * Default rectifier stress limit: 200 V, the top of the common ultrafast and Schottky
- * rectifier ratings (common practice, from memory); above it the plan needs high-voltage
- * rectifiers and the secondaries carry hazardous voltages.
+ * Default limit on a secondary's steady reverse voltage n·(Vin,max − Vpri) + |Vout|: 250 V.
+ * Above it the winding needs high-voltage rectifiers (the turn-on spike comes on top and is
+ * met by the part's rating or a snubber) and the secondary circuit carries hazardous
+ * voltages (common practice, from memory; a judgement, editable per project).
  */
-export const DEFAULT_MAX_RECTIFIER_VOLTAGE = 200 as Volts;
+export const DEFAULT_MAX_RECTIFIER_VOLTAGE = 250 as Volts;
 
 /** Default window margin: 10 % of a rail's band half-width (common practice, a judgement). */
 export const DEFAULT_WINDOW_MARGIN = 0.1 as Ratio;
