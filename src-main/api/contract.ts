@@ -109,11 +109,28 @@ export interface RollupView {
   messages: string[];
 }
 
+/** One line of text in the drawing, placed by the engine (baseline at y; box = the room it takes). */
+export interface LayoutText {
+  text: string;
+  x: number;
+  y: number;
+  size: number;
+  bold: boolean;
+  role: 'name' | 'key' | 'line';
+  box: { x: number; y: number; width: number; height: number };
+}
+
 export interface LayoutNode {
   id: Id;
   kind: 'source' | 'stage' | 'rail' | 'internal' | 'load';
+  /** Full name (hover, find-a-rail); the drawing shows `glance` or `detail`. */
   label: string;
   sub: string[];
+  /** The one figure shown at a glance. */
+  key: string;
+  /** Text at a glance (name and key figure, large) and in detail (name and every line, small). */
+  glance: LayoutText[];
+  detail: LayoutText[];
   domainId: Id | null;
   x: number;
   y: number;
@@ -135,6 +152,8 @@ export interface LayoutGroup {
   domainId: Id;
   label: string;
   isolation: string;
+  glance: LayoutText[];
+  detail: LayoutText[];
   x: number;
   y: number;
   width: number;
