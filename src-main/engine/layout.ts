@@ -314,7 +314,7 @@ export function textWidth(text: string, size: number, bold = false): number {
  * word stays whole); a number keeps its unit ("7.5 V") on its line.
  */
 export function wrapText(text: string, max: number): string[] {
-  const words = text.replace(/(\d) (?=[a-zµ]?[VAWT%]\b)/gi, '$1\u00a0').split(/\s+/).filter(Boolean)
+  const words = text.replace(/(\d) (?=[a-zµ]?[VAWT%]\b)/gi, '$1\u00a0').split(/[ \t\n]+/).filter(Boolean)
     .flatMap((w) => w.length > max && /-./.test(w.slice(1)) ? w.replace(/(?<=.)-(?=.)/g, '-\n').split('\n') : [w]);
   const out: string[] = [];
   let cur = '';
