@@ -63,6 +63,9 @@ export interface LibraryView {
 export interface StageFigures {
   stageId: Id;
   modeId: Id;
+  /** The stage's input voltage, loss and efficiency with the source at its min, nominal and max voltage (null: not computed). */
+  byCase: { vMin: StageCase | null; vNom: StageCase; vMax: StageCase | null };
+  /** The fields below are at V nom. */
   vin: number;
   pin: number;
   pout: number;
@@ -92,10 +95,17 @@ export interface SystemFigures {
   /** Efficiency and source current at the source's min, nominal and max voltage. */
   efficiency: { vMin: number; vNom: number; vMax: number };
   sourceCurrent: { vMin: number; vNom: number; vMax: number };
+  /** At V nom (the same as cases.vNom). */
   pin: number;
   pout: number;
   loss: number;
+  /** Source power, load power and loss at each input case. */
+  cases: { vMin: PowerCase; vNom: PowerCase; vMax: PowerCase };
 }
+
+export interface StageCase { vin: number; loss: number; efficiency: number }
+
+export interface PowerCase { pin: number; pout: number; loss: number }
 
 /** Everything the tree, inspector, budget and thermal views need about one plan. */
 export interface RollupView {
@@ -191,8 +201,26 @@ export interface BomView {
   currency: string;
 }
 
+/**
+ * One alternative's figures, from the same computations the Budget and Parts views use
+ * (roll-up: time-weighted loss over the modes at nominal input; BOM: cost and part count).
+ * A figure that could not be computed is null with the reason in `note`.
+ */
+export interface AlternativeFigures {
+  planId: Id;
+  weightedLoss: number | null;
+  cost: number | null;
+  parts: number | null;
+  note: string | null;
+}
+
+/** What the alternatives' figures are (stated beside them in the window). */
+export const ALTERNATIVE_BASIS = 'Loss: time-weighted over the operating modes at nominal input (as in Budget). Cost and parts: from the bill of materials (as in Parts).';
+
 /** The plan-side picture the window draws: the chosen alternative, computed. */
 export interface PlanView {
+  /** Per alternative, in the order of result.alternatives. */
+  alternatives: AlternativeFigures[];
   result: PlanResult;
   /** Id of the alternative currently shown (the best one unless the user picked another). */
   selectedId: Id | null;

@@ -7,7 +7,7 @@ import ELK from 'elkjs/lib/elk.bundled.js';
 import { groupRails } from '../engine/rails.ts';
 import { buildTreeView, entryPoint, groupText, layoutTree, nodeSize, nodeText, type LaidOutTree, type TreeFigures, type TreeView } from '../engine/layout.ts';
 import type { Plan } from '../engine/plan-types.ts';
-import type { LayoutView, PlanView, Snapshot, BomView } from './contract.ts';
+import type { AlternativeFigures, LayoutView, PlanView, Snapshot, BomView } from './contract.ts';
 import { projectProblems } from './requirements.ts';
 import type { Session } from './session.ts';
 import { computeRollup, computeBom, treeFigures, type ComputedRollup } from './figures.ts';
@@ -106,7 +106,27 @@ export async function buildPlanView(s: Session): Promise<PlanView | null> {
     }
   }
   if (rollup) notes.push(...rollup.view.messages);
-  return { result, selectedId: selected?.id ?? null, selected, stale: s.planStale(), rollup: rollup?.view ?? null, layout, bom, notes, drawingModeId: s.drawingModeId };
+  // Every alternative through the same roll-up and BOM as the chosen one (one number per quantity).
+  const alternatives: AlternativeFigures[] = result.alternatives.map((p) => {
+    const why: string[] = [];
+    let weightedLoss: number | null = null;
+    let cost: number | null = null;
+    let parts: number | null = null;
+    try {
+      weightedLoss = (p === selected && rollup ? rollup : computeRollup(s, p)).view.weightedLoss;
+    } catch (e) {
+      why.push(`roll-up: ${(e as Error).message}`);
+    }
+    try {
+      const b = p === selected && bom ? bom : computeBom(s, p);
+      cost = b.total;
+      parts = b.parts;
+    } catch (e) {
+      why.push(`BOM: ${(e as Error).message}`);
+    }
+    return { planId: p.id, weightedLoss, cost, parts, note: why.length ? why.join('; ') : null };
+  });
+  return { alternatives, result, selectedId: selected?.id ?? null, selected, stale: s.planStale(), rollup: rollup?.view ?? null, layout, bom, notes, drawingModeId: s.drawingModeId };
 }
 
 export async function buildSnapshot(s: Session): Promise<Snapshot> {

@@ -175,7 +175,11 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
   }
   for (const n of plan.internalNodes) {
     const fig = f?.nodes[n.id];
-    const lines = [`${n.kind === 'tap' ? 'winding tap' : 'bus'} ${fmtQty(fig?.v ?? n.voltage, 'V', 4)}`];
+    // One number per quantity: the name carries the planned (nominal) voltage; when the
+    // roll-up computes another, the line says which is which.
+    const kindWord = n.kind === 'tap' ? 'winding tap' : 'bus';
+    const differs = fig !== undefined && fmtQty(fig.v, 'V', 4) !== fmtQty(n.voltage, 'V', 4);
+    const lines = [differs ? `${kindWord}: nominal ${fmtQty(n.voltage, 'V', 4)}, computed ${fmtQty(fig!.v, 'V', 4)}` : `${kindWord} ${fmtQty(n.voltage, 'V', 4)}`];
     if (fig) lines.push(`${fmtQty(fig.i, 'A')} · ${fmtQty(fig.p, 'W')}`);
     if (winding.has(n.id)) lines.push(winding.get(n.id)!);
     const key = fig ? fmtQty(fig.i, 'A') : fmtQty(n.voltage, 'V', 4);
@@ -208,7 +212,7 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
 
   return {
     title: req.meta.name || 'Power tree',
-    subtitle: f ? `Figures for operating mode "${f.modeName}"` : 'Nominal voltages (no roll-up figures)',
+    subtitle: f ? `Figures for operating mode "${f.modeName}" at nominal input${req.sources.length === 1 ? ` (${fmtQty(req.sources[0]!.vNom, 'V')})` : ''}` : 'Nominal voltages (no roll-up figures)',
     modeName: f ? f.modeName : null,
     nodes,
     edges: okEdges,
