@@ -65,6 +65,9 @@ export interface LibraryView {
 export interface StageFigures {
   stageId: Id;
   modeId: Id;
+  /** The stage's input voltage, loss and efficiency with the source at its min, nominal and max voltage (null: not computed). */
+  byCase: { vMin: StageCase | null; vNom: StageCase; vMax: StageCase | null };
+  /** The fields below are at V nom. */
   vin: number;
   pin: number;
   pout: number;
@@ -94,10 +97,17 @@ export interface SystemFigures {
   /** Efficiency and source current at the source's min, nominal and max voltage. */
   efficiency: { vMin: number; vNom: number; vMax: number };
   sourceCurrent: { vMin: number; vNom: number; vMax: number };
+  /** At V nom (the same as cases.vNom). */
   pin: number;
   pout: number;
   loss: number;
+  /** Source power, load power and loss at each input case. */
+  cases: { vMin: PowerCase; vNom: PowerCase; vMax: PowerCase };
 }
+
+export interface StageCase { vin: number; loss: number; efficiency: number }
+
+export interface PowerCase { pin: number; pout: number; loss: number }
 
 /** Everything the tree, inspector, budget and thermal views need about one plan. */
 export interface RollupView {
@@ -111,11 +121,28 @@ export interface RollupView {
   messages: string[];
 }
 
+/** One line of text in the drawing, placed by the engine (baseline at y; box = the room it takes). */
+export interface LayoutText {
+  text: string;
+  x: number;
+  y: number;
+  size: number;
+  bold: boolean;
+  role: 'name' | 'key' | 'line';
+  box: { x: number; y: number; width: number; height: number };
+}
+
 export interface LayoutNode {
   id: Id;
   kind: 'source' | 'stage' | 'rail' | 'internal' | 'load';
+  /** Full name (hover, find-a-rail); the drawing shows `glance` or `detail`. */
   label: string;
   sub: string[];
+  /** The one figure shown at a glance. */
+  key: string;
+  /** Text at a glance (name and key figure, large) and in detail (name and every line, small). */
+  glance: LayoutText[];
+  detail: LayoutText[];
   domainId: Id | null;
   x: number;
   y: number;
@@ -137,6 +164,8 @@ export interface LayoutGroup {
   domainId: Id;
   label: string;
   isolation: string;
+  glance: LayoutText[];
+  detail: LayoutText[];
   x: number;
   y: number;
   width: number;
@@ -174,8 +203,26 @@ export interface BomView {
   currency: string;
 }
 
+/**
+ * One alternative's figures, from the same computations the Budget and Parts views use
+ * (roll-up: time-weighted loss over the modes at nominal input; BOM: cost and part count).
+ * A figure that could not be computed is null with the reason in `note`.
+ */
+export interface AlternativeFigures {
+  planId: Id;
+  weightedLoss: number | null;
+  cost: number | null;
+  parts: number | null;
+  note: string | null;
+}
+
+/** What the alternatives' figures are (stated beside them in the window). */
+export const ALTERNATIVE_BASIS = 'Loss: time-weighted over the operating modes at nominal input (as in Budget). Cost and parts: from the bill of materials (as in Parts).';
+
 /** The plan-side picture the window draws: the chosen alternative, computed. */
 export interface PlanView {
+  /** Per alternative, in the order of result.alternatives. */
+  alternatives: AlternativeFigures[];
   result: PlanResult;
   /** Id of the alternative currently shown (the best one unless the user picked another). */
   selectedId: Id | null;

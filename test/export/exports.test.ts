@@ -191,14 +191,17 @@ describe('tree SVG (parsed with fast-xml-parser)', () => {
     const all = texts(doc.svg);
     for (const r of b.result.rails) {
       expect(items.some((d) => d['@data-id'] === r.id && d['@data-kind'] === 'rail'), r.name).toBe(true);
-      const i = all.indexOf(r.name);
+      // Drawn under its name inside the domain box (the domain's words left out, the box says them).
+      const drawn = b.tree.nodes.find((n) => n.id === r.id)!.name;
+      expect(r.name.endsWith(drawn) || r.name === drawn, r.name).toBe(true);
+      const i = all.indexOf(drawn);
       expect(i, r.name).toBeGreaterThanOrEqual(0);
       // The two lines after a rail's name: its voltage, then current · power (drawing rule).
       expect(all[i + 1]).toMatch(/V ±/);
       expect(all[i + 2]).toMatch(/A · .*W$/);
     }
     for (const st of b.plan.stages) {
-      const i = all.indexOf(st.name);
+      const i = all.indexOf(b.tree.nodes.find((n) => n.id === st.id)!.name);
       expect(all[i + 2], st.name).toMatch(/^η \d+\.\d % · loss/);
     }
     // The isolated domain is outlined with a dashed stroke; crossing edges carry the barrier mark.
@@ -222,8 +225,8 @@ describe('tree SVG (parsed with fast-xml-parser)', () => {
 describe('PDF exports (text extracted with pdfjs-dist)', () => {
   it('tree PDF carries every rail and stage name', async () => {
     const text = await pdfPlainText(await exportTreePdf(b));
-    for (const r of b.result.rails) expect(text, r.name).toContain(r.name);
-    for (const s of b.plan.stages) expect(text).toContain(s.name);
+    // Names as drawn (inside a domain box without the domain's words).
+    for (const n of b.tree.nodes) expect(text, n.title).toContain(n.name);
   });
 
   it('design report has every section, the tables and the safety cautions', async () => {
