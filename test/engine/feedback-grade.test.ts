@@ -6,7 +6,7 @@ import { join } from 'node:path';
 import { partsForStage, tableToRows, type LibraryRow } from '../../src-main/engine/library.ts';
 import { readCsv } from '../../src-main/export/csv.ts';
 import { designStage, evaluateStage, stageWindows } from '../../src-main/engine/stages/index.ts';
-import type { BuckDesign } from '../../src-main/engine/stages/buck.ts';
+import { FSW_SET, type BuckDesign } from '../../src-main/engine/stages/buck.ts';
 import type { StageSpec } from '../../src-main/engine/stages/types.ts';
 import type { Amps, Celsius, Hertz, Ratio, Volts } from '../../src-main/engine/units.ts';
 
@@ -81,6 +81,31 @@ describe('feedback grade (resistor tolerance and reference grade)', () => {
     const { d } = design(s);
     expect(windowOf(d, s).inside).toBe(true);
     expect(d.divider.tolerance).toBeLessThan(0.01);
+  });
+});
+
+describe('per-stage switching frequency', () => {
+  it('1.0 V from 18–36 V at a 1 MHz project frequency falls back to the highest set frequency whose on-time passes', () => {
+    const s = buckSpec(1.0, 0.03, 1, 18, 36, 1e6);
+    const { d, reasons } = design(s);
+    expect(d.fsw).toBeLessThan(1e6);
+    expect(FSW_SET).toContain(d.fsw);
+    // On-time = D/fsw [Erickson & Maksimović, ch. 2], D from the model at Vin max, full load.
+    const duty = (f: number) => evaluateStage({ ...d, fsw: f as Hertz }, { vin: s.vinMax, iout: [1 as Amps], ambient: 50 as Celsius }).duty!;
+    expect(duty(d.fsw) / d.fsw).toBeGreaterThanOrEqual(d.controller.minOnTime);
+    const higher = FSW_SET.filter((f) => f > d.fsw && f < 1e6).at(-1)!;
+    expect(duty(higher) / higher).toBeLessThan(d.controller.minOnTime);
+    const why = reasons[0]!;
+    expect(why).toMatch(/^fsw \d+ kHz: on-time [\d.]+ ns at Vin 36 V is below the [\d.]+ ns minimum at the project's 1 MHz; \d+ kHz gives [\d.]+ ns/);
+    // The stage's own evaluation uses its own frequency (no on-time error at either input end).
+    for (const vin of [18, 36]) {
+      expect(evaluateStage(d, { vin: vin as Volts, iout: [1 as Amps], ambient: 50 as Celsius }).flags.filter((f) => f.code === 'min-on-time')).toEqual([]);
+    }
+  });
+
+  it('the project frequency stays when its on-time passes', () => {
+    const { d } = design(buckSpec(3.3, 0.05, 1, 9, 16, 400e3));
+    expect(d.fsw).toBe(400e3);
   });
 });
 

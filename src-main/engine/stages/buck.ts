@@ -393,7 +393,16 @@ function designBuckAt(spec: StageSpec, fswIn: number, grade: FeedbackGrade): Buc
 /** Resistor grades the divider may be bought in, loosest (cheapest) first [common practice: 1 %, 0.5 %, 0.1 %]. */
 export const RESISTOR_GRADES: readonly number[] = [0.01, 0.005, 0.001];
 
+/**
+ * Switching frequencies a buck falls back to, highest first, when the project's frequency
+ * puts the on-time at Vin max below the controller's minimum (on-time = D/fsw, Erickson &
+ * Maksimović ch. 2). The values are the usual settings of buck regulators' frequency pins
+ * [common practice]; only those below the project's frequency are tried.
+ */
+export const FSW_SET: readonly number[] = [2e6, 1e6, 600e3, 400e3, 300e3, 200e3, 150e3, 100e3];
+
 const pct = (x: number) => `${+(x * 100).toPrecision(3)} %`;
+const hz = (f: number) => (f >= 1e6 ? `${+(f / 1e6).toPrecision(3)} MHz` : `${+(f / 1e3).toPrecision(3)} kHz`);
 
 /** The window of the buck's output over the corners the planner checks (vin min/nom/max × load min/max). */
 function buckWindow(d: BuckDesign, spec: StageSpec): OutputWindow {
@@ -468,11 +477,39 @@ function designBuckGraded(spec: StageSpec, fsw: number): BuckResult {
   return { ok: true, design: b.design, reasons, flags: flagsOf.get(b.src)! };
 }
 
-/** Design a buck with the cheapest feedback grade whose window fits (designBuckGraded). */
+/**
+ * Design a buck: at the project's switching frequency when the on-time allows, else at the
+ * highest frequency of FSW_SET below it that passes the on-time and duty checks; with the
+ * cheapest feedback grade whose window fits (designBuckGraded).
+ */
 export function designBuck(spec: StageSpec): BuckResult {
   const bad = specErrors(spec);
   if (bad.length) return { ok: false, flags: bad };
-  return designBuckGraded(spec, spec.fsw as number);
+  const f0 = spec.fsw as number;
+  const first = designBuckGraded(spec, f0);
+  // The shortest on-time (at Vin max) is the one a lower frequency must lift.
+  const ton0 = first.ok ? undefined : first.flags.filter((f) => f.code === 'min-on-time')
+    .sort((a, b) => Number(a.data?.onTime) - Number(b.data?.onTime))[0];
+  if (first.ok || !ton0) return first;
+  const lower = FSW_SET.filter((f) => f < f0 * (1 - 1e-9));
+  let last: BuckResult = first;
+  for (const f of lower) {
+    const r = designBuckGraded(spec, f);
+    if (r.ok) {
+      const o = spec.outputs[0]!;
+      const ev = evaluateBuck(r.design, { vin: spec.vinMax, iout: [o.currentMax], ambient: spec.ambient });
+      const d0 = ton0.data ?? {};
+      r.reasons.unshift(`fsw ${hz(f)}: on-time ${r3(Number(d0.onTime) * 1e9)} ns at Vin ${r3(Number(d0.vin))} V is below the ${r3(Number(d0.minOnTime) * 1e9)} ns minimum at the project's ${hz(f0)}; ${hz(f)} gives ${r3(((ev.duty ?? 0) / f) * 1e9)} ns (the highest of ${lower.map(hz).join(', ')} that passes)`);
+      return r;
+    }
+    last = r;
+  }
+  if (lower.length === 0) return first;
+  const why = last.ok ? '' : last.flags.find((x) => x.severity === 'error')?.text ?? '';
+  return {
+    ok: false,
+    flags: first.flags.map((x) => (x === ton0 ? { ...x, text: `${x.text}; the lower frequencies ${lower.map(hz).join(', ')} fail too (at ${hz(lower.at(-1)!)}: ${why})` } : x)),
+  };
 }
 
 /** Evaluate at Vin min and max with the largest currents; collect unique flags. */

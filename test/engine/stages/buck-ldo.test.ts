@@ -82,12 +82,20 @@ describe('synchronous buck: textbook closed forms (Erickson & Maksimović, Funda
     const d = buck();
     expect(evaluateStage(d, op(12, [2])).duty!).toBeGreaterThan(d.divider.vout / 12);
   });
-  it('refuses a minimum on-time violation at Vin max, with the numbers', () => {
+  it('a minimum on-time violation at the project frequency moves the stage to a lower frequency of the set', () => {
     const r = designStage(spec({ kind: 'buck', vinMin: 36, vinNom: 48, vinMax: 60, fsw: 2e6, outputs: [out(1.0, 1)] }));
+    // D ≈ 1/60 at 2 MHz: about 8.5 ns against the 100 ns minimum; on-time = D/fsw
+    // [Erickson & Maksimović, ch. 2] reaches 100 ns near 170 kHz, so 150 kHz is the highest that passes.
+    expect(r.ok).toBe(true);
+    expect(r.ok && r.design.kind === 'buck' && r.design.fsw).toBe(150e3);
+    expect(r.ok && r.reasons[0]).toMatch(/^fsw 150 kHz: on-time [\d.]+ ns at Vin 60 V is below the 100 ns minimum at the project's 2 MHz; 150 kHz gives [\d.]+ ns/);
+  });
+  it('refuses a minimum on-time violation at Vin max when no frequency of the set passes, with the numbers', () => {
+    const r = designStage(spec({ kind: 'buck', vinMin: 100, vinNom: 120, vinMax: 150, fsw: 2e6, outputs: [out(1.0, 1)] }));
     expect(r.ok).toBe(false);
-    const f = !r.ok ? r.flags.find((x) => x.code === 'min-on-time' && x.data?.vin === 60) : undefined;
-    // D ≈ 1/60 at 2 MHz: about 8.5 ns against the 100 ns minimum
-    expect(f?.text).toMatch(/on-time \d.* ns at Vin 60 V is below the controller's minimum 100 ns/);
+    const f = !r.ok ? r.flags.find((x) => x.code === 'min-on-time' && x.data?.vin === 150) : undefined;
+    // D ≈ 1/150: about 3.4 ns at 2 MHz and 67 ns even at 100 kHz, against the 100 ns minimum
+    expect(f?.text).toMatch(/on-time \d.* ns at Vin 150 V is below the controller's minimum 100 ns: lower fsw or the input range; the lower frequencies 1 MHz, .*, 100 kHz fail too \(at 100 kHz: on-time/);
   });
   it('out of duty the output follows M = D (Erickson & Maksimović, ch. 2) and the flag quotes the duty it wanted', () => {
     const d = buck();
