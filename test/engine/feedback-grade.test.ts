@@ -9,6 +9,10 @@ import { designStage, evaluateStage, stageWindows } from '../../src-main/engine/
 import { FSW_SET, type BuckDesign } from '../../src-main/engine/stages/buck.ts';
 import type { StageSpec } from '../../src-main/engine/stages/types.ts';
 import type { Amps, Celsius, Hertz, Ratio, Volts } from '../../src-main/engine/units.ts';
+import { libraryCostModel } from '../../src-main/engine/library.ts';
+import { importProjectValue } from '../../src-main/store/json-format.ts';
+import { PlanSolver } from '../../src-main/engine/planner/solver.ts';
+import { engineEvaluator } from '../../src-main/engine/planner/evaluator.ts';
 
 const lib: LibraryRow[] = (() => {
   const r = tableToRows(readCsv(readFileSync(join(import.meta.dirname, '../../db/default-library.csv'), 'utf8')));
@@ -103,6 +107,24 @@ describe('per-stage switching frequency', () => {
     }
   });
 
+  it('the planner gets a tree for a 1.0 V rail straight from 18–36 V at a 1 MHz project frequency', () => {
+    // Invented two-rail project.
+    const doc = importProjectValue({
+      format: 'railwright-project', version: 1, meta: { name: 'Invented 1.0 V check' },
+      sources: [{ id: 'in', name: 'DC input', vNom: '24V', vMin: '18V', vMax: '36V', currentLimit: '1A' }],
+      domains: [{ id: 'main', name: 'Main', isolation: 'none', workingVoltage: 0 }],
+      modes: [{ id: 'run', name: 'Run', share: 1 }],
+      loads: [{ id: 'core', name: 'Core 1.0 V', domainId: 'main', voltage: '1V', tolerance: '±3%', current: { run: '1A' }, rippleLimit: '20mV', noiseClass: 'standard' }],
+      preferences: { switchingFrequency: '1 MHz' },
+    });
+    if (!doc.ok) throw new Error(JSON.stringify(doc.problems));
+    const req = doc.doc.requirements;
+    const result = new PlanSolver(req, { evaluator: engineEvaluator({ library: lib }), costModel: libraryCostModel(lib), budgetMs: 5000 }).solve();
+    expect(result.best, JSON.stringify(result.infeasible)).not.toBeNull();
+    const st = result.best!.stages.find((x) => x.outputs.some((o) => o.nodeId === result.rails[0]!.id))!;
+    expect(st.kind).toBe('buck');
+    expect((st.design as BuckDesign).fsw).toBeLessThan(1e6);
+  }, 60_000);
   it('the project frequency stays when its on-time passes', () => {
     const { d } = design(buckSpec(3.3, 0.05, 1, 9, 16, 400e3));
     expect(d.fsw).toBe(400e3);
