@@ -420,7 +420,8 @@ function eng(value: number, unit: string, digits = 3): string {
 }
 
 interface CapLike { role: string; value: number; count: number; ratedVoltage: number; workingVoltage: number; rmsCurrent?: number }
-interface DividerLike { rTop: number; rBottom: number; vout: number }
+/** A feedback divider; `tolerance` is the resistor grade the design was analysed with (default 1 %). */
+interface DividerLike { rTop: number; rBottom: number; vout: number; tolerance?: number }
 
 function pickFromRow(stageId: string, role: string, prefix: PartPick['prefix'], row: LibraryRow, value: string, rating: string, quantity: number, extra: Partial<PartPick> = {}): PartPick {
   return {
@@ -452,18 +453,20 @@ function pickCap(lib: LibraryRow[], stageId: string, c: CapLike, o: PickOptions)
     `no capacitor in the library offers ${value} at ${c.ratedVoltage} V or more`);
 }
 
-function pickResistor(lib: LibraryRow[], stageId: string, role: string, ohms: number, watts: number, o: PickOptions, quantity = 1): PartPick {
+/** Cheapest resistor of at least the grade (tolerance ≤ `tolerance`, default 1 %) that takes the power. */
+function pickResistor(lib: LibraryRow[], stageId: string, role: string, ohms: number, watts: number, o: PickOptions, quantity = 1, tolerance = 0.01): PartPick {
   const value = eng(ohms, 'Ω');
-  const row = cheapest(lib, 'resistor', (r) => numParam(r, 'power') * o.powerDerating >= watts && numParam(r, 'tolerance') <= 0.01 + 1e-12);
-  if (row) return pickFromRow(stageId, role, 'R', row, value, `${eng(numParam(row, 'power'), 'W')} ${numParam(row, 'tolerance') * 100} %`, quantity);
-  return missing(stageId, role, 'R', 'resistor', value, `≥ ${eng(watts / o.powerDerating, 'W')}`, quantity, `no 1 % resistor in the library takes ${eng(watts, 'W')} within the power derating`);
+  const grade = `${+(tolerance * 100).toPrecision(3)} %`;
+  const row = cheapest(lib, 'resistor', (r) => numParam(r, 'power') * o.powerDerating >= watts && numParam(r, 'tolerance') <= tolerance + 1e-12);
+  if (row) return pickFromRow(stageId, role, 'R', row, value, `${eng(numParam(row, 'power'), 'W')} ${+(numParam(row, 'tolerance') * 100).toPrecision(3)} %`, quantity);
+  return missing(stageId, role, 'R', 'resistor', value, `≥ ${eng(watts / o.powerDerating, 'W')}, ${grade}`, quantity, `no ${grade} resistor in the library takes ${eng(watts, 'W')} within the power derating`);
 }
 
 function pickDivider(lib: LibraryRow[], stageId: string, d: DividerLike, o: PickOptions): PartPick[] {
   const i = d.vout / (d.rTop + d.rBottom);
   return [
-    pickResistor(lib, stageId, `feedback top (sets ${eng(d.vout, 'V')})`, d.rTop, i * i * d.rTop, o),
-    pickResistor(lib, stageId, 'feedback bottom', d.rBottom, i * i * d.rBottom, o),
+    pickResistor(lib, stageId, `feedback top (sets ${eng(d.vout, 'V')})`, d.rTop, i * i * d.rTop, o, 1, d.tolerance ?? 0.01),
+    pickResistor(lib, stageId, 'feedback bottom', d.rBottom, i * i * d.rBottom, o, 1, d.tolerance ?? 0.01),
   ];
 }
 

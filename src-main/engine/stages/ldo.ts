@@ -116,6 +116,7 @@ function designFromLibrary(spec: StageSpec, lib: readonly LibraryRow[], base: Ld
   const rows = lib.filter((r) => r.partClass === 'ldo' && (pnum(r, 'negative') || 0) === neg && pnum(r, 'iMax') >= imax && pnum(r, 'vinMax') >= vinHi * (1 + margin) - 1e-9)
     .sort((a, b) => a.cost - b.cost || (a.id < b.id ? -1 : 1));
   const why: string[] = [];
+  let loose: { design: LdoDesign; reason: string } | null = null;
   for (const r of rows) {
     const iq = pnum(r, 'iq');
     const pmax = (vinHi - vout) * imax + vinHi * iq;
@@ -138,8 +139,18 @@ function designFromLibrary(spec: StageSpec, lib: readonly LibraryRow[], base: Ld
     };
     const p = ldoPoint(d, vinLo, imax);
     if (p.headroom < 0) { why.push(`${r.id}: ${r3(-p.headroom)} V short of its dropout at the ${r3(p.trough)} V trough`); continue; }
-    return { design: d, reason: `${r.name} (${r.id}): ${pnum(r, 'iMax')} A, ${pnum(r, 'vinMax')} V in (≥ ${r3(vinHi * (1 + margin))} V), θJA ${th} K/W from the library keeps ${r3(pmax)} W under ${spec.tjMax} °C` };
+    // Accuracy grade: the row's accuracy plus half the output ripple must fit the rail's band
+    // (the window stacks them, windows.ts); a cheaper, looser row is skipped for a tighter one.
+    const tol = base.outputs[0]!.tolerance as number;
+    const reason = `${r.name} (${r.id}): ${pnum(r, 'iMax')} A, ${pnum(r, 'vinMax')} V in (≥ ${r3(vinHi * (1 + margin))} V), θJA ${th} K/W from the library keeps ${r3(pmax)} W under ${spec.tjMax} °C`;
+    if (acc * vout + p.ripple / 2 > tol * vout + 1e-12) {
+      // Kept in reserve: when no row is accurate enough the cheapest stands and the window check reports the miss.
+      loose ??= { design: d, reason: `${reason}; its accuracy ±${r3(acc * 100)} % with ${r3(p.ripple * 1e3)} mV ripple does not fit ±${r3(tol * 100)} % and no row in the library does` };
+      continue;
+    }
+    return { design: d, reason: `${r.name} (${r.id}): ${pnum(r, 'iMax')} A, ${pnum(r, 'vinMax')} V in (≥ ${r3(vinHi * (1 + margin))} V), θJA ${th} K/W from the library keeps ${r3(pmax)} W under ${spec.tjMax} °C; accuracy ±${r3(acc * 100)} % within the rail's ±${r3(tol * 100)} %` };
   }
+  if (loose) return loose;
   return { problem: `no ${neg ? 'negative ' : ''}LDO in the library carries ${r3(imax)} A from ${r3(vinHi)} V (rated ≥ ${r3(vinHi * (1 + margin))} V)${why.length ? `: ${why.slice(0, 3).join('; ')}` : ''}` };
 }
 

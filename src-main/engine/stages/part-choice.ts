@@ -60,6 +60,24 @@ export interface SwitcherNeed {
   /** A coupled-winding stage needs forced PWM with a synchronous low side. */
   forcedPwm: boolean;
   margins?: Partial<RatingMargins>;
+  /**
+   * Reference grade: only controllers whose reference tolerance (the row's, or the generic
+   * default where the row states none) is at most this (absent: any grade).
+   */
+  vrefToleranceMax?: number;
+}
+
+/** A controller row's reference tolerance as the design would use it. */
+export function vrefToleranceOf(r: LibraryRow): number {
+  return has(r, 'vrefTolerance') ? num(r, 'vrefTolerance') : GENERIC_DEFAULTS.controller.vrefTolerance;
+}
+
+/**
+ * The cheapest resistor row of at least the given grade (tolerance ≤ grade); the BOM lists
+ * the divider with the same rule (engine/library.ts pickResistor). Null when the library has none.
+ */
+export function cheapestResistorOfGrade(lib: readonly LibraryRow[], tolerance: number): LibraryRow | null {
+  return cheapestOf(lib, 'resistor', (r) => num(r, 'tolerance') <= tolerance + 1e-12);
 }
 
 export interface SwitcherChoice {
@@ -119,7 +137,8 @@ export function chooseSwitcher(lib: readonly LibraryRow[], need: SwitcherNeed): 
   const okCtl = (r: LibraryRow) => num(r, 'vinMax') >= vinRating - 1e-9
     && (!has(r, 'uvlo') || num(r, 'uvlo') <= need.vinMin)
     && (!has(r, 'vinMin') || num(r, 'vinMin') <= need.vinMin)
-    && (!need.forcedPwm || num(r, 'forcedPwm') === 1);
+    && (!need.forcedPwm || num(r, 'forcedPwm') === 1)
+    && (need.vrefToleranceMax === undefined || vrefToleranceOf(r) <= need.vrefToleranceMax + 1e-12);
   const options: SwitcherChoice[] = [];
   const integ = cheapestOf(lib, 'controller', (r) => okCtl(r) && num(r, 'integrated') === 1 && num(r, 'iMax') >= need.iNeed && has(r, 'rdsHs') && has(r, 'rdsLs'));
   if (integ) {
@@ -161,7 +180,7 @@ export function chooseSwitcher(lib: readonly LibraryRow[], need: SwitcherNeed): 
     });
   }
   if (options.length === 0) {
-    return { problem: `no regulator or controller in the library is rated for ${vinRating.toFixed(1)} V (Vin max ${need.vinMax} V + ${Math.round(m.controllerInput * 100)} %), ${need.iNeed.toFixed(3)} A${need.forcedPwm ? ', forced PWM' : ''} with its UVLO below ${need.vinMin} V` };
+    return { problem: `no regulator or controller in the library is rated for ${vinRating.toFixed(1)} V (Vin max ${need.vinMax} V + ${Math.round(m.controllerInput * 100)} %), ${need.iNeed.toFixed(3)} A${need.forcedPwm ? ', forced PWM' : ''}${need.vrefToleranceMax !== undefined ? `, reference within ±${+(need.vrefToleranceMax * 100).toPrecision(3)} %` : ''} with its UVLO below ${need.vinMin} V` };
   }
   options.sort((a, b) => a.cost - b.cost || Number(b.integrated) - Number(a.integrated));
   return options[0]!;
