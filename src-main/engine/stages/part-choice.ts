@@ -258,7 +258,11 @@ export function diodeFromRow(row: LibraryRow, base: { n: number; rs: number; vfS
   const rs = Math.min(base.rs, (vf / 3) / Math.max(iF, 1e-6));
   const is = iF / Math.expm1((vf - rs * iF) / (base.n * VT));
   const d: DiodeModel = { is, n: base.n, rs, vfSpread: base.vfSpread };
-  if (has(row, 'cj') && num(row, 'cj') > 0) d.cjo = num(row, 'cj');
+  // The row's junction capacitance is kept on the part reference (and sizes a snubber), but
+  // is not put into the stage model: the leakage-ring model it would switch on is validated
+  // only while the secondary conducts through the whole off-time (docs/stage-json.md), and at
+  // light load it reads 5–47 % off the independent grid, which would make the planner refuse
+  // or accept windings on an unvalidated number. A stage file may still give rectifier.cjo.
   // The row's recovery time is not a transit time: the stored charge TT·I depends on how the
   // part is driven, and the coupled-winding model's recovery term with an undamped ring
   // multiplies it by √(Llk/Cj). It is kept on the row (and the BOM), not put into the model.

@@ -435,10 +435,12 @@ export class IndependentOracle {
         continue;
       }
       // Design limits on the windings: turns ratio and rectifier reverse voltage.
-      const cw = res.design as { primaryTurns: number; secondaries: { turns: number; rectifierReverseVoltage: number }[] };
+      const cw = res.design as { primaryTurns: number; vinMax: number; outputs: { voltage: number }[]; secondaries: { turns: number; rectifierReverseVoltage: number }[] };
+      // The limit is on the winding's steady reverse voltage n·(Vin,max − Vpri) + |Vout| (docs/planner.md).
+      const steady = (w: { turns: number }, k: number) => (Math.abs(w.turns) / cw.primaryTurns) * (cw.vinMax - Math.abs(cw.outputs[0]!.voltage)) + Math.abs(cw.outputs[k + 1]!.voltage);
       const maxRatio = this.req.limits.maxTurnsRatio ?? DEFAULT_MAX_TURNS_RATIO;
       const maxVr = this.req.limits.maxRectifierVoltage ?? DEFAULT_MAX_RECTIFIER_VOLTAGE;
-      if (cw.secondaries.some((w) => Math.abs(w.turns) / cw.primaryTurns > maxRatio * (1 + 1e-9) || w.rectifierReverseVoltage > maxVr * (1 + 1e-9))) break;
+      if (cw.secondaries.some((w, k) => Math.abs(w.turns) / cw.primaryTurns > maxRatio * (1 + 1e-9) || steady(w, k) > maxVr * (1 + 1e-9))) break;
       const p = this.parts('cwbuck', secondaries.length);
       p.barrier = isoDomains.size;
       const ldoP = this.parts('ldo');
