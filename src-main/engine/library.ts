@@ -10,6 +10,8 @@
 import type { PartLibraryRow } from './model.ts';
 import { magneticSpec } from './magnetics.ts';
 import type { CoupledBuckDesign } from './stages/index.ts';
+import { rowTopology } from './stages/part-choice.ts';
+import { boostParts, type BoostDesign } from './stages/boost/index.ts';
 import type { CostModel, PartCounts } from './planner/types.ts';
 import { INVENTED_UNIT_COST, TYPICAL_BUCK_PARTS } from './planner/cost-model.ts';
 
@@ -79,6 +81,7 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('vref', 'V', 'feedback reference voltage', 0.1, 10, false),
     num('vrefTolerance', '', 'reference tolerance over temperature, as a ratio (0.01 = ±1 %)', 0, 0.2, false),
     num('iLimit', 'A', 'peak (cycle-by-cycle) current limit', 0, 1000, false),
+    str('topology', 'converter topology it is made for: buck (default when empty), boost, inverting, buck-boost-4s', false),
     maker, mpn,
   ],
   switch: [
@@ -491,9 +494,9 @@ function capFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[] | u
 }
 
 /** Switching stage: one integrated regulator, or a controller plus two external switches, whichever costs less. */
-function pickSwitcher(lib: LibraryRow[], stageId: string, vinMax: number, iNeed: number, needForcedPwm: boolean, ipk: number): PartPick[] {
+function pickSwitcher(lib: LibraryRow[], stageId: string, vinMax: number, iNeed: number, needForcedPwm: boolean, ipk: number, topology = 'buck'): PartPick[] {
   const options: PartPick[][] = [];
-  const okCtl = (r: LibraryRow) => numParam(r, 'vinMax') >= vinMax && (!needForcedPwm || numParam(r, 'forcedPwm') === 1);
+  const okCtl = (r: LibraryRow) => numParam(r, 'vinMax') >= vinMax && (!needForcedPwm || numParam(r, 'forcedPwm') === 1) && rowTopology(r) === topology;
   const integ = cheapest(lib, 'controller', (r) => okCtl(r) && numParam(r, 'integrated') === 1 && numParam(r, 'iMax') >= iNeed);
   if (integ) options.push([pickFromRow(stageId, 'regulator (integrated switches)', 'U', integ, '', `${numParam(integ, 'vinMax')} V, ${numParam(integ, 'iMax')} A`, 1)]);
   const ext = cheapest(lib, 'controller', (r) => okCtl(r) && numParam(r, 'integrated') === 0 && numParam(r, 'iMax') >= iNeed);
@@ -532,6 +535,34 @@ interface AnyDesign {
   parts?: PartRefLike[];
 }
 
+
+/**
+ * The parts of a single-inductor switching stage (buck, boost…): regulator or controller and
+ * switch pair (the design's own library choice, else the cheapest fit for `vRating` and
+ * `iNeed` made for `topology`), the inductor, the capacitors and the feedback divider.
+ */
+export function inductorStageParts(stageId: string, design: unknown, library: LibraryRow[], opts: Partial<PickOptions>, need: { vRating: number; iNeed: number; topology?: string }): PartPick[] {
+  const o = { ...DEFAULT_PICK, ...opts };
+  const d = (design ?? {}) as AnyDesign;
+  const picks: PartPick[] = [];
+  const out0 = d.outputs?.[0];
+  if (!out0) return [missing(stageId, 'stage', 'U', 'controller', '', '', 1, 'the stage carries no design')];
+  const iMax = need.iNeed;
+  picks.push(...(switcherFromRefs(library, stageId, d.parts) ?? pickSwitcher(library, stageId, need.vRating, iMax, false, d.isat ?? iMax, need.topology)));
+  const L = d.inductance ?? 0;
+  const isat = d.isat ?? iMax;
+  const fromRef = d.parts ? picksFromRefs(library, stageId, d.parts, (r) => r === 'inductor', () => ({ prefix: 'L', value: eng(L, 'H'), rating: `Isat ≥ ${eng(isat, 'A')}` })) : null;
+  const ind = fromRef ? null : cheapest(library, 'inductor', (r) =>
+    numParam(r, 'lMin') <= L * (1 + 1e-9) && numParam(r, 'lMax') >= L * (1 - 1e-9) && numParam(r, 'iSat') * Math.sqrt(numParam(r, 'lMax') / L) >= isat);
+  picks.push(...(fromRef ?? [ind
+    ? pickFromRow(stageId, 'inductor', 'L', ind, eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1)
+    : missing(stageId, 'inductor', 'L', 'inductor', eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1, `no inductor in the library offers ${eng(L, 'H')} with ${eng(isat, 'A')} saturation current`)]));
+  if (d.cin) picks.push(capFromRefs(library, stageId, d.parts, d.cin, o));
+  if (d.cout) picks.push(capFromRefs(library, stageId, d.parts, d.cout, o));
+  if (d.divider) picks.push(...pickDivider(library, stageId, d.divider, o));
+  return picks;
+}
+
 /**
  * The concrete parts a stage design implies, chosen from the library (cheapest row that
  * fits). A part no row fits is still listed, with `problem` set and no cost.
@@ -542,22 +573,8 @@ export function partsForStage(stageId: string, design: unknown, library: Library
   const picks: PartPick[] = [];
   const out0 = d.outputs?.[0];
   if (!out0) return [missing(stageId, 'stage', 'U', 'controller', '', '', 1, 'the stage carries no design')];
-  if (d.kind === 'buck') {
-    const iMax = out0.currentMax;
-    picks.push(...(switcherFromRefs(library, stageId, d.parts) ?? pickSwitcher(library, stageId, d.vinMax ?? 0, iMax, false, d.isat ?? iMax)));
-    const L = d.inductance ?? 0;
-    const isat = d.isat ?? iMax;
-    const fromRef = d.parts ? picksFromRefs(library, stageId, d.parts, (r) => r === 'inductor', () => ({ prefix: 'L', value: eng(L, 'H'), rating: `Isat ≥ ${eng(isat, 'A')}` })) : null;
-    const ind = fromRef ? null : cheapest(library, 'inductor', (r) =>
-      numParam(r, 'lMin') <= L * (1 + 1e-9) && numParam(r, 'lMax') >= L * (1 - 1e-9) && numParam(r, 'iSat') * Math.sqrt(numParam(r, 'lMax') / L) >= isat);
-    picks.push(...(fromRef ?? [ind
-      ? pickFromRow(stageId, 'inductor', 'L', ind, eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1)
-      : missing(stageId, 'inductor', 'L', 'inductor', eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1, `no inductor in the library offers ${eng(L, 'H')} with ${eng(isat, 'A')} saturation current`)]));
-    if (d.cin) picks.push(capFromRefs(library, stageId, d.parts, d.cin, o));
-    if (d.cout) picks.push(capFromRefs(library, stageId, d.parts, d.cout, o));
-    if (d.divider) picks.push(...pickDivider(library, stageId, d.divider, o));
-    return picks;
-  }
+  if (d.kind === 'buck') return inductorStageParts(stageId, design, library, opts, { vRating: d.vinMax ?? 0, iNeed: out0.currentMax });
+  if (d.kind === 'boost') return boostParts(stageId, design as BoostDesign, library, opts);
   if (d.kind === 'cwbuck') {
     const secs = d.secondaries ?? [];
     // Worst primary peak over the input range and load patterns (engine/magnetics.ts); the

@@ -22,6 +22,15 @@ export const NOISE_CLASSES: readonly NoiseClass[] = ['rugged', 'standard', 'quie
 export type StageKind = 'buck' | 'cwbuck' | 'ldo' | 'iso-module' | 'load-switch';
 export const STAGE_KINDS: readonly StageKind[] = ['buck', 'cwbuck', 'ldo', 'iso-module', 'load-switch'];
 
+/**
+ * Every kind the stage engine models (engine/stages/: designStage, evaluateStage,
+ * stageWindows, the stage file format). The kinds beyond StageKind are engine models the
+ * planner does not choose among yet: they join StageKind (the project setting of allowed
+ * kinds) with the planner's integration.
+ */
+export type StageModelKind = StageKind | 'boost';
+export const STAGE_MODEL_KINDS: readonly StageModelKind[] = ['buck', 'cwbuck', 'ldo', 'boost'];
+
 export interface Source {
   id: Id;
   name: string;

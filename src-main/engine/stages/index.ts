@@ -7,6 +7,7 @@ import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from './ty
 import { designBuck, evaluateBuck, type BuckDesign } from './buck.ts';
 import { designCoupledBuck, evaluateCoupledBuck, type CoupledBuckDesign, type CoupledEvalOptions } from './cwbuck.ts';
 import { designLdo, evaluateLdo, type LdoDesign } from './ldo.ts';
+import { designBoost, evaluateBoost, type BoostDesign } from './boost/index.ts';
 import { stageWindows as windows, type WindowCorners, type WindowOptions } from './windows.ts';
 import type { OutputWindow } from './types.ts';
 import { flag } from './common.ts';
@@ -14,11 +15,12 @@ import { flag } from './common.ts';
 export type { BuckDesign } from './buck.ts';
 export type { CoupledBuckDesign, SecondaryWinding, CoupledEvalOptions } from './cwbuck.ts';
 export type { LdoDesign } from './ldo.ts';
+export type { BoostDesign } from './boost/index.ts';
 export type { CapacitorChoice } from './common.ts';
 export type { WindowCorners, WindowOptions } from './windows.ts';
 export { GENERIC_DEFAULTS } from './defaults.ts';
 
-export type StageDesign = BuckDesign | CoupledBuckDesign | LdoDesign;
+export type StageDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign;
 
 export type DesignResult =
   | { ok: true; design: StageDesign; reasons: string[]; /** Warnings (never errors). */ flags: StageFlag[] }
@@ -34,8 +36,9 @@ export function designStage(spec: StageSpec): DesignResult {
       case 'buck': return designBuck(spec);
       case 'cwbuck': return designCoupledBuck(spec);
       case 'ldo': return designLdo(spec);
+      case 'boost': return designBoost(spec);
       default:
-        return { ok: false, flags: [flag('unsupported-kind', 'error', `kind: "${String(spec.kind)}" has no stage model (buck, cwbuck, ldo)`, { field: 'kind' })] };
+        return { ok: false, flags: [flag('unsupported-kind', 'error', `kind: "${String(spec.kind)}" has no stage model (buck, cwbuck, ldo, boost)`, { field: 'kind' })] };
     }
   } catch (e) {
     return { ok: false, flags: [flag('bad-input', 'error', `spec: ${(e as Error).message}`)] };
@@ -61,6 +64,7 @@ export function evaluateStage(design: StageDesign, op: OperatingPoint, opts?: Co
     case 'buck': return evaluateBuck(design, op);
     case 'cwbuck': return evaluateCoupledBuck(design, op, opts);
     case 'ldo': return evaluateLdo(design, op);
+    case 'boost': return evaluateBoost(design, op);
     default: throw new StageInputError(`kind: "${String((design as { kind: unknown }).kind)}" has no stage model`);
   }
 }

@@ -60,6 +60,17 @@ export interface SwitcherNeed {
   /** A coupled-winding stage needs forced PWM with a synchronous low side. */
   forcedPwm: boolean;
   margins?: Partial<RatingMargins>;
+  /**
+   * The converter topology the controller must be made for (its row's `topology` parameter;
+   * a row without one is a buck controller). Default `buck`.
+   */
+  topology?: string;
+}
+
+/** The topology a controller row is made for (`topology` parameter; absent: buck). */
+export function rowTopology(r: LibraryRow): string {
+  const t = r.params.topology;
+  return typeof t === 'string' && t !== '' ? t : 'buck';
 }
 
 export interface SwitcherChoice {
@@ -119,7 +130,8 @@ export function chooseSwitcher(lib: readonly LibraryRow[], need: SwitcherNeed): 
   const okCtl = (r: LibraryRow) => num(r, 'vinMax') >= vinRating - 1e-9
     && (!has(r, 'uvlo') || num(r, 'uvlo') <= need.vinMin)
     && (!has(r, 'vinMin') || num(r, 'vinMin') <= need.vinMin)
-    && (!need.forcedPwm || num(r, 'forcedPwm') === 1);
+    && (!need.forcedPwm || num(r, 'forcedPwm') === 1)
+    && rowTopology(r) === (need.topology ?? 'buck');
   const options: SwitcherChoice[] = [];
   const integ = cheapestOf(lib, 'controller', (r) => okCtl(r) && num(r, 'integrated') === 1 && num(r, 'iMax') >= need.iNeed && has(r, 'rdsHs') && has(r, 'rdsLs'));
   if (integ) {
@@ -161,7 +173,7 @@ export function chooseSwitcher(lib: readonly LibraryRow[], need: SwitcherNeed): 
     });
   }
   if (options.length === 0) {
-    return { problem: `no regulator or controller in the library is rated for ${vinRating.toFixed(1)} V (Vin max ${need.vinMax} V + ${Math.round(m.controllerInput * 100)} %), ${need.iNeed.toFixed(3)} A${need.forcedPwm ? ', forced PWM' : ''} with its UVLO below ${need.vinMin} V` };
+    return { problem: `no ${need.topology && need.topology !== 'buck' ? `${need.topology} ` : ''}regulator or controller in the library is rated for ${vinRating.toFixed(1)} V (Vin max ${need.vinMax} V + ${Math.round(m.controllerInput * 100)} %), ${need.iNeed.toFixed(3)} A${need.forcedPwm ? ', forced PWM' : ''} with its UVLO below ${need.vinMin} V` };
   }
   options.sort((a, b) => a.cost - b.cost || Number(b.integrated) - Number(a.integrated));
   return options[0]!;

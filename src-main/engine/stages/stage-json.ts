@@ -8,7 +8,10 @@ import { parseQuantity, parseTolerance } from '../notation.ts';
 import type { QuantityKind } from '../units.ts';
 import type { OperatingPoint, OutputSpec, StageSpec } from './types.ts';
 import type { StageDesign, WindowCorners } from './index.ts';
-import { ISOLATION_CLASSES, type IsolationClass } from '../model.ts';
+import { ISOLATION_CLASSES, STAGE_MODEL_KINDS, type IsolationClass, type StageModelKind } from '../model.ts';
+
+const kindOk = (k: unknown): k is StageModelKind => STAGE_MODEL_KINDS.includes(k as StageModelKind);
+const KIND_LIST = STAGE_MODEL_KINDS.map((k) => `"${k}"`).join(', ');
 
 export interface StageFile {
   spec: StageSpec | null;
@@ -70,7 +73,7 @@ function parseOutput(v: unknown, path: string): OutputSpec {
 
 export function parseSpec(v: unknown, path = 'spec'): StageSpec {
   const o = obj(v, path);
-  if (o.kind !== 'buck' && o.kind !== 'cwbuck' && o.kind !== 'ldo') fail(`${path}.kind`, `one of "buck", "cwbuck", "ldo" (got ${JSON.stringify(o.kind)})`);
+  if (!kindOk(o.kind)) fail(`${path}.kind`, `one of ${KIND_LIST} (got ${JSON.stringify(o.kind)})`);
   if (!Array.isArray(o.outputs) || o.outputs.length === 0) fail(`${path}.outputs`, 'a non-empty list of outputs is required');
   const spec: StageSpec = {
     kind: o.kind,
@@ -106,7 +109,7 @@ export function parseSpec(v: unknown, path = 'spec'): StageSpec {
 /** A design is taken as written (it is the engine's own output); numbers must be finite. */
 function checkDesign(v: unknown, path = 'design'): StageDesign {
   const o = obj(v, path);
-  if (o.kind !== 'buck' && o.kind !== 'cwbuck' && o.kind !== 'ldo') fail(`${path}.kind`, `one of "buck", "cwbuck", "ldo" (got ${JSON.stringify(o.kind)})`);
+  if (!kindOk(o.kind)) fail(`${path}.kind`, `one of ${KIND_LIST} (got ${JSON.stringify(o.kind)})`);
   if (!Array.isArray(o.outputs) || o.outputs.length === 0) fail(`${path}.outputs`, 'a non-empty list of outputs is required');
   const walk = (x: unknown, p: string, depth: number): void => {
     if (depth > 8) fail(p, 'nested too deeply');

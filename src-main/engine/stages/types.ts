@@ -6,7 +6,7 @@
  * Changes here are additive only.
  */
 import type { Amps, Celsius, Hertz, KelvinPerWatt, Ratio, Volts, Watts } from '../units.ts';
-import type { Id, IsolationClass, StageKind } from '../model.ts';
+import type { Id, IsolationClass, StageModelKind } from '../model.ts';
 import type { LibraryRow } from '../library.ts';
 import type { RatingMargins } from './part-choice.ts';
 
@@ -27,7 +27,7 @@ export interface OutputSpec {
 
 /** What the planner asks a designer for. */
 export interface StageSpec {
-  kind: StageKind;
+  kind: StageModelKind;
   vinMin: Volts;
   vinNom: Volts;
   vinMax: Volts;
@@ -85,7 +85,7 @@ export interface OutputResult {
 
 /** One evaluated operating point. Energy balance: pin = pout + loss. */
 export interface StageEvaluation {
-  kind: StageKind;
+  kind: StageModelKind;
   vin: Volts;
   iin: Amps;
   pin: Watts;

@@ -16,9 +16,10 @@ import type { DividerChoice } from '../eseries.ts';
 import { buckAtDuty, buckPoint, evaluateBuck, type BuckDesign } from './buck.ts';
 import { coupledOutputs, type CoupledBuckDesign } from './cwbuck.ts';
 import { ldoPoint, type LdoDesign } from './ldo.ts';
+import { boostWindowAt, type BoostDesign } from './boost/index.ts';
 import { mulberry32, r3 } from './common.ts';
 
-export type WindowDesign = BuckDesign | CoupledBuckDesign | LdoDesign;
+export type WindowDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign;
 
 export interface WindowCorners {
   vin: Volts[];
@@ -61,6 +62,11 @@ function outputsAt(d: WindowDesign, vin: number, iout: number[], x: Draw): { lo:
     }
     const rp = ev.outputs[0]!.ripplePP as number;
     return [{ lo: v - rp / 2, hi: v + rp / 2 }];
+  }
+  if (d.kind === 'boost') {
+    // Boost: setpoint from reference and divider; out of regulation (duty limit, or an input
+    // above the setpoint) the output follows the input (stages/boost/index.ts).
+    return [boostWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
   }
   if (d.kind === 'cwbuck') {
     const sp = setpoint(d.divider, d.controller.vrefTolerance, x);
