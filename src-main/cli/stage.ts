@@ -11,6 +11,7 @@ import { parseStageFile, StageFileError, type StageFile } from '../engine/stages
 import { magneticSpec } from '../engine/magnetics.ts';
 import { buckNetlist, coupledBuckNetlist } from '../export/spice.ts';
 import { boostNetlist } from '../engine/stages/boost/index.ts';
+import { invertingNetlist } from '../engine/stages/inverting/index.ts';
 import type { OperatingPoint } from '../engine/stages/types.ts';
 import type { Amps, Celsius, Volts } from '../engine/units.ts';
 
@@ -104,7 +105,7 @@ const netlist: CliCommand = {
   usage: [
     'Usage: railwright netlist <stage.json>',
     '',
-    'Prints an open-loop SPICE netlist of the buck, coupled-winding buck or boost at the duty the',
+    'Prints an open-loop SPICE netlist of the buck, coupled-winding buck, boost or inverting stage at the duty the',
     'engine computes for the operating point (default: nominal input, full load). Run it with',
     '"ngspice -b file.cir"; the .meas lines report v_out<i> and i_in.',
   ].join('\n'),
@@ -120,6 +121,7 @@ const netlist: CliCommand = {
       if (design.kind === 'buck') io.out(buckNetlist(design, op).trimEnd());
       else if (design.kind === 'cwbuck') io.out(coupledBuckNetlist(design, op).trimEnd());
       else if (design.kind === 'boost') io.out(boostNetlist(design, op).trimEnd());
+      else if (design.kind === 'inverting') io.out(invertingNetlist(design, op).trimEnd());
       else throw new CliError('an LDO does not switch: there is no netlist to write');
       return 0;
     } catch (e) {

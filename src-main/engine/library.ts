@@ -12,6 +12,7 @@ import { magneticSpec } from './magnetics.ts';
 import type { CoupledBuckDesign } from './stages/index.ts';
 import { rowTopology } from './stages/part-choice.ts';
 import { boostParts, type BoostDesign } from './stages/boost/index.ts';
+import { invertingParts, type InvertingDesign } from './stages/inverting/index.ts';
 import type { CostModel, PartCounts } from './planner/types.ts';
 import { INVENTED_UNIT_COST, TYPICAL_BUCK_PARTS } from './planner/cost-model.ts';
 
@@ -575,6 +576,7 @@ export function partsForStage(stageId: string, design: unknown, library: Library
   if (!out0) return [missing(stageId, 'stage', 'U', 'controller', '', '', 1, 'the stage carries no design')];
   if (d.kind === 'buck') return inductorStageParts(stageId, design, library, opts, { vRating: d.vinMax ?? 0, iNeed: out0.currentMax });
   if (d.kind === 'boost') return boostParts(stageId, design as BoostDesign, library, opts);
+  if (d.kind === 'inverting') return invertingParts(stageId, design as InvertingDesign, library, opts);
   if (d.kind === 'cwbuck') {
     const secs = d.secondaries ?? [];
     // Worst primary peak over the input range and load patterns (engine/magnetics.ts); the

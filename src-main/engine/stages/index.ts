@@ -8,6 +8,7 @@ import { designBuck, evaluateBuck, type BuckDesign } from './buck.ts';
 import { designCoupledBuck, evaluateCoupledBuck, type CoupledBuckDesign, type CoupledEvalOptions } from './cwbuck.ts';
 import { designLdo, evaluateLdo, type LdoDesign } from './ldo.ts';
 import { designBoost, evaluateBoost, type BoostDesign } from './boost/index.ts';
+import { designInverting, evaluateInverting, type InvertingDesign } from './inverting/index.ts';
 import { stageWindows as windows, type WindowCorners, type WindowOptions } from './windows.ts';
 import type { OutputWindow } from './types.ts';
 import { flag } from './common.ts';
@@ -16,11 +17,12 @@ export type { BuckDesign } from './buck.ts';
 export type { CoupledBuckDesign, SecondaryWinding, CoupledEvalOptions } from './cwbuck.ts';
 export type { LdoDesign } from './ldo.ts';
 export type { BoostDesign } from './boost/index.ts';
+export type { InvertingDesign } from './inverting/index.ts';
 export type { CapacitorChoice } from './common.ts';
 export type { WindowCorners, WindowOptions } from './windows.ts';
 export { GENERIC_DEFAULTS } from './defaults.ts';
 
-export type StageDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign;
+export type StageDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign | InvertingDesign;
 
 export type DesignResult =
   | { ok: true; design: StageDesign; reasons: string[]; /** Warnings (never errors). */ flags: StageFlag[] }
@@ -37,8 +39,9 @@ export function designStage(spec: StageSpec): DesignResult {
       case 'cwbuck': return designCoupledBuck(spec);
       case 'ldo': return designLdo(spec);
       case 'boost': return designBoost(spec);
+      case 'inverting': return designInverting(spec);
       default:
-        return { ok: false, flags: [flag('unsupported-kind', 'error', `kind: "${String(spec.kind)}" has no stage model (buck, cwbuck, ldo, boost)`, { field: 'kind' })] };
+        return { ok: false, flags: [flag('unsupported-kind', 'error', `kind: "${String(spec.kind)}" has no stage model (buck, cwbuck, ldo, boost, inverting)`, { field: 'kind' })] };
     }
   } catch (e) {
     return { ok: false, flags: [flag('bad-input', 'error', `spec: ${(e as Error).message}`)] };
@@ -65,6 +68,7 @@ export function evaluateStage(design: StageDesign, op: OperatingPoint, opts?: Co
     case 'cwbuck': return evaluateCoupledBuck(design, op, opts);
     case 'ldo': return evaluateLdo(design, op);
     case 'boost': return evaluateBoost(design, op);
+    case 'inverting': return evaluateInverting(design, op);
     default: throw new StageInputError(`kind: "${String((design as { kind: unknown }).kind)}" has no stage model`);
   }
 }

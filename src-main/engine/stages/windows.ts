@@ -17,9 +17,10 @@ import { buckAtDuty, buckPoint, evaluateBuck, type BuckDesign } from './buck.ts'
 import { coupledOutputs, type CoupledBuckDesign } from './cwbuck.ts';
 import { ldoPoint, type LdoDesign } from './ldo.ts';
 import { boostWindowAt, type BoostDesign } from './boost/index.ts';
+import { invertingWindowAt, type InvertingDesign } from './inverting/index.ts';
 import { mulberry32, r3 } from './common.ts';
 
-export type WindowDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign;
+export type WindowDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign | InvertingDesign;
 
 export interface WindowCorners {
   vin: Volts[];
@@ -67,6 +68,10 @@ function outputsAt(d: WindowDesign, vin: number, iout: number[], x: Draw): { lo:
     // Boost: setpoint from reference and divider; out of regulation (duty limit, or an input
     // above the setpoint) the output follows the input (stages/boost/index.ts).
     return [boostWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
+  }
+  if (d.kind === 'inverting') {
+    // Inverting: magnitudes (the caller signs them); the setpoint is on |Vout|.
+    return [invertingWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
   }
   if (d.kind === 'cwbuck') {
     const sp = setpoint(d.divider, d.controller.vrefTolerance, x);
