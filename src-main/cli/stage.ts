@@ -12,6 +12,7 @@ import { magneticSpec } from '../engine/magnetics.ts';
 import { buckNetlist, coupledBuckNetlist } from '../export/spice.ts';
 import { boostNetlist } from '../engine/stages/boost/index.ts';
 import { invertingNetlist } from '../engine/stages/inverting/index.ts';
+import { fourSwitchNetlist } from '../engine/stages/buck-boost-4s/index.ts';
 import type { OperatingPoint } from '../engine/stages/types.ts';
 import type { Amps, Celsius, Volts } from '../engine/units.ts';
 
@@ -105,7 +106,7 @@ const netlist: CliCommand = {
   usage: [
     'Usage: railwright netlist <stage.json>',
     '',
-    'Prints an open-loop SPICE netlist of the buck, coupled-winding buck, boost or inverting stage at the duty the',
+    'Prints an open-loop SPICE netlist of the buck, coupled-winding buck, boost, inverting or four-switch buck-boost stage at the duty the',
     'engine computes for the operating point (default: nominal input, full load). Run it with',
     '"ngspice -b file.cir"; the .meas lines report v_out<i> and i_in.',
   ].join('\n'),
@@ -122,6 +123,7 @@ const netlist: CliCommand = {
       else if (design.kind === 'cwbuck') io.out(coupledBuckNetlist(design, op).trimEnd());
       else if (design.kind === 'boost') io.out(boostNetlist(design, op).trimEnd());
       else if (design.kind === 'inverting') io.out(invertingNetlist(design, op).trimEnd());
+      else if (design.kind === 'buck-boost-4s') io.out(fourSwitchNetlist(design, op).trimEnd());
       else throw new CliError('an LDO does not switch: there is no netlist to write');
       return 0;
     } catch (e) {

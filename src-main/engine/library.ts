@@ -13,6 +13,7 @@ import type { CoupledBuckDesign } from './stages/index.ts';
 import { rowTopology } from './stages/part-choice.ts';
 import { boostParts, type BoostDesign } from './stages/boost/index.ts';
 import { invertingParts, type InvertingDesign } from './stages/inverting/index.ts';
+import { fourSwitchParts, type FourSwitchDesign } from './stages/buck-boost-4s/index.ts';
 import type { CostModel, PartCounts } from './planner/types.ts';
 import { INVENTED_UNIT_COST, TYPICAL_BUCK_PARTS } from './planner/cost-model.ts';
 
@@ -577,6 +578,7 @@ export function partsForStage(stageId: string, design: unknown, library: Library
   if (d.kind === 'buck') return inductorStageParts(stageId, design, library, opts, { vRating: d.vinMax ?? 0, iNeed: out0.currentMax });
   if (d.kind === 'boost') return boostParts(stageId, design as BoostDesign, library, opts);
   if (d.kind === 'inverting') return invertingParts(stageId, design as InvertingDesign, library, opts);
+  if (d.kind === 'buck-boost-4s') return fourSwitchParts(stageId, design as FourSwitchDesign, library, opts);
   if (d.kind === 'cwbuck') {
     const secs = d.secondaries ?? [];
     // Worst primary peak over the input range and load patterns (engine/magnetics.ts); the

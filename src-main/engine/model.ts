@@ -28,8 +28,8 @@ export const STAGE_KINDS: readonly StageKind[] = ['buck', 'cwbuck', 'ldo', 'iso-
  * planner does not choose among yet: they join StageKind (the project setting of allowed
  * kinds) with the planner's integration.
  */
-export type StageModelKind = StageKind | 'boost' | 'inverting';
-export const STAGE_MODEL_KINDS: readonly StageModelKind[] = ['buck', 'cwbuck', 'ldo', 'boost', 'inverting'];
+export type StageModelKind = StageKind | 'boost' | 'inverting' | 'buck-boost-4s';
+export const STAGE_MODEL_KINDS: readonly StageModelKind[] = ['buck', 'cwbuck', 'ldo', 'boost', 'inverting', 'buck-boost-4s'];
 
 export interface Source {
   id: Id;

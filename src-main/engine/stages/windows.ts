@@ -18,9 +18,10 @@ import { coupledOutputs, type CoupledBuckDesign } from './cwbuck.ts';
 import { ldoPoint, type LdoDesign } from './ldo.ts';
 import { boostWindowAt, type BoostDesign } from './boost/index.ts';
 import { invertingWindowAt, type InvertingDesign } from './inverting/index.ts';
+import { fourSwitchWindowAt, type FourSwitchDesign } from './buck-boost-4s/index.ts';
 import { mulberry32, r3 } from './common.ts';
 
-export type WindowDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign | InvertingDesign;
+export type WindowDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign | InvertingDesign | FourSwitchDesign;
 
 export interface WindowCorners {
   vin: Volts[];
@@ -68,6 +69,9 @@ function outputsAt(d: WindowDesign, vin: number, iout: number[], x: Draw): { lo:
     // Boost: setpoint from reference and divider; out of regulation (duty limit, or an input
     // above the setpoint) the output follows the input (stages/boost/index.ts).
     return [boostWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
+  }
+  if (d.kind === 'buck-boost-4s') {
+    return [fourSwitchWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
   }
   if (d.kind === 'inverting') {
     // Inverting: magnitudes (the caller signs them); the setpoint is on |Vout|.
