@@ -14,6 +14,7 @@ import { rowTopology } from './stages/part-choice.ts';
 import { boostParts, type BoostDesign } from './stages/boost/index.ts';
 import { invertingParts, type InvertingDesign } from './stages/inverting/index.ts';
 import { fourSwitchParts, type FourSwitchDesign } from './stages/buck-boost-4s/index.ts';
+import { loadSwitchParts, type LoadSwitchDesign } from './stages/load-switch/index.ts';
 import type { CostModel, PartCounts } from './planner/types.ts';
 import { INVENTED_UNIT_COST, TYPICAL_BUCK_PARTS } from './planner/cost-model.ts';
 
@@ -27,10 +28,12 @@ export type PartClass =
   | 'cap-polymer'
   | 'resistor'
   | 'inductor'
-  | 'magnetic-custom';
+  | 'magnetic-custom'
+  | 'load-switch';
 
 export const PART_CLASSES: readonly PartClass[] = [
   'controller', 'switch', 'ldo', 'rectifier', 'cap-ceramic', 'cap-aluminium', 'cap-polymer', 'resistor', 'inductor', 'magnetic-custom',
+  'load-switch',
 ];
 
 export type ParamValue = number | string;
@@ -171,6 +174,15 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('pMax', 'W', 'largest throughput power', 0.1, 10000),
     num('costPerWinding', '', 'estimated cost added per winding beyond the primary', 0, 1e6),
     num('isolation', '', 'best isolation class the construction supports: 0 functional, 1 basic, 2 reinforced', 0, 2),
+    maker, mpn,
+  ],
+  'load-switch': [
+    pkg,
+    num('iMax', 'A', 'largest continuous current', 0.001, 100),
+    num('vinMax', 'V', 'highest input voltage', 0.5, 100),
+    num('ron', 'Ω', 'on-resistance at 25 °C', 1e-4, 10),
+    num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance', 1, 1000),
+    num('iq', 'A', 'quiescent current when on', 0, 0.01, false),
     maker, mpn,
   ],
 };
@@ -579,6 +591,7 @@ export function partsForStage(stageId: string, design: unknown, library: Library
   if (d.kind === 'boost') return boostParts(stageId, design as BoostDesign, library, opts);
   if (d.kind === 'inverting') return invertingParts(stageId, design as InvertingDesign, library, opts);
   if (d.kind === 'buck-boost-4s') return fourSwitchParts(stageId, design as FourSwitchDesign, library, opts);
+  if (d.kind === 'load-switch') return loadSwitchParts(stageId, design as LoadSwitchDesign, library);
   if (d.kind === 'cwbuck') {
     const secs = d.secondaries ?? [];
     // Worst primary peak over the input range and load patterns (engine/magnetics.ts); the

@@ -98,6 +98,24 @@ export function parseSpec(v: unknown, path = 'spec'): StageSpec {
     return x;
   }, path);
   if (maxSec !== undefined) spec.maxSecondaries = maxSec;
+  if (o.loadSwitch !== undefined) {
+    const ls = obj(o.loadSwitch, `${path}.loadSwitch`);
+    const out: NonNullable<StageSpec['loadSwitch']> = {};
+    const c = optional(ls, 'cload', (x, p) => qty(x, 'capacitance', p), `${path}.loadSwitch`);
+    if (c !== undefined) out.cload = c;
+    const lim = optional(ls, 'inrushLimit', (x, p) => qty(x, 'current', p), `${path}.loadSwitch`);
+    if (lim !== undefined) out.inrushLimit = lim;
+    const slew = optional(ls, 'slewRate', (x, p) => {
+      if (typeof x !== 'number' || !(x > 0) || !Number.isFinite(x)) fail(p, 'a positive number of volts per second');
+      return x;
+    }, `${path}.loadSwitch`);
+    if (slew !== undefined) out.slewRate = slew;
+    if (ls.offModes !== undefined) {
+      if (!Array.isArray(ls.offModes) || ls.offModes.some((m) => typeof m !== 'string' || m === '')) fail(`${path}.loadSwitch.offModes`, 'a list of mode ids');
+      out.offModes = [...(ls.offModes as string[])];
+    }
+    spec.loadSwitch = out;
+  }
   if (o.isolation !== undefined && o.isolation !== null) {
     const iso = obj(o.isolation, `${path}.isolation`);
     if (!ISOLATION_CLASSES.includes(iso.class as IsolationClass)) fail(`${path}.isolation.class`, `one of ${ISOLATION_CLASSES.join(', ')}`);
@@ -136,6 +154,10 @@ export function parseStageFile(v: unknown): StageFile {
       iout: p.iout.map((x, i) => qty(x, 'current', `operatingPoint.iout[${i}]`)),
       ambient: qty(p.ambient ?? spec?.ambient ?? 25, 'temperature', 'operatingPoint.ambient'),
     } as OperatingPoint;
+    if (p.mode !== undefined) {
+      if (typeof p.mode !== 'string' || p.mode === '') fail('operatingPoint.mode', 'a mode id');
+      operatingPoint.mode = p.mode;
+    }
   }
   let corners: WindowCorners | null = null;
   if (o.corners !== undefined) {

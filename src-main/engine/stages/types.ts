@@ -53,6 +53,12 @@ export interface StageSpec {
   library?: readonly LibraryRow[];
   /** Rating margins of the part choice (stages/part-choice.ts DEFAULT_MARGINS). */
   margins?: Partial<RatingMargins>;
+  /**
+   * Load switches (stages/load-switch/): the capacitance on the gated rail (default 10 µF),
+   * the inrush limit (default the rail's largest current), a fixed slew rate (V/s; default
+   * chosen for the limit) and the operating modes in which the rail is switched off.
+   */
+  loadSwitch?: { cload?: number; inrushLimit?: number; slewRate?: number; offModes?: string[] };
 }
 
 /** Severity `error` makes a stage infeasible; `warning` is shown but allowed. */
@@ -123,4 +129,6 @@ export interface OperatingPoint {
   /** Current of each output, in the order of the design's outputs. */
   iout: Amps[];
   ambient: Celsius;
+  /** Operating-mode id, for kinds whose state depends on the mode (a load switch gated off). */
+  mode?: Id;
 }
