@@ -1,6 +1,6 @@
 /**
  * Stage engine speed per new stage kind: evaluations per second of one invented design of
- * each (boost, inverting, four-switch buck-boost, load switch), sweeping the input range.
+ * each (boost, inverting, four-switch buck-boost, isolated module, load switch), sweeping the input range.
  */
 import type { Metric } from '../harness.ts';
 import { designStage, evaluateStage } from '../../src-main/engine/stages/index.ts';
@@ -15,6 +15,7 @@ const KINDS: { name: string; spec: StageSpec; vin: [number, number]; iout: numbe
   { name: 'boost', spec: { ...base, kind: 'boost', vinMin: 4.5, vinNom: 5, vinMax: 5.5, outputs: out('12v', 12, 1) } as unknown as StageSpec, vin: [4.5, 5.5], iout: 1 },
   { name: 'inverting', spec: { ...base, kind: 'inverting', vinMin: 10, vinNom: 12, vinMax: 14, outputs: out('n5', -5, 0.3) } as unknown as StageSpec, vin: [10, 14], iout: 0.3 },
   { name: 'buck_boost_4s', spec: { ...base, kind: 'buck-boost-4s', vinMin: 9, vinNom: 24, vinMax: 36, fsw: 400e3, outputs: out('12v', 12, 1) } as unknown as StageSpec, vin: [9, 36], iout: 1 },
+  { name: 'iso_module', spec: { ...base, kind: 'iso-module', vinMin: 11.4, vinNom: 12, vinMax: 12.6, outputs: out('5v', 5, 0.25, 0.15) } as unknown as StageSpec, vin: [11.4, 12.6], iout: 0.25 },
   { name: 'load_switch', spec: { ...base, kind: 'load-switch', vinMin: 3.25, vinNom: 3.3, vinMax: 3.35, outputs: out('3v3', 3.3, 0.5) } as unknown as StageSpec, vin: [3.25, 3.35], iout: 0.5 },
 ];
 

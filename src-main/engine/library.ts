@@ -15,6 +15,7 @@ import { boostParts, type BoostDesign } from './stages/boost/index.ts';
 import { invertingParts, type InvertingDesign } from './stages/inverting/index.ts';
 import { fourSwitchParts, type FourSwitchDesign } from './stages/buck-boost-4s/index.ts';
 import { loadSwitchParts, type LoadSwitchDesign } from './stages/load-switch/index.ts';
+import { isoModuleParts, type IsoModuleDesign } from './stages/iso-module/index.ts';
 import type { CostModel, PartCounts } from './planner/types.ts';
 import { INVENTED_UNIT_COST, TYPICAL_BUCK_PARTS } from './planner/cost-model.ts';
 
@@ -29,11 +30,13 @@ export type PartClass =
   | 'resistor'
   | 'inductor'
   | 'magnetic-custom'
-  | 'load-switch';
+  | 'load-switch'
+  | 'iso-module';
 
 export const PART_CLASSES: readonly PartClass[] = [
   'controller', 'switch', 'ldo', 'rectifier', 'cap-ceramic', 'cap-aluminium', 'cap-polymer', 'resistor', 'inductor', 'magnetic-custom',
   'load-switch',
+  'iso-module',
 ];
 
 export type ParamValue = number | string;
@@ -183,6 +186,21 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('ron', 'Ω', 'on-resistance at 25 °C', 1e-4, 10),
     num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance', 1, 1000),
     num('iq', 'A', 'quiescent current when on', 0, 0.01, false),
+    maker, mpn,
+  ],
+  'iso-module': [
+    pkg,
+    num('vinNom', 'V', 'nominal input (the module runs from it ±10 %)', 1, 1000),
+    num('ratio', '', 'output over input at full load', 0.01, 100),
+    num('pRated', 'W', 'rated output power', 0.01, 1000),
+    num('loadReg', '', 'output rise from full load to 10 % load, as a ratio', 0, 1),
+    num('minLoad', '', 'minimum load as a share of rated', 0, 1),
+    num('etaFull', '', 'efficiency at full load', 0.05, 1),
+    num('pNoLoad', 'W', 'input power at no load', 0, 100),
+    num('isolation', '', 'isolation class of the barrier: 0 functional, 1 basic, 2 reinforced', 0, 2),
+    num('workingVoltage', 'V', 'working voltage the barrier is rated for', 0, 100000),
+    num('thetaJA', 'K/W', 'hot-spot rise per watt of loss', 1, 1000),
+    num('ripple', 'V', 'output ripple peak-to-peak at full load', 0, 10, false),
     maker, mpn,
   ],
 };
@@ -456,6 +474,11 @@ function pickCap(lib: LibraryRow[], stageId: string, c: CapLike, o: PickOptions)
     `no capacitor in the library offers ${value} at ${c.ratedVoltage} V or more`);
 }
 
+/** A resistor pick for a stage kind's own parts function (library.ts pick rules). */
+export function pickResistorPart(lib: LibraryRow[], stageId: string, role: string, ohms: number, watts: number, opts: Partial<PickOptions> = {}): PartPick {
+  return pickResistor(lib, stageId, role, ohms, watts, { ...DEFAULT_PICK, ...opts });
+}
+
 function pickResistor(lib: LibraryRow[], stageId: string, role: string, ohms: number, watts: number, o: PickOptions, quantity = 1): PartPick {
   const value = eng(ohms, 'Ω');
   const row = cheapest(lib, 'resistor', (r) => numParam(r, 'power') * o.powerDerating >= watts && numParam(r, 'tolerance') <= 0.01 + 1e-12);
@@ -592,6 +615,7 @@ export function partsForStage(stageId: string, design: unknown, library: Library
   if (d.kind === 'inverting') return invertingParts(stageId, design as InvertingDesign, library, opts);
   if (d.kind === 'buck-boost-4s') return fourSwitchParts(stageId, design as FourSwitchDesign, library, opts);
   if (d.kind === 'load-switch') return loadSwitchParts(stageId, design as LoadSwitchDesign, library);
+  if (d.kind === 'iso-module') return isoModuleParts(stageId, design as IsoModuleDesign, library, opts);
   if (d.kind === 'cwbuck') {
     const secs = d.secondaries ?? [];
     // Worst primary peak over the input range and load patterns (engine/magnetics.ts); the

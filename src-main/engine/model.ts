@@ -29,7 +29,7 @@ export const STAGE_KINDS: readonly StageKind[] = ['buck', 'cwbuck', 'ldo', 'iso-
  * kinds) with the planner's integration.
  */
 export type StageModelKind = StageKind | 'boost' | 'inverting' | 'buck-boost-4s';
-export const STAGE_MODEL_KINDS: readonly StageModelKind[] = ['buck', 'cwbuck', 'ldo', 'boost', 'inverting', 'buck-boost-4s', 'load-switch'];
+export const STAGE_MODEL_KINDS: readonly StageModelKind[] = ['buck', 'cwbuck', 'ldo', 'boost', 'inverting', 'buck-boost-4s', 'load-switch', 'iso-module'];
 
 export interface Source {
   id: Id;

@@ -11,6 +11,7 @@ import { designBoost, evaluateBoost, type BoostDesign } from './boost/index.ts';
 import { designInverting, evaluateInverting, type InvertingDesign } from './inverting/index.ts';
 import { designFourSwitch, evaluateFourSwitch, type FourSwitchDesign } from './buck-boost-4s/index.ts';
 import { designLoadSwitch, evaluateLoadSwitch, type LoadSwitchDesign } from './load-switch/index.ts';
+import { designIsoModule, evaluateIsoModule, type IsoModuleDesign } from './iso-module/index.ts';
 import { stageWindows as windows, type WindowCorners, type WindowOptions } from './windows.ts';
 import type { OutputWindow } from './types.ts';
 import { flag } from './common.ts';
@@ -22,11 +23,12 @@ export type { BoostDesign } from './boost/index.ts';
 export type { InvertingDesign } from './inverting/index.ts';
 export type { FourSwitchDesign } from './buck-boost-4s/index.ts';
 export type { LoadSwitchDesign } from './load-switch/index.ts';
+export type { IsoModuleDesign } from './iso-module/index.ts';
 export type { CapacitorChoice } from './common.ts';
 export type { WindowCorners, WindowOptions } from './windows.ts';
 export { GENERIC_DEFAULTS } from './defaults.ts';
 
-export type StageDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign | InvertingDesign | FourSwitchDesign | LoadSwitchDesign;
+export type StageDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign | InvertingDesign | FourSwitchDesign | LoadSwitchDesign | IsoModuleDesign;
 
 export type DesignResult =
   | { ok: true; design: StageDesign; reasons: string[]; /** Warnings (never errors). */ flags: StageFlag[] }
@@ -46,8 +48,9 @@ export function designStage(spec: StageSpec): DesignResult {
       case 'inverting': return designInverting(spec);
       case 'buck-boost-4s': return designFourSwitch(spec);
       case 'load-switch': return designLoadSwitch(spec);
+      case 'iso-module': return designIsoModule(spec);
       default:
-        return { ok: false, flags: [flag('unsupported-kind', 'error', `kind: "${String(spec.kind)}" has no stage model (buck, cwbuck, ldo, boost, inverting, buck-boost-4s, load-switch)`, { field: 'kind' })] };
+        return { ok: false, flags: [flag('unsupported-kind', 'error', `kind: "${String(spec.kind)}" has no stage model (buck, cwbuck, ldo, boost, inverting, buck-boost-4s, load-switch, iso-module)`, { field: 'kind' })] };
     }
   } catch (e) {
     return { ok: false, flags: [flag('bad-input', 'error', `spec: ${(e as Error).message}`)] };
@@ -77,6 +80,7 @@ export function evaluateStage(design: StageDesign, op: OperatingPoint, opts?: Co
     case 'inverting': return evaluateInverting(design, op);
     case 'buck-boost-4s': return evaluateFourSwitch(design, op);
     case 'load-switch': return evaluateLoadSwitch(design, op);
+    case 'iso-module': return evaluateIsoModule(design, op);
     default: throw new StageInputError(`kind: "${String((design as { kind: unknown }).kind)}" has no stage model`);
   }
 }
