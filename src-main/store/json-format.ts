@@ -80,6 +80,13 @@ const nameSchema = z.string().max(500, 'name is longer than 500 characters');
 
 function requirementsShape(mode: Mode) {
   const imp = mode === 'import';
+  const battery = z.looseObject({
+    chemistry: z.enum(['li-ion', 'lifepo4', 'alkaline', 'nimh']),
+    cells: z.number().int(),
+    capacity: z.number(),
+    endVoltage: quantity('voltage', mode),
+    curve: z.array(z.tuple([z.number(), z.number()])).optional(),
+  });
   const source = z.looseObject({
     id: idSchema,
     name: nameSchema,
@@ -87,6 +94,7 @@ function requirementsShape(mode: Mode) {
     vMin: quantity('voltage', mode),
     vMax: quantity('voltage', mode),
     currentLimit: quantity('current', mode),
+    battery: battery.optional(),
   });
   const domain = z.looseObject({
     id: idSchema,
