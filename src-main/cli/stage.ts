@@ -124,7 +124,7 @@ const netlist: CliCommand = {
       else if (design.kind === 'boost') io.out(boostNetlist(design, op).trimEnd());
       else if (design.kind === 'inverting') io.out(invertingNetlist(design, op).trimEnd());
       else if (design.kind === 'buck-boost-4s') io.out(fourSwitchNetlist(design, op).trimEnd());
-      else throw new CliError('an LDO does not switch: there is no netlist to write');
+      else throw new CliError(`${design.kind === 'ldo' ? 'an LDO does not switch' : design.kind === 'load-switch' ? 'a load switch does not switch at a frequency' : 'an isolated module is a bought part'}: there is no netlist to write`);
       return 0;
     } catch (e) {
       if (e instanceof StageInputError || e instanceof RangeError) throw new CliError(e.message);
