@@ -9,6 +9,7 @@ import { groupRails, railPeakCurrent } from '../engine/rails.ts';
 import { formatQuantity, formatTolerance } from '../engine/notation.ts';
 import { validateRequirements, type Problem } from '../engine/validate.ts';
 import type { Requirements } from '../engine/model.ts';
+import { CHEMISTRY_PRESETS, batteryRuntime, usableEnergy } from '../engine/battery.ts';
 import { exportProjectJson, importProjectJson } from '../store/json-format.ts';
 import { PROJECT_EXTENSION, ProjectStore, StoreError, hasProjectExtension, writeFileAtomic } from '../store/project-store.ts';
 import { demoDocument } from '../store/demo.ts';
@@ -264,6 +265,11 @@ export function summaryText(req: Requirements): string[] {
   lines.push('', 'Sources');
   for (const s of req.sources) {
     lines.push(`  ${pad(nm(s.name), 28)} ${q(s.vNom, 'voltage')} (${q(s.vMin, 'voltage')} to ${q(s.vMax, 'voltage')}), limit ${q(s.currentLimit, 'current')}`);
+    if (s.battery) {
+      const b = s.battery;
+      const e = usableEnergy(b);
+      lines.push(`  ${pad('', 28)} battery: ${b.cells} × ${CHEMISTRY_PRESETS[b.chemistry].label}${b.curve ? ' (own curve)' : ' (preset curve, from memory)'}, ${b.capacity} A·h, ends at ${q(b.endVoltage, 'voltage')}: ${e.wh.toFixed(2)} Wh usable, mean ${q(e.meanVoltage, 'voltage')}`);
+    }
   }
   lines.push('', 'Domains');
   for (const d of req.domains) {
@@ -288,6 +294,17 @@ export function summaryText(req: Requirements): string[] {
     for (const m of req.modes) power.set(m.id, power.get(m.id)! + Math.abs(r.voltage) * (r.current[m.id] ?? 0));
   }
   lines.push('', `Load power per mode (before conversion losses): ${req.modes.map((m) => `${nm(m.name)} ${q(power.get(m.id)!, 'power')}`).join(', ')}`);
+  const batteries = req.sources.filter((s) => s.battery);
+  if (batteries.length === 1) {
+    // One battery feeds everything: its runtime at the load power is an upper bound (the
+    // plan's roll-up, which counts the conversion losses, gives the planned runtime).
+    const s = batteries[0]!;
+    const rt = batteryRuntime(s.id, s.battery!, req.modes, (id) => power.get(id)!);
+    const h = (x: number) => (Number.isFinite(x) ? `${x.toFixed(x < 10 ? 2 : 1)} h` : 'unlimited (no load)');
+    lines.push(`Battery runtime at the load power, before conversion losses (an upper bound): mode mix ${h(rt.mixHours)}; ${rt.perMode.map((m) => `${m.modeName} ${h(m.hours)}`).join(', ')}`);
+  } else if (batteries.length > 1) {
+    lines.push('Battery runtime: several battery sources; the plan\'s roll-up gives each one\'s runtime');
+  }
   const problems = validateRequirements(req);
   if (problems.length) lines.push(`${problems.length} problem(s): run railwright validate for the list`);
   if (req.domains.some((d) => d.isolation !== 'none')) lines.push('', ISOLATION_CAUTION);

@@ -10,6 +10,9 @@ import { designStage, evaluateStage, stageWindows, StageInputError, type StageDe
 import { parseStageFile, StageFileError, type StageFile } from '../engine/stages/stage-json.ts';
 import { magneticSpec } from '../engine/magnetics.ts';
 import { buckNetlist, coupledBuckNetlist } from '../export/spice.ts';
+import { boostNetlist } from '../engine/stages/boost/index.ts';
+import { invertingNetlist } from '../engine/stages/inverting/index.ts';
+import { fourSwitchNetlist } from '../engine/stages/buck-boost-4s/index.ts';
 import type { OperatingPoint } from '../engine/stages/types.ts';
 import type { Amps, Celsius, Volts } from '../engine/units.ts';
 
@@ -66,7 +69,7 @@ const stage: CliCommand = {
     '',
     'Prints the stage as JSON: the chosen values and the reasons for them, the evaluation at the',
     'operating point (losses term by term, efficiency, duty, outputs, junction temperatures,',
-    'flags), the worst-case output windows and, for switching stages, the magnetic specification.',
+    'flags), the worst-case output windows and, for buck and coupled-winding stages, the magnetic specification.',
     'The file holds a "spec" (designed here) or a "design"; see docs/stage-json.md.',
     'Exit code 1 when the spec cannot be designed (the flags say why).',
     '',
@@ -86,7 +89,7 @@ const stage: CliCommand = {
     try {
       const evaluation = evaluateStage(design, op);
       const windows = stageWindows(design, corners, file.monteCarlo ? { monteCarlo: file.monteCarlo } : undefined);
-      const magnetic = design.kind === 'ldo' ? null : magneticSpec(design);
+      const magnetic = design.kind === 'buck' || design.kind === 'cwbuck' ? magneticSpec(design) : null;
       const result = { ok: true, kind: design.kind, design, reasons: r.reasons, designFlags: r.flags, operatingPoint: op, evaluation, windows, magnetic };
       io.out(flags.compact ? JSON.stringify(result) : JSON.stringify(result, null, 2));
       return 0;
@@ -103,7 +106,7 @@ const netlist: CliCommand = {
   usage: [
     'Usage: railwright netlist <stage.json>',
     '',
-    'Prints an open-loop SPICE netlist of the buck or coupled-winding buck at the duty the',
+    'Prints an open-loop SPICE netlist of the buck, coupled-winding buck, boost, inverting or four-switch buck-boost stage at the duty the',
     'engine computes for the operating point (default: nominal input, full load). Run it with',
     '"ngspice -b file.cir"; the .meas lines report v_out<i> and i_in.',
   ].join('\n'),
@@ -118,7 +121,10 @@ const netlist: CliCommand = {
       evaluateStage(design, op); // validates the operating point
       if (design.kind === 'buck') io.out(buckNetlist(design, op).trimEnd());
       else if (design.kind === 'cwbuck') io.out(coupledBuckNetlist(design, op).trimEnd());
-      else throw new CliError('an LDO does not switch: there is no netlist to write');
+      else if (design.kind === 'boost') io.out(boostNetlist(design, op).trimEnd());
+      else if (design.kind === 'inverting') io.out(invertingNetlist(design, op).trimEnd());
+      else if (design.kind === 'buck-boost-4s') io.out(fourSwitchNetlist(design, op).trimEnd());
+      else throw new CliError(`${design.kind === 'ldo' ? 'an LDO does not switch' : design.kind === 'load-switch' ? 'a load switch does not switch at a frequency' : 'an isolated module is a bought part'}: there is no netlist to write`);
       return 0;
     } catch (e) {
       if (e instanceof StageInputError || e instanceof RangeError) throw new CliError(e.message);

@@ -11,6 +11,12 @@ import type { PartLibraryRow } from './model.ts';
 import { magneticSpec } from './magnetics.ts';
 import { checkText } from './text-rules.ts';
 import type { CoupledBuckDesign } from './stages/index.ts';
+import { rowTopology } from './stages/part-choice.ts';
+import { boostParts, type BoostDesign } from './stages/boost/index.ts';
+import { invertingParts, type InvertingDesign } from './stages/inverting/index.ts';
+import { fourSwitchParts, type FourSwitchDesign } from './stages/buck-boost-4s/index.ts';
+import { loadSwitchParts, type LoadSwitchDesign } from './stages/load-switch/index.ts';
+import { isoModuleParts, type IsoModuleDesign } from './stages/iso-module/index.ts';
 import type { CostModel, PartCounts } from './planner/types.ts';
 import { INVENTED_UNIT_COST, TYPICAL_BUCK_PARTS } from './planner/cost-model.ts';
 
@@ -24,10 +30,14 @@ export type PartClass =
   | 'cap-polymer'
   | 'resistor'
   | 'inductor'
-  | 'magnetic-custom';
+  | 'magnetic-custom'
+  | 'load-switch'
+  | 'iso-module';
 
 export const PART_CLASSES: readonly PartClass[] = [
   'controller', 'switch', 'ldo', 'rectifier', 'cap-ceramic', 'cap-aluminium', 'cap-polymer', 'resistor', 'inductor', 'magnetic-custom',
+  'load-switch',
+  'iso-module',
 ];
 
 export type ParamValue = number | string;
@@ -80,6 +90,7 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('vref', 'V', 'feedback reference voltage', 0.1, 10, false),
     num('vrefTolerance', '', 'reference tolerance over temperature, as a ratio (0.01 = ±1 %)', 0, 0.2, false),
     num('iLimit', 'A', 'peak (cycle-by-cycle) current limit', 0, 1000, false),
+    str('topology', 'converter topology it is made for: buck (default when empty), boost, inverting, buck-boost-4s', false),
     maker, mpn,
   ],
   switch: [
@@ -167,6 +178,30 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('pMax', 'W', 'largest throughput power', 0.1, 10000),
     num('costPerWinding', '', 'estimated cost added per winding beyond the primary', 0, 1e6),
     num('isolation', '', 'best isolation class the construction supports: 0 functional, 1 basic, 2 reinforced', 0, 2),
+    maker, mpn,
+  ],
+  'load-switch': [
+    pkg,
+    num('iMax', 'A', 'largest continuous current', 0.001, 100),
+    num('vinMax', 'V', 'highest input voltage', 0.5, 100),
+    num('ron', 'Ω', 'on-resistance at 25 °C', 1e-4, 10),
+    num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance', 1, 1000),
+    num('iq', 'A', 'quiescent current when on', 0, 0.01, false),
+    maker, mpn,
+  ],
+  'iso-module': [
+    pkg,
+    num('vinNom', 'V', 'nominal input (the module runs from it ±10 %)', 1, 1000),
+    num('ratio', '', 'output over input at full load', 0.01, 100),
+    num('pRated', 'W', 'rated output power', 0.01, 1000),
+    num('loadReg', '', 'output rise from full load to 10 % load, as a ratio', 0, 1),
+    num('minLoad', '', 'minimum load as a share of rated', 0, 1),
+    num('etaFull', '', 'efficiency at full load', 0.05, 1),
+    num('pNoLoad', 'W', 'input power at no load', 0, 100),
+    num('isolation', '', 'isolation class of the barrier: 0 functional, 1 basic, 2 reinforced', 0, 2),
+    num('workingVoltage', 'V', 'working voltage the barrier is rated for', 0, 100000),
+    num('thetaJA', 'K/W', 'hot-spot rise per watt of loss', 1, 1000),
+    num('ripple', 'V', 'output ripple peak-to-peak at full load', 0, 10, false),
     maker, mpn,
   ],
 };
@@ -453,6 +488,11 @@ function pickCap(lib: LibraryRow[], stageId: string, c: CapLike, o: PickOptions)
     `no capacitor in the library offers ${value} at ${c.ratedVoltage} V or more`);
 }
 
+/** A resistor pick for a stage kind's own parts function (library.ts pick rules). */
+export function pickResistorPart(lib: LibraryRow[], stageId: string, role: string, ohms: number, watts: number, opts: Partial<PickOptions> = {}): PartPick {
+  return pickResistor(lib, stageId, role, ohms, watts, { ...DEFAULT_PICK, ...opts });
+}
+
 /** Cheapest resistor of at least the grade (tolerance ≤ `tolerance`, default 1 %) that takes the power. */
 function pickResistor(lib: LibraryRow[], stageId: string, role: string, ohms: number, watts: number, o: PickOptions, quantity = 1, tolerance = 0.01): PartPick {
   const value = eng(ohms, 'Ω');
@@ -520,9 +560,9 @@ function capFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[] | u
 }
 
 /** Switching stage: one integrated regulator, or a controller plus two external switches, whichever costs less. */
-function pickSwitcher(lib: LibraryRow[], stageId: string, vinMax: number, iNeed: number, needForcedPwm: boolean, ipk: number): PartPick[] {
+function pickSwitcher(lib: LibraryRow[], stageId: string, vinMax: number, iNeed: number, needForcedPwm: boolean, ipk: number, topology = 'buck'): PartPick[] {
   const options: PartPick[][] = [];
-  const okCtl = (r: LibraryRow) => numParam(r, 'vinMax') >= vinMax && (!needForcedPwm || numParam(r, 'forcedPwm') === 1);
+  const okCtl = (r: LibraryRow) => numParam(r, 'vinMax') >= vinMax && (!needForcedPwm || numParam(r, 'forcedPwm') === 1) && rowTopology(r) === topology;
   const integ = cheapest(lib, 'controller', (r) => okCtl(r) && numParam(r, 'integrated') === 1 && numParam(r, 'iMax') >= iNeed);
   if (integ) options.push([pickFromRow(stageId, 'regulator (integrated switches)', 'U', integ, '', `${numParam(integ, 'vinMax')} V, ${numParam(integ, 'iMax')} A`, 1)]);
   const ext = cheapest(lib, 'controller', (r) => okCtl(r) && numParam(r, 'integrated') === 0 && numParam(r, 'iMax') >= iNeed);
@@ -562,6 +602,34 @@ interface AnyDesign {
   parts?: PartRefLike[];
 }
 
+
+/**
+ * The parts of a single-inductor switching stage (buck, boost…): regulator or controller and
+ * switch pair (the design's own library choice, else the cheapest fit for `vRating` and
+ * `iNeed` made for `topology`), the inductor, the capacitors and the feedback divider.
+ */
+export function inductorStageParts(stageId: string, design: unknown, library: LibraryRow[], opts: Partial<PickOptions>, need: { vRating: number; iNeed: number; topology?: string }): PartPick[] {
+  const o = { ...DEFAULT_PICK, ...opts };
+  const d = (design ?? {}) as AnyDesign;
+  const picks: PartPick[] = [];
+  const out0 = d.outputs?.[0];
+  if (!out0) return [missing(stageId, 'stage', 'U', 'controller', '', '', 1, 'the stage carries no design')];
+  const iMax = need.iNeed;
+  picks.push(...(switcherFromRefs(library, stageId, d.parts) ?? pickSwitcher(library, stageId, need.vRating, iMax, false, d.isat ?? iMax, need.topology)));
+  const L = d.inductance ?? 0;
+  const isat = d.isat ?? iMax;
+  const fromRef = d.parts ? picksFromRefs(library, stageId, d.parts, (r) => r === 'inductor', () => ({ prefix: 'L', value: eng(L, 'H'), rating: `Isat ≥ ${eng(isat, 'A')}` })) : null;
+  const ind = fromRef ? null : cheapest(library, 'inductor', (r) =>
+    numParam(r, 'lMin') <= L * (1 + 1e-9) && numParam(r, 'lMax') >= L * (1 - 1e-9) && numParam(r, 'iSat') * Math.sqrt(numParam(r, 'lMax') / L) >= isat);
+  picks.push(...(fromRef ?? [ind
+    ? pickFromRow(stageId, 'inductor', 'L', ind, eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1)
+    : missing(stageId, 'inductor', 'L', 'inductor', eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1, `no inductor in the library offers ${eng(L, 'H')} with ${eng(isat, 'A')} saturation current`)]));
+  if (d.cin) picks.push(capFromRefs(library, stageId, d.parts, d.cin, o));
+  if (d.cout) picks.push(capFromRefs(library, stageId, d.parts, d.cout, o));
+  if (d.divider) picks.push(...pickDivider(library, stageId, d.divider, o));
+  return picks;
+}
+
 /**
  * The concrete parts a stage design implies, chosen from the library (cheapest row that
  * fits). A part no row fits is still listed, with `problem` set and no cost.
@@ -572,22 +640,12 @@ export function partsForStage(stageId: string, design: unknown, library: Library
   const picks: PartPick[] = [];
   const out0 = d.outputs?.[0];
   if (!out0) return [missing(stageId, 'stage', 'U', 'controller', '', '', 1, 'the stage carries no design')];
-  if (d.kind === 'buck') {
-    const iMax = out0.currentMax;
-    picks.push(...(switcherFromRefs(library, stageId, d.parts) ?? pickSwitcher(library, stageId, d.vinMax ?? 0, iMax, false, d.isat ?? iMax)));
-    const L = d.inductance ?? 0;
-    const isat = d.isat ?? iMax;
-    const fromRef = d.parts ? picksFromRefs(library, stageId, d.parts, (r) => r === 'inductor', () => ({ prefix: 'L', value: eng(L, 'H'), rating: `Isat ≥ ${eng(isat, 'A')}` })) : null;
-    const ind = fromRef ? null : cheapest(library, 'inductor', (r) =>
-      numParam(r, 'lMin') <= L * (1 + 1e-9) && numParam(r, 'lMax') >= L * (1 - 1e-9) && numParam(r, 'iSat') * Math.sqrt(numParam(r, 'lMax') / L) >= isat);
-    picks.push(...(fromRef ?? [ind
-      ? pickFromRow(stageId, 'inductor', 'L', ind, eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1)
-      : missing(stageId, 'inductor', 'L', 'inductor', eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1, `no inductor in the library offers ${eng(L, 'H')} with ${eng(isat, 'A')} saturation current`)]));
-    if (d.cin) picks.push(capFromRefs(library, stageId, d.parts, d.cin, o));
-    if (d.cout) picks.push(capFromRefs(library, stageId, d.parts, d.cout, o));
-    if (d.divider) picks.push(...pickDivider(library, stageId, d.divider, o));
-    return picks;
-  }
+  if (d.kind === 'buck') return inductorStageParts(stageId, design, library, opts, { vRating: d.vinMax ?? 0, iNeed: out0.currentMax });
+  if (d.kind === 'boost') return boostParts(stageId, design as BoostDesign, library, opts);
+  if (d.kind === 'inverting') return invertingParts(stageId, design as InvertingDesign, library, opts);
+  if (d.kind === 'buck-boost-4s') return fourSwitchParts(stageId, design as FourSwitchDesign, library, opts);
+  if (d.kind === 'load-switch') return loadSwitchParts(stageId, design as LoadSwitchDesign, library);
+  if (d.kind === 'iso-module') return isoModuleParts(stageId, design as IsoModuleDesign, library, opts);
   if (d.kind === 'cwbuck') {
     const secs = d.secondaries ?? [];
     // Worst primary peak over the input range and load patterns (engine/magnetics.ts); the

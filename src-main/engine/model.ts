@@ -22,6 +22,31 @@ export const NOISE_CLASSES: readonly NoiseClass[] = ['rugged', 'standard', 'quie
 export type StageKind = 'buck' | 'cwbuck' | 'ldo' | 'iso-module' | 'load-switch';
 export const STAGE_KINDS: readonly StageKind[] = ['buck', 'cwbuck', 'ldo', 'iso-module', 'load-switch'];
 
+/**
+ * Every kind the stage engine models (engine/stages/: designStage, evaluateStage,
+ * stageWindows, the stage file format). The kinds beyond StageKind are engine models the
+ * planner does not choose among yet: they join StageKind (the project setting of allowed
+ * kinds) with the planner's integration.
+ */
+export type StageModelKind = StageKind | 'boost' | 'inverting' | 'buck-boost-4s';
+export const STAGE_MODEL_KINDS: readonly StageModelKind[] = ['buck', 'cwbuck', 'ldo', 'boost', 'inverting', 'buck-boost-4s', 'load-switch', 'iso-module'];
+
+/** Battery chemistries with presets (engine/battery.ts, generic curves from memory). */
+export type BatteryChemistry = 'li-ion' | 'lifepo4' | 'alkaline' | 'nimh';
+
+/** A source that is a battery: its chemistry, series cells, capacity and end of discharge. */
+export interface BatterySpec {
+  chemistry: BatteryChemistry;
+  /** Cells in series. */
+  cells: number;
+  /** Capacity in ampere-hours (A·h). */
+  capacity: number;
+  /** Pack voltage at which the product stops (end of discharge). */
+  endVoltage: Volts;
+  /** Optional own curve per cell: [state of charge 1…0, cell voltage] pairs (else the preset). */
+  curve?: Array<[number, number]>;
+}
+
 export interface Source {
   id: Id;
   name: string;
@@ -30,6 +55,11 @@ export interface Source {
   vMax: Volts;
   /** Maximum current the source may deliver. */
   currentLimit: Amps;
+  /**
+   * When the source is a battery. The planner designs over vMin…vMax, which must span the
+   * discharge range (full pack voltage down to the end-of-discharge voltage).
+   */
+  battery?: BatterySpec;
 }
 
 export interface Domain {

@@ -19,6 +19,7 @@ import type { Plan, PlanStage } from './plan-types.ts';
 import type { DissipatingPart, OperatingPoint, OutputWindow, StageEvaluation, StageFlag } from './stages/types.ts';
 import type { Amps, Volts } from './units.ts';
 import { evaluateStage, stageWindows, type StageDesign } from './stages/index.ts';
+import { batteryRuntime, type BatteryRuntime } from './battery.ts';
 
 /** The stage models the roll-up calls (the real engine satisfies it). */
 export interface StageModels {
@@ -138,6 +139,11 @@ export interface Rollup {
   /** Sources asked for more than their current limit in some mode and input case. */
   sourceOverloads: Array<{ sourceId: Id; modeName: string; vinCase: VinCase; current: number; limit: number; text: string }>;
   worstBalanceError: number;
+  /**
+   * Battery sources (engine/battery.ts): usable energy to the end-of-discharge voltage over
+   * the power drawn from the source at nominal input, per mode and for the mode mix.
+   */
+  batteries: BatteryRuntime[];
 }
 
 export class RollupError extends Error {}
@@ -373,6 +379,8 @@ export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models:
   const windows = computeWindows(ctx, modes);
   const fed = new Set(plan.stages.flatMap((s) => s.outputs.map((o) => o.nodeId)));
   const worstBalanceError = Math.max(0, ...modes.flatMap((m) => VIN_CASES.map((c) => m.cases[c].balanceError)));
+  const batteries: BatteryRuntime[] = req.sources.filter((s) => s.battery).map((s) =>
+    batteryRuntime(s.id, s.battery!, req.modes, (modeId) => modes.find((m) => m.modeId === modeId)!.cases.nom.sources[s.id]!.p));
   const sourceOverloads: Rollup['sourceOverloads'] = [];
   for (const s of req.sources) {
     let worst: Rollup['sourceOverloads'][number] | null = null;
@@ -392,6 +400,7 @@ export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models:
     unfed: rails.filter((r) => !fed.has(r.id)).map((r) => r.id),
     sourceOverloads,
     worstBalanceError,
+    batteries,
   };
 }
 

@@ -4,7 +4,28 @@
  * format writes it, e.g. `loads[3].tolerance`) and a sentence saying what is wrong.
  * Pure; the store, the importer, the CLI and the window all call it.
  */
-import { ISOLATION_CLASSES, NOISE_CLASSES, STAGE_KINDS, type Requirements } from './model.ts';
+import { ISOLATION_CLASSES, NOISE_CLASSES, STAGE_KINDS, type BatterySpec, type Requirements, type Source } from './model.ts';
+import { CHEMISTRY_PRESETS, BATTERY_CHEMISTRIES, packFullVoltage } from './battery.ts';
+
+/** Problems of a battery source: [field path, message]. */
+export function batteryProblems(b: BatterySpec, s: Pick<Source, 'vMin' | 'vMax'>, p: string): Array<[string, string]> {
+  const out: Array<[string, string]> = [];
+  if (!b || typeof b !== 'object') return [[p, 'must be an object { chemistry, cells, capacity, endVoltage }']];
+  if (!BATTERY_CHEMISTRIES.includes(b.chemistry)) return [[`${p}.chemistry`, `"${String(b.chemistry)}" is not one of ${BATTERY_CHEMISTRIES.join(', ')}`]];
+  const preset = CHEMISTRY_PRESETS[b.chemistry];
+  if (!Number.isInteger(b.cells) || !preset.cells.includes(b.cells)) out.push([`${p}.cells`, `${preset.label} presets take ${preset.cells.join(', ')} cells in series (got ${String(b.cells)})`]);
+  if (typeof b.capacity !== 'number' || !Number.isFinite(b.capacity) || !(b.capacity > 0)) out.push([`${p}.capacity`, `capacity must be above 0 A·h (got ${String(b.capacity)})`]);
+  if (typeof b.endVoltage !== 'number' || !Number.isFinite(b.endVoltage) || !(b.endVoltage > 0)) out.push([`${p}.endVoltage`, `end-of-discharge voltage must be above 0 V (got ${String(b.endVoltage)})`]);
+  if (b.curve !== undefined) {
+    const ok = Array.isArray(b.curve) && b.curve.length >= 2 && b.curve.every((q) => Array.isArray(q) && q.length === 2 && q.every((x) => typeof x === 'number' && Number.isFinite(x)) && q[0]! >= 0 && q[0]! <= 1 && q[1]! > 0);
+    if (!ok) out.push([`${p}.curve`, 'a list of at least two [state of charge 0…1, cell voltage > 0] pairs']);
+  }
+  if (out.length) return out;
+  const full = packFullVoltage(b);
+  if (s.vMax < full - 1e-9) out.push([`${p}`, `the pack reaches ${full.toFixed(2)} V when full, above the source's vMax ${s.vMax} V: the planner must design over the whole discharge range`]);
+  if (s.vMin > b.endVoltage + 1e-9) out.push([`${p}.endVoltage`, `discharge ends at ${b.endVoltage} V, below the source's vMin ${s.vMin} V: lower vMin to it so the planner designs over the whole range`]);
+  return out;
+}
 import { formatQuantity, formatTolerance } from './notation.ts';
 import { showText, textProblem } from './text-rules.ts';
 
@@ -80,6 +101,7 @@ export function validateRequirements(req: Requirements): Problem[] {
     if (s.vMin > s.vNom) add(`${p}.vMin`, `vMin (${v(s.vMin)}) is above vNom (${v(s.vNom)})`);
     if (s.vNom > s.vMax) add(`${p}.vMax`, `vMax (${v(s.vMax)}) is below vNom (${v(s.vNom)})`);
     if (s.currentLimit <= 0) add(`${p}.currentLimit`, `current limit must be above 0 A (got ${formatQuantity(s.currentLimit, 'current')})`);
+    if (s.battery !== undefined) batteryProblems(s.battery, s, `${p}.battery`).forEach(([f, m]) => add(f, m));
   });
 
   // Domains.

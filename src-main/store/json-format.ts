@@ -95,6 +95,13 @@ function ruled<T extends z.ZodString>(schema: T, mode: Mode, kind: TextKind = 'n
 
 function requirementsShape(mode: Mode) {
   const imp = mode === 'import';
+  const battery = z.looseObject({
+    chemistry: z.enum(['li-ion', 'lifepo4', 'alkaline', 'nimh']),
+    cells: z.number().int(),
+    capacity: z.number(),
+    endVoltage: quantity('voltage', mode),
+    curve: z.array(z.tuple([z.number(), z.number()])).optional(),
+  });
   const source = z.looseObject({
     id: ruled(idSchema, mode, 'name', 200),
     name: ruled(nameSchema, mode),
@@ -102,6 +109,7 @@ function requirementsShape(mode: Mode) {
     vMin: quantity('voltage', mode),
     vMax: quantity('voltage', mode),
     currentLimit: quantity('current', mode),
+    battery: battery.optional(),
   });
   const domain = z.looseObject({
     id: ruled(idSchema, mode, 'name', 200),

@@ -7,6 +7,11 @@ import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from './ty
 import { designBuck, evaluateBuck, type BuckDesign } from './buck.ts';
 import { designCoupledBuck, evaluateCoupledBuck, type CoupledBuckDesign, type CoupledEvalOptions } from './cwbuck.ts';
 import { designLdo, evaluateLdo, type LdoDesign } from './ldo.ts';
+import { designBoost, evaluateBoost, type BoostDesign } from './boost/index.ts';
+import { designInverting, evaluateInverting, type InvertingDesign } from './inverting/index.ts';
+import { designFourSwitch, evaluateFourSwitch, type FourSwitchDesign } from './buck-boost-4s/index.ts';
+import { designLoadSwitch, evaluateLoadSwitch, type LoadSwitchDesign } from './load-switch/index.ts';
+import { designIsoModule, evaluateIsoModule, type IsoModuleDesign } from './iso-module/index.ts';
 import { stageWindows as windows, type WindowCorners, type WindowOptions } from './windows.ts';
 import type { OutputWindow } from './types.ts';
 import { flag } from './common.ts';
@@ -14,11 +19,16 @@ import { flag } from './common.ts';
 export type { BuckDesign } from './buck.ts';
 export type { CoupledBuckDesign, SecondaryWinding, CoupledEvalOptions } from './cwbuck.ts';
 export type { LdoDesign } from './ldo.ts';
+export type { BoostDesign } from './boost/index.ts';
+export type { InvertingDesign } from './inverting/index.ts';
+export type { FourSwitchDesign } from './buck-boost-4s/index.ts';
+export type { LoadSwitchDesign } from './load-switch/index.ts';
+export type { IsoModuleDesign } from './iso-module/index.ts';
 export type { CapacitorChoice } from './common.ts';
 export type { WindowCorners, WindowOptions } from './windows.ts';
 export { GENERIC_DEFAULTS } from './defaults.ts';
 
-export type StageDesign = BuckDesign | CoupledBuckDesign | LdoDesign;
+export type StageDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign | InvertingDesign | FourSwitchDesign | LoadSwitchDesign | IsoModuleDesign;
 
 export type DesignResult =
   | { ok: true; design: StageDesign; reasons: string[]; /** Warnings (never errors). */ flags: StageFlag[] }
@@ -34,8 +44,13 @@ export function designStage(spec: StageSpec): DesignResult {
       case 'buck': return designBuck(spec);
       case 'cwbuck': return designCoupledBuck(spec);
       case 'ldo': return designLdo(spec);
+      case 'boost': return designBoost(spec);
+      case 'inverting': return designInverting(spec);
+      case 'buck-boost-4s': return designFourSwitch(spec);
+      case 'load-switch': return designLoadSwitch(spec);
+      case 'iso-module': return designIsoModule(spec);
       default:
-        return { ok: false, flags: [flag('unsupported-kind', 'error', `kind: "${String(spec.kind)}" has no stage model (buck, cwbuck, ldo)`, { field: 'kind' })] };
+        return { ok: false, flags: [flag('unsupported-kind', 'error', `kind: "${String(spec.kind)}" has no stage model (buck, cwbuck, ldo, boost, inverting, buck-boost-4s, load-switch, iso-module)`, { field: 'kind' })] };
     }
   } catch (e) {
     return { ok: false, flags: [flag('bad-input', 'error', `spec: ${(e as Error).message}`)] };
@@ -61,6 +76,11 @@ export function evaluateStage(design: StageDesign, op: OperatingPoint, opts?: Co
     case 'buck': return evaluateBuck(design, op);
     case 'cwbuck': return evaluateCoupledBuck(design, op, opts);
     case 'ldo': return evaluateLdo(design, op);
+    case 'boost': return evaluateBoost(design, op);
+    case 'inverting': return evaluateInverting(design, op);
+    case 'buck-boost-4s': return evaluateFourSwitch(design, op);
+    case 'load-switch': return evaluateLoadSwitch(design, op);
+    case 'iso-module': return evaluateIsoModule(design, op);
     default: throw new StageInputError(`kind: "${String((design as { kind: unknown }).kind)}" has no stage model`);
   }
 }

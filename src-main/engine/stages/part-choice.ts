@@ -65,6 +65,11 @@ export interface SwitcherNeed {
    * default where the row states none) is at most this (absent: any grade).
    */
   vrefToleranceMax?: number;
+  /**
+   * The converter topology the controller must be made for (its row's `topology` parameter;
+   * a row without one is a buck controller). Default `buck`.
+   */
+  topology?: string;
 }
 
 /** A controller row's reference tolerance as the design would use it. */
@@ -78,6 +83,12 @@ export function vrefToleranceOf(r: LibraryRow): number {
  */
 export function cheapestResistorOfGrade(lib: readonly LibraryRow[], tolerance: number): LibraryRow | null {
   return cheapestOf(lib, 'resistor', (r) => num(r, 'tolerance') <= tolerance + 1e-12);
+}
+
+/** The topology a controller row is made for (`topology` parameter; absent: buck). */
+export function rowTopology(r: LibraryRow): string {
+  const t = r.params.topology;
+  return typeof t === 'string' && t !== '' ? t : 'buck';
 }
 
 export interface SwitcherChoice {
@@ -138,7 +149,8 @@ export function chooseSwitcher(lib: readonly LibraryRow[], need: SwitcherNeed): 
     && (!has(r, 'uvlo') || num(r, 'uvlo') <= need.vinMin)
     && (!has(r, 'vinMin') || num(r, 'vinMin') <= need.vinMin)
     && (!need.forcedPwm || num(r, 'forcedPwm') === 1)
-    && (need.vrefToleranceMax === undefined || vrefToleranceOf(r) <= need.vrefToleranceMax + 1e-12);
+    && (need.vrefToleranceMax === undefined || vrefToleranceOf(r) <= need.vrefToleranceMax + 1e-12)
+    && rowTopology(r) === (need.topology ?? 'buck');
   const options: SwitcherChoice[] = [];
   const integ = cheapestOf(lib, 'controller', (r) => okCtl(r) && num(r, 'integrated') === 1 && num(r, 'iMax') >= need.iNeed && has(r, 'rdsHs') && has(r, 'rdsLs'));
   if (integ) {
@@ -180,7 +192,7 @@ export function chooseSwitcher(lib: readonly LibraryRow[], need: SwitcherNeed): 
     });
   }
   if (options.length === 0) {
-    return { problem: `no regulator or controller in the library is rated for ${vinRating.toFixed(1)} V (Vin max ${need.vinMax} V + ${Math.round(m.controllerInput * 100)} %), ${need.iNeed.toFixed(3)} A${need.forcedPwm ? ', forced PWM' : ''}${need.vrefToleranceMax !== undefined ? `, reference within ±${+(need.vrefToleranceMax * 100).toPrecision(3)} %` : ''} with its UVLO below ${need.vinMin} V` };
+    return { problem: `no ${need.topology && need.topology !== 'buck' ? `${need.topology} ` : ''}regulator or controller in the library is rated for ${vinRating.toFixed(1)} V (Vin max ${need.vinMax} V + ${Math.round(m.controllerInput * 100)} %), ${need.iNeed.toFixed(3)} A${need.forcedPwm ? ', forced PWM' : ''}${need.vrefToleranceMax !== undefined ? `, reference within ±${+(need.vrefToleranceMax * 100).toPrecision(3)} %` : ''} with its UVLO below ${need.vinMin} V` };
   }
   options.sort((a, b) => a.cost - b.cost || Number(b.integrated) - Number(a.integrated));
   return options[0]!;

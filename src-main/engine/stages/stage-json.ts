@@ -8,7 +8,10 @@ import { parseQuantity, parseTolerance } from '../notation.ts';
 import type { QuantityKind } from '../units.ts';
 import type { OperatingPoint, OutputSpec, StageSpec } from './types.ts';
 import type { StageDesign, WindowCorners } from './index.ts';
-import { ISOLATION_CLASSES, type IsolationClass } from '../model.ts';
+import { ISOLATION_CLASSES, STAGE_MODEL_KINDS, type IsolationClass, type StageModelKind } from '../model.ts';
+
+const kindOk = (k: unknown): k is StageModelKind => STAGE_MODEL_KINDS.includes(k as StageModelKind);
+const KIND_LIST = STAGE_MODEL_KINDS.map((k) => `"${k}"`).join(', ');
 
 export interface StageFile {
   spec: StageSpec | null;
@@ -70,7 +73,7 @@ function parseOutput(v: unknown, path: string): OutputSpec {
 
 export function parseSpec(v: unknown, path = 'spec'): StageSpec {
   const o = obj(v, path);
-  if (o.kind !== 'buck' && o.kind !== 'cwbuck' && o.kind !== 'ldo') fail(`${path}.kind`, `one of "buck", "cwbuck", "ldo" (got ${JSON.stringify(o.kind)})`);
+  if (!kindOk(o.kind)) fail(`${path}.kind`, `one of ${KIND_LIST} (got ${JSON.stringify(o.kind)})`);
   if (!Array.isArray(o.outputs) || o.outputs.length === 0) fail(`${path}.outputs`, 'a non-empty list of outputs is required');
   const spec: StageSpec = {
     kind: o.kind,
@@ -113,6 +116,24 @@ export function parseSpec(v: unknown, path = 'spec'): StageSpec {
     return x as number[][];
   }, path);
   if (kss !== undefined) spec.secondaryCoupling = kss;
+  if (o.loadSwitch !== undefined) {
+    const ls = obj(o.loadSwitch, `${path}.loadSwitch`);
+    const out: NonNullable<StageSpec['loadSwitch']> = {};
+    const c = optional(ls, 'cload', (x, p) => qty(x, 'capacitance', p), `${path}.loadSwitch`);
+    if (c !== undefined) out.cload = c;
+    const lim = optional(ls, 'inrushLimit', (x, p) => qty(x, 'current', p), `${path}.loadSwitch`);
+    if (lim !== undefined) out.inrushLimit = lim;
+    const slew = optional(ls, 'slewRate', (x, p) => {
+      if (typeof x !== 'number' || !(x > 0) || !Number.isFinite(x)) fail(p, 'a positive number of volts per second');
+      return x;
+    }, `${path}.loadSwitch`);
+    if (slew !== undefined) out.slewRate = slew;
+    if (ls.offModes !== undefined) {
+      if (!Array.isArray(ls.offModes) || ls.offModes.some((m) => typeof m !== 'string' || m === '')) fail(`${path}.loadSwitch.offModes`, 'a list of mode ids');
+      out.offModes = [...(ls.offModes as string[])];
+    }
+    spec.loadSwitch = out;
+  }
   if (o.isolation !== undefined && o.isolation !== null) {
     const iso = obj(o.isolation, `${path}.isolation`);
     if (!ISOLATION_CLASSES.includes(iso.class as IsolationClass)) fail(`${path}.isolation.class`, `one of ${ISOLATION_CLASSES.join(', ')}`);
@@ -124,7 +145,7 @@ export function parseSpec(v: unknown, path = 'spec'): StageSpec {
 /** A design is taken as written (it is the engine's own output); numbers must be finite. */
 function checkDesign(v: unknown, path = 'design'): StageDesign {
   const o = obj(v, path);
-  if (o.kind !== 'buck' && o.kind !== 'cwbuck' && o.kind !== 'ldo') fail(`${path}.kind`, `one of "buck", "cwbuck", "ldo" (got ${JSON.stringify(o.kind)})`);
+  if (!kindOk(o.kind)) fail(`${path}.kind`, `one of ${KIND_LIST} (got ${JSON.stringify(o.kind)})`);
   if (!Array.isArray(o.outputs) || o.outputs.length === 0) fail(`${path}.outputs`, 'a non-empty list of outputs is required');
   const walk = (x: unknown, p: string, depth: number): void => {
     if (depth > 8) fail(p, 'nested too deeply');
@@ -151,6 +172,10 @@ export function parseStageFile(v: unknown): StageFile {
       iout: p.iout.map((x, i) => qty(x, 'current', `operatingPoint.iout[${i}]`)),
       ambient: qty(p.ambient ?? spec?.ambient ?? 25, 'temperature', 'operatingPoint.ambient'),
     } as OperatingPoint;
+    if (p.mode !== undefined) {
+      if (typeof p.mode !== 'string' || p.mode === '') fail('operatingPoint.mode', 'a mode id');
+      operatingPoint.mode = p.mode;
+    }
   }
   let corners: WindowCorners | null = null;
   if (o.corners !== undefined) {

@@ -6,7 +6,7 @@
  * Changes here are additive only.
  */
 import type { Amps, Celsius, Hertz, KelvinPerWatt, Ratio, Volts, Watts } from '../units.ts';
-import type { Id, IsolationClass, StageKind } from '../model.ts';
+import type { Id, IsolationClass, StageModelKind } from '../model.ts';
 import type { LibraryRow } from '../library.ts';
 import type { RatingMargins } from './part-choice.ts';
 import type { DiodeModel } from './defaults.ts';
@@ -28,7 +28,7 @@ export interface OutputSpec {
 
 /** What the planner asks a designer for. */
 export interface StageSpec {
-  kind: StageKind;
+  kind: StageModelKind;
   vinMin: Volts;
   vinNom: Volts;
   vinMax: Volts;
@@ -64,6 +64,12 @@ export interface StageSpec {
   electrolyticDerating?: Ratio;
   /** Rating margins of the part choice (stages/part-choice.ts DEFAULT_MARGINS). */
   margins?: Partial<RatingMargins>;
+  /**
+   * Load switches (stages/load-switch/): the capacitance on the gated rail (default 10 µF),
+   * the inrush limit (default the rail's largest current), a fixed slew rate (V/s; default
+   * chosen for the limit) and the operating modes in which the rail is switched off.
+   */
+  loadSwitch?: { cload?: number; inrushLimit?: number; slewRate?: number; offModes?: string[] };
 }
 
 /** Severity `error` makes a stage infeasible; `warning` is shown but allowed. */
@@ -96,7 +102,7 @@ export interface OutputResult {
 
 /** One evaluated operating point. Energy balance: pin = pout + loss. */
 export interface StageEvaluation {
-  kind: StageKind;
+  kind: StageModelKind;
   vin: Volts;
   iin: Amps;
   pin: Watts;
@@ -134,4 +140,6 @@ export interface OperatingPoint {
   /** Current of each output, in the order of the design's outputs. */
   iout: Amps[];
   ambient: Celsius;
+  /** Operating-mode id, for kinds whose state depends on the mode (a load switch gated off). */
+  mode?: Id;
 }

@@ -16,9 +16,14 @@ import type { DividerChoice } from '../eseries.ts';
 import { buckAtDuty, buckPoint, evaluateBuck, type BuckDesign } from './buck.ts';
 import { coupledOutputs, type CoupledBuckDesign } from './cwbuck.ts';
 import { ldoPoint, type LdoDesign } from './ldo.ts';
+import { boostWindowAt, type BoostDesign } from './boost/index.ts';
+import { invertingWindowAt, type InvertingDesign } from './inverting/index.ts';
+import { fourSwitchWindowAt, type FourSwitchDesign } from './buck-boost-4s/index.ts';
+import { loadSwitchWindowAt, type LoadSwitchDesign } from './load-switch/index.ts';
+import { isoModuleWindowAt, type IsoModuleDesign } from './iso-module/index.ts';
 import { mulberry32, r3 } from './common.ts';
 
-export type WindowDesign = BuckDesign | CoupledBuckDesign | LdoDesign;
+export type WindowDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign | InvertingDesign | FourSwitchDesign | LoadSwitchDesign | IsoModuleDesign;
 
 export interface WindowCorners {
   vin: Volts[];
@@ -61,6 +66,27 @@ function outputsAt(d: WindowDesign, vin: number, iout: number[], x: Draw): { lo:
     }
     const rp = ev.outputs[0]!.ripplePP as number;
     return [{ lo: v - rp / 2, hi: v + rp / 2 }];
+  }
+  if (d.kind === 'boost') {
+    // Boost: setpoint from reference and divider; out of regulation (duty limit, or an input
+    // above the setpoint) the output follows the input (stages/boost/index.ts).
+    return [boostWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
+  }
+  if (d.kind === 'iso-module') {
+    // Unregulated: the input's spread and the load-regulation line set the output (magnitudes).
+    return [isoModuleWindowAt(d, vin, iout[0] ?? 0)];
+  }
+  if (d.kind === 'load-switch') {
+    // The input less the hot drop; no reference or divider of its own (the corners' tolerance
+    // cases give the same value).
+    return [loadSwitchWindowAt(d, vin, iout[0] ?? 0)];
+  }
+  if (d.kind === 'buck-boost-4s') {
+    return [fourSwitchWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
+  }
+  if (d.kind === 'inverting') {
+    // Inverting: magnitudes (the caller signs them); the setpoint is on |Vout|.
+    return [invertingWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
   }
   if (d.kind === 'cwbuck') {
     const sp = setpoint(d.divider, d.controller.vrefTolerance, x);
@@ -113,6 +139,11 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
     const f = hasVf ? -s : 0;
     const x: Draw = { vref: s, rTop: s, rBottom: -s, vf: f, accuracy: s };
     const label = `${d.kind === 'ldo' ? 'accuracy' : 'reference and divider'} ${s < 0 ? 'low' : 'high'}${hasVf ? `, rectifier drop ${f < 0 ? 'low' : 'high'}` : ''}`;
+    // A load switch has no setpoint: its output is the input less the drop, one case.
+    if (d.kind === 'load-switch' || d.kind === 'iso-module') {
+      if (s > 0) tolCases.push({ x, label: d.kind === 'load-switch' ? 'input less the hot switch drop' : 'ratio and load-regulation line' });
+      continue;
+    }
     tolCases.push({ x, label });
   }
   // An output whose smallest and largest currents are equal, or an input voltage given twice,
