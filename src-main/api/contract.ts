@@ -36,6 +36,12 @@ export interface ProjectState {
   recent: string[];
   /** The host the handlers run in; the window adapts file dialogs to it. */
   host: 'electron' | 'web' | 'test';
+  /**
+   * Job id of the planning run in progress, whoever started it (the window, a menu, or the
+   * host planning the demo at first run); null when none runs. A window that opens or
+   * reloads mid-plan follows that job's progress events.
+   */
+  planning: string | null;
 }
 
 /** One part of the editable part library as the window sees it (plain rows). */

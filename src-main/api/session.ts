@@ -96,6 +96,7 @@ export class Session {
       recovered: this.recovered,
       recent: [...this.recent],
       host: this.host,
+      planning: this.planJob?.jobId ?? null,
     };
   }
 

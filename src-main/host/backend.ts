@@ -11,6 +11,7 @@ import { mkdirSync } from 'node:fs';
 import { createApi } from '../api/index.ts';
 import { autosave, clearRecovery, loadRecent, newProject, openDemo, recoverIfAny, saveTo, openPath } from '../api/files.ts';
 import { ApiFailure } from '../api/registry.ts';
+import { startFirstRunPlan } from '../api/plan-job.ts';
 import { makePathPolicy } from './paths.ts';
 import type { FromBackend, ToBackend } from './backend-protocol.ts';
 
@@ -51,6 +52,7 @@ export function createBackend(opts: BackendOptions) {
         approved.add(demoFile);
         openDemo(s);
         saveTo(s, demoFile);
+        startFirstRunPlan(s);
       }
     } catch {
       newProject(s);

@@ -8,6 +8,7 @@ import { homedir, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { createApi, type Api } from '../api/index.ts';
 import { autosave, loadRecent, openDemo, openPath, recoverIfAny, saveTo, newProject } from '../api/files.ts';
+import { startFirstRunPlan } from '../api/plan-job.ts';
 import { makePathPolicy } from './paths.ts';
 import { startWebHost, type WebHost } from './web-host.ts';
 
@@ -20,6 +21,8 @@ export interface WebMainOptions {
   autosaveMs?: number;
   /** Extra folders the window may read and write (tests use a temp folder). */
   allowedRoots?: string[];
+  /** Plan the demo at first run so the window opens on a tree (default true). */
+  firstRunPlan?: boolean;
 }
 
 export function defaultUserDataDir(): string {
@@ -34,6 +37,7 @@ export async function startWebMain(opts: WebMainOptions): Promise<{ api: Api; ho
   const api = createApi({ host: 'web', userDataDir: opts.userDataDir, pathPolicy: policy, autosaveMs: opts.autosaveMs ?? 30_000 });
   const s = api.session;
   loadRecent(s);
+  let firstRun = false;
   if (opts.project) {
     openPath(s, opts.project);
   } else if (!recoverIfAny(s)) {
@@ -45,6 +49,7 @@ export async function startWebMain(opts: WebMainOptions): Promise<{ api: Api; ho
       else {
         openDemo(s);
         saveTo(s, demoFile);
+        firstRun = true;
       }
     } catch {
       newProject(s);
@@ -52,6 +57,7 @@ export async function startWebMain(opts: WebMainOptions): Promise<{ api: Api; ho
   }
   const host = await startWebHost({ api, rendererDir: opts.rendererDir, port: opts.port });
   s.emit = (event, payload) => host.broadcast(event, payload);
+  if (firstRun && opts.firstRunPlan !== false) startFirstRunPlan(s);
   const timer = s.autosaveMs > 0 ? setInterval(() => {
     void s.serialise(() => { try { autosave(s); } catch { /* next period tries again */ } });
   }, s.autosaveMs) : null;

@@ -25,7 +25,7 @@ describe.skipIf(tool.skip)('grid editing in the window', () => {
   let page: Page;
 
   beforeAll(async () => {
-    w = await startWindow();
+    w = await startWindow({ firstRunPlan: false });
     page = w.page;
     await page.goto(w.entryUrl);
     await page.waitForSelector('[data-grid=loads] [data-row]');

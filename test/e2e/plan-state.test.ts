@@ -11,7 +11,7 @@ describe.skipIf(tool.skip)('plan state in the window', () => {
   let page: Page;
 
   beforeAll(async () => {
-    w = await startWindow();
+    w = await startWindow({ firstRunPlan: false });
     page = w.page;
     await page.goto(w.entryUrl);
     await page.waitForSelector('[data-testid=plan]', { timeout: 120_000 });
