@@ -245,8 +245,16 @@ export interface Requests {
   'project.save': (args: { path?: string }) => ProjectState;
   'project.importJson': (args: { text: string; discard?: boolean }) => Snapshot;
   'project.rename': (args: { name: string }) => Snapshot;
+  /** The project's description (free text shown in exports and the report). */
+  'project.describe': (args: { description: string }) => Snapshot;
 
   'requirements.editCell': (args: CellEdit) => Snapshot;
+  /**
+   * Paste a rectangular block (from a spreadsheet) in one undoable step: `rowIds` are the
+   * rows it lands on (rows past them are added), `fields` the columns. Any bad cell refuses
+   * the whole block with every bad cell named by row and column; nothing changes.
+   */
+  'requirements.paste': (args: { table: Exclude<TableName, 'library'>; rowIds: Id[]; fields: string[]; cells: string[][] }) => Snapshot;
   'requirements.addRow': (args: { table: TableName }) => Snapshot & { rowId: Id };
   'requirements.removeRow': (args: { table: TableName; rowId: Id }) => Snapshot;
   'requirements.undo': (args: Record<string, never>) => Snapshot;

@@ -29,8 +29,12 @@ export function guardDiscard(s: Session, discard: boolean | undefined): void {
 
 export const projectHandlers = {
   'project.snapshot': handler('project.snapshot', noArgs, (s: Session) => buildSnapshot(s)),
-  'project.rename': handler('project.rename', z.object({ name: z.string().trim().min(1).max(120) }).strict(), (s: Session, a) => {
+  'project.rename': handler('project.rename', z.object({ name: z.string().trim().min(1, 'the project needs a name').max(120, 'at most 120 characters') }).strict(), (s: Session, a) => {
     s.edit('Rename the project', (req) => { req.meta.name = a.name; });
+    return buildSnapshot(s);
+  }),
+  'project.describe': handler('project.describe', z.object({ description: z.string().max(4000, 'description: at most 4000 characters') }).strict(), (s: Session, a) => {
+    s.edit('Change the project description', (req) => { req.meta.description = a.description.trim(); });
     return buildSnapshot(s);
   }),
 };

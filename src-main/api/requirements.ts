@@ -102,8 +102,11 @@ function checkRow(req: Requirements, table: TableName, rowId: Id): void {
   }
 }
 
-/** Apply one cell edit to a copy of the requirements (throws on bad input). */
-export function applyCell(req: Requirements, e: CellEdit): void {
+/**
+ * Apply one cell edit to a copy of the requirements (throws on bad input). `rowChecks` off
+ * leaves the checks across a row's cells to the caller (a paste fills a whole row first).
+ */
+export function applyCell(req: Requirements, e: CellEdit, rowChecks = true): void {
   const where = `${rowLabel(req, e.table, e.rowId)} › ${e.field}`;
   if (e.table === 'loads' && e.field.startsWith('current:')) {
     const modeId = e.field.slice('current:'.length);
@@ -145,7 +148,53 @@ export function applyCell(req: Requirements, e: CellEdit): void {
     const dup = rows.find((r) => r !== row && String(r.name).toLowerCase() === String(value).toLowerCase());
     if (dup) throw new ApiFailure(`${where}: another row of ${e.table} is already called "${String(value)}"`, where);
   }
-  checkRow(req, e.table, e.rowId);
+  if (rowChecks) checkRow(req, e.table, e.rowId);
+}
+
+/** Column name as the grid shows it (a load current column names its mode). */
+function columnLabel(req: Requirements, table: TableName, field: string): string {
+  if (field.startsWith('current:')) return `I ${req.modes.find((m) => m.id === field.slice(8))?.name ?? field.slice(8)}`;
+  return TABLE_COLUMNS[table as Exclude<TableName, 'library'>]?.find((c) => c.key === field)?.label ?? field;
+}
+
+export interface PasteArgs {
+  table: Exclude<TableName, 'library'>;
+  /** Existing rows the block lands on, top to bottom; rows of the block past these are added. */
+  rowIds: Id[];
+  /** Column keys the block's columns land on, left to right. */
+  fields: string[];
+  /** The block as typed in a spreadsheet (tab-separated text split into cells). */
+  cells: string[][];
+}
+
+/**
+ * Paste a rectangular block in one undoable step. Every cell is checked; when any is bad the
+ * error lists each bad cell by row and column and nothing changes.
+ */
+export function applyPaste(req: Requirements, a: PasteArgs): void {
+  if (!a.cells.length) throw new ApiFailure('paste: the clipboard holds no cells', 'cells');
+  const width = Math.max(...a.cells.map((r) => r.length));
+  if (width > a.fields.length) throw new ApiFailure(`paste: the block is ${width} columns wide but only ${a.fields.length} column(s) lie from the selected cell to the right; nothing changed`, 'cells');
+  const single = a.table === 'limits' || a.table === 'preferences';
+  if (single && a.cells.length > 1) throw new ApiFailure(`paste: ${a.table} has one row; the block has ${a.cells.length}; nothing changed`, 'cells');
+  const bad: string[] = [];
+  const rowsOf = () => (single ? [{ id: 'project' }] : (req[a.table as 'sources' | 'domains' | 'modes' | 'loads'] as { id: Id }[]));
+  a.cells.forEach((line, i) => {
+    const rowId = a.rowIds[i] ?? addRow(req, a.table);
+    const rowNo = rowsOf().findIndex((x) => x.id === rowId) + 1;
+    line.forEach((text, j) => {
+      const field = a.fields[j]!;
+      try {
+        applyCell(req, { table: a.table, rowId, field, text }, false);
+      } catch (e) {
+        bad.push(`row ${rowNo}, column "${columnLabel(req, a.table, field)}": ${(e as Error).message}`);
+      }
+    });
+    try { checkRow(req, a.table, rowId); } catch (e) { bad.push(`row ${rowNo}: ${(e as Error).message}`); }
+  });
+  if (bad.length) {
+    throw new ApiFailure(`paste refused, nothing changed: ${bad.length} bad cell${bad.length === 1 ? '' : 's'}\n${bad.join('\n')}`, 'cells');
+  }
 }
 
 function freshId(prefix: string, taken: { id: Id }[]): Id {
@@ -238,6 +287,18 @@ export const requirementHandlers = {
         checkShapes(req, lib);
       });
     }
+    return buildSnapshot(s);
+  }),
+  'requirements.paste': handler('requirements.paste', z.object({
+    table: z.enum(['sources', 'domains', 'modes', 'loads', 'limits', 'preferences']),
+    rowIds: z.array(id).max(5000),
+    fields: z.array(z.string().min(1).max(200)).min(1).max(100),
+    cells: z.array(z.array(z.string().max(500)).max(100)).min(1).max(5000),
+  }).strict(), async (s: Session, a) => {
+    s.edit(`Paste ${a.cells.length} row${a.cells.length === 1 ? '' : 's'} into ${a.table}`, (req, lib) => {
+      applyPaste(req, a);
+      checkShapes(req, lib);
+    });
     return buildSnapshot(s);
   }),
   'requirements.addRow': handler('requirements.addRow', z.object({ table: tableName }).strict(), async (s: Session, a) => {

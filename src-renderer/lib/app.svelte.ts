@@ -19,6 +19,11 @@ export interface Prompt {
   question?: boolean;
   /** Values offered with one click (recent files). */
   choices?: string[];
+  /**
+   * Act on the value while the dialog stays open: null closes it, a message is shown in the
+   * dialog with the typed text kept (a bad path is corrected, not retyped).
+   */
+  submit?: (value: string) => Promise<string | null>;
   resolve: (v: string | null) => void;
 }
 

@@ -244,6 +244,10 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
     await page.click('text=Open…');
     await page.locator('[data-testid=prompt] input').fill('/etc/passwd.rwproj');
     await page.click('[data-testid=prompt-ok]');
-    await expect.poll(() => status().textContent()).toMatch(/path:/);
+    // The dialog stays open with the reason and the typed path.
+    await expect.poll(() => page.locator('[data-testid=prompt-error]').textContent()).toMatch(/path:/);
+    expect(await page.locator('[data-testid=prompt] input').inputValue()).toBe('/etc/passwd.rwproj');
+    await page.click('[data-testid=prompt] >> text=Cancel');
+    expect(await page.locator('[data-testid=prompt]').count()).toBe(0);
   });
 });
