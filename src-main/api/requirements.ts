@@ -15,6 +15,7 @@ import { buildSnapshot } from './snapshot.ts';
 import { TABLE_COLUMNS, type ColumnDef } from './tables.ts';
 import { editLibraryCell, addLibraryRow, removeLibraryRow } from './library.ts';
 import { checkShapes } from './files.ts';
+import { sourceCapacityProblems } from '../engine/validate.ts';
 
 const tableName = z.enum(['sources', 'domains', 'modes', 'loads', 'limits', 'preferences', 'library']);
 const id = z.string().min(1).max(200);
@@ -266,11 +267,16 @@ export function projectProblems(req: Requirements): { field?: string; message: s
   for (const l of req.loads) {
     if (!req.domains.some((d) => d.id === l.domainId)) out.push({ field: `loads.${l.id}.domainId`, message: `loads › ${l.name}: domain "${l.domainId}" does not exist` });
   }
+  for (const p of sourceCapacityProblems(req)) out.push({ field: p.path, message: p.message });
   return out;
 }
 
+/** Undo title in words: the row's name and the column as the grid shows it. */
 function describe(e: CellEdit, req: Requirements): string {
-  return `Edit ${rowLabel(req, e.table, e.rowId)} › ${e.field}`;
+  const col = e.field.startsWith('current:')
+    ? `current in ${req.modes.find((m) => m.id === e.field.slice(8))?.name ?? 'a mode'}`
+    : TABLE_COLUMNS[e.table as Exclude<TableName, 'library'>]?.find((c) => c.key === e.field)?.label ?? e.field;
+  return `Edit ${rowLabel(req, e.table, e.rowId)} › ${col}`;
 }
 
 export const requirementHandlers = {
@@ -314,7 +320,7 @@ export const requirementHandlers = {
     return { ...(await buildSnapshot(s)), rowId };
   }),
   'requirements.removeRow': handler('requirements.removeRow', z.object({ table: tableName, rowId: id }).strict(), async (s: Session, a) => {
-    s.edit(`Remove ${a.table} › ${a.rowId}`, (req, lib) => {
+    s.edit(a.table === 'library' ? `Remove library › ${a.rowId}` : `Remove ${rowLabel(s.requirements, a.table, a.rowId)}`, (req, lib) => {
       if (a.table === 'library') return { library: removeLibraryRow(lib, a.rowId) };
       removeRow(req, a.table, a.rowId);
     });

@@ -148,7 +148,8 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
       const crosses = st.barriers.some((b) => b.toDomainId === toDomain) && toDomain !== group;
       const role = o.role === 'output' ? '' : o.role === 'primary' ? 'primary' : 'secondary';
       const nT = designTurns.get(o.nodeId) ?? o.turns;
-      const turns = nT !== undefined ? `${role ? ' ' : ''}${nT} T` : '';
+      // Turns as a count with the polarity marked in words (a negative count is a reversed winding).
+      const turns = nT !== undefined ? `${role ? ' ' : ''}${Math.abs(nT)} T${nT < 0 ? ' reversed' : ''}` : '';
       edges.push({ id: `e:${st.id}>${o.nodeId}`, from: st.id, to: o.nodeId, label: `${role}${turns}`, crossesBarrier: crosses });
     }
   }
