@@ -6,6 +6,7 @@
  */
 import type { QuantityKind } from '../../src-main/engine/units.ts';
 import { q, pct, num } from './fmt.ts';
+import { CLASS_PARAMS, type PartClass } from '../../src-main/engine/library.ts';
 
 type Unit = QuantityKind | 'ratio' | 'dB' | 'K/W' | 'turns' | 'factor' | 'plain';
 
@@ -140,3 +141,26 @@ const BOM_GROUPS: Record<string, string> = {
   diode: 'Diodes', capacitor: 'Capacitors',
 };
 export const bomGroupName = (key: string): string => BOM_GROUPS[key] ?? cap(splitWords(key));
+
+/** Base SI unit of a library parameter → the quantity printed in engineering notation. */
+const UNIT_KIND: Record<string, QuantityKind> = {
+  V: 'voltage', A: 'current', 'Ω': 'resistance', F: 'capacitance', H: 'inductance', s: 'time', W: 'power', C: 'charge', 'K/W': 'thermal-resistance',
+};
+
+/** What a library column means: the parameter's own description and its unit, where known. */
+export function libraryColumn(key: string, partClass?: string): { label: string; hint: string; kind: QuantityKind | null; unit: string } {
+  if (!key.startsWith('params.')) return { label: key === 'partClass' ? 'class' : key === 'cost' ? 'cost estimate' : splitWords(key), hint: '', kind: null, unit: '' };
+  const k = key.slice(7);
+  const classes = (partClass ? [partClass] : Object.keys(CLASS_PARAMS)) as PartClass[];
+  const spec = classes.map((c) => CLASS_PARAMS[c]?.find((p) => p.key === k)).find((p) => p) ?? Object.values(CLASS_PARAMS).flat().find((p) => p.key === k);
+  const unit = spec?.unit ?? '';
+  return { label: splitWords(k) + (unit ? ` (${unit})` : ''), hint: spec?.doc ?? '', kind: UNIT_KIND[unit] ?? null, unit };
+}
+
+/** A library value as the grid shows it: engineering notation with its unit. */
+export function libraryValue(v: unknown, col: { kind: QuantityKind | null; unit: string }): string {
+  if (v === null || v === undefined) return '';
+  if (typeof v !== 'number') return String(v);
+  if (col.kind) return q(v, col.kind, 4);
+  return col.unit ? `${num(v)} ${col.unit}` : num(v);
+}

@@ -70,6 +70,26 @@ describe.skipIf(tool.skip)('engineering wording in the window', () => {
     await w.shot('wording-bom');
   });
 
+  it('the part library shows engineering notation with units and takes it back as typed', async () => {
+    await page.selectOption('[data-testid=library-class]', 'controller');
+    const texts = await page.locator('[data-grid=library] [role=gridcell]').allTextContents();
+    expect(texts.length).toBeGreaterThan(10);
+    for (const t of texts) expect(t, t).not.toMatch(/\de-\d/);
+    expect(texts.some((t) => / ns$/.test(t))).toBe(true);
+    const headers = (await page.locator('[data-grid=library] [role=columnheader]').allTextContents()).join(' | ');
+    expect(headers).not.toMatch(/tonMin|rdsHs/);
+    const cell = page.locator('[data-grid=library] [data-row]').first().locator('[data-key="params.tonMin"]');
+    await cell.click();
+    await page.keyboard.press('Enter');
+    await page.keyboard.press('Control+A');
+    await page.keyboard.type('95 ns');
+    await page.keyboard.press('Enter');
+    await expect.poll(() => cell.textContent()).toBe('95 ns');
+    await page.locator('[data-grid=library]').scrollIntoViewIfNeeded();
+    await w.shot('wording-library');
+    await page.click('[data-testid=undo]');
+  });
+
   it('requirement grids show full headers, derating, the time unit and no working voltage on a non-isolated domain', async () => {
     await page.click('[data-viewtab=requirements]');
     await page.waitForSelector('[data-grid=loads]');
