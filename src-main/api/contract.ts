@@ -284,8 +284,14 @@ export interface PlanProgress {
   jobId: string;
   /** 0..1 where known, else null (anytime search without a bound). */
   fraction: number | null;
+  /** Planner phase: 'rails', 'candidates' (designing candidate stages), 'search', 'done'. */
+  phase: string;
+  /** Candidate stage designs evaluated so far (the first, longest phase). */
+  candidates: number;
+  /** Branches of the tree search explored so far. */
   explored: number;
-  bestLoss: number | null;
+  /** Weighted score of the best complete tree so far (lower is better); null before one. */
+  bestScore: number | null;
   elapsedMs: number;
   message: string;
 }

@@ -32,11 +32,11 @@ export function startPlanJob(s: Session): PlanJob {
   s.planJob = { jobId, abort };
   s.emit('project.state', s.state());
   let last = 0;
-  const onProgress = (p: { fraction: number; explored: number; incumbent?: number; message: string }) => {
+  const onProgress = (p: { fraction: number; phase: string; candidates: number; explored: number; incumbent?: number; message: string }) => {
     const now = performance.now();
     if (now - last < 50) return;
     last = now;
-    s.emit('plan.progress', { jobId, fraction: p.fraction, explored: p.explored, bestLoss: p.incumbent ?? null, elapsedMs: now - t0, message: p.message });
+    s.emit('plan.progress', { jobId, fraction: p.fraction, phase: p.phase, candidates: p.candidates, explored: p.explored, bestScore: p.incumbent ?? null, elapsedMs: now - t0, message: p.message });
   };
   const finish = (outcome: 'done' | 'cancelled' | 'failed', message: string) => {
     if (s.planJob?.jobId === jobId) s.planJob = null;

@@ -69,7 +69,7 @@ class AppState {
   follow(jobId: string | null | undefined): void {
     if (jobId && !this.jobId) {
       this.jobId = jobId;
-      this.progress = { jobId, fraction: 0, explored: 0, bestLoss: null, elapsedMs: 0, message: 'planning' };
+      this.progress = { jobId, fraction: 0, phase: 'rails', candidates: 0, explored: 0, bestScore: null, elapsedMs: 0, message: 'planning' };
       this.lastPlanEvent = Date.now();
     }
   }

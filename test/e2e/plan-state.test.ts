@@ -53,6 +53,26 @@ describe.skipIf(tool.skip)('plan state in the window', () => {
     await w.shot('plan-cancelled');
   });
 
+  it('progress speaks in the planner counts: candidate designs first, then branches and the best score', { timeout: 120_000 }, async () => {
+    await page.click('[data-viewtab=requirements]');
+    await typeInCell('preferences', 'project', 'budgetMs', '8000');
+    await page.click('[data-testid=plan]');
+    await page.waitForSelector('[data-testid=plan-progress]');
+    const seen: string[] = [];
+    while (await page.locator('[data-testid=plan-progress-text]').count()) {
+      const t = (await page.locator('[data-testid=plan-progress-text]').textContent().catch(() => null)) ?? '';
+      if (t && seen.at(-1) !== t) seen.push(t);
+      if (seen.length === 3) await w.shot('plan-progress');
+      await page.waitForTimeout(150);
+    }
+    const counts = seen.map((t) => /(\d+) designed/.exec(t)?.[1]).filter(Boolean).map(Number);
+    // The count grows while the planner designs candidates (the old bar said "0 explored" here).
+    expect(counts.length, seen.join(' | ')).toBeGreaterThan(1);
+    expect(Math.max(...counts)).toBeGreaterThan(0);
+    expect(seen.some((t) => /branches explored/.test(t)), seen.join(' | ')).toBe(true);
+    expect(seen.every((t) => !/^.*· 0 explored$/.test(t))).toBe(true);
+  });
+
   it('after undoing the edit that made planning infeasible, the old reasons are marked as from before', { timeout: 120_000 }, async () => {
     await page.click('[data-viewtab=requirements]');
     await typeInCell('preferences', 'project', 'budgetMs', '2000');
