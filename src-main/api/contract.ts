@@ -42,6 +42,11 @@ export interface ProjectState {
    * reloads mid-plan follows that job's progress events.
    */
   planning: string | null;
+  /**
+   * The host asks the window to plan this project as soon as it is shown (the demo at first
+   * run), so a newcomer opens on a tree; cleared when a plan starts.
+   */
+  planOnOpen: boolean;
 }
 
 /** One part of the editable part library as the window sees it (plain rows). */

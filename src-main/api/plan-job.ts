@@ -10,14 +10,6 @@ import type { PlanJob } from './contract.ts';
 import { ApiFailure } from './registry.ts';
 import { clone, type Session } from './session.ts';
 
-/**
- * First run: the demo is planned straight away so a newcomer opens on a tree, not an empty
- * canvas. Quietly nothing when the requirements cannot be planned (the window shows why).
- */
-export function startFirstRunPlan(s: Session): void {
-  try { startPlanJob(s); } catch { /* the problems list in the window explains it */ }
-}
-
 export function startPlanJob(s: Session): PlanJob {
   if (s.planJob) throw new ApiFailure('the planner is already running: wait for it or cancel it');
   const problems = validateRequirements(s.requirements);
@@ -30,6 +22,7 @@ export function startPlanJob(s: Session): PlanJob {
   const req = clone(s.requirements);
   const t0 = performance.now();
   s.planJob = { jobId, abort };
+  s.planOnOpen = false;
   s.emit('project.state', s.state());
   let last = 0;
   const onProgress = (p: { fraction: number; phase: string; candidates: number; explored: number; incumbent?: number; message: string }) => {

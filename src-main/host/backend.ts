@@ -11,7 +11,6 @@ import { mkdirSync } from 'node:fs';
 import { createApi } from '../api/index.ts';
 import { autosave, clearRecovery, loadRecent, newProject, openDemo, recoverIfAny, saveTo, openPath } from '../api/files.ts';
 import { ApiFailure } from '../api/registry.ts';
-import { startFirstRunPlan } from '../api/plan-job.ts';
 import { makePathPolicy } from './paths.ts';
 import type { FromBackend, ToBackend } from './backend-protocol.ts';
 
@@ -52,7 +51,7 @@ export function createBackend(opts: BackendOptions) {
         approved.add(demoFile);
         openDemo(s);
         saveTo(s, demoFile);
-        startFirstRunPlan(s);
+        s.planOnOpen = true;
       }
     } catch {
       newProject(s);

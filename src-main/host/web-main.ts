@@ -8,7 +8,6 @@ import { homedir, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { createApi, type Api } from '../api/index.ts';
 import { autosave, loadRecent, openDemo, openPath, recoverIfAny, saveTo, newProject } from '../api/files.ts';
-import { startFirstRunPlan } from '../api/plan-job.ts';
 import { makePathPolicy } from './paths.ts';
 import { startWebHost, type WebHost } from './web-host.ts';
 
@@ -57,7 +56,9 @@ export async function startWebMain(opts: WebMainOptions): Promise<{ api: Api; ho
   }
   const host = await startWebHost({ api, rendererDir: opts.rendererDir, port: opts.port });
   s.emit = (event, payload) => host.broadcast(event, payload);
-  if (firstRun && opts.firstRunPlan !== false) startFirstRunPlan(s);
+  // The window plans the first run's demo once it is shown (after its first paint, so the
+  // planning worker does not compete with the window's start).
+  if (firstRun && opts.firstRunPlan !== false) s.planOnOpen = true;
   const timer = s.autosaveMs > 0 ? setInterval(() => {
     void s.serialise(() => { try { autosave(s); } catch { /* next period tries again */ } });
   }, s.autosaveMs) : null;
