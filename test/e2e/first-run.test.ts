@@ -35,6 +35,22 @@ describe.skipIf(tool.skip)('first run and fitting', () => {
     await w.shot('first-run-planned');
   });
 
+  it('the inspector takes room only while something is inspected', async () => {
+    expect(await page.locator('[data-testid=inspector]').count()).toBe(0);
+    const wide = await page.locator('.canvas').evaluate((e) => e.clientWidth);
+    await page.locator('[data-kind=stage]').first().click();
+    await expect.poll(() => page.locator('[data-testid=inspector]').count()).toBe(1);
+    const narrow = await page.locator('.canvas').evaluate((e) => e.clientWidth);
+    expect(wide - narrow).toBeGreaterThan(300);
+    await w.shot('inspector-open');
+    await page.click('[data-testid=inspector-close]');
+    expect(await page.locator('[data-testid=inspector]').count()).toBe(0);
+    await page.locator('[data-kind=stage]').first().click();
+    await page.locator('.canvas').focus();
+    await page.keyboard.press('Escape');
+    await expect.poll(() => page.locator('[data-testid=inspector]').count()).toBe(0);
+  });
+
   it('fits the tree again after planning again, even when zoomed in and panned away', { timeout: 150_000 }, async () => {
     for (let i = 0; i < 6; i++) await page.click('text=Zoom in');
     await page.locator('.canvas').focus();
