@@ -4,6 +4,7 @@
  */
 import { CliError, type CliCommand, type CliIo } from './cli/command.ts';
 import { commandModules } from './cli/index.ts';
+import { showText } from './engine/text-rules.ts';
 
 export function allCommands(): CliCommand[] {
   return commandModules.flat();
@@ -20,7 +21,21 @@ function mainHelp(cmds: CliCommand[]): string {
   ].join('\n');
 }
 
-export async function runCli(argv: string[], io: CliIo): Promise<number> {
+/**
+ * Everything the CLI prints passes here: control, bidi and other characters a name may not
+ * hold are shown as `\u{1B}` (engine/text-rules.ts), so text from a project file cannot
+ * clear the screen, retitle the terminal or reorder a line. The program's own line breaks
+ * and tabs stay.
+ */
+function terminalSafe(io: CliIo): CliIo {
+  return {
+    out: (line) => io.out(showText(line, { keepLineFeeds: true })),
+    err: (line) => io.err(showText(line, { keepLineFeeds: true })),
+  };
+}
+
+export async function runCli(argv: string[], rawIo: CliIo): Promise<number> {
+  const io = terminalSafe(rawIo);
   const cmds = allCommands();
   const [name, ...rest] = argv;
   if (!name || name === '--help' || name === '-h' || name === 'help') {

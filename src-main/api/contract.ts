@@ -14,7 +14,18 @@ export interface ApiError {
   /** Dotted path of the offending argument or cell, e.g. `loads.L3.voltage`. */
   field?: string;
   message: string;
+  /** Set when the window can offer a way on (see ApiErrorCode); absent for plain refusals. */
+  code?: ApiErrorCode;
 }
+
+/**
+ * Refusals that protect a file shared with other programs; nothing was written.
+ * - `exists`: the target file exists; ask the user, then repeat with `overwrite: true`.
+ * - `changed`: the project's file changed on disk since it was opened; offer Save As or Reopen.
+ * - `locked`: another program is writing the file right now.
+ * - `side-file`: another program's unfinished change (journal, write-ahead log) is beside it.
+ */
+export type ApiErrorCode = 'exists' | 'changed' | 'locked' | 'side-file';
 
 export type ApiResult<T> = { ok: true; value: T } | { ok: false; error: ApiError };
 
@@ -33,6 +44,8 @@ export interface ProjectState {
   redoLabel: string | null;
   /** True when the project came back from an autosave after an unclean exit. */
   recovered: boolean;
+  /** A message from the host for the user, e.g. why the last project was not reopened at start; null when none. */
+  notice: string | null;
   recent: string[];
   /** The host the handlers run in; the window adapts file dialogs to it. */
   host: 'electron' | 'web' | 'test';
@@ -63,6 +76,9 @@ export interface LibraryView {
 export interface StageFigures {
   stageId: Id;
   modeId: Id;
+  /** The stage's input voltage, loss and efficiency with the source at its min, nominal and max voltage (null: not computed). */
+  byCase: { vMin: StageCase | null; vNom: StageCase; vMax: StageCase | null };
+  /** The fields below are at V nom. */
   vin: number;
   pin: number;
   pout: number;
@@ -92,10 +108,17 @@ export interface SystemFigures {
   /** Efficiency and source current at the source's min, nominal and max voltage. */
   efficiency: { vMin: number; vNom: number; vMax: number };
   sourceCurrent: { vMin: number; vNom: number; vMax: number };
+  /** At V nom (the same as cases.vNom). */
   pin: number;
   pout: number;
   loss: number;
+  /** Source power, load power and loss at each input case. */
+  cases: { vMin: PowerCase; vNom: PowerCase; vMax: PowerCase };
 }
+
+export interface StageCase { vin: number; loss: number; efficiency: number }
+
+export interface PowerCase { pin: number; pout: number; loss: number }
 
 /** Everything the tree, inspector, budget and thermal views need about one plan. */
 export interface RollupView {
@@ -109,11 +132,28 @@ export interface RollupView {
   messages: string[];
 }
 
+/** One line of text in the drawing, placed by the engine (baseline at y; box = the room it takes). */
+export interface LayoutText {
+  text: string;
+  x: number;
+  y: number;
+  size: number;
+  bold: boolean;
+  role: 'name' | 'key' | 'line';
+  box: { x: number; y: number; width: number; height: number };
+}
+
 export interface LayoutNode {
   id: Id;
   kind: 'source' | 'stage' | 'rail' | 'internal' | 'load';
+  /** Full name (hover, find-a-rail); the drawing shows `glance` or `detail`. */
   label: string;
   sub: string[];
+  /** The one figure shown at a glance. */
+  key: string;
+  /** Text at a glance (name and key figure, large) and in detail (name and every line, small). */
+  glance: LayoutText[];
+  detail: LayoutText[];
   domainId: Id | null;
   x: number;
   y: number;
@@ -135,6 +175,8 @@ export interface LayoutGroup {
   domainId: Id;
   label: string;
   isolation: string;
+  glance: LayoutText[];
+  detail: LayoutText[];
   x: number;
   y: number;
   width: number;
@@ -172,8 +214,26 @@ export interface BomView {
   currency: string;
 }
 
+/**
+ * One alternative's figures, from the same computations the Budget and Parts views use
+ * (roll-up: time-weighted loss over the modes at nominal input; BOM: cost and part count).
+ * A figure that could not be computed is null with the reason in `note`.
+ */
+export interface AlternativeFigures {
+  planId: Id;
+  weightedLoss: number | null;
+  cost: number | null;
+  parts: number | null;
+  note: string | null;
+}
+
+/** What the alternatives' figures are (stated beside them in the window). */
+export const ALTERNATIVE_BASIS = 'Loss: time-weighted over the operating modes at nominal input (as in Budget). Cost and parts: from the bill of materials (as in Parts).';
+
 /** The plan-side picture the window draws: the chosen alternative, computed. */
 export interface PlanView {
+  /** Per alternative, in the order of result.alternatives. */
+  alternatives: AlternativeFigures[];
   result: PlanResult;
   /** Id of the alternative currently shown (the best one unless the user picked another). */
   selectedId: Id | null;
@@ -247,7 +307,13 @@ export interface Requests {
   'project.new': (args: { discard?: boolean }) => Snapshot;
   'project.open': (args: { path: string; discard?: boolean }) => Snapshot;
   'project.openDemo': (args: { discard?: boolean }) => Snapshot;
-  'project.save': (args: { path?: string }) => ProjectState;
+  /**
+   * Save to the project's file, or to `path` (Save As). An existing file other than the
+   * project's own is replaced only with `overwrite: true` (else code `exists`); the
+   * project's own file is never replaced when it changed on disk since it was opened
+   * (code `changed`), whatever `overwrite` says.
+   */
+  'project.save': (args: { path?: string; overwrite?: boolean }) => ProjectState;
   'project.importJson': (args: { text: string; discard?: boolean }) => Snapshot;
   'project.rename': (args: { name: string }) => Snapshot;
   /** The project's description (free text shown in exports and the report). */
@@ -278,7 +344,8 @@ export interface Requests {
   /** Y-capacitor leakage across a barrier, I = 2π·f·C·V, against the chosen limit. */
   'isolation.check': (args: { capacitance: string; voltageRms: string; frequency: string; limitId: string }) => BarrierCheckView;
 
-  'export.file': (args: { kind: ExportKind; path?: string; stageId?: Id }) => ExportFile;
+  /** An existing file at `path` is replaced only with `overwrite: true` (else code `exists`). */
+  'export.file': (args: { kind: ExportKind; path?: string; stageId?: Id; overwrite?: boolean }) => ExportFile;
 }
 
 export type RequestName = keyof Requests;

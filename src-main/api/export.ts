@@ -9,11 +9,13 @@ import {
   exportBomCsv, exportBomXlsx, exportMagneticSpecs, exportNetlists, exportReportPdf, exportTreePdf, exportTreeSvg,
   prepareExport, ExportError,
 } from '../export/bundle.ts';
+import { existsSync } from 'node:fs';
 import { writeFileAtomic } from '../store/project-store.ts';
 import { ApiFailure, handler } from './registry.ts';
 import type { Session } from './session.ts';
 import type { ExportFile, ExportKind } from './contract.ts';
 import { libraryRows } from './figures.ts';
+import { validateRequirements } from '../engine/validate.ts';
 import type { PartLibraryRow } from '../engine/model.ts';
 
 const kinds = z.enum(['bom-csv', 'bom-xlsx', 'tree-svg', 'tree-pdf', 'report', 'json', 'spice', 'magnetics']);
@@ -43,6 +45,12 @@ async function render(s: Session, kind: ExportKind, stageId: string | undefined)
   }
   const r = s.planResult;
   if (!r) throw new ApiFailure(`${kind}: there is no plan to export yet (press Plan first)`, 'kind');
+  // The same gate as planning: no drawing, BOM or report of requirements the planner refuses.
+  const problems = validateRequirements(s.requirements);
+  if (problems.length) {
+    const p = problems[0]!;
+    throw new ApiFailure(`${kind}: the requirements have problems; fix them before exporting: ${p.path}: ${p.message}${problems.length > 1 ? ` (and ${problems.length - 1} more)` : ''}`, p.path);
+  }
   const selected = r.alternatives.find((p) => p.id === s.selectedId) ?? r.best;
   elk ??= new ELK();
   let b;
@@ -73,13 +81,30 @@ async function render(s: Session, kind: ExportKind, stageId: string | undefined)
   }
 }
 
+function exists(target: string): ApiFailure {
+  return new ApiFailure(`${target} already exists: nothing was written. Confirm that it may be replaced, or choose another name`, 'path', 'exists');
+}
+
 export const exportHandlers = {
-  'export.file': handler('export.file', z.object({ kind: kinds, path: z.string().min(1).max(1024).optional(), stageId: z.string().max(200).optional() }).strict(),
+  'export.file': handler('export.file', z.object({
+    kind: kinds, path: z.string().min(1).max(1024).optional(), stageId: z.string().max(200).optional(), overwrite: z.boolean().optional(),
+  }).strict(),
     async (s: Session, a): Promise<ExportFile> => {
       const meta = META[a.kind];
       const target = a.path !== undefined ? s.pathPolicy(a.path, 'export', meta.ext) : null;
+      const replace = a.overwrite === true;
+      if (target && !replace && existsSync(target)) throw exists(target);
       const bytes = await render(s, a.kind, a.stageId);
-      if (target) writeFileAtomic(target, bytes);
+      if (target) {
+        try {
+          // Without the confirmation the file is only created, never replaced, even if
+          // it appeared while the export was rendered.
+          writeFileAtomic(target, bytes, { replace });
+        } catch (e) {
+          if ((e as NodeJS.ErrnoException).code === 'EEXIST') throw exists(target);
+          throw new ApiFailure(`could not write ${target}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`, 'path');
+        }
+      }
       return {
         // One stage's netlist is named after its stage, so several downloads never collide.
         fileName: a.kind === 'spice' && a.stageId ? `${baseName(s)}-${a.stageId.replace(/[^\w.-]+/g, '-')}${meta.ext}` : `${baseName(s)}${meta.suffix}${meta.ext}`,

@@ -29,8 +29,16 @@ export function toRollupView(s: Session, r: Rollup): RollupView {
   const limit = req.limits.tjMax - req.limits.tjMargin;
   const stages: StageFigures[] = [];
   for (const m of r.modes) {
+    const at = (c: 'min' | 'max', id: string) => m.cases[c].stages.find((x) => x.stageId === id);
     for (const f of m.cases.nom.stages) {
+      const lo = at('min', f.stageId);
+      const hi = at('max', f.stageId);
       stages.push({
+        byCase: {
+          vMin: lo ? { vin: lo.vin, loss: lo.loss, efficiency: lo.efficiency } : null,
+          vNom: { vin: f.vin, loss: f.loss, efficiency: f.efficiency },
+          vMax: hi ? { vin: hi.vin, loss: hi.loss, efficiency: hi.efficiency } : null,
+        },
         stageId: f.stageId, modeId: m.modeId, vin: f.vin, pin: f.pin, pout: f.pout, loss: f.loss,
         efficiency: f.efficiency, duty: f.duty, lossBreakdown: { ...f.lossBreakdown },
         parts: f.parts.map((p) => ({ role: p.role, power: p.power, tj: p.tj, thetaJA: p.thetaJA, thetaSource: p.thetaSource, margin: limit - p.tj })),
@@ -45,6 +53,11 @@ export function toRollupView(s: Session, r: Rollup): RollupView {
     efficiency: { vMin: m.cases.min.efficiency, vNom: m.cases.nom.efficiency, vMax: m.cases.max.efficiency },
     sourceCurrent: { vMin: sumI(m.cases.min), vNom: sumI(m.cases.nom), vMax: sumI(m.cases.max) },
     pin: m.cases.nom.sourcePower, pout: m.cases.nom.loadPower, loss: m.cases.nom.loss,
+    cases: {
+      vMin: { pin: m.cases.min.sourcePower, pout: m.cases.min.loadPower, loss: m.cases.min.loss },
+      vNom: { pin: m.cases.nom.sourcePower, pout: m.cases.nom.loadPower, loss: m.cases.nom.loss },
+      vMax: { pin: m.cases.max.sourcePower, pout: m.cases.max.loadPower, loss: m.cases.max.loss },
+    },
   }));
   const messages: string[] = [];
   if (r.unfed.length) messages.push(`No stage feeds ${r.unfed.length} rail(s): ${r.unfed.join(', ')}`);

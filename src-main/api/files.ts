@@ -3,14 +3,15 @@
  * cycle. The session keeps the working copy; the project store (SQLite, atomic save) holds
  * the file. Paths from the window pass the host's path policy first.
  */
-import { join } from 'node:path';
+import { join, resolve } from 'node:path';
 import { z } from 'zod';
 import { PROJECT_EXTENSION } from '../../electron.config.ts';
 import type { PartLibraryRow, Requirements } from '../engine/model.ts';
-import { ProjectStore, OpenError, StoreError } from '../store/project-store.ts';
+import { ProjectStore, OpenError, SaveRefused, StoreError } from '../store/project-store.ts';
 import { demoDocument } from '../store/demo.ts';
 import { checkLibraryShape, checkRequirementsShape, importProjectJson, type ProjectDocument } from '../store/json-format.ts';
-import { addRecent, readRecent, removeRecent } from '../store/recent.ts';
+import { existsSync } from 'node:fs';
+import { addRecent, lastProjectToReopen, markRecentFailed, readRecent, removeRecent } from '../store/recent.ts';
 import { discardRecovery, listRecovery, restoreRecovery, writeRecovery } from '../store/recovery.ts';
 import { ApiFailure, handler } from './registry.ts';
 import type { Session } from './session.ts';
@@ -144,7 +145,8 @@ export function openPath(s: Session, raw: string): void {
       if (e.kind === 'not-found' && s.userDataDir) {
         try { s.recent = removeRecent(s.userDataDir, path).map((x) => x.path); } catch { /* ignore */ }
       }
-      throw new ApiFailure(e.message, 'path');
+      const code = e.kind === 'side-file' ? 'side-file' : e.kind === 'in-use' ? 'locked' : undefined;
+      throw new ApiFailure(e.message, 'path', code);
     }
     throw e;
   }
@@ -152,13 +154,65 @@ export function openPath(s: Session, raw: string): void {
   remember(s, path);
 }
 
-export function saveTo(s: Session, raw: string | undefined): void {
+/**
+ * What a host opens at start-up: the autosave copy after an unclean exit, else the last
+ * project (unless it failed to open at an earlier start), else the demo file in the user's
+ * projects folder (written on first run). A project that fails to open, or whose first
+ * view cannot be built, is marked in the recent list so it is never reopened
+ * automatically again; the demo opens instead and the window shows why (state.notice).
+ * `approve` lets a host whitelist the paths it opens here. `planFirstRun` asks the window to
+ * plan the demo once it is shown, when the demo is written for the first time.
+ */
+export async function openAtStart(s: Session, opts: { demoFile: string; approve?: (path: string) => void; planFirstRun?: boolean }): Promise<void> {
+  loadRecent(s);
+  if (recoverIfAny(s)) return;
+  const dir = settingsDir(s);
+  const last = dir ? lastProjectToReopen(dir) : null;
+  let notice: string | null = null;
+  if (last && existsSync(last.path)) {
+    try {
+      opts.approve?.(last.path);
+      openPath(s, last.path);
+      await buildSnapshot(s);
+      return;
+    } catch (e) {
+      const why = (e as Error)?.message ?? String(e);
+      try { markRecentFailed(dir!, last.path, why); } catch { /* a read-only settings folder */ }
+      loadRecent(s);
+      notice = `The last project (${last.path}) could not be opened, so the demo is shown; it will not be reopened automatically (choose it under Open to try again). ${why}`;
+    }
+  }
+  try {
+    opts.approve?.(opts.demoFile);
+    if (existsSync(opts.demoFile)) {
+      openPath(s, opts.demoFile);
+    } else {
+      openDemo(s);
+      saveTo(s, opts.demoFile);
+      if (opts.planFirstRun) s.planOnOpen = true;
+    }
+    await buildSnapshot(s);
+  } catch {
+    try { openDemo(s); } catch { newProject(s); }
+  }
+  s.notice = notice;
+}
+
+/**
+ * Save (no path) or Save As. `overwrite` is the user's confirmation that an existing file
+ * at a new path may be replaced; it never lets a save replace the project's own file
+ * after someone else changed it (the store refuses that; the window offers Save As or
+ * Reopen).
+ */
+export function saveTo(s: Session, raw: string | undefined, overwrite = false): void {
   const target = raw !== undefined ? s.pathPolicy(raw, 'save-project', PROJECT_EXTENSION) : s.path;
   if (!target) throw new ApiFailure('path: the project has no file yet: choose a file name (Save as)', 'path');
+  const own = s.path !== null && resolve(target) === resolve(s.path);
   const store = syncStore(s);
   try {
-    store.save(target);
+    store.save(target, { overwrite: overwrite && !own });
   } catch (e) {
+    if (e instanceof SaveRefused) throw new ApiFailure(e.message, 'path', e.kind);
     if (e instanceof StoreError) throw new ApiFailure(e.message, 'path');
     throw e;
   }
@@ -200,8 +254,8 @@ export const fileHandlers = {
     clearRecovery(s);
     return buildSnapshot(s);
   }),
-  'project.save': handler('project.save', z.object({ path: z.string().min(1).max(1024).optional() }).strict(), (s: Session, a) => {
-    saveTo(s, a.path);
+  'project.save': handler('project.save', z.object({ path: z.string().min(1).max(1024).optional(), overwrite: z.boolean().optional() }).strict(), (s: Session, a) => {
+    saveTo(s, a.path, a.overwrite === true);
     return s.state();
   }),
   'project.importJson': handler('project.importJson', z.object({ text: z.string().max(16_000_000), discard }).strict(), (s: Session, a) => {

@@ -7,6 +7,7 @@ import type { LibraryRow, LibraryView } from './contract.ts';
 import { ApiFailure, handler, noArgs } from './registry.ts';
 import type { Session } from './session.ts';
 import { clone } from './session.ts';
+import { checkText, showText } from '../engine/text-rules.ts';
 
 type Rec = Record<string, unknown>;
 
@@ -71,7 +72,7 @@ export function editLibraryCell(lib: unknown, rowId: string, field: string, text
   if (!p) throw new ApiFailure('library: this project has no part list to edit', 'table');
   const row = p.rows.find((r) => String(r.id) === rowId);
   if (!row) throw new ApiFailure(`library: no part "${rowId}"`, 'rowId');
-  const where = `library › ${String(row.name ?? row.id)} › ${field}`;
+  const where = `library › ${showText(String(row.name ?? row.id))} › ${showText(field)}`;
   if (field === 'id') throw new ApiFailure(`${where}: the id of a part cannot be changed`, field);
   const dot = field.indexOf('.');
   const holder = (dot < 0 ? row : row[field.slice(0, dot)]) as Rec | undefined;
@@ -89,7 +90,8 @@ export function editLibraryCell(lib: unknown, rowId: string, field: string, text
     if (!/^(true|false|yes|no)$/i.test(t)) throw new ApiFailure(`${where}: write true or false`, field);
     holder[leaf] = /^(true|yes)$/i.test(t);
   } else {
-    if (t.length > 200) throw new ApiFailure(`${where}: longer than 200 characters`, field);
+    const bad = checkText(t, 'name');
+    if (bad) throw new ApiFailure(`${where}: ${bad}`, field);
     holder[leaf] = t;
   }
   return out;

@@ -9,6 +9,8 @@ import { runPlanInWorker } from '../worker/run-plan.ts';
 import type { PlanJob } from './contract.ts';
 import { ApiFailure } from './registry.ts';
 import { clone, type Session } from './session.ts';
+import { libraryRows } from './figures.ts';
+import type { LibraryRow } from '../engine/library.ts';
 
 export function startPlanJob(s: Session): PlanJob {
   if (s.planJob) throw new ApiFailure('the planner is already running: wait for it or cancel it');
@@ -35,7 +37,10 @@ export function startPlanJob(s: Session): PlanJob {
     if (s.planJob?.jobId === jobId) s.planJob = null;
     s.emit('plan.finished', { jobId, outcome, message });
   };
-  runPlanInWorker(req, { budgetMs: req.preferences.budgetMs }, onProgress, abort.signal).then(
+  // The project's parts design and price the stages, so the tree, its losses and the BOM agree.
+  let library: LibraryRow[];
+  try { library = libraryRows(s); } catch (e) { throw new ApiFailure(`cannot plan yet: ${(e as Error).message}`, 'library'); }
+  runPlanInWorker(req, { budgetMs: req.preferences.budgetMs, ...(library.length ? { library } : {}) }, onProgress, abort.signal).then(
     (result: PlanResult) => s.serialise(() => {
       // A job replaced by opening another project is dropped.
       if (s.planJob?.jobId !== jobId) return;

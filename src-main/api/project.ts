@@ -8,6 +8,7 @@ import type { Ratio, Volts, Amps } from '../engine/units.ts';
 import { ApiFailure, handler, noArgs } from './registry.ts';
 import { clone, type Session } from './session.ts';
 import { buildSnapshot } from './snapshot.ts';
+import { checkText } from '../engine/text-rules.ts';
 
 /** A new project: one source, one domain, one mode, no loads. */
 export function blankRequirements(): Requirements {
@@ -29,11 +30,15 @@ export function guardDiscard(s: Session, discard: boolean | undefined): void {
 
 export const projectHandlers = {
   'project.snapshot': handler('project.snapshot', noArgs, (s: Session) => buildSnapshot(s)),
-  'project.rename': handler('project.rename', z.object({ name: z.string().trim().min(1, 'the project needs a name').max(120, 'at most 120 characters') }).strict(), (s: Session, a) => {
+  'project.rename': handler('project.rename', z.object({ name: z.string().trim().min(1, 'the project needs a name').max(500) }).strict(), (s: Session, a) => {
+    const bad = checkText(a.name, 'name');
+    if (bad) throw new ApiFailure(`project name: ${bad}`, 'name');
     s.edit('Rename the project', (req) => { req.meta.name = a.name; });
     return buildSnapshot(s);
   }),
-  'project.describe': handler('project.describe', z.object({ description: z.string().max(4000, 'description: at most 4000 characters') }).strict(), (s: Session, a) => {
+  'project.describe': handler('project.describe', z.object({ description: z.string().max(100_000) }).strict(), (s: Session, a) => {
+    const bad = checkText(a.description, 'description');
+    if (bad) throw new ApiFailure(`project description: ${bad}`, 'description');
     s.edit('Change the project description', (req) => { req.meta.description = a.description.trim(); });
     return buildSnapshot(s);
   }),

@@ -4,12 +4,12 @@
  * come back as `{ ok: false, error: { field?, message } }`, never as a thrown error.
  */
 import { z } from 'zod';
-import type { ApiError, ApiResult, RequestArgs, RequestName, RequestValue } from './contract.ts';
+import type { ApiError, ApiErrorCode, ApiResult, RequestArgs, RequestName, RequestValue } from './contract.ts';
 import type { Session } from './session.ts';
 
 /** A failure the user can act on; `field` names the argument or cell. */
 export class ApiFailure extends Error {
-  constructor(message: string, readonly field?: string) {
+  constructor(message: string, readonly field?: string, readonly code?: ApiErrorCode) {
     super(message);
   }
 }
@@ -40,7 +40,9 @@ function describeIssue(issue: z.core.$ZodIssue): ApiError {
 }
 
 export function toApiError(e: unknown): ApiError {
-  if (e instanceof ApiFailure) return e.field ? { field: e.field, message: e.message } : { message: e.message };
+  if (e instanceof ApiFailure) {
+    return { ...(e.field ? { field: e.field } : {}), message: e.message, ...(e.code ? { code: e.code } : {}) };
+  }
   if (e instanceof z.ZodError) return describeIssue(e.issues[0]!);
   const msg = e instanceof Error ? e.message : String(e);
   return { message: msg || 'unexpected failure' };

@@ -7,6 +7,7 @@ import { z } from 'zod';
 import type { Domain, Id, Load, OperatingMode, Requirements, Source } from '../engine/model.ts';
 import { ISOLATION_CLASSES, NOISE_CLASSES } from '../engine/model.ts';
 import { parseQuantity, parseTolerance } from '../engine/notation.ts';
+import { checkText, showText } from '../engine/text-rules.ts';
 import type { Amps, Ratio, Volts } from '../engine/units.ts';
 import type { CellEdit, TableName } from './contract.ts';
 import { ApiFailure, handler, noArgs } from './registry.ts';
@@ -32,7 +33,7 @@ function rowLabel(req: Requirements, table: TableName, rowId: Id): string {
   if (table === 'limits' || table === 'preferences') return table;
   const rows = req[table as 'sources' | 'domains' | 'modes' | 'loads'] as { id: Id; name: string }[];
   const r = rows.find((x) => x.id === rowId);
-  return `${table} › ${r?.name || rowId}`;
+  return `${table} › ${showText(r?.name || rowId)}`;
 }
 
 /** Parse one typed value for a column; throws ApiFailure naming `where`. */
@@ -42,7 +43,9 @@ export function parseCell(col: ColumnDef, text: string, where: string, req: Requ
   switch (k.type) {
     case 'text': {
       if (t === '' && !k.optional) throw new ApiFailure(`${where}: must not be empty`, field);
-      if (t.length > 120) throw new ApiFailure(`${where}: longer than 120 characters`, field);
+      // The one rule for names (engine/text-rules.ts), length included.
+      const bad = checkText(t, 'name');
+      if (bad) throw new ApiFailure(`${where}: ${bad}`, field);
       return t;
     }
     case 'enum': {
@@ -265,7 +268,22 @@ export function projectProblems(req: Requirements): { field?: string; message: s
   if (!req.sources.length) out.push({ field: 'sources', message: 'sources: the project has no source' });
   if (!req.loads.length) out.push({ field: 'loads', message: 'loads: the project has no load' });
   for (const l of req.loads) {
-    if (!req.domains.some((d) => d.id === l.domainId)) out.push({ field: `loads.${l.id}.domainId`, message: `loads › ${l.name}: domain "${l.domainId}" does not exist` });
+    if (!req.domains.some((d) => d.id === l.domainId)) out.push({ field: `loads.${l.id}.domainId`, message: `loads › ${showText(l.name)}: domain "${showText(l.domainId)}" does not exist` });
+  }
+  // Text that breaks the one rule (a file from elsewhere may hold it): shown, escaped.
+  const bad = (field: string, label: string, text: unknown, kind: 'name' | 'description' = 'name') => {
+    const why = typeof text === 'string' ? checkText(text, kind) : null;
+    if (why) out.push({ field, message: `${label}: ${why}` });
+  };
+  bad('meta.name', 'project name', req.meta.name);
+  bad('meta.description', 'project description', req.meta.description, 'description');
+  for (const table of ['sources', 'domains', 'modes', 'loads'] as const) {
+    for (const r of req[table] as { id: Id; name: string; railKey?: string }[]) {
+      const label = `${table} › ${showText(String(r.name || r.id))}`;
+      bad(`${table}.${showText(String(r.id))}.id`, `${label} › id`, r.id);
+      bad(`${table}.${showText(String(r.id))}.name`, `${label} › name`, r.name);
+      if (table === 'loads') bad(`loads.${showText(String(r.id))}.railKey`, `${label} › rail key`, r.railKey);
+    }
   }
   for (const p of sourceCapacityProblems(req)) out.push({ field: p.path, message: p.message });
   return out;

@@ -57,6 +57,8 @@ export class Session {
   path: string | null = null;
   dirty = false;
   recovered = false;
+  /** Shown to the user until the next project is opened (see ProjectState.notice). */
+  notice: string | null = null;
   recent: string[] = [];
   undoStack: EditSnapshot[] = [];
   redoStack: EditSnapshot[] = [];
@@ -94,6 +96,7 @@ export class Session {
       undoLabel: this.undoStack.at(-1)?.label ?? null,
       redoLabel: this.redoStack.at(-1)?.label ?? null,
       recovered: this.recovered,
+      notice: this.notice,
       recent: [...this.recent],
       host: this.host,
       planning: this.planJob?.jobId ?? null,
@@ -181,6 +184,7 @@ export class Session {
     if (p.store !== undefined) this.store = p.store;
     this.dirty = p.dirty ?? false;
     this.recovered = p.recovered ?? false;
+    this.notice = null;
     this.undoStack = [];
     this.redoStack = [];
   }

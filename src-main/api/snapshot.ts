@@ -5,9 +5,9 @@
  */
 import ELK from 'elkjs/lib/elk.bundled.js';
 import { groupRails } from '../engine/rails.ts';
-import { buildTreeView, entryPoint, layoutTree, type LaidOutTree, type TreeFigures, type TreeView } from '../engine/layout.ts';
+import { buildTreeView, entryPoint, groupText, layoutTree, nodeSize, nodeText, type LaidOutTree, type TreeFigures, type TreeView } from '../engine/layout.ts';
 import type { Plan } from '../engine/plan-types.ts';
-import type { LayoutView, PlanView, Snapshot, BomView } from './contract.ts';
+import type { AlternativeFigures, LayoutView, PlanView, Snapshot, BomView } from './contract.ts';
 import { projectProblems } from './requirements.ts';
 import type { Session } from './session.ts';
 import { computeRollup, computeBom, treeFigures, type ComputedRollup } from './figures.ts';
@@ -26,7 +26,7 @@ function elkInstance(): InstanceType<typeof ELK> {
 let cache: { key: string; tree: LaidOutTree } | null = null;
 
 function structureKey(v: TreeView): string {
-  return JSON.stringify([v.nodes.map((n) => [n.id, n.kind, n.title, n.groupId, n.lines.length]), v.edges.map((e) => [e.id, e.crossesBarrier, !!e.label]), v.groups.map((g) => [g.id, g.title])]);
+  return JSON.stringify([v.nodes.map((n) => [n.id, n.kind, n.title, n.groupId, nodeSize(n)]), v.edges.map((e) => [e.id, e.crossesBarrier, !!e.label]), v.groups.map((g) => [g.id, g.title])]);
 }
 
 async function laidOut(view: TreeView): Promise<LaidOutTree> {
@@ -38,7 +38,7 @@ async function laidOut(view: TreeView): Promise<LaidOutTree> {
       ...cache.tree,
       title: view.title,
       subtitle: view.subtitle,
-      nodes: cache.tree.nodes.map((n) => ({ ...n, lines: byNode.get(n.id)?.lines ?? n.lines })),
+      nodes: cache.tree.nodes.map((n) => ({ ...n, lines: byNode.get(n.id)?.lines ?? n.lines, key: byNode.get(n.id)?.key ?? n.key })),
       edges: cache.tree.edges.map((e) => ({ ...e, label: byEdge.get(e.id)?.label ?? e.label })),
     };
   }
@@ -52,11 +52,12 @@ export async function computeLayout(s: Session, plan: Plan, figures: TreeFigures
   const view = buildTreeView(s.requirements, rails, plan, figures);
   const t = await laidOut(view);
   const nodes = t.nodes.map((n) => ({
-    id: n.id, kind: n.kind, label: n.title, sub: n.lines, domainId: n.groupId,
+    id: n.id, kind: n.kind, label: n.title, sub: n.lines, key: n.key, domainId: n.groupId,
+    glance: nodeText(n, 'glance'), detail: nodeText(n, 'detail'),
     x: n.x, y: n.y, width: n.width, height: n.height,
   }));
   const groups = t.groups.map((g) => ({
-    domainId: g.id, label: g.title, isolation: g.isolation, x: g.x, y: g.y, width: g.width, height: g.height,
+    domainId: g.id, label: g.title, isolation: g.isolation, glance: groupText(g, 'glance'), detail: groupText(g, 'detail'), x: g.x, y: g.y, width: g.width, height: g.height,
   }));
   const barriers: LayoutView['barriers'] = [];
   for (const e of t.edges) {
@@ -105,7 +106,27 @@ export async function buildPlanView(s: Session): Promise<PlanView | null> {
     }
   }
   if (rollup) notes.push(...rollup.view.messages);
-  return { result, selectedId: selected?.id ?? null, selected, stale: s.planStale(), rollup: rollup?.view ?? null, layout, bom, notes, drawingModeId: s.drawingModeId };
+  // Every alternative through the same roll-up and BOM as the chosen one (one number per quantity).
+  const alternatives: AlternativeFigures[] = result.alternatives.map((p) => {
+    const why: string[] = [];
+    let weightedLoss: number | null = null;
+    let cost: number | null = null;
+    let parts: number | null = null;
+    try {
+      weightedLoss = (p === selected && rollup ? rollup : computeRollup(s, p)).view.weightedLoss;
+    } catch (e) {
+      why.push(`roll-up: ${(e as Error).message}`);
+    }
+    try {
+      const b = p === selected && bom ? bom : computeBom(s, p);
+      cost = b.total;
+      parts = b.parts;
+    } catch (e) {
+      why.push(`BOM: ${(e as Error).message}`);
+    }
+    return { planId: p.id, weightedLoss, cost, parts, note: why.length ? why.join('; ') : null };
+  });
+  return { alternatives, result, selectedId: selected?.id ?? null, selected, stale: s.planStale(), rollup: rollup?.view ?? null, layout, bom, notes, drawingModeId: s.drawingModeId };
 }
 
 export async function buildSnapshot(s: Session): Promise<Snapshot> {

@@ -3,11 +3,10 @@
  * and `railwright library` (import/export the project's part library as CSV). Thin shells
  * over the store, the planner and the pure exports.
  */
-import { openStore } from './open-project.ts';
-import { mkdirSync, readFileSync } from 'node:fs';
-import { dirname } from 'node:path';
+import { openStore, projectLibrary } from './open-project.ts';
+import { readFileSync } from 'node:fs';
 import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
-import { PROJECT_EXTENSION, ProjectStore, StoreError, writeFileAtomic } from '../store/project-store.ts';
+import { PROJECT_EXTENSION, ProjectStore, StoreError } from '../store/project-store.ts';
 import type { PlanResult } from '../engine/plan-types.ts';
 import type { PartLibraryRow } from '../engine/model.ts';
 import { describeProblem, fromStoreRows, libraryCostModel, rowsToTable, tableToRows, toStoreRows, type LibraryRow } from '../engine/library.ts';
@@ -15,9 +14,11 @@ import { plan as planProject } from '../engine/planner/solver.ts';
 import { engineEvaluator } from '../engine/planner/evaluator.ts';
 import { readCsv, writeCsv, CsvError } from '../export/csv.ts';
 import { prepareExport, ExportError } from '../export/bundle.ts';
-import { checkTargets, writeAll, TargetError, type ExportTargets } from '../export/write-all.ts';
+import { checkTargets, existsMessage, writeAll, writeFiles, TargetError, TargetExists, type ExportTargets } from '../export/write-all.ts';
+import { existsSync } from 'node:fs';
 import { defaultLibrary } from '../api/default-library.ts';
 import { RollupError } from '../engine/rollup.ts';
+import { validateRequirements } from '../engine/validate.ts';
 import type { ElkLike } from '../engine/layout.ts';
 
 const CAUTION =
@@ -25,16 +26,6 @@ const CAUTION =
   'safety standard and local codes; a qualified engineer and the test lab decide. The tool certifies nothing; ' +
   'costs are estimates (invented in the default library).';
 
-
-/** The project's library as typed rows; the default library when the project has none. */
-function projectLibrary(store: ProjectStore, io: CliIo): LibraryRow[] {
-  const stored = store.getLibrary();
-  const rows = stored.length ? stored : defaultLibrary();
-  if (!stored.length) io.err('note: the project has no part library yet; using the default library (invented cost estimates)');
-  const r = fromStoreRows(rows);
-  if (!r.ok) throw new CliError(`the project's part library has problems: ${r.problems.slice(0, 5).map(describeProblem).join('; ')}`);
-  return r.rows;
-}
 
 function libraryCsv(rows: PartLibraryRow[]): string {
   const typed = fromStoreRows(rows);
@@ -65,6 +56,8 @@ const exportCmd: CliCommand = {
     '  --magnetics <folder>         one specification sheet (.md) per custom coupled-winding magnetic',
     '  --library-csv <file.csv>     the project part library as CSV',
     '  --mode <name or id>          operating mode the drawing shows (default: the heaviest)',
+    '  --force                      replace files that already exist (without it an existing',
+    '                               file is refused and nothing is written)',
     '',
     'Uses the plan saved in the project; when there is none or it is stale, plans first (the',
     'project file is not changed) and says so.',
@@ -74,28 +67,40 @@ const exportCmd: CliCommand = {
   async run(args, io) {
     const { flags, positional } = parseFlags(args, {
       bom: 'string', tree: 'string', report: 'string', netlists: 'string', magnetics: 'string', 'library-csv': 'string', mode: 'string',
+      force: 'boolean',
     });
+    const force = flags.force === true;
     if (positional.length !== 1) throw new CliError('give exactly one project file (see --help)', 2);
     const targets: ExportTargets = {};
     for (const k of ['bom', 'tree', 'report', 'netlists', 'magnetics'] as const) if (typeof flags[k] === 'string') targets[k] = flags[k] as string;
     const libCsv = flags['library-csv'] as string | undefined;
     if (Object.keys(targets).length === 0 && !libCsv) throw new CliError('nothing to export: give at least one of --bom, --tree, --report, --netlists, --magnetics, --library-csv', 2);
     try {
-      checkTargets(targets);
+      checkTargets(targets, force);
       if (libCsv !== undefined && !/\.csv$/i.test(libCsv)) throw new TargetError(`--library-csv ${libCsv}: the name must end in .csv`);
+      if (libCsv !== undefined && !force && existsSync(libCsv)) throw new TargetExists(existsMessage('--library-csv', libCsv));
     } catch (e) {
-      if (e instanceof TargetError) throw new CliError(e.message, 2);
+      if (e instanceof TargetError) throw new CliError(e.message, e instanceof TargetExists ? 1 : 2);
       throw e;
     }
     const store = openStore(positional[0]);
     try {
       const req = store.getRequirements();
-      if (libCsv) {
-        mkdirSync(dirname(libCsv), { recursive: true });
-        writeFileAtomic(libCsv, new TextEncoder().encode(libraryCsv(store.getLibrary().length ? store.getLibrary() : defaultLibrary())));
-        io.out(`wrote ${libCsv}`);
+      // The same gate as `plan`: no drawing, BOM or report of requirements it refuses.
+      const problems = Object.keys(targets).length ? validateRequirements(req) : [];
+      if (problems.length) {
+        io.err('the requirements have problems; fix them before exporting (nothing was written):');
+        for (const p of problems) io.err(`  ${p.path}: ${p.message}`);
+        return 1;
       }
-      if (Object.keys(targets).length === 0) return 0;
+      // The library CSV is written with the other files, after every target was checked.
+      const extra = libCsv
+        ? [{ option: '--library-csv', path: libCsv, bytes: new TextEncoder().encode(libraryCsv(store.getLibrary().length ? store.getLibrary() : defaultLibrary())) }]
+        : [];
+      if (Object.keys(targets).length === 0) {
+        for (const line of writeFiles(extra, force)) io.out(line);
+        return 0;
+      }
       const library = projectLibrary(store, io);
       const saved = store.getPlanResult();
       let result: PlanResult;
@@ -105,7 +110,7 @@ const exportCmd: CliCommand = {
       } else {
         io.err(saved ? (saved.stale ? 'the saved plan is stale (the requirements changed since); planning again for this export' : 'the saved plan has no feasible tree; planning again for this export')
           : 'the project has no saved plan; planning it for this export');
-        result = planProject(req, { evaluator: engineEvaluator(), costModel: libraryCostModel(library) });
+        result = planProject(req, { evaluator: engineEvaluator({ library, electrolyticDerating: req.limits.electrolyticDerating, margins: { controllerInput: req.limits.inputRatingMargin ?? 0.1 } }), costModel: libraryCostModel(library, { powerDerating: req.limits.powerDerating, electrolyticDerating: req.limits.electrolyticDerating }) });
         replanned = true;
       }
       const modeFlag = flags.mode as string | undefined;
@@ -116,7 +121,7 @@ const exportCmd: CliCommand = {
         modeId = m.id;
       }
       const bundle = await prepareExport({ req, result, library, elk: await elk(), modeId, replanned });
-      for (const line of await writeAll(bundle, targets)) io.out(line);
+      for (const line of await writeAll(bundle, targets, { force, extra })) io.out(line);
       if (bundle.bom.problems.length) io.err(`note: ${bundle.bom.problems.length} part(s) have no fitting library row; they are listed without cost`);
       for (const o of bundle.rollup.sourceOverloads) io.err(`note: ${o.text}`);
       const bad = bundle.rollup.windows.filter((w) => !w.inside);
@@ -136,25 +141,33 @@ const libraryCmd: CliCommand = {
   name: 'library',
   summary: "import or export a project's part library as CSV",
   usage: [
-    `Usage: railwright library <project${PROJECT_EXTENSION}> --import <file.csv> | --export <file.csv>`,
+    `Usage: railwright library <project${PROJECT_EXTENSION}> --import <file.csv> | --export <file.csv> [--force]`,
+    '',
+    '  --force   with --export: replace the CSV file if it exists (otherwise it is refused)',
     '',
     'CSV columns: id, class, name, cost_estimate, cost_note, params ("key=value; key=value",',
     'numbers in base SI units). An import replaces the whole library and is refused, with every',
     'problem named by row and column, unless every row is valid; the project is then unchanged.',
   ].join('\n'),
   async run(args, io) {
-    const { flags, positional } = parseFlags(args, { import: 'string', export: 'string' });
+    const { flags, positional } = parseFlags(args, { import: 'string', export: 'string', force: 'boolean' });
     if (positional.length !== 1) throw new CliError('give exactly one project file (see --help)', 2);
     const imp = flags.import as string | undefined;
     const exp = flags.export as string | undefined;
     if ((imp === undefined) === (exp === undefined)) throw new CliError('give exactly one of --import <file.csv> or --export <file.csv>', 2);
+    if (imp !== undefined && flags.force === true) throw new CliError('--force goes with --export (an import changes the project file itself)', 2);
+    if (exp !== undefined && !/\.csv$/i.test(exp)) throw new CliError(`--export ${exp}: the name must end in .csv`, 2);
+    if (exp !== undefined && flags.force !== true && existsSync(exp)) throw new CliError(existsMessage('--export', exp));
     const store = openStore(positional[0]);
     try {
       if (exp !== undefined) {
         const rows = store.getLibrary();
-        if (!/\.csv$/i.test(exp)) throw new CliError(`--export ${exp}: the name must end in .csv`, 2);
-        mkdirSync(dirname(exp), { recursive: true });
-        writeFileAtomic(exp, new TextEncoder().encode(libraryCsv(rows.length ? rows : defaultLibrary())));
+        try {
+          writeFiles([{ option: '--export', path: exp, bytes: new TextEncoder().encode(libraryCsv(rows.length ? rows : defaultLibrary())) }], flags.force === true);
+        } catch (e) {
+          if (e instanceof TargetError) throw new CliError(e.message);
+          throw e;
+        }
         io.out(`wrote ${exp} (${rows.length ? rows.length : 'default library, ' + defaultLibrary().length} rows)`);
         return 0;
       }

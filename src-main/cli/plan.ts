@@ -4,13 +4,15 @@
  * project file with the requirements revision it was computed from.
  */
 import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
-import { OpenError, ProjectStore, StoreError } from '../store/project-store.ts';
+import { OpenError, ProjectStore, SaveRefused, StoreError } from '../store/project-store.ts';
 import { validateRequirements } from '../engine/validate.ts';
 import { formatQuantity } from '../engine/notation.ts';
-import type { Requirements } from '../engine/model.ts';
+import { DEFAULT_WINDOW_MARGIN, type Requirements } from '../engine/model.ts';
 import type { Plan, PlanResult } from '../engine/plan-types.ts';
 import type { Objective } from '../engine/planner/score.ts';
 import { runPlanInWorker } from '../worker/run-plan.ts';
+import { projectLibrary } from './open-project.ts';
+import { safeJsonText } from '../store/json-format.ts';
 
 const OBJECTIVES: Objective[] = ['loss', 'cost', 'parts', 'balanced'];
 
@@ -43,7 +45,7 @@ export function renderPlan(req: Requirements, result: PlanResult, plan: Plan): s
   const byInput = new Map<string, Plan['stages']>();
   for (const st of plan.stages) byInput.set(st.inputNodeId, [...(byInput.get(st.inputNodeId) ?? []), st]);
   const s = plan.score;
-  out.push(`Plan ${plan.id} [${plan.labels.join(', ')}]: loss ${formatQuantity(s.loss, 'power', 3)} (mode-weighted), cost ${s.cost.toFixed(2)} (invented estimates unless a part library priced it), ${s.parts} parts, score ${s.weighted.toFixed(4)}`);
+  out.push(`Plan ${plan.id} [${plan.labels.join(', ')}]: loss ${formatQuantity(s.loss, 'power', 3)} (mode-weighted), cost ${s.cost.toFixed(2)} and ${s.parts} parts (the BOM of the parts the stages were designed with, priced by the project's part library; default rows are invented estimates), score ${s.weighted.toFixed(4)}`);
   const walk = (nodeId: string, depth: number, seen: Set<string>) => {
     for (const st of byInput.get(nodeId) ?? []) {
       if (seen.has(st.id)) continue;
@@ -61,6 +63,11 @@ export function renderPlan(req: Requirements, result: PlanResult, plan: Plan): s
   for (const src of req.sources) {
     out.push(`${src.name} (${v(src.vMin)}…${v(src.vMax)})`);
     walk(src.id, 1, new Set());
+  }
+  const marginal = plan.reasons.filter((r) => r.code === 'marginal');
+  if (marginal.length) {
+    out.push('', `Marginal (worst-case window within ${+(100 * (req.limits.windowMargin ?? DEFAULT_WINDOW_MARGIN)).toPrecision(3)} % of its band half-width from an edge): ` +
+      marginal.map((r) => result.rails.find((x) => x.id === r.subjectId)?.name ?? r.subjectId).join(', '));
   }
   out.push('', 'Reasons:');
   for (const r of plan.reasons) out.push(`  - ${r.text}`);
@@ -86,7 +93,9 @@ function renderResult(req: Requirements, result: PlanResult, io: CliIo): void {
     }
   }
   io.out('');
-  io.out(`${result.stats.provedOptimal ? 'Proved optimal' : 'Best found within the budget (not proved optimal)'}; ${result.stats.explored} search nodes, ${result.stats.elapsedMs.toFixed(0)} ms.`);
+  const st = result.stats;
+  io.out(`${st.provedOptimal ? 'Proved optimal' : `Best found, not proved optimal${st.notProved ? ` (${st.notProved})` : ''}`}; ${st.explored} search nodes, ${st.elapsedMs.toFixed(0)} ms.`);
+  if (st.space) io.out(`${st.provedOptimal ? 'Proved over' : 'Searched'}: ${st.space.summary}.`);
   if (result.best.stages.some((s) => s.barriers.length)) { io.out(''); io.out(ISOLATION_CAUTION); }
 }
 
@@ -121,19 +130,25 @@ export const planCommands: CliCommand[] = [{
       }
       const verbose = flags.verbose === true;
       let last = '';
+      // The project's part library designs and prices the stages (the default library when
+      // the project has none), as in the window: the BOM then lists the analysed parts.
+      const library = projectLibrary(store, io);
       const result = await runPlanInWorker(
         req,
-        { objective: objective as Objective, ...(budgetMs !== undefined ? { budgetMs } : {}) },
+        { objective: objective as Objective, ...(budgetMs !== undefined ? { budgetMs } : {}), library },
         verbose ? (p) => { const line = `[${p.phase}] ${p.message}: ${p.candidates} stage designs, ${p.explored} nodes${p.incumbent !== undefined ? `, incumbent ${p.incumbent.toFixed(4)}` : ''}`; if (line !== last) io.err(line); last = line; } : undefined,
         undefined,
         verbose ? (lines) => { for (const l of lines) io.err(`trace: ${l}`); } : undefined,
       );
-      if (flags.json === true) io.out(JSON.stringify(result, null, 2));
+      if (flags.json === true) io.out(safeJsonText(result));
       else renderResult(req, result, io);
       try {
         store.setPlanResult(result);
         store.save();
       } catch (e) {
+        if (e instanceof SaveRefused && e.kind === 'changed') {
+          throw new CliError(`the plan could not be saved: ${positional[0]} changed on disk while planning (another program or window saved it), and it was left as that program wrote it; run plan again`);
+        }
         if (e instanceof StoreError) throw new CliError(`the plan could not be saved: ${e.message}`);
         throw e;
       }

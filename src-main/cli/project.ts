@@ -12,6 +12,7 @@ import type { Requirements } from '../engine/model.ts';
 import { exportProjectJson, importProjectJson } from '../store/json-format.ts';
 import { PROJECT_EXTENSION, ProjectStore, StoreError, hasProjectExtension, writeFileAtomic } from '../store/project-store.ts';
 import { demoDocument } from '../store/demo.ts';
+import { checkText, showText } from '../engine/text-rules.ts';
 
 const ISOLATION_CAUTION =
   'Caution: isolated domains and mains-connected inputs can kill. Railwright records the isolation ' +
@@ -36,9 +37,10 @@ function problemLines(problems: Problem[]): string[] {
   return problems.map((p) => `  ${p.path}: ${p.message}`);
 }
 
-function saveNew(store: ProjectStore, path: string): void {
+/** Save a new project file; `force` is the user's --force (replace an existing file). */
+function saveNew(store: ProjectStore, path: string, force: boolean): void {
   try {
-    store.save(path);
+    store.save(path, { overwrite: force });
   } catch (e) {
     if (e instanceof StoreError) throw new CliError(e.message);
     throw e;
@@ -71,7 +73,7 @@ const demo: CliCommand = {
     // Same content as the window's demo: the invented project with the default part library.
     const doc = demoDocument();
     if (!doc.library?.length) doc.library = await defaultLibrary();
-    saveNew(ProjectStore.fromDocument(doc), target);
+    saveNew(ProjectStore.fromDocument(doc), target, flags.force === true);
     io.out(`wrote ${target} (invented demonstration project)`);
     return 0;
   },
@@ -101,11 +103,13 @@ const newCmd: CliCommand = {
     }
     if (typeof flags.name === 'string') {
       if (flags.name.trim() === '') { store.close(); throw new CliError('--name must not be empty', 2); }
+      const bad = checkText(flags.name, 'name');
+      if (bad) { store.close(); throw new CliError(`--name: ${bad}`, 2); }
       const req = store.getRequirements();
       req.meta.name = flags.name;
       store.setRequirements(req, { keepRevision: true });
     }
-    saveNew(store, target);
+    saveNew(store, target, flags.force === true);
     io.out(`wrote ${target}`);
     return 0;
   },
@@ -196,7 +200,7 @@ const importCmd: CliCommand = {
       if (e instanceof StoreError) throw new CliError(e.message);
       throw e;
     }
-    saveNew(store, target);
+    saveNew(store, target, flags.force === true);
     io.out(`wrote ${target}`);
     if (r.problems.length) {
       io.err(`warning: ${r.problems.length} problem(s) to fix (railwright validate ${target}):`);
@@ -232,8 +236,9 @@ const exportJson: CliCommand = {
       return 0;
     }
     try {
-      writeFileAtomic(out, Buffer.from(text, 'utf8'));
+      writeFileAtomic(out, Buffer.from(text, 'utf8'), { replace: flags.force === true });
     } catch (e) {
+      if ((e as NodeJS.ErrnoException).code === 'EEXIST') throw new CliError(`${out} already exists (use --force to overwrite it)`);
       throw new CliError(`could not write ${out}: ${(e as Error).message}`);
     }
     io.out(`wrote ${out}`);
@@ -251,36 +256,38 @@ function lpad(s: string, n: number): string {
 /** The requirements as text: sources, domains, modes, rails with loads and currents. */
 export function summaryText(req: Requirements): string[] {
   const q = formatQuantity;
+  // Names from the file are shown escaped, each on its line (engine/text-rules.ts).
+  const nm = (x: string) => showText(String(x));
   const lines: string[] = [];
-  lines.push(`${req.meta.name} (revision ${req.meta.revision})`);
-  if (req.meta.description) lines.push(req.meta.description);
+  lines.push(`${nm(req.meta.name)} (revision ${req.meta.revision})`);
+  if (req.meta.description) lines.push(showText(String(req.meta.description), { keepLineFeeds: true }));
   lines.push('', 'Sources');
   for (const s of req.sources) {
-    lines.push(`  ${pad(s.name, 28)} ${q(s.vNom, 'voltage')} (${q(s.vMin, 'voltage')} to ${q(s.vMax, 'voltage')}), limit ${q(s.currentLimit, 'current')}`);
+    lines.push(`  ${pad(nm(s.name), 28)} ${q(s.vNom, 'voltage')} (${q(s.vMin, 'voltage')} to ${q(s.vMax, 'voltage')}), limit ${q(s.currentLimit, 'current')}`);
   }
   lines.push('', 'Domains');
   for (const d of req.domains) {
     const iso = d.isolation === 'none' ? 'not isolated' : `${d.isolation} isolation, working voltage ${q(d.workingVoltage, 'voltage')}`;
-    lines.push(`  ${pad(d.name, 28)} ${iso}`);
+    lines.push(`  ${pad(nm(d.name), 28)} ${iso}`);
   }
   lines.push('', 'Operating modes');
-  for (const m of req.modes) lines.push(`  ${pad(m.name, 28)} ${q(m.share, 'ratio')} of the time`);
+  for (const m of req.modes) lines.push(`  ${pad(nm(m.name), 28)} ${q(m.share, 'ratio')} of the time`);
   const rails = groupRails(req);
   const w = 10;
-  lines.push('', `Rails (${rails.length}) and their loads; current per mode: ${req.modes.map((m) => m.name).join(' / ')}`);
+  lines.push('', `Rails (${rails.length}) and their loads; current per mode: ${req.modes.map((m) => nm(m.name)).join(' / ')}`);
   const byId = new Map(req.loads.map((l) => [l.id, l]));
-  const nw = Math.max(12, ...req.loads.map((l) => l.name.length + 2));
+  const nw = Math.max(12, ...req.loads.map((l) => nm(l.name).length + 2));
   const power = new Map(req.modes.map((m) => [m.id, 0]));
   for (const r of rails) {
-    lines.push(`  ${pad(r.name, 34)} ${q(r.voltage, 'voltage', 4)} ${formatTolerance(r.tolerance)}, ripple ≤ ${q(r.rippleLimit, 'voltage')}, ${r.noiseClass}, peak ${q(railPeakCurrent(r), 'current')}`);
+    lines.push(`  ${pad(nm(r.name), 34)} ${q(r.voltage, 'voltage', 4)} ${formatTolerance(r.tolerance)}, ripple ≤ ${q(r.rippleLimit, 'voltage')}, ${r.noiseClass}, peak ${q(railPeakCurrent(r), 'current')}`);
     for (const id of r.loadIds) {
       const l = byId.get(id)!;
-      lines.push(`      ${pad(l.name, nw)}${req.modes.map((m) => lpad(q(l.current[m.id] ?? 0, 'current'), w)).join('')}`);
+      lines.push(`      ${pad(nm(l.name), nw)}${req.modes.map((m) => lpad(q(l.current[m.id] ?? 0, 'current'), w)).join('')}`);
     }
     lines.push(`      ${pad('rail total', nw)}${req.modes.map((m) => lpad(q(r.current[m.id] ?? 0, 'current'), w)).join('')}`);
     for (const m of req.modes) power.set(m.id, power.get(m.id)! + Math.abs(r.voltage) * (r.current[m.id] ?? 0));
   }
-  lines.push('', `Load power per mode (before conversion losses): ${req.modes.map((m) => `${m.name} ${q(power.get(m.id)!, 'power')}`).join(', ')}`);
+  lines.push('', `Load power per mode (before conversion losses): ${req.modes.map((m) => `${nm(m.name)} ${q(power.get(m.id)!, 'power')}`).join(', ')}`);
   const problems = validateRequirements(req);
   if (problems.length) lines.push(`${problems.length} problem(s): run railwright validate for the list`);
   if (req.domains.some((d) => d.isolation !== 'none')) lines.push('', ISOLATION_CAUTION);

@@ -27,6 +27,9 @@ export interface BomLine {
   unitCost: number;
   extendedCost: number;
   costNote: string;
+  /** What procurement orders; empty strings for a generic row. */
+  manufacturer: string;
+  partNumber: string;
   /** Stage ids the line's parts belong to. */
   stages: string[];
   specRef?: string;
@@ -107,7 +110,8 @@ export function buildBom(req: Requirements, plan: Plan, library: LibraryRow[]): 
       groups.set(key, {
         line: 0, refs: [...it.refs], quantity: it.quantity, partClass: it.partClass, libraryId: it.libraryId,
         description: it.description, value: it.value, rating: it.rating, package: it.package,
-        unitCost: it.unitCost, extendedCost: it.unitCost * it.quantity, costNote: it.costNote, stages: [it.stageId],
+        unitCost: it.unitCost, extendedCost: it.unitCost * it.quantity, costNote: it.costNote,
+        manufacturer: it.manufacturer ?? '', partNumber: it.partNumber ?? '', stages: [it.stageId],
         ...(it.specRef ? { specRef: it.specRef } : {}), ...(it.problem ? { problem: it.problem } : {}),
       });
     }

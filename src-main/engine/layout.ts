@@ -58,8 +58,13 @@ export type TreeNodeKind = 'source' | 'stage' | 'rail' | 'internal';
 export interface TreeNode {
   id: Id;
   kind: TreeNodeKind;
+  /** The full name (inspector, hover, the list of drawn items). */
   title: string;
-  /** Further text lines (V, I, P for rails; kind and η for stages). */
+  /** The name as drawn: inside a domain box the domain's name is left out (the box says it). */
+  name: string;
+  /** The one figure shown at a glance (Fit): load current, efficiency, input power. */
+  key: string;
+  /** Further text lines (V, I, P for rails; kind and η for stages), shown when zoomed in. */
   lines: string[];
   /** Domain group the node sits in; null = outside every group (sources). */
   groupId: Id | null;
@@ -110,12 +115,14 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
   for (const n of plan.internalNodes) domainOf.set(n.id, n.domainId);
   const sourceIds = new Set(req.sources.map((s) => s.id));
   const f = figures;
+  const winding = new Map<Id, string>();
 
   for (const s of req.sources) {
     const fig = f?.nodes[s.id];
     const lines = [`${fmtQty(s.vMin, 'V')} … ${fmtQty(s.vMax, 'V')} (nom ${fmtQty(s.vNom, 'V')})`];
     if (fig) lines.push(`${fmtQty(fig.i, 'A')} · ${fmtQty(fig.p, 'W')}`);
-    nodes.push({ id: s.id, kind: 'source', title: s.name, lines, groupId: null });
+    const key = fig ? `${fmtQty(fig.p, 'W')} in` : `${fmtQty(s.vMin, 'V')} … ${fmtQty(s.vMax, 'V')}`;
+    nodes.push({ id: s.id, kind: 'source', title: s.name, name: s.name, key, lines, groupId: null });
   }
 
   // A stage sits in the domain of its input node; a stage fed straight from a source sits in
@@ -132,10 +139,12 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
     const fig = f?.stages[st.id];
     const lines = [STAGE_KIND_LABEL[st.kind]];
     if (fig) lines.push(`η ${fmtPct(fig.efficiency)} · loss ${fmtQty(fig.loss, 'W')}`);
-    nodes.push({ id: st.id, kind: 'stage', title: st.name, lines, groupId: group, stageKind: st.kind });
+    const key = fig ? `η ${fmtPct(fig.efficiency)}` : STAGE_KIND_LABEL[st.kind];
+    nodes.push({ id: st.id, kind: 'stage', title: st.name, name: st.name, key, lines, groupId: group, stageKind: st.kind });
     if (group !== null) domainOf.set(st.id, group);
-    const fin = fig ? `${fmtQty(fig.iin, 'A')} · ${fmtQty(fig.pin, 'W')}` : '';
-    edges.push({ id: `e:${st.inputNodeId}>${st.id}`, from: st.inputNodeId, to: st.id, label: fin, crossesBarrier: false });
+    // The input current and power are the stage's own lines (edge labels crowd the drawing).
+    if (fig) lines.push(`in ${fmtQty(fig.iin, 'A')} · ${fmtQty(fig.pin, 'W')}`);
+    edges.push({ id: `e:${st.inputNodeId}>${st.id}`, from: st.inputNodeId, to: st.id, label: '', crossesBarrier: false });
     // Turns as the stage design chose them (they may refine what the plan recorded).
     const dz = st.design as { primaryTurns?: unknown; secondaries?: Array<{ nodeId?: unknown; turns?: unknown }>; outputs?: Array<{ nodeId?: unknown }> } | null;
     const designTurns = new Map<Id, number>();
@@ -148,9 +157,10 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
       const crosses = st.barriers.some((b) => b.toDomainId === toDomain) && toDomain !== group;
       const role = o.role === 'output' ? '' : o.role === 'primary' ? 'primary' : 'secondary';
       const nT = designTurns.get(o.nodeId) ?? o.turns;
-      // Turns as a count with the polarity marked in words (a negative count is a reversed winding).
-      const turns = nT !== undefined ? `${role ? ' ' : ''}${Math.abs(nT)} T${nT < 0 ? ' reversed' : ''}` : '';
-      edges.push({ id: `e:${st.id}>${o.nodeId}`, from: st.id, to: o.nodeId, label: `${role}${turns}`, crossesBarrier: crosses });
+      // The winding's turns are a line of the node it feeds (not an edge label), as a count with
+      // the polarity marked in words (a negative count is a reversed winding).
+      if (nT !== undefined) winding.set(o.nodeId, `${role || 'winding'} ${Math.abs(nT)} T${nT < 0 ? ' reversed' : ''}`);
+      edges.push({ id: `e:${st.id}>${o.nodeId}`, from: st.id, to: o.nodeId, label: '', crossesBarrier: crosses });
     }
   }
 
@@ -160,13 +170,21 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
       // Four significant digits for rail voltages: reference rails (4.096 V) need them.
       ? [`${fmtQty(fig.v, 'V', 4)} ±${pctText(r.tolerance)} %`, `${fmtQty(fig.i, 'A')} · ${fmtQty(fig.p, 'W')}`]
       : [`${fmtQty(r.voltage, 'V', 4)} ±${pctText(r.tolerance)} %`];
-    nodes.push({ id: r.id, kind: 'rail', title: r.name, lines, groupId: r.domainId });
+    if (winding.has(r.id)) lines.push(winding.get(r.id)!);
+    const key = fig ? fmtQty(fig.i, 'A') : `${fmtQty(r.voltage, 'V', 4)} ±${pctText(r.tolerance)} %`;
+    nodes.push({ id: r.id, kind: 'rail', title: r.name, name: r.name, key, lines, groupId: r.domainId });
   }
   for (const n of plan.internalNodes) {
     const fig = f?.nodes[n.id];
-    const lines = [`${n.kind === 'tap' ? 'winding tap' : 'bus'} ${fmtQty(fig?.v ?? n.voltage, 'V', 4)}`];
+    // One number per quantity: the name carries the planned (nominal) voltage; when the
+    // roll-up computes another, the line says which is which.
+    const kindWord = n.kind === 'tap' ? 'winding tap' : 'bus';
+    const differs = fig !== undefined && fmtQty(fig.v, 'V', 4) !== fmtQty(n.voltage, 'V', 4);
+    const lines = [differs ? `${kindWord}: nominal ${fmtQty(n.voltage, 'V', 4)}, computed ${fmtQty(fig!.v, 'V', 4)}` : `${kindWord} ${fmtQty(n.voltage, 'V', 4)}`];
     if (fig) lines.push(`${fmtQty(fig.i, 'A')} · ${fmtQty(fig.p, 'W')}`);
-    nodes.push({ id: n.id, kind: 'internal', title: n.name, lines, groupId: n.domainId });
+    if (winding.has(n.id)) lines.push(winding.get(n.id)!);
+    const key = fig ? fmtQty(fig.i, 'A') : fmtQty(n.voltage, 'V', 4);
+    nodes.push({ id: n.id, kind: 'internal', title: n.name, name: n.name, key, lines, groupId: n.domainId });
   }
 
   const used = new Set(nodes.map((n) => n.groupId).filter((g): g is Id => g !== null));
@@ -183,18 +201,37 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
   // Nodes whose domain is unknown are drawn outside every group rather than lost.
   const known = new Set(groups.map((g) => g.id));
   for (const n of nodes) if (n.groupId !== null && !known.has(n.groupId)) n.groupId = null;
+  // Inside a domain box the domain's name is said once, by the box.
+  const domainName = new Map(req.domains.map((d) => [d.id, d.name] as const));
+  for (const n of nodes) {
+    const dn = n.groupId !== null ? domainName.get(n.groupId) : undefined;
+    if (dn) n.name = shortName(n.title, dn);
+  }
   // Edges to nodes that do not exist (a broken plan) are dropped rather than crash ELK.
   const ids = new Set(nodes.map((n) => n.id));
   const okEdges = edges.filter((e) => ids.has(e.from) && ids.has(e.to));
 
   return {
     title: req.meta.name || 'Power tree',
-    subtitle: f ? `Figures for operating mode "${f.modeName}"` : 'Nominal voltages (no roll-up figures)',
+    subtitle: f ? `Figures for operating mode "${f.modeName}" at nominal input${req.sources.length === 1 ? ` (${fmtQty(req.sources[0]!.vNom, 'V')})` : ''}` : 'Nominal voltages (no roll-up figures)',
     modeName: f ? f.modeName : null,
     nodes,
     edges: okEdges,
     groups,
   };
+}
+
+/** `title` without the words `domain` (a whole-word run), when something is left. */
+export function shortName(title: string, domain: string): string {
+  const d = domain.trim();
+  if (!d) return title;
+  const i = title.indexOf(d);
+  if (i < 0) return title;
+  const before = title.slice(0, i);
+  const after = title.slice(i + d.length);
+  if ((before && !/\s$/.test(before)) || (after && !/^\s/.test(after))) return title;
+  const left = `${before}${after}`.replace(/\s+/g, ' ').trim();
+  return left.length > 0 ? left : title;
 }
 
 // ---------------------------------------------------------------------------------------
@@ -245,31 +282,161 @@ export interface LaidOutTree {
   groups: LaidOutGroup[];
 }
 
-/** Text metrics the drawing uses (sans-serif); widths are estimates, generous on purpose. */
+/**
+ * Text metrics the drawing uses (sans-serif). Widths come from a fixed per-character model,
+ * generous on purpose: a character advances `advance` (regular) or `boldAdvance` (bold) times
+ * the font size; the widest common sans-serif faces (DejaVu Sans: digits 0.64 em regular,
+ * 0.70 em bold, from the font's own metrics table) stay inside it for the labels drawn here.
+ *
+ * Two levels of detail share one layout. "Glance" (the whole tree in view): each node shows
+ * its name and one key figure in large type. "Detail" (zoomed in, and in the printed files):
+ * the name and every V / I / P / η line in small type. Every box is sized to hold both.
+ */
 export const TEXT = {
   titleSize: 11.5,
   lineSize: 10,
   labelSize: 9,
   groupSize: 10.5,
-  /** Average advance per character as a fraction of the font size. */
-  advance: 0.6,
-  lineGap: 1.35,
+  glanceTitle: 20,
+  glanceKey: 20,
+  glanceGroup: 20,
+  /** Characters per line of a wrapped name at a glance. */
+  glanceWrap: 10,
+  advance: 0.62,
+  boldAdvance: 0.7,
+  lineGap: 1.3,
   pad: 8,
 } as const;
 
-export function textWidth(text: string, size: number): number {
-  return text.length * size * TEXT.advance;
+export type Detail = 'glance' | 'detail';
+
+export function textWidth(text: string, size: number, bold = false): number {
+  return [...text].length * size * (bold ? TEXT.boldAdvance : TEXT.advance);
+}
+
+/**
+ * Break `text` into lines of at most `max` characters at spaces or after a hyphen (a longer
+ * word stays whole); a number keeps its unit ("7.5 V") on its line.
+ */
+export function wrapText(text: string, max: number): string[] {
+  const words = text.replace(/(\d) (?=[a-zµ]?[VAWT%]\b)/gi, '$1\u00a0').split(/[ \t\n]+/).filter(Boolean)
+    .flatMap((w) => w.length > max && /-./.test(w.slice(1)) ? w.replace(/(?<=.)-(?=.)/g, '-\n').split('\n') : [w]);
+  const out: string[] = [];
+  let cur = '';
+  for (const w of words) {
+    const glue = cur.endsWith('-') ? '' : ' ';
+    if (!cur) cur = w;
+    else if (cur.length + glue.length + w.length <= max) cur += glue + w;
+    else { out.push(cur); cur = w; }
+  }
+  if (cur) out.push(cur);
+  return out.length ? out.map((l) => l.replace(/\u00a0/g, ' ')) : [''];
+}
+
+/** One line of text inside a node: where its baseline starts, its size, and the box it takes. */
+export interface TextLine {
+  text: string;
+  x: number;
+  /** Baseline. */
+  y: number;
+  size: number;
+  bold: boolean;
+  role: 'name' | 'key' | 'line';
+  box: Box;
+}
+
+/** Left inset of a node's text (stages have a coloured side bar). */
+const inset = (n: TreeNode) => TEXT.pad + (n.kind === 'stage' ? 4 : 0);
+
+/** The lines a node shows at a level of detail, relative to the node's top-left corner. */
+export function nodeTextLocal(n: TreeNode, detail: Detail): TextLine[] {
+  const rows: Array<{ text: string; size: number; bold: boolean; role: TextLine['role'] }> = detail === 'glance'
+    ? [
+        ...wrapText(n.name, TEXT.glanceWrap).map((t) => ({ text: t, size: TEXT.glanceTitle, bold: true, role: 'name' as const })),
+        { text: n.key, size: TEXT.glanceKey, bold: false, role: 'key' as const },
+      ]
+    : [
+        { text: n.name, size: TEXT.titleSize, bold: true, role: 'name' as const },
+        ...n.lines.map((t) => ({ text: t, size: TEXT.lineSize, bold: false, role: 'line' as const })),
+      ];
+  const out: TextLine[] = [];
+  let y = TEXT.pad;
+  const x = inset(n);
+  for (const r of rows) {
+    const h = r.size * TEXT.lineGap;
+    // Baseline at 80 % of the em box below the line's top, centred in the line's height.
+    const base = y + (h - r.size) / 2 + r.size * 0.8;
+    out.push({ ...r, x, y: base, box: { x, y: y + (h - r.size) / 2 - r.size * 0.05, width: textWidth(r.text, r.size, r.bold), height: r.size * 1.1 } });
+    y += h;
+  }
+  return out;
+}
+
+/** The lines of a laid-out node at a level of detail, in page coordinates. */
+export function nodeText(n: LaidOutNode, detail: Detail): TextLine[] {
+  return nodeTextLocal(n, detail).map((l) => ({ ...l, x: l.x + n.x, y: l.y + n.y, box: { ...l.box, x: l.box.x + n.x, y: l.box.y + n.y } }));
 }
 
 export function nodeSize(n: TreeNode): { width: number; height: number } {
-  // Bold titles run about 10 % wider than the regular lines.
-  const w = Math.max(textWidth(n.title, TEXT.titleSize) * 1.12, ...n.lines.map((l) => textWidth(l, TEXT.lineSize)));
-  const width = Math.ceil(Math.min(300, Math.max(n.kind === 'stage' ? 120 : 96, w + 2 * TEXT.pad)));
-  const height = Math.ceil(TEXT.pad * 2 + TEXT.titleSize * TEXT.lineGap + n.lines.length * TEXT.lineSize * TEXT.lineGap);
-  return { width, height };
+  let w = 0;
+  let h = 0;
+  for (const d of ['glance', 'detail'] as const) {
+    const ls = nodeTextLocal(n, d);
+    for (const l of ls) w = Math.max(w, l.box.x + l.box.width);
+    const last = ls[ls.length - 1]!;
+    h = Math.max(h, last.box.y + last.box.height);
+  }
+  return { width: Math.ceil(Math.max(n.kind === 'stage' ? 110 : 90, w + TEXT.pad)), height: Math.ceil(h + TEXT.pad) };
 }
 
-const GROUP_HEADER = 24;
+/**
+ * A domain box's title at a level of detail (page coordinates): at a glance the domain's
+ * name on one line and its isolation on the next; in detail one line.
+ */
+export function groupText(g: TreeGroup & Partial<Box>, detail: Detail): TextLine[] {
+  const gx = g.x ?? 0;
+  const gy = g.y ?? 0;
+  const parts = detail === 'glance' ? splitGroupTitle(g.title) : [g.title];
+  const out: TextLine[] = [];
+  let top = gy + 8;
+  parts.forEach((text, i) => {
+    const size = detail === 'glance' ? (i === 0 ? TEXT.glanceGroup : TEXT.glanceKey) : TEXT.groupSize;
+    const bold = i === 0;
+    out.push({ text, x: gx + 12, y: top + size * 0.85, size, bold, role: i === 0 ? 'name' : 'key', box: { x: gx + 12, y: top, width: textWidth(text, size, bold), height: size * 1.1 } });
+    top += size * TEXT.lineGap;
+  });
+  return out;
+}
+
+/** "Front end: basic isolation, 250 V working" → ["Front end", "basic isolation, 250 V working"]. */
+function splitGroupTitle(title: string): string[] {
+  const m = /^(.*?)(?:: | \()(.*?)\)?$/.exec(title);
+  return m && m[1] && m[2] ? [m[1], m[2]] : [title];
+}
+
+/** Height of a domain box's header (the glance title, the taller of the two). */
+export const GROUP_HEADER = Math.ceil(8 + TEXT.glanceGroup * TEXT.lineGap + TEXT.glanceKey * TEXT.lineGap);
+
+/** Where an edge's label sits (detail only): the box ELK reserved for it. */
+export function edgeText(e: LaidOutEdge): TextLine | null {
+  if (!e.labelBox || !e.label) return null;
+  const lb = e.labelBox;
+  const w = textWidth(e.label, TEXT.labelSize);
+  return { text: e.label, x: lb.x + (lb.width - w) / 2, y: lb.y + lb.height - 3, size: TEXT.labelSize, bold: false, role: 'line', box: { x: lb.x + (lb.width - w) / 2, y: lb.y + lb.height - 3 - TEXT.labelSize * 0.85, width: w, height: TEXT.labelSize * 1.1 } };
+}
+
+/** Every text box drawn at a level of detail, with what owns it (for overlap checks). */
+export function labelBoxes(tree: LaidOutTree, detail: Detail): Array<{ owner: string; container: Box | null; line: TextLine }> {
+  const out: Array<{ owner: string; container: Box | null; line: TextLine }> = [];
+  for (const g of tree.groups) for (const l of groupText(g, detail)) out.push({ owner: `group:${g.id}`, container: g, line: l });
+  for (const n of tree.nodes) for (const l of nodeText(n, detail)) out.push({ owner: n.id, container: n, line: l });
+  if (detail === 'detail') for (const e of tree.edges) {
+    const l = edgeText(e);
+    if (l) out.push({ owner: e.id, container: null, line: l });
+  }
+  return out;
+}
+
 
 export function toElkGraph(view: TreeView): ElkNodeLike {
   const groupChildren = new Map<Id, ElkNodeLike[]>();
@@ -288,9 +455,9 @@ export function toElkGraph(view: TreeView): ElkNodeLike {
       id: `group:${g.id}`,
       children: kids,
       layoutOptions: {
-        'elk.padding': `[top=${GROUP_HEADER + 10},left=14,bottom=14,right=14]`,
+        'elk.padding': `[top=${GROUP_HEADER + 8},left=14,bottom=14,right=14]`,
         'elk.nodeSize.constraints': 'MINIMUM_SIZE',
-        'elk.nodeSize.minimum': `(${Math.ceil(textWidth(g.title, TEXT.groupSize) * 1.12 + 28)}, 60)`,
+        'elk.nodeSize.minimum': `(${Math.ceil(Math.max(...(['glance', 'detail'] as const).flatMap((d) => groupText(g, d).map((l) => l.box.width))) + 28)}, 60)`,
       },
     });
   }
@@ -298,7 +465,7 @@ export function toElkGraph(view: TreeView): ElkNodeLike {
     id: e.id,
     sources: [e.from],
     targets: [e.to],
-    labels: e.label ? [{ text: e.label, width: Math.ceil(textWidth(e.label, TEXT.labelSize) + 6), height: Math.ceil(TEXT.labelSize * 1.4) }] : [],
+    labels: e.label ? [{ text: e.label, width: Math.ceil(textWidth(e.label, TEXT.labelSize) + 6), height: Math.ceil(TEXT.labelSize * 1.5) }] : [],
   }));
   return {
     id: 'root',
@@ -307,7 +474,7 @@ export function toElkGraph(view: TreeView): ElkNodeLike {
       'elk.direction': 'RIGHT',
       'elk.hierarchyHandling': 'INCLUDE_CHILDREN',
       'elk.edgeRouting': 'ORTHOGONAL',
-      'elk.layered.spacing.nodeNodeBetweenLayers': '46',
+      'elk.layered.spacing.nodeNodeBetweenLayers': '40',
       'elk.spacing.nodeNode': '22',
       'elk.spacing.edgeLabel': '3',
       'elk.edgeLabels.placement': 'CENTER',

@@ -9,6 +9,7 @@
 
 import type { PartLibraryRow } from './model.ts';
 import { magneticSpec } from './magnetics.ts';
+import { checkText } from './text-rules.ts';
 import type { CoupledBuckDesign } from './stages/index.ts';
 import type { CostModel, PartCounts } from './planner/types.ts';
 import { INVENTED_UNIT_COST, TYPICAL_BUCK_PARTS } from './planner/cost-model.ts';
@@ -55,6 +56,9 @@ const num = (key: string, unit: string, doc: string, min = 0, max = Infinity, re
   ({ key, kind: 'number', unit, required, min, max, doc });
 const str = (key: string, doc: string, required = true): ParamSpec => ({ key, kind: 'string', required, doc });
 const pkg = str('package', 'package name (generic outline)');
+/** What procurement orders: empty for a generic row, which the BOM labels generic. */
+const maker = str('manufacturer', 'manufacturer (empty: a generic row, to be chosen by procurement)', false);
+const mpn = str('partNumber', 'manufacturer part number (empty: a generic row)', false);
 
 /** What each class's params mean. Numbers are base SI (V, A, Ω, F, H, s, W, K/W). */
 export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
@@ -71,6 +75,12 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('rdsLs', 'Ω', 'integrated low-side on-resistance at 25 °C (integrated = 1)', 0, 10, false),
     num('negLimit', 'A', 'low-side negative current limit', 0, 100, false),
     num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance', 1, 1000),
+    num('vinMin', 'V', 'lowest input voltage it regulates from', 0, 2000, false),
+    num('uvlo', 'V', 'undervoltage-lockout rising threshold', 0, 2000, false),
+    num('vref', 'V', 'feedback reference voltage', 0.1, 10, false),
+    num('vrefTolerance', '', 'reference tolerance over temperature, as a ratio (0.01 = ±1 %)', 0, 0.2, false),
+    num('iLimit', 'A', 'peak (cycle-by-cycle) current limit', 0, 1000, false),
+    maker, mpn,
   ],
   switch: [
     pkg,
@@ -80,6 +90,10 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('qg', 'C', 'total gate charge', 0, 1e-6),
     num('coss', 'F', 'output capacitance', 0, 1e-8),
     num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance', 1, 1000),
+    num('tr', 's', 'switch-node rise time in the circuit', 0, 1e-6, false),
+    num('tf', 's', 'switch-node fall time in the circuit', 0, 1e-6, false),
+    num('rdsTempFactor', '', 'Rds(on) at the hot junction over its 25 °C value (common practice 1.3–1.5)', 1, 3, false),
+    maker, mpn,
   ],
   ldo: [
     pkg,
@@ -90,6 +104,9 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('psrrDb', 'dB', 'ripple rejection at a few hundred kHz', 0, 120),
     num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance (JEDEC JESD51-2 style figure)', 1, 1000),
     num('negative', '', '1 = negative-voltage regulator', 0, 1, false),
+    num('accuracy', '', 'output accuracy over line, load and temperature, as a ratio', 0, 0.2, false),
+    num('dropoutFloor', 'V', 'dropout at no load', 0, 5, false),
+    maker, mpn,
   ],
   rectifier: [
     pkg,
@@ -97,6 +114,9 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('if', 'A', 'average forward current rating', 0.001, 1000),
     num('vf', 'V', 'forward drop at rated current', 0.05, 5),
     num('thetaJA', 'K/W', 'junction-to-ambient thermal resistance', 1, 1000),
+    num('cj', 'F', 'junction capacitance at a few volts reverse', 0, 1e-8, false),
+    num('trr', 's', 'reverse-recovery time (0 for a Schottky)', 0, 1e-5, false),
+    maker, mpn,
   ],
   'cap-ceramic': [
     pkg,
@@ -105,6 +125,8 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('cMin', 'F', 'smallest value offered in this package and rating', 0, 1),
     num('cMax', 'F', 'largest value offered in this package and rating', 0, 1),
     num('esr', 'Ω', 'typical ESR', 0, 100, false),
+    num('iRipple', 'A', 'ripple current rating', 0, 100, false),
+    maker, mpn,
   ],
   'cap-aluminium': [
     pkg,
@@ -113,6 +135,7 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('cMax', 'F', 'largest value offered', 0, 10),
     num('esr', 'Ω', 'typical ESR', 0, 100),
     num('iRipple', 'A', 'ripple current rating', 0, 100, false),
+    maker, mpn,
   ],
   'cap-polymer': [
     pkg,
@@ -121,11 +144,13 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('cMax', 'F', 'largest value offered', 0, 10),
     num('esr', 'Ω', 'typical ESR', 0, 100),
     num('iRipple', 'A', 'ripple current rating', 0, 100, false),
+    maker, mpn,
   ],
   resistor: [
     pkg,
     num('power', 'W', 'rated power', 0.001, 1000),
     num('tolerance', '', 'tolerance as a ratio (0.01 = 1 %)', 0, 0.5),
+    maker, mpn,
   ],
   inductor: [
     pkg,
@@ -133,6 +158,8 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('lMax', 'H', 'largest inductance offered in this size', 0, 1),
     num('iSat', 'A', 'saturation current at the largest value (scales as √(lMax/L) below it)', 0.001, 1000),
     num('dcr', 'Ω', 'DC resistance at the largest value (scales as √(L/lMax))', 0, 100),
+    num('iRms', 'A', 'RMS (heating) current rating at the largest value', 0, 1000, false),
+    maker, mpn,
   ],
   'magnetic-custom': [
     pkg,
@@ -140,6 +167,7 @@ export const CLASS_PARAMS: Record<PartClass, ParamSpec[]> = {
     num('pMax', 'W', 'largest throughput power', 0.1, 10000),
     num('costPerWinding', '', 'estimated cost added per winding beyond the primary', 0, 1e6),
     num('isolation', '', 'best isolation class the construction supports: 0 functional, 1 basic, 2 reinforced', 0, 2),
+    maker, mpn,
   ],
 };
 
@@ -157,6 +185,7 @@ export function validateRow(r: LibraryRow, index = 0): RowProblem[] {
   if (typeof r.id !== 'string' || !/^[A-Za-z0-9._:-]{1,64}$/.test(r.id)) p('id', 'must be 1–64 letters, digits or . _ : -');
   if (!PART_CLASSES.includes(r.partClass)) { p('class', `unknown part class "${String(r.partClass)}" (one of ${PART_CLASSES.join(', ')})`); return out; }
   if (typeof r.name !== 'string' || r.name.trim() === '' || r.name.length > 200) p('name', 'must be 1–200 characters');
+  else { const bad = checkText(r.name, 'name'); if (bad) p('name', bad); }
   if (typeof r.cost !== 'number' || !Number.isFinite(r.cost) || r.cost < 0 || r.cost > 1e6) p('cost', 'must be a number from 0 to 1e6');
   const specs = CLASS_PARAMS[r.partClass];
   for (const s of specs) {
@@ -171,10 +200,18 @@ export function validateRow(r: LibraryRow, index = 0): RowProblem[] {
       if (s.max !== undefined && v > s.max) p(s.key, `must be at most ${s.max}${s.unit ? ' ' + s.unit : ''}`);
     } else if (typeof v !== 'string') {
       p(s.key, 'must be text');
+    } else {
+      const bad = checkText(v, 'name');
+      if (bad) p(s.key, bad);
     }
   }
   for (const k of Object.keys(r.params ?? {})) {
-    if (k === COST_NOTE) { if (typeof r.params[k] !== 'string') p('cost_note', 'must be text'); continue; }
+    if (k === COST_NOTE) {
+      const note = r.params[k];
+      if (typeof note !== 'string') p('cost_note', 'must be text');
+      else { const bad = checkText(note, 'name'); if (bad) p('cost_note', bad); }
+      continue;
+    }
     if (!specs.some((s) => s.key === k)) p(k, `is not a parameter of class ${r.partClass}`);
   }
   const pr = r.params ?? {};
@@ -351,6 +388,9 @@ export interface PartPick {
   quantity: number;
   unitCost: number;
   costNote: string;
+  /** From the row's manufacturer and partNumber (absent or empty: a generic row). */
+  manufacturer?: string;
+  partNumber?: string;
   /** For custom magnetics: the file name of the specification sheet. */
   specRef?: string;
   problem?: string;
@@ -379,13 +419,15 @@ function eng(value: number, unit: string, digits = 3): string {
   return `${Number.parseFloat(value.toPrecision(digits))} ${unit}`;
 }
 
-interface CapLike { role: string; value: number; count: number; ratedVoltage: number; workingVoltage: number }
-interface DividerLike { rTop: number; rBottom: number; vout: number }
+interface CapLike { role: string; value: number; count: number; ratedVoltage: number; workingVoltage: number; rmsCurrent?: number }
+/** A feedback divider; `tolerance` is the resistor grade the design was analysed with (default 1 %). */
+interface DividerLike { rTop: number; rBottom: number; vout: number; tolerance?: number }
 
 function pickFromRow(stageId: string, role: string, prefix: PartPick['prefix'], row: LibraryRow, value: string, rating: string, quantity: number, extra: Partial<PartPick> = {}): PartPick {
   return {
     stageId, role, prefix, partClass: row.partClass, libraryId: row.id, description: row.name, value, rating,
-    package: strParam(row, 'package'), quantity, unitCost: row.cost, costNote: costNote(row), ...extra,
+    package: strParam(row, 'package'), quantity, unitCost: row.cost, costNote: costNote(row),
+    manufacturer: strParam(row, 'manufacturer'), partNumber: strParam(row, 'partNumber'), ...extra,
   };
 }
 
@@ -402,28 +444,80 @@ function pickCap(lib: LibraryRow[], stageId: string, c: CapLike, o: PickOptions)
   for (const cls of ['cap-polymer', 'cap-aluminium'] as const) {
     const row = cheapest(lib, cls, (r) =>
       numParam(r, 'vRated') * o.electrolyticDerating >= c.workingVoltage && numParam(r, 'cMin') <= c.value && numParam(r, 'cMax') >= c.value);
-    if (row) return pickFromRow(stageId, c.role, 'C', row, value, `${numParam(row, 'vRated')} V`, c.count);
+    if (row) {
+      const problem = rippleProblem(row, c);
+      return pickFromRow(stageId, c.role, 'C', row, value, `${numParam(row, 'vRated')} V`, c.count, problem ? { problem } : {});
+    }
   }
   return missing(stageId, c.role, 'C', 'cap-ceramic', value, `≥ ${c.ratedVoltage} V`, c.count,
     `no capacitor in the library offers ${value} at ${c.ratedVoltage} V or more`);
 }
 
-function pickResistor(lib: LibraryRow[], stageId: string, role: string, ohms: number, watts: number, o: PickOptions, quantity = 1): PartPick {
+/** Cheapest resistor of at least the grade (tolerance ≤ `tolerance`, default 1 %) that takes the power. */
+function pickResistor(lib: LibraryRow[], stageId: string, role: string, ohms: number, watts: number, o: PickOptions, quantity = 1, tolerance = 0.01): PartPick {
   const value = eng(ohms, 'Ω');
-  const row = cheapest(lib, 'resistor', (r) => numParam(r, 'power') * o.powerDerating >= watts && numParam(r, 'tolerance') <= 0.01 + 1e-12);
-  if (row) return pickFromRow(stageId, role, 'R', row, value, `${eng(numParam(row, 'power'), 'W')} ${numParam(row, 'tolerance') * 100} %`, quantity);
-  return missing(stageId, role, 'R', 'resistor', value, `≥ ${eng(watts / o.powerDerating, 'W')}`, quantity, `no 1 % resistor in the library takes ${eng(watts, 'W')} within the power derating`);
+  const grade = `${+(tolerance * 100).toPrecision(3)} %`;
+  const row = cheapest(lib, 'resistor', (r) => numParam(r, 'power') * o.powerDerating >= watts && numParam(r, 'tolerance') <= tolerance + 1e-12);
+  if (row) return pickFromRow(stageId, role, 'R', row, value, `${eng(numParam(row, 'power'), 'W')} ${+(numParam(row, 'tolerance') * 100).toPrecision(3)} %`, quantity);
+  return missing(stageId, role, 'R', 'resistor', value, `≥ ${eng(watts / o.powerDerating, 'W')}, ${grade}`, quantity, `no ${grade} resistor in the library takes ${eng(watts, 'W')} within the power derating`);
 }
 
 function pickDivider(lib: LibraryRow[], stageId: string, d: DividerLike, o: PickOptions): PartPick[] {
   const i = d.vout / (d.rTop + d.rBottom);
   return [
-    pickResistor(lib, stageId, `feedback top (sets ${eng(d.vout, 'V')})`, d.rTop, i * i * d.rTop, o),
-    pickResistor(lib, stageId, 'feedback bottom', d.rBottom, i * i * d.rBottom, o),
+    pickResistor(lib, stageId, `feedback top (sets ${eng(d.vout, 'V')})`, d.rTop, i * i * d.rTop, o, 1, d.tolerance ?? 0.01),
+    pickResistor(lib, stageId, 'feedback bottom', d.rBottom, i * i * d.rBottom, o, 1, d.tolerance ?? 0.01),
   ];
 }
 
 const ISOLATION_RANK: Record<string, number> = { none: -1, functional: 0, basic: 1, reinforced: 2 };
+
+interface PartRefLike { role: string; libraryId: string }
+
+/**
+ * The parts the stage designer chose from the library (design.parts) for some roles, as BOM
+ * picks of exactly those rows. A row the library no longer holds is listed with a problem
+ * (the design was analysed with it: plan again after editing the library).
+ */
+function picksFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[], roles: (role: string) => boolean, value: (ref: PartRefLike, row: LibraryRow) => { value: string; rating: string; prefix: PartPick['prefix']; quantity?: number }): PartPick[] | null {
+  const chosen = refs.filter((r) => roles(r.role));
+  if (chosen.length === 0) return null;
+  return chosen.map((ref) => {
+    const row = lib.find((r) => r.id === ref.libraryId);
+    if (!row) return missing(stageId, ref.role, 'U', 'controller', '', '', 1, `the design was analysed with library part ${ref.libraryId}, which the library no longer holds: plan again`);
+    const v = value(ref, row);
+    return pickFromRow(stageId, ref.role, v.prefix, row, v.value, v.rating, v.quantity ?? 1);
+  });
+}
+
+const SWITCHER_ROLES = new Set(['regulator (integrated switches)', 'controller', 'high-side switch', 'low-side switch']);
+
+function switcherFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[] | undefined): PartPick[] | null {
+  if (!refs) return null;
+  return picksFromRefs(lib, stageId, refs, (r) => SWITCHER_ROLES.has(r), (ref, row) => row.partClass === 'switch'
+    ? { prefix: 'Q', value: '', rating: `${numParam(row, 'vds')} V, ${numParam(row, 'id')} A` }
+    : { prefix: 'U', value: '', rating: ref.role === 'controller' ? `${numParam(row, 'vinMax')} V` : `${numParam(row, 'vinMax')} V, ${numParam(row, 'iMax')} A` });
+}
+
+/** The BOM's check of a bank's ripple current against its parts' rating (× count). */
+function rippleProblem(row: LibraryRow, c: CapLike): string | undefined {
+  const rating = numParam(row, 'iRipple');
+  if (!(c.rmsCurrent !== undefined && c.rmsCurrent > 0) || !(rating > 0)) return undefined;
+  const total = rating * c.count;
+  return c.rmsCurrent > total * (1 + 1e-9)
+    ? `ripple current ${eng(c.rmsCurrent, 'A')} rms exceeds the bank's rating ${c.count} × ${eng(rating, 'A')} = ${eng(total, 'A')}`
+    : undefined;
+}
+
+function capFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[] | undefined, c: CapLike, o: PickOptions): PartPick {
+  const ref = refs?.find((r) => r.role === c.role);
+  const row = ref ? lib.find((r) => r.id === ref.libraryId) : undefined;
+  if (ref && row) {
+    const problem = rippleProblem(row, c);
+    return pickFromRow(stageId, c.role, 'C', row, eng(c.value, 'F'), `${numParam(row, 'vRated')} V${strParam(row, 'dielectric') ? ' ' + strParam(row, 'dielectric') : ''}`, c.count, problem ? { problem } : {});
+  }
+  return pickCap(lib, stageId, c, o);
+}
 
 /** Switching stage: one integrated regulator, or a controller plus two external switches, whichever costs less. */
 function pickSwitcher(lib: LibraryRow[], stageId: string, vinMax: number, iNeed: number, needForcedPwm: boolean, ipk: number): PartPick[] {
@@ -459,11 +553,13 @@ interface AnyDesign {
   cin?: CapLike;
   cout?: CapLike;
   divider?: DividerLike;
-  secondaries?: Array<{ nodeId: string; turns: number; rectifierReverseVoltage: number; cout: CapLike; preload: { resistance: number; current: number } | null }>;
+  secondaries?: Array<{ nodeId: string; turns: number; rectifierReverseVoltage: number; cout: CapLike; preload: { resistance: number; current: number } | null; snubber?: { r: number; c: number } }>;
+  fsw?: number;
   primaryTurns?: number;
   isolation?: { class: string; workingVoltage: number } | null;
   ratedCurrent?: number;
   package?: { name: string; thetaJA: number };
+  parts?: PartRefLike[];
 }
 
 /**
@@ -478,16 +574,17 @@ export function partsForStage(stageId: string, design: unknown, library: Library
   if (!out0) return [missing(stageId, 'stage', 'U', 'controller', '', '', 1, 'the stage carries no design')];
   if (d.kind === 'buck') {
     const iMax = out0.currentMax;
-    picks.push(...pickSwitcher(library, stageId, d.vinMax ?? 0, iMax, false, d.isat ?? iMax));
+    picks.push(...(switcherFromRefs(library, stageId, d.parts) ?? pickSwitcher(library, stageId, d.vinMax ?? 0, iMax, false, d.isat ?? iMax)));
     const L = d.inductance ?? 0;
     const isat = d.isat ?? iMax;
-    const ind = cheapest(library, 'inductor', (r) =>
+    const fromRef = d.parts ? picksFromRefs(library, stageId, d.parts, (r) => r === 'inductor', () => ({ prefix: 'L', value: eng(L, 'H'), rating: `Isat ≥ ${eng(isat, 'A')}` })) : null;
+    const ind = fromRef ? null : cheapest(library, 'inductor', (r) =>
       numParam(r, 'lMin') <= L * (1 + 1e-9) && numParam(r, 'lMax') >= L * (1 - 1e-9) && numParam(r, 'iSat') * Math.sqrt(numParam(r, 'lMax') / L) >= isat);
-    picks.push(ind
+    picks.push(...(fromRef ?? [ind
       ? pickFromRow(stageId, 'inductor', 'L', ind, eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1)
-      : missing(stageId, 'inductor', 'L', 'inductor', eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1, `no inductor in the library offers ${eng(L, 'H')} with ${eng(isat, 'A')} saturation current`));
-    if (d.cin) picks.push(pickCap(library, stageId, d.cin, o));
-    if (d.cout) picks.push(pickCap(library, stageId, d.cout, o));
+      : missing(stageId, 'inductor', 'L', 'inductor', eng(L, 'H'), `Isat ≥ ${eng(isat, 'A')}`, 1, `no inductor in the library offers ${eng(L, 'H')} with ${eng(isat, 'A')} saturation current`)]));
+    if (d.cin) picks.push(capFromRefs(library, stageId, d.parts, d.cin, o));
+    if (d.cout) picks.push(capFromRefs(library, stageId, d.parts, d.cout, o));
     if (d.divider) picks.push(...pickDivider(library, stageId, d.divider, o));
     return picks;
   }
@@ -497,11 +594,11 @@ export function partsForStage(stageId: string, design: unknown, library: Library
     // magnetic saturates no lower than that plus the usual 30 % margin.
     let peak = (d.isat ?? out0.currentMax) / 1.3;
     try {
-      const spec = magneticSpec(design as CoupledBuckDesign);
+      const spec = magneticSpec(design as CoupledBuckDesign, { withCore: false });
       peak = Math.max(peak, ...spec.windings.filter((w) => w.role === 'primary').map((w) => w.peakCurrent));
     } catch { /* an incomplete design: keep the design's own figure */ }
     const isat = Math.max(d.isat ?? 0, peak * 1.3);
-    picks.push(...pickSwitcher(library, stageId, d.vinMax ?? 0, peak, true, isat));
+    picks.push(...(switcherFromRefs(library, stageId, d.parts) ?? pickSwitcher(library, stageId, d.vinMax ?? 0, peak, true, isat)));
     const pTotal = (d.outputs ?? []).reduce((a, q) => a + Math.abs(q.voltage) * q.currentMax, 0);
     const isoOf = [d.isolation, o.isolation].filter((x): x is { class: string; workingVoltage: number } => !!x && x.class !== 'none')
       .sort((a, b) => (ISOLATION_RANK[b.class] ?? -1) - (ISOLATION_RANK[a.class] ?? -1) || b.workingVoltage - a.workingVoltage)[0] ?? null;
@@ -516,20 +613,29 @@ export function partsForStage(stageId: string, design: unknown, library: Library
     picks.push(mag
       ? { ...pickFromRow(stageId, 'coupled-winding magnetic (custom)', 'T', mag, magValue, magRating, 1, { specRef }), unitCost: mag.cost + numParam(mag, 'costPerWinding', 0) * secs.length }
       : { ...missing(stageId, 'coupled-winding magnetic (custom)', 'T', 'magnetic-custom', magValue, magRating, 1, `no custom-magnetic former in the library takes ${windings} windings, ${eng(pTotal, 'W')}${needIso > 0 ? ` and ${isoOf?.class} isolation` : ''}`), specRef });
-    if (d.cin) picks.push(pickCap(library, stageId, d.cin, o));
-    if (d.cout) picks.push(pickCap(library, stageId, d.cout, o));
+    if (d.cin) picks.push(capFromRefs(library, stageId, d.parts, d.cin, o));
+    if (d.cout) picks.push(capFromRefs(library, stageId, d.parts, d.cout, o));
     if (d.divider) picks.push(...pickDivider(library, stageId, d.divider, o));
     secs.forEach((s, k) => {
       const spec = d.outputs?.find((q) => q.nodeId === s.nodeId);
       const iAvg = (spec?.currentMax ?? 0) + (s.preload?.current ?? 0);
       // Rectifier ratings: Vr ≥ reverse voltage / 0.8 and If ≥ 1.5·average (common practice margins).
       const vr = s.rectifierReverseVoltage / 0.8;
-      const rect = cheapest(library, 'rectifier', (r) => numParam(r, 'vr') >= vr && numParam(r, 'if') >= 1.5 * iAvg);
       const role = `rectifier, winding ${k + 1}`;
+      const rectRef = d.parts?.find((r) => r.role === role);
+      const rect = (rectRef ? library.find((r) => r.id === rectRef.libraryId) : undefined)
+        ?? cheapest(library, 'rectifier', (r) => numParam(r, 'vr') >= vr && numParam(r, 'if') >= 1.5 * iAvg);
       picks.push(rect
         ? pickFromRow(stageId, role, 'D', rect, '', `${numParam(rect, 'vr')} V, ${numParam(rect, 'if')} A`, 1)
         : missing(stageId, role, 'D', 'rectifier', '', `≥ ${eng(vr, 'V')}, ≥ ${eng(1.5 * iAvg, 'A')}`, 1, `no rectifier in the library blocks ${eng(vr, 'V')} and carries ${eng(1.5 * iAvg, 'A')}`));
-      picks.push(pickCap(library, stageId, s.cout, o));
+      picks.push(capFromRefs(library, stageId, d.parts, s.cout, o));
+      if (s.snubber) {
+        // RC snubber across the rectifier: the capacitor sees the (snubbed) reverse peak, the
+        // resistor dissipates Cs·Vr²·fsw (common practice).
+        const vrs = s.rectifierReverseVoltage;
+        picks.push(pickCap(library, stageId, { role: `snubber capacitor, winding ${k + 1}`, value: s.snubber.c, count: 1, ratedVoltage: vrs / 0.8, workingVoltage: vrs }, o));
+        picks.push(pickResistor(library, stageId, `snubber resistor, winding ${k + 1}`, s.snubber.r, s.snubber.c * vrs * vrs * (d.fsw ?? 0), o));
+      }
       if (s.preload) {
         const v = Math.abs(spec?.voltage ?? 0) * 1.1;
         picks.push(pickResistor(library, stageId, `preload, winding ${k + 1}`, s.preload.resistance, (v * v) / s.preload.resistance, o));
@@ -542,14 +648,16 @@ export function partsForStage(stageId: string, design: unknown, library: Library
     const vinMax = Math.abs(d.vinMax ?? 0);
     const fits = (r: LibraryRow) => numParam(r, 'iMax') >= out0.currentMax && numParam(r, 'vinMax') >= vinMax && numParam(r, 'negative', 0) === neg
       && numParam(r, 'thetaJA') <= (d.package?.thetaJA ?? Infinity) + 1e-9;
-    const samePkg = cheapest(library, 'ldo', (r) => fits(r) && strParam(r, 'package') === d.package?.name);
-    const row = samePkg ?? cheapest(library, 'ldo', fits);
+    const ref = d.parts?.find((r) => r.role === 'LDO' || r.role === 'negative LDO');
+    const refRow = ref ? library.find((r) => r.id === ref.libraryId) ?? null : null;
+    const samePkg = refRow ? null : cheapest(library, 'ldo', (r) => fits(r) && strParam(r, 'package') === d.package?.name);
+    const row = refRow ?? samePkg ?? cheapest(library, 'ldo', fits);
     picks.push(row
       ? pickFromRow(stageId, neg ? 'negative LDO' : 'LDO', 'U', row, eng(out0.voltage, 'V', 4), `${numParam(row, 'iMax')} A, ${numParam(row, 'vinMax')} V in`, 1)
       : missing(stageId, 'LDO', 'U', 'ldo', eng(out0.voltage, 'V', 4), `≥ ${eng(out0.currentMax, 'A')}, θJA ≤ ${d.package?.thetaJA ?? '—'} K/W`, 1,
         `no ${neg ? 'negative ' : ''}LDO in the library carries ${eng(out0.currentMax, 'A')} from ${eng(vinMax, 'V')} with θJA ≤ ${d.package?.thetaJA} K/W`));
-    if (d.cin) picks.push(pickCap(library, stageId, d.cin, o));
-    if (d.cout) picks.push(pickCap(library, stageId, d.cout, o));
+    if (d.cin) picks.push(capFromRefs(library, stageId, d.parts, d.cin, o));
+    if (d.cout) picks.push(capFromRefs(library, stageId, d.parts, d.cout, o));
     return picks;
   }
   return [missing(stageId, `stage of kind ${String(d.kind)}`, 'U', 'controller', '', '', 1, `no part mapping for stage kind ${String(d.kind)}`)];
@@ -587,8 +695,26 @@ export function libraryUnitCosts(library: LibraryRow[]): Record<keyof PartCounts
   };
 }
 
-/** A planner cost model priced from the library (see libraryUnitCosts). */
-export function libraryCostModel(library: LibraryRow[]): CostModel {
+/**
+ * Cost and part count of some stages from the parts partsForStage lists for their designs:
+ * the numbers the BOM shows for the same stages (barriers are in the magnetic's row).
+ */
+export function priceStagesFromLibrary(library: LibraryRow[], stages: readonly { localId: string; design: unknown; barriers?: readonly { isolation: string; workingVoltage: number }[] }[], opts: Partial<PickOptions> = {}): { cost: number; parts: number } {
+  let cost = 0;
+  let parts = 0;
+  for (const st of stages) {
+    const iso = (st.barriers ?? []).map((b) => ({ class: b.isolation, workingVoltage: b.workingVoltage }))
+      .sort((a, b) => (ISOLATION_RANK[b.class] ?? -1) - (ISOLATION_RANK[a.class] ?? -1) || b.workingVoltage - a.workingVoltage)[0] ?? null;
+    for (const p of partsForStage(st.localId, st.design, library, { ...opts, isolation: iso })) {
+      cost += p.unitCost * p.quantity;
+      parts += p.quantity;
+    }
+  }
+  return { cost: Math.round(cost * 1e6) / 1e6, parts };
+}
+
+/** A planner cost model priced from the library (see libraryUnitCosts, priceStagesFromLibrary). */
+export function libraryCostModel(library: LibraryRow[], opts: Partial<PickOptions> = {}): CostModel {
   const unit = libraryUnitCosts(library);
   const price = (p: PartCounts) => {
     let c = 0;
@@ -597,5 +723,8 @@ export function libraryCostModel(library: LibraryRow[]): CostModel {
   };
   // Reference stage: the planner's typical synchronous buck.
   const refParts = (Object.keys(TYPICAL_BUCK_PARTS) as (keyof PartCounts)[]).filter((k) => String(k) !== 'barrier').reduce((a, k) => a + TYPICAL_BUCK_PARTS[k], 0);
-  return { cost: (p) => price(p), referenceStageCost: price(TYPICAL_BUCK_PARTS) || 1, referenceStageParts: refParts };
+  return {
+    cost: (p) => price(p), referenceStageCost: price(TYPICAL_BUCK_PARTS) || 1, referenceStageParts: refParts,
+    priceStages: (stages) => priceStagesFromLibrary(library, stages, opts),
+  };
 }

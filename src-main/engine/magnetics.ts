@@ -5,7 +5,8 @@
  * and working voltage of the barrier the windings cross (from the domain), with cautions.
  */
 import type { BuckDesign } from './stages/buck.ts';
-import { windingCurrents, type CoupledBuckDesign } from './stages/cwbuck.ts';
+import { coupledPoint, windingCurrents, type CoupledBuckDesign } from './stages/cwbuck.ts';
+import { designMagneticCore, type CoreDesign, type MagneticDesignOptions } from './core-design.ts';
 import { buckPoint } from './stages/buck.ts';
 import { awgDiameterMm, copperOhmsPerMetre, wireFor } from './awg.ts';
 import { ISOLATION_CAUTIONS } from './isolation.ts';
@@ -43,6 +44,12 @@ export interface MagneticSpec {
   isolation: { class: IsolationClass; workingVoltage: number } | null;
   /** The operating point the currents come from. */
   worstCase: string;
+  /**
+   * The custom magnetic designed on a core of the table (core-design.ts): core, material,
+   * physical turns (the design turns times one integer), gap, wire, fill, losses and
+   * leakage estimate. Null for a single-winding inductor, which is bought, not wound.
+   */
+  core: CoreDesign | null;
   cautions: string[];
 }
 
@@ -58,7 +65,7 @@ function winding(name: string, role: WindingSpec['role'], turns: number | null, 
   };
 }
 
-export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentDensity?: number } = {}): MagneticSpec {
+export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentDensity?: number; core?: MagneticDesignOptions; withCore?: boolean } = {}): MagneticSpec {
   const density = opts.currentDensity ?? DEFAULT_CURRENT_DENSITY;
   if (d.kind === 'buck') {
     // Worst inductor current: Vin max (largest ripple) at full load.
@@ -73,6 +80,7 @@ export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentD
       windingVoltages: [d.vinMax],
       isolation: null,
       worstCase: `Vin ${d.vinMax} V, ${io} A`,
+      core: null,
       cautions: ['Values are estimates from generic defaults; confirm the part with its own data.'],
     };
   }
@@ -92,14 +100,45 @@ export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentD
     cautions.push(`The windings cross a ${d.isolation.class} barrier rated for ${d.isolation.workingVoltage} V working voltage: insulation system, creepage and clearance per the applicable safety standard.`);
     cautions.push(...ISOLATION_CAUTIONS);
   }
+  // Flux: the peak magnetizing current and its ripple at Vin max with every output at full
+  // load (the largest ripple); the winding currents are the worst of the points above.
+  const worst = coupledPoint(d, d.vinMax, full);
+  const ipkFlux = Math.max(peak[0]!, worst.impk);
+  const swing = d.vinMax - vpri;
+  const core = opts.withCore === false ? null : designMagneticCore({
+    inductance: d.inductance, peakCurrent: ipkFlux, rippleCurrent: worst.dim, fsw: d.fsw,
+    isolation: d.isolation?.class ?? 'none',
+    windings: [
+      { name: 'P', designTurns: d.primaryTurns, rms: rms[0]!, average: full[0]!, peak: peak[0]!, voltage: Math.max(swing, vpri), crossesBarrier: false },
+      ...d.secondaries.map((w, i) => ({
+        name: `S${i + 1}`, designTurns: w.turns, rms: rms[i + 1]!, average: full[i + 1]!, peak: peak[i + 1]!,
+        voltage: (Math.abs(w.turns) / d.primaryTurns) * Math.max(swing, vpri),
+        crossesBarrier: !!d.isolation && d.isolation.class !== 'none',
+      })),
+    ],
+  }, { currentDensity: density, ...opts.core });
+  const leakageTargets = d.secondaries.map((w) => {
+    const n = Math.abs(w.turns) / d.primaryTurns;
+    return { nodeId: w.nodeId, maxLeakage: (n * n * d.inductance * (1 - w.coupling ** 2)) / w.coupling ** 2, minCoupling: w.coupling };
+  });
+  // The construction's estimated leakage, referred to each secondary (× n²), must not exceed
+  // what the stage design assumed, or the secondaries sag below the computed windows.
+  core?.leakage.forEach((l, i) => {
+    const w = d.secondaries[i]!;
+    const n = Math.abs(w.turns) / d.primaryTurns;
+    const atSec = l * n * n;
+    if (atSec > leakageTargets[i]!.maxLeakage) {
+      core.problems.push(`estimated leakage of S${i + 1} (${(atSec * 1e9).toFixed(0)} nH at the secondary) exceeds the ${(leakageTargets[i]!.maxLeakage * 1e9).toFixed(0)} nH the design assumed: interleave or wind bifilar`);
+      core.ok = false;
+    }
+  });
+  if (core && !core.ok) cautions.push(`The core design did not close: ${core.problems.join('; ')}.`);
   return {
     kind: 'coupled',
+    core,
     inductance: d.inductance, inductanceTolerance: 0.2, switchingFrequency: d.fsw,
     saturationCurrent: d.isat, saturationMargin: d.isat / peak[0]! - 1,
-    leakageTargets: d.secondaries.map((w) => {
-      const n = Math.abs(w.turns) / d.primaryTurns;
-      return { nodeId: w.nodeId, maxLeakage: (n * n * d.inductance * (1 - w.coupling ** 2)) / w.coupling ** 2, minCoupling: w.coupling };
-    }),
+    leakageTargets,
     windings,
     // Primary: Vin max − Vpri in the on-time; a secondary: n·(Vin max − Vpri) reversed.
     windingVoltages: [Math.max(d.vinMax - vpri, vpri), ...d.secondaries.map((w) => (Math.abs(w.turns) / d.primaryTurns) * Math.max(d.vinMax - vpri, vpri))],

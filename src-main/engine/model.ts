@@ -76,7 +76,38 @@ export interface DesignLimits {
   electrolyticDerating: Ratio;
   /** Fraction of a resistor's or semiconductor's rated power it may dissipate. */
   powerDerating: Ratio;
+  /**
+   * Margin of a regulator's or controller's input rating above the highest input: rated
+   * ≥ (1 + margin)·Vin max [common practice 10–20 %]. Absent in older files: 0.1.
+   */
+  inputRatingMargin?: Ratio;
+  /**
+   * Margin a rail's worst-case window should keep from its band edges, as a share of the
+   * band's half-width (0.1 = 10 %); a plan whose rail comes closer reports it as marginal.
+   * Absent in older projects: DEFAULT_WINDOW_MARGIN applies.
+   */
+  windowMargin?: Ratio;
+  /** Largest secondary-to-primary turns ratio |Ns/Np| a coupled-winding magnetic may have. */
+  maxTurnsRatio?: number;
+  /** Largest reverse voltage a secondary's rectifier may see (at Vin max). */
+  maxRectifierVoltage?: Volts;
 }
+
+/**
+ * Default turns-ratio limit: beyond about 1:10 leakage and cross-regulation make a
+ * coupled-winding buck's secondaries hard to hold (common practice, from memory).
+ */
+export const DEFAULT_MAX_TURNS_RATIO = 10;
+/**
+ * Default limit on a secondary's steady reverse voltage n·(Vin,max − Vpri) + |Vout|: 250 V.
+ * Above it the winding needs high-voltage rectifiers (the turn-on spike comes on top and is
+ * met by the part's rating or a snubber) and the secondary circuit carries hazardous
+ * voltages (common practice, from memory; a judgement, editable per project).
+ */
+export const DEFAULT_MAX_RECTIFIER_VOLTAGE = 250 as Volts;
+
+/** Default window margin: 10 % of a rail's band half-width (common practice, a judgement). */
+export const DEFAULT_WINDOW_MARGIN = 0.1 as Ratio;
 
 export interface PlannerPreferences {
   /** Weights of the objectives in the balanced score (need not sum to 1). */
@@ -114,6 +145,7 @@ export const DEFAULT_LIMITS: DesignLimits = {
   ceramicDerating: 0.6 as Ratio,
   electrolyticDerating: 0.8 as Ratio,
   powerDerating: 0.5 as Ratio,
+  inputRatingMargin: 0.1 as Ratio,
 };
 
 export const DEFAULT_PREFERENCES: PlannerPreferences = {

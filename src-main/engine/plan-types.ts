@@ -88,6 +88,29 @@ export interface Infeasibility {
   remedies: string[];
 }
 
+/**
+ * The decision space the planner searched (docs/planner.md states it in full): a claim of
+ * "proved optimal" holds over this space only.
+ */
+export interface PlanSpace {
+  /** One line a reviewer reads: the feeds considered and their ranges. */
+  summary: string;
+  /** Stage kinds searched (the modelled ones among the allowed kinds). */
+  kinds: StageKind[];
+  /** Allowed kinds the planner does not model (left out of the search). */
+  notModelled: StageKind[];
+  /** Stages fed from other rails (buck or LDO from a rail) are in the space. */
+  railFeeds: boolean;
+  /** Secondaries per coupled-winding magnetic, 1…maxSecondaries. */
+  maxSecondaries: number;
+  /** Coupled-winding primaries (a rail or an internal bus, per source). */
+  primaries: number;
+  /** Candidate feeds (single-rail feeds and winding sets) in the space. */
+  candidates: number;
+  /** Candidate feeds designed before the search (all of them unless the budget ran out). */
+  designed: number;
+}
+
 export interface PlanResult {
   /** Requirements revision the plan was computed from; stale when the project moves on. */
   revision: number;
@@ -102,5 +125,9 @@ export interface PlanResult {
     firstFeasibleMs?: number;
     /** When the returned best tree was found (ms from the start), if any. */
     bestFoundMs?: number;
+    /** The space searched (absent in plans saved before it was recorded). */
+    space?: PlanSpace;
+    /** Why the best is not proved optimal (budget, cancel, a bound assumption that failed). */
+    notProved?: string;
   };
 }

@@ -6,6 +6,7 @@
  */
 import { ISOLATION_CLASSES, NOISE_CLASSES, STAGE_KINDS, type Requirements } from './model.ts';
 import { formatQuantity, formatTolerance } from './notation.ts';
+import { showText, textProblem } from './text-rules.ts';
 
 export interface Problem {
   path: string;
@@ -42,6 +43,26 @@ export function validateRequirements(req: Requirements): Problem[] {
   const out: Problem[] = [...sourceCapacityProblems(req)];
   const add = (path: string, message: string) => out.push({ path, message });
   const v = (x: number) => formatQuantity(x, 'voltage', 4);
+  // User text quoted in a message is shown escaped: the message may reach a terminal.
+  const t = (x: unknown) => showText(String(x));
+  const text = (path: string, x: unknown, kind: 'name' | 'description' = 'name') => {
+    const p = textProblem(path, x, kind);
+    if (p) out.push(p);
+  };
+
+  // Every piece of user text follows the one rule of text-rules.ts.
+  text('meta.name', req.meta.name);
+  text('meta.description', req.meta.description, 'description');
+  for (const [list, path] of [[req.sources, 'sources'], [req.domains, 'domains'], [req.modes, 'modes'], [req.loads, 'loads']] as const) {
+    (list as readonly { id: unknown; name: unknown }[]).forEach((it, i) => {
+      text(`${path}[${i}].id`, it.id);
+      text(`${path}[${i}].name`, it.name);
+    });
+  }
+  req.loads.forEach((l, i) => {
+    text(`loads[${i}].domainId`, l.domainId);
+    text(`loads[${i}].railKey`, l.railKey);
+  });
 
   const uniqueIds = (items: { id: string }[], path: string, what: string) => {
     const seen = new Map<string, number>();
@@ -51,7 +72,7 @@ export function validateRequirements(req: Requirements): Problem[] {
         return;
       }
       const prev = seen.get(it.id);
-      if (prev !== undefined) add(`${path}[${i}].id`, `${what} id "${it.id}" is already used by ${path}[${prev}]`);
+      if (prev !== undefined) add(`${path}[${i}].id`, `${what} id "${t(it.id)}" is already used by ${path}[${prev}]`);
       else seen.set(it.id, i);
     });
   };
@@ -87,7 +108,7 @@ export function validateRequirements(req: Requirements): Problem[] {
   req.domains.forEach((d, i) => {
     const p = `domains[${i}]`;
     if (!ISOLATION_CLASSES.includes(d.isolation)) {
-      add(`${p}.isolation`, `isolation class "${String(d.isolation)}" is not one of ${ISOLATION_CLASSES.join(', ')}`);
+      add(`${p}.isolation`, `isolation class "${t(d.isolation)}" is not one of ${ISOLATION_CLASSES.join(', ')}`);
     }
     if (!isNum(d.workingVoltage) || d.workingVoltage < 0) {
       add(`${p}.workingVoltage`, 'working voltage must be a finite number ≥ 0 V');
@@ -120,7 +141,7 @@ export function validateRequirements(req: Requirements): Problem[] {
   const modeIds = new Set(req.modes.map((m) => m.id));
   req.loads.forEach((l, i) => {
     const p = `loads[${i}]`;
-    if (!domainIds.has(l.domainId)) add(`${p}.domainId`, `domain "${l.domainId}" does not exist`);
+    if (!domainIds.has(l.domainId)) add(`${p}.domainId`, `domain "${t(l.domainId)}" does not exist`);
     if (!isNum(l.voltage)) add(`${p}.voltage`, 'voltage is not a finite number');
     else if (Math.abs(l.voltage) < 1e-3) add(`${p}.voltage`, `voltage must not be 0 V (got ${v(l.voltage)})`);
     if (!isNum(l.tolerance) || l.tolerance <= 0 || l.tolerance >= 0.5) {
@@ -128,11 +149,11 @@ export function validateRequirements(req: Requirements): Problem[] {
     }
     if (!isNum(l.rippleLimit) || l.rippleLimit <= 0) add(`${p}.rippleLimit`, 'ripple limit must be above 0 V');
     if (!NOISE_CLASSES.includes(l.noiseClass)) {
-      add(`${p}.noiseClass`, `noise class "${String(l.noiseClass)}" is not one of ${NOISE_CLASSES.join(', ')}`);
+      add(`${p}.noiseClass`, `noise class "${t(l.noiseClass)}" is not one of ${NOISE_CLASSES.join(', ')}`);
     }
     for (const [modeId, a] of Object.entries(l.current ?? {})) {
-      const cp = `${p}.current.${modeId}`;
-      if (!modeIds.has(modeId)) add(cp, `mode "${modeId}" does not exist`);
+      const cp = `${p}.current.${t(modeId)}`;
+      if (!modeIds.has(modeId)) add(cp, `mode "${t(modeId)}" does not exist`);
       if (!isNum(a)) add(cp, 'current is not a finite number');
       else if (a < 0) add(cp, `current must not be negative (got ${formatQuantity(a, 'current')})`);
     }
@@ -151,9 +172,9 @@ export function validateRequirements(req: Requirements): Problem[] {
     for (const i of idx.slice(1)) {
       const l = req.loads[i]!;
       if (l.domainId !== first.domainId) {
-        add(`loads[${i}].railKey`, `rail "${key}" joins loads of different domains ("${first.domainId}" and "${l.domainId}")`);
+        add(`loads[${i}].railKey`, `rail "${t(key)}" joins loads of different domains ("${t(first.domainId)}" and "${t(l.domainId)}")`);
       } else if (isNum(l.voltage) && isNum(first.voltage) && Math.abs(l.voltage - first.voltage) >= SAME_VOLTAGE) {
-        add(`loads[${i}].railKey`, `rail "${key}" joins loads at different voltages (${v(first.voltage)} and ${v(l.voltage)})`);
+        add(`loads[${i}].railKey`, `rail "${t(key)}" joins loads at different voltages (${v(first.voltage)} and ${v(l.voltage)})`);
       }
     }
   }
@@ -172,6 +193,17 @@ export function validateRequirements(req: Requirements): Problem[] {
   for (const k of ['ceramicDerating', 'electrolyticDerating', 'powerDerating'] as const) {
     if (!isNum(lim[k]) || lim[k] <= 0 || lim[k] > 1) add(`limits.${k}`, `${k} must be above 0 and at most 1 (got ${String(lim[k])})`);
   }
+  if (lim.inputRatingMargin !== undefined && (!isNum(lim.inputRatingMargin) || lim.inputRatingMargin < 0 || lim.inputRatingMargin > 1)) {
+    add('limits.inputRatingMargin', `input rating margin must be from 0 to 1 (100 %) (got ${String(lim.inputRatingMargin)})`);
+  }
+
+  if (lim.windowMargin !== undefined && (!isNum(lim.windowMargin) || lim.windowMargin < 0 || lim.windowMargin >= 1)) {
+    add('limits.windowMargin', `windowMargin is a share of the band's half-width, at least 0 and below 1 (got ${String(lim.windowMargin)})`);
+  }
+
+  for (const k of ['maxTurnsRatio', 'maxRectifierVoltage'] as const) {
+    if (lim[k] !== undefined && (!isNum(lim[k]) || !(lim[k]! > 0))) add(`limits.${k}`, `${k} must be a positive number (got ${String(lim[k])})`);
+  }
 
   // Planner preferences.
   const pref = req.preferences;
@@ -187,7 +219,7 @@ export function validateRequirements(req: Requirements): Problem[] {
     add('preferences.allowedKinds', 'at least one stage kind must be allowed');
   } else {
     pref.allowedKinds.forEach((k, i) => {
-      if (!STAGE_KINDS.includes(k)) add(`preferences.allowedKinds[${i}]`, `stage kind "${String(k)}" is not one of ${STAGE_KINDS.join(', ')}`);
+      if (!STAGE_KINDS.includes(k)) add(`preferences.allowedKinds[${i}]`, `stage kind "${t(k)}" is not one of ${STAGE_KINDS.join(', ')}`);
       else if (pref.allowedKinds.indexOf(k) !== i) add(`preferences.allowedKinds[${i}]`, `stage kind "${k}" is listed twice`);
     });
   }
@@ -197,5 +229,45 @@ export function validateRequirements(req: Requirements): Problem[] {
   if (!isNum(pref.budgetMs) || pref.budgetMs < 10 || pref.budgetMs > 3_600_000) {
     add('preferences.budgetMs', 'planner time budget must be between 10 ms and 1 h');
   }
+  checkPhysicalRange(req, add);
   return out;
+}
+
+/** Largest voltage (magnitude) a source, load or barrier may have in a board-level power tree. */
+export const MAX_VOLTS = 1e3;
+/** Largest current a load may draw in one mode, or a source may deliver. */
+export const MAX_AMPS = 1e3;
+
+/**
+ * Values that are finite but physically absurd for the products this tool plans (a typed
+ * unit slip such as "5k" for "5m", or a crafted 1e308): above 1 kV or 1 kA. The stage
+ * models are not meant for them, and the planner would only blame on-time or E-series
+ * values far downstream; say what is wrong where it was typed instead.
+ */
+function checkPhysicalRange(req: Requirements, add: (path: string, message: string) => void): void {
+  // Prefixes stop at giga: beyond that, plain scientific notation reads better.
+  const volts = (x: number) => (Math.abs(x) < 1e12 ? formatQuantity(x, 'voltage', 4) : `${x.toExponential(3)} V`);
+  const amps = (x: number) => (Math.abs(x) < 1e12 ? formatQuantity(x, 'current', 4) : `${x.toExponential(3)} A`);
+  const tooHigh = (x: unknown, max: number): x is number => isNum(x) && Math.abs(x) > max;
+  req.sources.forEach((s, i) => {
+    for (const k of ['vNom', 'vMin', 'vMax'] as const) {
+      if (tooHigh(s[k], MAX_VOLTS)) add(`sources[${i}].${k}`, `${k} is ${volts(s[k])}, above the ${volts(MAX_VOLTS)} this tool plans for (check the unit)`);
+    }
+    if (tooHigh(s.currentLimit, MAX_AMPS)) add(`sources[${i}].currentLimit`, `current limit is ${amps(s.currentLimit)}, above the ${amps(MAX_AMPS)} this tool plans for (check the unit)`);
+  });
+  req.domains.forEach((d, i) => {
+    if (tooHigh(d.workingVoltage, MAX_VOLTS)) add(`domains[${i}].workingVoltage`, `working voltage is ${volts(d.workingVoltage)}, above the ${volts(MAX_VOLTS)} this tool plans for (check the unit)`);
+  });
+  req.loads.forEach((l, i) => {
+    if (tooHigh(l.voltage, MAX_VOLTS)) add(`loads[${i}].voltage`, `voltage is ${volts(l.voltage)}, above the ${volts(MAX_VOLTS)} this tool plans for (check the unit)`);
+    if (tooHigh(l.rippleLimit, MAX_VOLTS)) add(`loads[${i}].rippleLimit`, `ripple limit is ${volts(l.rippleLimit)}, above ${volts(MAX_VOLTS)} (check the unit)`);
+    for (const [modeId, a] of Object.entries(l.current ?? {})) {
+      if (tooHigh(a, MAX_AMPS)) add(`loads[${i}].current.${modeId}`, `current is ${amps(a)}, above the ${amps(MAX_AMPS)} this tool plans for (check the unit)`);
+    }
+  });
+  // Temperatures in °C: nothing is colder than absolute zero, and no board runs at 1000 °C.
+  for (const k of ['ambient', 'tjMax'] as const) {
+    const t = req.limits[k];
+    if (isNum(t) && (t < -273.15 || t > 1000)) add(`limits.${k}`, `${k} is ${t} °C, outside −273.15 °C (absolute zero) to 1000 °C (check the unit)`);
+  }
 }

@@ -16,7 +16,7 @@ import { treeToSvg } from './tree-svg.ts';
 import { treeToPdf } from './tree-pdf.ts';
 import { reportToPdf, type PlannedProject } from './report-pdf.ts';
 import { magneticSpecMarkdown } from './magnetic-spec.ts';
-import { buckNetlist, coupledBuckNetlist } from './spice.ts';
+import { buckNetlist, coupledBuckNetlist, spiceComment } from './spice.ts';
 
 export interface ExportBundle extends PlannedProject {
   names: Map<string, string>;
@@ -105,7 +105,9 @@ export function exportNetlists(b: ExportBundle): { files: Array<{ file: string; 
     const file = `${st.id.replace(/[^A-Za-z0-9._-]+/g, '_')}.cir`;
     try {
       const text = d.kind === 'buck' ? buckNetlist(d as BuckDesign, op) : coupledBuckNetlist(d as CoupledBuckDesign, op);
-      files.push({ file, text: `* Stage ${st.name} (${st.id}) of project "${b.req.meta.name}", mode "${mode!.modeName}", Vin ${fmtQty(f.vin, 'V')}\n${text}`, stageId: st.id });
+      // Names come from the project file, which anyone may have written: one comment line.
+      const title = spiceComment(`Stage ${st.name} (${st.id}) of project "${b.req.meta.name}", mode "${mode!.modeName}", Vin ${fmtQty(f.vin, 'V')}`);
+      files.push({ file, text: `${title}\n${text}`, stageId: st.id });
     } catch (e) {
       skipped.push(`${st.id}: ${(e as Error).message}`);
     }

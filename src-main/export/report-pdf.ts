@@ -9,8 +9,8 @@ import type { Rollup } from '../engine/rollup.ts';
 import { VIN_CASES } from '../engine/rollup.ts';
 import type { Bom } from '../engine/bom.ts';
 import { compactRefs } from '../engine/bom.ts';
-import { fmtPct, fmtQty, STAGE_KIND_LABEL, type LaidOutTree } from '../engine/layout.ts';
-import { buildScene } from './tree-scene.ts';
+import { fmtPct, fmtQty, STAGE_KIND_LABEL, textWidth, type LaidOutTree } from '../engine/layout.ts';
+import { buildScene, SAFETY_LINE, type Prim, type Scene } from './tree-scene.ts';
 import { drawScene, newDoc, pdfText, table, type Doc } from './pdf-kit.ts';
 
 export const REPORT_SECTIONS = [
@@ -51,6 +51,55 @@ export interface ReportInput extends PlannedProject {
 }
 
 const q = fmtQty;
+
+/** Smallest type the report prints the tree in, in points (legible on paper: common practice). */
+export const TREE_MIN_PT = 6;
+/** Room for the tree on a landscape A4 page (842 × 595 pt less margins, heading and notes). */
+const TILE_ROOM = { w: 842 - 84, h: 595 - 42 - 42 - 40 - 52 };
+
+interface Tile { row: number; col: number; x: number; y: number; w: number; h: number; scale: number; overlap: number; prims: Prim[] }
+
+/**
+ * Split the scene into page tiles: the scale fits the whole tree on one page when its
+ * smallest text still prints at TREE_MIN_PT, else it is held at that scale and the drawing is
+ * cut into overlapping tiles. The safety line is printed as a paragraph on each page instead.
+ */
+export function treeTiles(scene: Scene): Tile[] {
+  const prims = scene.prims.filter((p) => !(p.t === 'text' && p.text === SAFETY_LINE));
+  const minText = Math.min(...prims.flatMap((p) => (p.t === 'text' ? [p.size] : [])));
+  const height = scene.height - 30; // the scene's footer held the safety line
+  const fit = Math.min(1, TILE_ROOM.w / scene.width, TILE_ROOM.h / height);
+  const scale = Math.max(fit, TREE_MIN_PT / minText);
+  const tw = TILE_ROOM.w / scale;
+  const th = TILE_ROOM.h / scale;
+  // Neighbouring tiles share at least the widest text line, so every line shows whole on one.
+  const textW = (p: Prim) => (p.t === 'text' ? textWidth(p.text, p.size, p.bold) : 0);
+  const ox = Math.min(tw / 2, Math.max(...prims.map(textW)) + 8);
+  const oy = Math.min(th / 2, 40);
+  const cols = scene.width <= tw + 0.5 ? 1 : Math.ceil((scene.width - ox) / (tw - ox));
+  const rows = height <= th + 0.5 ? 1 : Math.ceil((height - oy) / (th - oy));
+  const out: Tile[] = [];
+  for (let r = 0; r < rows; r++) {
+    for (let c = 0; c < cols; c++) {
+      const x = cols === 1 ? 0 : Math.min(c * (tw - ox), scene.width - tw);
+      const y = rows === 1 ? 0 : Math.min(r * (th - oy), height - th);
+      const inTile = (bx: number, by: number, bw: number, bh: number) => bx < x + tw && bx + bw > x && by < y + th && by + bh > y;
+      const kept = prims.filter((p) => {
+        if (p.t === 'rect') return inTile(p.x, p.y, p.w, p.h);
+        if (p.t === 'line') {
+          const xs = p.pts.map((q) => q.x);
+          const ys = p.pts.map((q) => q.y);
+          return inTile(Math.min(...xs), Math.min(...ys), Math.max(...xs) - Math.min(...xs) + 1, Math.max(...ys) - Math.min(...ys) + 1);
+        }
+        // Text is kept only where it shows whole (the overlap shows it on a neighbour).
+        const w = textW(p);
+        return p.x >= x - 0.5 && p.x + w <= x + tw + 0.5 && p.y - p.size >= y - 0.5 && p.y + p.size * 0.3 <= y + th + 0.5;
+      });
+      out.push({ row: r, col: c, x, y, w: Math.min(tw, scene.width), h: Math.min(th, height), scale, overlap: ox, prims: kept });
+    }
+  }
+  return out;
+}
 
 function heading(doc: Doc, text: string): void {
   if (doc.y > doc.page.height - doc.page.margins.bottom - 80) doc.addPage();
@@ -107,17 +156,22 @@ export async function reportToPdf(input: ReportInput): Promise<Uint8Array> {
   const L = req.limits;
   para(doc, `Design limits: ambient ${L.ambient} °C; junction limit ${L.tjMax} °C with ${L.tjMargin} K margin; ceramic capacitors at most ${fmtPct(L.ceramicDerating)} of rating, aluminium/polymer ${fmtPct(L.electrolyticDerating)}; resistors and semiconductors at most ${fmtPct(L.powerDerating)} of rated power.`);
 
-  // 2 Power tree: on a landscape page when the drawing is wider than tall.
+  // 2 Power tree: landscape pages, text never below 6 pt; a wide tree is split into tiles
+  // that overlap, each on a page of its own.
   const scene = buildScene(input.tree);
-  doc.addPage({ size: 'A4', layout: scene.width > scene.height ? 'landscape' : 'portrait', margin: 42 });
-  heading(doc, REPORT_SECTIONS[1]);
-  const treeW = doc.page.width - 84;
-  const maxH = doc.page.height - doc.y - 70;
-  const scale = Math.min(1, treeW / scene.width, maxH / scene.height);
-  const y0 = doc.y;
-  drawScene(doc, scene, 42, y0, scale);
-  doc.y = y0 + scene.height * scale + 8;
-  para(doc, `Dashed outlines mark galvanic barriers; bars across an edge mark a winding that crosses one. ${input.tree.modeName ? `Figures are for the mode "${input.tree.modeName}" at nominal input.` : 'No roll-up figures.'}`, { size: 8, color: '#5b6878' });
+  const tiles = treeTiles(scene);
+  tiles.forEach((t, i) => {
+    doc.addPage({ size: 'A4', layout: 'landscape', margin: 42 });
+    heading(doc, tiles.length > 1 ? `${REPORT_SECTIONS[1]} (part ${i + 1} of ${tiles.length}: row ${t.row + 1}, column ${t.col + 1})` : REPORT_SECTIONS[1]);
+    const y0 = doc.y;
+    doc.save();
+    doc.rect(42, y0, t.w * t.scale, t.h * t.scale).clip();
+    drawScene(doc, { ...scene, prims: t.prims }, 42 - t.x * t.scale, y0 - t.y * t.scale, t.scale);
+    doc.restore();
+    doc.y = y0 + t.h * t.scale + 6;
+    para(doc, `${tiles.length > 1 ? `Part ${i + 1} shows the drawing from x ${Math.round(t.x)} to ${Math.round(t.x + t.w)} and y ${Math.round(t.y)} to ${Math.round(t.y + t.h)} of ${Math.round(scene.width)} × ${Math.round(scene.height)}; neighbouring parts overlap by ${Math.round(t.overlap)}. ` : ''}Dashed outlines mark galvanic barriers; bars across an edge mark a winding that crosses one. ${input.tree.modeName ? `Figures are for the mode "${input.tree.modeName}" at nominal input.` : 'No roll-up figures.'}`, { size: 8, color: '#5b6878' });
+    para(doc, SAFETY_LINE, { size: 8, color: '#b5452f' });
+  });
 
   // 3 Reasons (back to portrait)
   doc.addPage({ size: 'A4', layout: 'portrait', margin: 42 });

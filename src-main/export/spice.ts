@@ -17,6 +17,18 @@
 import { buckPoint, type BuckDesign } from '../engine/stages/buck.ts';
 import { coupledPoint, type CoupledBuckDesign } from '../engine/stages/cwbuck.ts';
 import type { OperatingPoint } from '../engine/stages/types.ts';
+import { showText } from '../engine/text-rules.ts';
+
+/**
+ * Any text as one SPICE comment line. User text never starts a line of a netlist: it is
+ * put after "* " (a bare "*#" or whitespace before "*#" would make ngspice run the rest
+ * as a command), every control, line-break and bidirectional character is written as
+ * `\u{..}` (text-rules.ts), so nothing after it can become a dot-command, a `.control`
+ * block or a '+' continuation line. The only function that puts text into a netlist.
+ */
+export function spiceComment(text: string): string {
+  return `* ${showText(text)}`;
+}
 
 export interface NetlistOptions {
   /** Simulated time (s); default 1.5 ms. */
@@ -41,8 +53,8 @@ const CAUTION = [
 
 function header(title: string, d: { outputs: { nodeId: string; voltage: number }[] }, vin: number, duty: number): string[] {
   return [
-    `* Railwright open-loop netlist: ${title}`,
-    `* outputs: ${d.outputs.map((o, i) => `v_out${i} = ${o.nodeId} (${o.voltage} V)`).join(', ')}`,
+    spiceComment(`Railwright open-loop netlist: ${title}`),
+    spiceComment(`outputs: ${d.outputs.map((o, i) => `v_out${i} = ${o.nodeId} (${o.voltage} V)`).join(', ')}`),
     `* Vin ${f(vin)} V, duty ${duty.toFixed(5)} (computed by the stage engine)`,
     ...CAUTION,
   ];
@@ -132,7 +144,7 @@ export function coupledBuckNetlist(d: CoupledBuckDesign, op: OperatingPoint, opt
     const n = Math.abs(w.turns) / d.primaryTurns;
     const ls = (n * n * d.inductance) / (w.coupling * w.coupling);
     const s = p.sec[i]!;
-    lines.push(`* secondary ${k}: ${w.nodeId}, ${w.turns} turns against ${d.primaryTurns}${w.turns < 0 ? ' (reversed winding, reversed rectifier: negative output)' : ''}`);
+    lines.push(spiceComment(`secondary ${k}: ${w.nodeId}, ${w.turns} turns against ${d.primaryTurns}${w.turns < 0 ? ' (reversed winding, reversed rectifier: negative output)' : ''}`));
     if (w.turns > 0) {
       // Dotted end at the return: the undotted end is positive while the low side conducts.
       lines.push(`LS${k} 0 wa${k} ${f(ls)} IC=0`);

@@ -5,7 +5,7 @@
  * kind line, isolated domains by a dashed double outline (the barrier) and a mark on every
  * edge that crosses it.
  */
-import { entryPoint, TEXT, type LaidOutTree, type Point } from '../engine/layout.ts';
+import { edgeText, entryPoint, groupText, nodeText, type LaidOutTree, type Point, type TextLine } from '../engine/layout.ts';
 import type { StageKind } from '../engine/model.ts';
 
 export type Prim =
@@ -40,6 +40,10 @@ export const PALETTE = {
 export const SAFETY_LINE =
   'Planning aid only: the tool certifies nothing. Mains and isolation barriers can kill; creepage, clearance and touch current follow the applicable safety standard and local codes.';
 
+function textPrim(l: TextLine, fill: string, italic = false): Prim {
+  return { t: 'text', x: l.x, y: l.y, text: l.text, size: l.size, bold: l.bold, fill, ...(italic ? { italic } : {}) };
+}
+
 export function buildScene(tree: LaidOutTree): Scene {
   const prims: Prim[] = [];
   const items: Scene['items'] = [];
@@ -58,17 +62,18 @@ export function buildScene(tree: LaidOutTree): Scene {
       // The barrier: a second dashed outline just outside the first, a visible band.
       prims.push({ t: 'rect', x: g.x - 4, y: g.y - 4, w: g.width + 8, h: g.height + 8, r: 9, fill: null, stroke: PALETTE.barrier, width: 1, dash: [3, 3] });
     }
-    prims.push({ t: 'text', x: g.x + 10, y: g.y + 17, text: g.title, size: TEXT.groupSize, bold: true, fill: iso ? PALETTE.barrier : PALETTE.muted });
+    for (const l of groupText(g, 'detail')) prims.push(textPrim(l, iso ? PALETTE.barrier : PALETTE.muted));
     items.push({ id: g.id, kind: iso ? 'isolated-domain' : 'domain', title: g.title });
   }
 
   for (const e of tree.edges) {
     if (e.points.length < 2) continue;
     prims.push({ t: 'line', pts: e.points, stroke: e.crossesBarrier ? PALETTE.barrier : PALETTE.edge, width: 1.3, arrow: true });
-    if (e.labelBox && e.label) {
-      const lb = e.labelBox;
-      prims.push({ t: 'rect', x: lb.x, y: lb.y, w: lb.width, h: lb.height, r: 2, fill: '#ffffff', stroke: null, width: 0 });
-      prims.push({ t: 'text', x: lb.x + 3, y: lb.y + lb.height - 3, text: e.label, size: TEXT.labelSize, fill: PALETTE.muted });
+    const el = edgeText(e);
+    if (el) {
+      const b = el.box;
+      prims.push({ t: 'rect', x: b.x - 2, y: b.y - 1, w: b.width + 4, h: b.height + 2, r: 2, fill: '#ffffff', stroke: null, width: 0 });
+      prims.push(textPrim(el, PALETTE.muted));
     }
     if (e.crossesBarrier) {
       const target = tree.nodes.find((n) => n.id === e.to);
@@ -83,27 +88,26 @@ export function buildScene(tree: LaidOutTree): Scene {
   }
 
   for (const n of tree.nodes) {
-    const lineY = (i: number) => n.y + TEXT.pad + TEXT.titleSize + TEXT.lineSize * TEXT.lineGap * (i + 1) - 1;
-    const textX = n.x + TEXT.pad + (n.kind === 'stage' ? 3 : 0);
     items.push({ id: n.id, kind: n.kind, title: n.title });
+    const text = nodeText(n, 'detail');
+    const [name, ...rest] = text;
     if (n.kind === 'source') {
       prims.push({ t: 'rect', x: n.x, y: n.y, w: n.width, h: n.height, r: 4, fill: PALETTE.sourceFill, stroke: null, width: 0 });
-      prims.push({ t: 'text', x: textX, y: n.y + TEXT.pad + TEXT.titleSize - 1, text: n.title, size: TEXT.titleSize, bold: true, fill: '#ffffff' });
-      n.lines.forEach((l, i) => prims.push({ t: 'text', x: textX, y: lineY(i), text: l, size: TEXT.lineSize, fill: '#d8e0ea' }));
+      prims.push(textPrim(name!, '#ffffff'));
+      for (const l of rest) prims.push(textPrim(l, '#d8e0ea'));
       continue;
     }
     if (n.kind === 'stage') {
       const c = PALETTE.kind[n.stageKind ?? 'buck'];
       prims.push({ t: 'rect', x: n.x, y: n.y, w: n.width, h: n.height, r: 3, fill: PALETTE.stageFill, stroke: c, width: 1.4 });
       prims.push({ t: 'rect', x: n.x, y: n.y, w: 5, h: n.height, r: 0, fill: c, stroke: null, width: 0 });
-      prims.push({ t: 'text', x: textX, y: n.y + TEXT.pad + TEXT.titleSize - 1, text: n.title, size: TEXT.titleSize, bold: true, fill: PALETTE.ink });
-      n.lines.forEach((l, i) => prims.push({ t: 'text', x: textX, y: lineY(i), text: l, size: TEXT.lineSize, fill: i === 0 ? c : PALETTE.ink, italic: i === 0 }));
+      prims.push(textPrim(name!, PALETTE.ink));
+      rest.forEach((l, i) => prims.push(textPrim(l, i === 0 ? c : PALETTE.ink, i === 0)));
       continue;
     }
     const rail = n.kind === 'rail';
     prims.push({ t: 'rect', x: n.x, y: n.y, w: n.width, h: n.height, r: rail ? 10 : 4, fill: rail ? PALETTE.railFill : PALETTE.internalFill, stroke: rail ? PALETTE.railStroke : PALETTE.muted, width: 1.2, dash: rail ? undefined : [4, 3] });
-    prims.push({ t: 'text', x: textX, y: n.y + TEXT.pad + TEXT.titleSize - 1, text: n.title, size: TEXT.titleSize, bold: true, fill: PALETTE.ink });
-    n.lines.forEach((l, i) => prims.push({ t: 'text', x: textX, y: lineY(i), text: l, size: TEXT.lineSize, fill: PALETTE.ink }));
+    for (const l of text) prims.push(textPrim(l, PALETTE.ink));
   }
 
   prims.push({ t: 'text', x: 16, y: height - 12, text: SAFETY_LINE, size: 8.5, fill: PALETTE.barrier, italic: true });

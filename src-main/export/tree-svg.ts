@@ -1,11 +1,17 @@
 /** The tree as a standalone SVG document, rendered from the shared scene. */
 import type { LaidOutTree } from '../engine/layout.ts';
 import { buildScene, type Prim, type Scene } from './tree-scene.ts';
+import { showText } from '../engine/text-rules.ts';
 
+/**
+ * Text for XML content or a quoted attribute. Control, line-break and bidi characters,
+ * unpaired surrogates and noncharacters (everything XML 1.0 forbids, and what could
+ * reorder or hide a label) are first written as `\u{..}` (text-rules.ts); the markup
+ * characters become entities.
+ */
 export function escapeXml(s: string): string {
-  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&apos;' })[c]!)
-    // Characters XML 1.0 forbids are dropped rather than produce an unreadable file.
-    .replace(/[\u0000-\u0008\u000b\u000c\u000e-\u001f\ufffe\uffff]/g, '');
+  return showText(String(s))
+    .replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&apos;' })[c]!);
 }
 
 const n2 = (x: number) => (Math.round(x * 100) / 100).toString();

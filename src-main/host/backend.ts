@@ -9,7 +9,7 @@ import { homedir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { mkdirSync } from 'node:fs';
 import { createApi } from '../api/index.ts';
-import { autosave, clearRecovery, loadRecent, newProject, openDemo, recoverIfAny, saveTo, openPath } from '../api/files.ts';
+import { autosave, clearRecovery, openAtStart } from '../api/files.ts';
 import { ApiFailure } from '../api/registry.ts';
 import { makePathPolicy } from './paths.ts';
 import type { FromBackend, ToBackend } from './backend-protocol.ts';
@@ -39,24 +39,8 @@ export function createBackend(opts: BackendOptions) {
     },
   });
   const s = api.session;
-  loadRecent(s);
-  if (!recoverIfAny(s)) {
-    const demoFile = join(opts.userDataDir, 'projects', 'demo.rwproj');
-    try {
-      const last = s.recent[0];
-      if (last) {
-        approved.add(last);
-        openPath(s, last);
-      } else {
-        approved.add(demoFile);
-        openDemo(s);
-        saveTo(s, demoFile);
-        s.planOnOpen = true;
-      }
-    } catch {
-      newProject(s);
-    }
-  }
+  // Requests wait behind the start-up open (they go through the same queue).
+  void s.serialise(() => openAtStart(s, { demoFile: join(opts.userDataDir, 'projects', 'demo.rwproj'), approve: (p) => approved.add(p), planFirstRun: true }));
   const timer = s.autosaveMs > 0 ? setInterval(() => void s.serialise(() => { try { autosave(s); } catch { /* retry next period */ } }), s.autosaveMs) : null;
   timer?.unref();
 

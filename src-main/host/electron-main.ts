@@ -63,7 +63,9 @@ async function choosePath(purpose: 'open-project' | 'save-project' | 'export', s
     const r = w ? await dialog.showOpenDialog(w, { properties: ['openFile'], filters }) : await dialog.showOpenDialog({ properties: ['openFile'], filters });
     p = r.canceled ? undefined : r.filePaths[0];
   } else {
-    const opts = { defaultPath: suggested || undefined, filters };
+    // The system dialog asks before replacing an existing file (on every platform), so a
+    // path chosen here carries the user's confirmation (`overwrite: true` in the request).
+    const opts = { defaultPath: suggested || undefined, filters, properties: ['showOverwriteConfirmation' as const, 'createDirectory' as const] };
     const r = w ? await dialog.showSaveDialog(w, opts) : await dialog.showSaveDialog(opts);
     p = r.canceled ? undefined : r.filePath;
   }
@@ -91,9 +93,18 @@ async function saveProject(as: boolean): Promise<boolean> {
     path = await choosePath('save-project', `${(state?.name ?? 'project').replace(/[^\w.-]+/g, '-')}${PROJECT_EXTENSION}`);
     if (!path) return false;
   }
-  const r = await backend.request('project.save', as || !state?.path ? { path } : {});
+  const r = await backend.request('project.save', as || !state?.path ? { path, overwrite: true } : {});
   if (r.ok) setState(r.value as ProjectState);
-  else dialog.showErrorBox('Railwright', r.error.message);
+  else if (r.error.code === 'changed' && win) {
+    // Someone else saved the file since it was opened: never replace it silently.
+    const a = await dialog.showMessageBox(win, {
+      type: 'warning', buttons: ['Save As…', 'Reopen (drop my changes)', 'Cancel'], defaultId: 0, cancelId: 2,
+      message: 'The file changed on disk since it was opened.', detail: r.error.message,
+    });
+    if (a.response === 0) return saveProject(true);
+    if (a.response === 1 && path) { backend.approvePath(path); await call('project.open', { path, discard: true }); }
+    return false;
+  } else dialog.showErrorBox('Railwright', r.error.message);
   return r.ok;
 }
 
@@ -110,7 +121,7 @@ async function importJson(): Promise<void> {
 async function exportAs(kind: 'json' | 'bom-csv' | 'tree-svg', ext: string): Promise<void> {
   const p = await choosePath('export', `${(state?.name ?? 'project').replace(/[^\w.-]+/g, '-')}${ext}`);
   if (!p) return;
-  const r = await backend.request('export.file', { kind, path: p });
+  const r = await backend.request('export.file', { kind, path: p, overwrite: true });
   if (!r.ok) dialog.showErrorBox('Railwright', r.error.message);
 }
 

@@ -1,8 +1,14 @@
 /**
  * The local web host: the same handlers over HTTP, for machines without the Electron
  * binary and for the end-to-end tests. Listens on 127.0.0.1 only; every request must carry
- * the random per-run token (API calls in the `x-railwright-token` header; the page itself
- * by `?token=` once, after which an HttpOnly same-site cookie carries it for the assets).
+ * the random per-run token. The browser gets it without the token ever appearing on a
+ * command line (which other local users can read in /proc/<pid>/cmdline): the launcher
+ * asks for a one-time launch address `/launch/<code>` (`launchUrl()`), hands that to the
+ * browser through a file only the user can read, and the first request to it sets an
+ * HttpOnly, SameSite=Strict cookie holding the token and consumes the code. API calls
+ * carry the token in the `x-railwright-token` header, or the cookie together with the
+ * `x-railwright-request` header (a cross-site page can send neither without a CORS
+ * preflight, which this host never approves). Tests may still open `?token=` directly.
  * The Host header must name the loopback address (defeats DNS rebinding).
  */
 import { createServer, type IncomingMessage, type ServerResponse } from 'node:http';
@@ -23,8 +29,10 @@ export interface WebHostOptions {
 
 export interface WebHost {
   url: string;
-  /** The address to open, token included. */
+  /** The address with the token in its query (tests open it directly; never put it on a command line). */
   entryUrl: string;
+  /** A new one-time launch address: it works once, then sets the token cookie and opens the window. */
+  launchUrl(): string;
   token: string;
   port: number;
   /** Send an event to every connected window. */
@@ -87,8 +95,12 @@ async function readBody(req: IncomingMessage): Promise<string> {
   return Buffer.concat(chunks).toString('utf8');
 }
 
+/** The page a used launch code answers with: it moves on to the window from this origin. */
+const LAUNCHED_PAGE = '<!doctype html><meta charset="utf-8"><meta http-equiv="refresh" content="0;url=/"><title>Railwright</title><p>Opening Railwright… <a href="/">Continue</a></p>\n';
+
 export async function startWebHost(opts: WebHostOptions): Promise<WebHost> {
   const token = opts.token ?? newToken();
+  const launchCodes = new Set<string>();
   const root = resolve(opts.rendererDir);
   const streams = new Set<ServerResponse>();
   let port = 0;
@@ -104,13 +116,33 @@ export async function startWebHost(opts: WebHostOptions): Promise<WebHost> {
     baseHeaders(res);
     const host = req.headers.host ?? '';
     if (host !== `127.0.0.1:${port}` && host !== `localhost:${port}`) return send(res, 421, 'wrong host');
-    const url = new URL(req.url ?? '/', `http://127.0.0.1:${port}`);
+    let url: URL;
+    let rel: string;
+    try {
+      url = new URL(req.url ?? '/', `http://127.0.0.1:${port}`);
+      rel = decodeURIComponent(url.pathname);
+    } catch {
+      return send(res, 400, `malformed address: ${String(req.url).slice(0, 200)} is not a valid path (bad percent escape)`);
+    }
     const headerToken = req.headers['x-railwright-token'];
 
+    if (url.pathname.startsWith('/launch/') && (req.method === 'GET' || req.method === 'HEAD')) {
+      const code = url.pathname.slice('/launch/'.length);
+      if (!launchCodes.has(code)) return send(res, 401, 'this launch address is wrong or was already used: start Railwright again for a new one');
+      launchCodes.delete(code);
+      res.setHeader('Set-Cookie', `${COOKIE}=${token}; HttpOnly; SameSite=Strict; Path=/`);
+      // A 200 page rather than a redirect: a SameSite=Strict cookie is not sent on a
+      // redirect that a page of another site (or a local file) started.
+      return send(res, 200, LAUNCHED_PAGE, 'text/html; charset=utf-8');
+    }
+
     if (url.pathname.startsWith('/api/')) {
-      // API calls need the header: a cross-site page cannot set it without a CORS
-      // preflight, which this host never approves.
-      if (!same(Array.isArray(headerToken) ? headerToken[0] : headerToken, token)) return send(res, 401, 'missing or wrong token');
+      // API calls need the token header, or the cookie plus the request header: a
+      // cross-site page cannot set either header without a CORS preflight, which this host
+      // never approves, and a SameSite=Strict cookie is not sent cross-site at all.
+      const viaHeader = same(Array.isArray(headerToken) ? headerToken[0] : headerToken, token);
+      const viaCookie = req.headers['x-railwright-request'] === '1' && same(cookieToken(req), token);
+      if (!viaHeader && !viaCookie) return send(res, 401, 'missing or wrong token');
       if (url.pathname === '/api/request' && req.method === 'POST') {
         if (!(req.headers['content-type'] ?? '').startsWith('application/json')) return send(res, 415, 'expected application/json');
         let parsed: unknown;
@@ -121,7 +153,14 @@ export async function startWebHost(opts: WebHostOptions): Promise<WebHost> {
         }
         const p = (parsed && typeof parsed === 'object' ? parsed : {}) as { name?: unknown; args?: unknown };
         const result = await opts.api.request(p.name, p.args);
-        return send(res, 200, JSON.stringify(result), 'application/json');
+        let text: string;
+        try {
+          text = JSON.stringify(result);
+        } catch (e) {
+          // An answer that cannot be written (a value nested too deeply) is still an answer.
+          text = JSON.stringify({ ok: false, error: { message: `the answer to ${String(p.name).slice(0, 80)} could not be sent (${(e as Error).message}); the open project may hold a value nested too deeply: open another project` } });
+        }
+        return send(res, 200, text, 'application/json');
       }
       if (url.pathname === '/api/events' && req.method === 'GET') {
         res.statusCode = 200;
@@ -147,7 +186,6 @@ export async function startWebHost(opts: WebHostOptions): Promise<WebHost> {
     if (same(queryToken, token)) {
       res.setHeader('Set-Cookie', `${COOKIE}=${token}; HttpOnly; SameSite=Strict; Path=/`);
     }
-    let rel = decodeURIComponent(url.pathname);
     if (rel === '/' || rel === '') rel = '/index.html';
     const file = normalize(join(root, rel));
     if (!file.startsWith(root + sep)) return send(res, 403, 'outside the window folder');
@@ -178,6 +216,11 @@ export async function startWebHost(opts: WebHostOptions): Promise<WebHost> {
   return {
     url,
     entryUrl: `${url}?token=${token}`,
+    launchUrl: () => {
+      const code = newToken();
+      launchCodes.add(code);
+      return `${url}launch/${code}`;
+    },
     token,
     port,
     broadcast,

@@ -3,11 +3,11 @@
  * user's project (first run: the demo, saved into the user data folder), the handlers over
  * HTTP on 127.0.0.1 with a per-run token, autosave to the recovery folder.
  */
-import { mkdirSync, existsSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
 import { homedir, tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { dirname, join, resolve } from 'node:path';
 import { createApi, type Api } from '../api/index.ts';
-import { autosave, loadRecent, openDemo, openPath, recoverIfAny, saveTo, newProject } from '../api/files.ts';
+import { autosave, loadRecent, openAtStart, openPath } from '../api/files.ts';
 import { makePathPolicy } from './paths.ts';
 import { startWebHost, type WebHost } from './web-host.ts';
 
@@ -32,33 +32,24 @@ export function defaultUserDataDir(): string {
 export async function startWebMain(opts: WebMainOptions): Promise<{ api: Api; host: WebHost; stop(): Promise<void> }> {
   const projects = join(opts.userDataDir, 'projects');
   mkdirSync(projects, { recursive: true });
-  const policy = makePathPolicy({ allowedRoots: [projects, homedir(), tmpdir(), ...(opts.allowedRoots ?? [])], baseDir: projects });
+  // The window may use the projects folder, the folder of the project it opens, and the
+  // folders the user picks for Open or Save as (inside home or the temporary folder), never
+  // a hidden folder (paths.ts).
+  const policy = makePathPolicy({
+    allowedRoots: [projects, ...(opts.allowedRoots ?? [])], chooseRoots: [homedir(), tmpdir()], baseDir: projects, refuseHidden: true,
+  });
   const api = createApi({ host: 'web', userDataDir: opts.userDataDir, pathPolicy: policy, autosaveMs: opts.autosaveMs ?? 30_000 });
   const s = api.session;
-  loadRecent(s);
-  let firstRun = false;
   if (opts.project) {
+    // Named on the command line by the user: its folder is allowed.
+    policy.allowFolder(dirname(resolve(opts.project)));
+    loadRecent(s);
     openPath(s, opts.project);
-  } else if (!recoverIfAny(s)) {
-    const demoFile = join(projects, 'demo.rwproj');
-    const last = s.recent.find((p) => existsSync(p));
-    try {
-      if (last) openPath(s, last);
-      else if (existsSync(demoFile)) openPath(s, demoFile);
-      else {
-        openDemo(s);
-        saveTo(s, demoFile);
-        firstRun = true;
-      }
-    } catch {
-      newProject(s);
-    }
+  } else {
+    await openAtStart(s, { demoFile: join(projects, 'demo.rwproj'), approve: (p) => policy.allowFolder(dirname(p)), planFirstRun: opts.firstRunPlan !== false });
   }
   const host = await startWebHost({ api, rendererDir: opts.rendererDir, port: opts.port });
   s.emit = (event, payload) => host.broadcast(event, payload);
-  // The window plans the first run's demo once it is shown (after its first paint, so the
-  // planning worker does not compete with the window's start).
-  if (firstRun && opts.firstRunPlan !== false) s.planOnOpen = true;
   const timer = s.autosaveMs > 0 ? setInterval(() => {
     void s.serialise(() => { try { autosave(s); } catch { /* next period tries again */ } });
   }, s.autosaveMs) : null;

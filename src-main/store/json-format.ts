@@ -13,6 +13,7 @@ import type { PlanResult } from '../engine/plan-types.ts';
 import type { QuantityKind } from '../engine/units.ts';
 import { parseQuantity, parseTolerance } from '../engine/notation.ts';
 import { validateRequirements, type Problem } from '../engine/validate.ts';
+import { checkText, type TextKind } from '../engine/text-rules.ts';
 
 export const FORMAT_TAG = 'railwright-project';
 export const FORMAT_VERSION = 1;
@@ -78,31 +79,45 @@ function tolerance(mode: Mode) {
 const idSchema = z.string().min(1, 'id must not be empty').max(200, 'id is longer than 200 characters');
 const nameSchema = z.string().max(500, 'name is longer than 500 characters');
 
+/**
+ * On import, text also follows the one rule of engine/text-rules.ts (a refusal, like a
+ * wrong type). The store's strict mode keeps only the size limits: a file breaking the rule
+ * still opens, and validation lists each breach.
+ */
+function ruled<T extends z.ZodString>(schema: T, mode: Mode, kind: TextKind = 'name', limit = 500) {
+  if (mode === 'strict') return schema;
+  return schema.superRefine((v, ctx) => {
+    if (v.length > limit) return; // already refused by the size limit
+    const m = checkText(v, kind);
+    if (m) ctx.addIssue({ code: 'custom', message: m });
+  });
+}
+
 function requirementsShape(mode: Mode) {
   const imp = mode === 'import';
   const source = z.looseObject({
-    id: idSchema,
-    name: nameSchema,
+    id: ruled(idSchema, mode, 'name', 200),
+    name: ruled(nameSchema, mode),
     vNom: quantity('voltage', mode),
     vMin: quantity('voltage', mode),
     vMax: quantity('voltage', mode),
     currentLimit: quantity('current', mode),
   });
   const domain = z.looseObject({
-    id: idSchema,
-    name: nameSchema,
+    id: ruled(idSchema, mode, 'name', 200),
+    name: ruled(nameSchema, mode),
     isolation: z.enum(ISOLATION_CLASSES as [string, ...string[]]),
     workingVoltage: quantity('voltage', mode),
   });
   const opMode = z.looseObject({
-    id: idSchema,
-    name: nameSchema,
+    id: ruled(idSchema, mode, 'name', 200),
+    name: ruled(nameSchema, mode),
     share: quantity('ratio', mode),
   });
   const load = z.looseObject({
-    id: idSchema,
-    name: nameSchema,
-    domainId: idSchema,
+    id: ruled(idSchema, mode, 'name', 200),
+    name: ruled(nameSchema, mode),
+    domainId: ruled(idSchema, mode, 'name', 200),
     voltage: quantity('voltage', mode),
     tolerance: tolerance(mode),
     current: z.record(z.string(), quantity('current', mode)),
@@ -110,7 +125,7 @@ function requirementsShape(mode: Mode) {
     noiseClass: imp
       ? z.enum(NOISE_CLASSES as [string, ...string[]]).default('standard')
       : z.enum(NOISE_CLASSES as [string, ...string[]]),
-    railKey: z.string().max(200).optional(),
+    railKey: ruled(z.string().max(200, 'rail key is longer than 200 characters'), mode, 'name', 200).optional(),
   });
   const limitsFields = {
     ambient: quantity('temperature', mode),
@@ -119,6 +134,7 @@ function requirementsShape(mode: Mode) {
     ceramicDerating: quantity('ratio', mode),
     electrolyticDerating: quantity('ratio', mode),
     powerDerating: quantity('ratio', mode),
+    inputRatingMargin: quantity('ratio', mode).optional(),
   };
   const prefFields = {
     weights: z.strictObject({ loss: z.number(), cost: z.number(), parts: z.number() }),
@@ -138,8 +154,8 @@ function requirementsShape(mode: Mode) {
   };
   return {
     meta: z.looseObject({
-      name: nameSchema,
-      description: imp ? z.string().max(20_000).default('') : z.string().max(20_000),
+      name: ruled(nameSchema, mode),
+      description: imp ? ruled(z.string().max(20_000), mode, 'description', 20_000).default('') : z.string().max(20_000),
       revision: imp ? z.number().int().min(0).default(0) : z.number().int().min(0),
     }),
     sources: z.array(source).superRefine(uniqueIds('source')),
@@ -169,13 +185,14 @@ const planSchema = z.strictObject({
   }
 });
 
-const libraryRowSchema = z.strictObject({
-  id: idSchema,
-  partClass: z.string().min(1, 'part class must not be empty'),
-  name: nameSchema,
+const libraryRow = (mode: Mode) => z.strictObject({
+  id: ruled(idSchema, mode, 'name', 200),
+  partClass: ruled(z.string().min(1, 'part class must not be empty'), mode),
+  name: ruled(nameSchema, mode),
   cost: z.number().min(0, 'cost must not be negative'),
   params: z.record(z.string(), z.unknown()),
 });
+const libraryRowSchema = libraryRow('strict');
 
 function documentSchema() {
   const r = requirementsShape('import');
@@ -192,7 +209,7 @@ function documentSchema() {
     limits: r.limits,
     preferences: r.preferences,
     plan: planSchema.optional(),
-    library: z.array(libraryRowSchema).optional(),
+    library: z.array(libraryRow('import')).optional(),
   });
 }
 
@@ -263,7 +280,35 @@ export function importProjectJson(text: string): ImportResult {
 }
 
 /** Deepest nesting a document may have: far beyond any real project, well below the stack. */
-const MAX_DEPTH = 64;
+export const MAX_DEPTH = 64;
+/** Longest JSON text accepted, imported or stored (the window's import limit). */
+export const MAX_JSON_CHARS = 16_000_000;
+
+/**
+ * Check JSON text before parsing it: a reason when it is longer than MAX_JSON_CHARS or
+ * nests objects and arrays deeper than `limit`, else null. One pass over the characters,
+ * no recursion (brackets inside strings do not count), so hostile text cannot exhaust the
+ * stack here or in whatever walks the parsed value later.
+ */
+export function jsonTextProblem(text: string, limit = MAX_DEPTH): string | null {
+  if (text.length > MAX_JSON_CHARS) return `${text.length} characters of JSON, more than the ${MAX_JSON_CHARS} a project value may have`;
+  let depth = 0;
+  let inString = false;
+  for (let i = 0; i < text.length; i++) {
+    const c = text.charCodeAt(i);
+    if (inString) {
+      if (c === 0x5c) i++; // backslash: skip the escaped character
+      else if (c === 0x22) inString = false;
+    } else if (c === 0x22) {
+      inString = true;
+    } else if (c === 0x7b || c === 0x5b) {
+      if (++depth > limit) return `nested more than ${limit} levels deep; a project document never needs that`;
+    } else if (c === 0x7d || c === 0x5d) {
+      depth--;
+    }
+  }
+  return null;
+}
 
 /** Path of the first value nested deeper than `limit`, or null. Iterative: no recursion. */
 function findTooDeep(root: unknown, limit: number): string | null {
@@ -335,8 +380,21 @@ export function exportProjectValue(doc: ProjectDocument): Record<string, unknown
   return out;
 }
 
+/**
+ * JSON.stringify escapes C0 controls only. Every other character a name may not hold
+ * (DEL, C1 controls, line and paragraph separators, bidirectional formatting, noncharacters)
+ * is written as a \u escape too: the same value, but nothing in the file can steer a
+ * terminal or an editor. Such characters only occur inside strings, so this is lossless.
+ */
+const JSON_UNSAFE = /[\u007f-\u009f\u061c\u200e\u200f\u2028\u2029\u202a-\u202e\u2066-\u2069\ufdd0-\ufdef\ufffe\uffff]/g;
+
+/** JSON text (2-space indent) in which no character can steer a terminal or an editor. */
+export function safeJsonText(value: unknown): string {
+  return JSON.stringify(value, null, 2).replace(JSON_UNSAFE, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
+}
+
 export function exportProjectJson(doc: ProjectDocument): string {
-  return JSON.stringify(exportProjectValue(doc), null, 2) + '\n';
+  return safeJsonText(exportProjectValue(doc)) + '\n';
 }
 
 /** Check a stored plan ({ revision, computedAt, result }) before the store keeps it. */

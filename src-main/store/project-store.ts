@@ -5,28 +5,43 @@
  * the target in one step, so a crash during a save leaves the previous saved state intact
  * and no side files are ever needed. Open reads the file's bytes and checks them without
  * writing: the file on disk changes only on Save.
+ *
+ * The file is shared with other programs (a second window, the CLI, an SQLite browser, a
+ * sync client), so open and save also guard it (see sharing.ts): a file with another
+ * program's unfinished change beside it (a hot rollback journal or a write-ahead log) is
+ * neither read nor replaced; the content identity read at open is compared at save, so a
+ * newer version written by someone else is never silently replaced; and the save holds
+ * SQLite's write lock on the old file while it renames, so a concurrent SQLite writer is
+ * detected instead of losing its commit.
  */
 import Database from 'better-sqlite3';
 import {
-  closeSync, fsyncSync, openSync, readdirSync, readFileSync, renameSync, statSync, unlinkSync, writeSync,
+  closeSync, existsSync, fsyncSync, linkSync, openSync, readdirSync, readFileSync, renameSync, statSync, unlinkSync, writeSync,
 } from 'node:fs';
-import { basename, dirname, join } from 'node:path';
+import { basename, dirname, join, resolve } from 'node:path';
 import { PROJECT_EXTENSION } from '../../electron.config.ts';
 import {
   DEFAULT_LIMITS, DEFAULT_PREFERENCES, type PartLibraryRow, type Requirements,
 } from '../engine/model.ts';
 import type { PlanResult } from '../engine/plan-types.ts';
-import type { Problem } from '../engine/validate.ts';
 import {
-  checkLibraryShape, checkPlanShape, checkRequirementsShape, type ProjectDocument, type StoredPlan,
+  checkLibraryShape, checkPlanShape, checkRequirementsShape, jsonTextProblem, type ProjectDocument, type StoredPlan,
 } from './json-format.ts';
 import { APPLICATION_ID, expectedTables, migrate, schemaVersion, userVersion } from './migrations.ts';
+import {
+  identityOf, lockForSave, sideFileProblem, SaveRefused, type FileIdentity,
+} from './sharing.ts';
+import { StoreError } from './store-error.ts';
 
-export { PROJECT_EXTENSION, APPLICATION_ID };
+export { PROJECT_EXTENSION, APPLICATION_ID, SaveRefused, StoreError, type FileIdentity };
 
 export type OpenErrorKind =
   | 'not-found' | 'not-a-file' | 'unreadable' | 'too-large' | 'empty' | 'not-sqlite'
-  | 'truncated' | 'corrupt' | 'foreign' | 'newer' | 'incomplete';
+  | 'truncated' | 'corrupt' | 'foreign' | 'newer' | 'incomplete'
+  /** Another program's unfinished change sits beside the file (hot journal, write-ahead log). */
+  | 'side-file'
+  /** Another program is writing the file right now. */
+  | 'in-use';
 
 /** Why a file cannot be opened: one kind and one clear sentence. The file is untouched. */
 export class OpenError extends Error {
@@ -36,17 +51,26 @@ export class OpenError extends Error {
   }
 }
 
-/** Bad input to the store (wrong shape, no file name): nothing was changed. */
-export class StoreError extends Error {
-  constructor(message: string, readonly problems: Problem[] = []) {
-    super(problems.length ? `${message}: ${problems.map((p) => `${p.path}: ${p.message}`).join('; ')}` : message);
-    this.name = 'StoreError';
-  }
-}
 
 export interface StoreOptions {
   /** Clock for created/modified/computed times (tests pass a fixed one). */
   clock?: () => Date;
+  /**
+   * Content identity of the file at `path` this document was read from (a recovery copy
+   * carries the one its original was opened with). Save to that path refuses when the
+   * file no longer matches it.
+   */
+  baseline?: FileIdentity | null;
+}
+
+export interface SaveOptions {
+  /**
+   * The user explicitly agreed to replace whatever file is at the target (CLI `--force`,
+   * a confirmed "replace?" in the window). Without it, Save As refuses an existing file
+   * and Save refuses a file changed since it was read. Never overrides the side-file and
+   * lock checks.
+   */
+  overwrite?: boolean;
 }
 
 /** A saved plan result as the store returns it. */
@@ -74,9 +98,17 @@ export function newRequirements(): Requirements {
 
 type Row = Record<string, unknown>;
 
+/**
+ * Parse one stored JSON value. `where` names the table, row and column. The same depth and
+ * size limits as the JSON importer apply, checked on the text before parsing (no
+ * recursion), so a hostile cell is refused here instead of overflowing the stack later.
+ */
 function parseJson(text: unknown, where: string): unknown {
+  const t = String(text);
+  const problem = jsonTextProblem(t);
+  if (problem) throw new Error(`damaged value in ${where}: ${problem}`);
   try {
-    return JSON.parse(String(text));
+    return JSON.parse(t);
   } catch {
     throw new Error(`damaged value in ${where}`);
   }
@@ -91,7 +123,20 @@ function withExtra(known: Row, extraText: unknown, where: string): Row {
 function splitExtra(obj: Row, known: readonly string[]): string {
   const extra: Row = {};
   for (const [k, v] of Object.entries(obj)) if (!known.includes(k) && v !== undefined) extra[k] = v;
-  return JSON.stringify(extra);
+  return storableJson(extra, `extra fields of ${String(obj.id)}`);
+}
+
+/** JSON text of a value to store, refused (StoreError) when the reader would refuse it. */
+function storableJson(value: unknown, what: string): string {
+  let text: string;
+  try {
+    text = JSON.stringify(value);
+  } catch (e) {
+    throw new StoreError(`${what} refused: ${(e as Error).message}`);
+  }
+  const problem = jsonTextProblem(text);
+  if (problem) throw new StoreError(`${what} refused: ${problem}`);
+  return text;
 }
 
 let saveCounter = 0;
@@ -112,11 +157,14 @@ export class ProjectStore {
   private filePath: string | null;
   private isDirty = false;
   private readonly clock: () => Date;
+  /** What the file at `filePath` held when it was read or last saved (null: not known). */
+  private diskIdentity: FileIdentity | null;
 
   private constructor(db: Database.Database, path: string | null, opts: StoreOptions) {
     this.db = db;
     this.filePath = path;
     this.clock = opts.clock ?? (() => new Date());
+    this.diskIdentity = opts.baseline ?? null;
   }
 
   /** A new, unsaved project in memory. */
@@ -156,7 +204,7 @@ export class ProjectStore {
    */
   static open(path: string, opts: StoreOptions = {}): ProjectStore {
     const bytes = readProjectBytes(path);
-    return ProjectStore.fromBytes(bytes, path, opts);
+    return ProjectStore.fromBytes(bytes, path, { ...opts, baseline: identityOf(bytes) });
   }
 
   /** Open a project from the bytes of a project file (recovery copies use this). */
@@ -219,6 +267,11 @@ export class ProjectStore {
     return this.filePath;
   }
 
+  /** Content identity of the file at `path` when it was read or last saved (null: unknown). */
+  get baseline(): FileIdentity | null {
+    return this.diskIdentity;
+  }
+
   /** True when the document has changes not yet saved. */
   get dirty(): boolean {
     return this.isDirty;
@@ -243,7 +296,7 @@ export class ProjectStore {
 
   private getMetaValue(key: string): unknown {
     const row = this.db.prepare('SELECT value FROM meta WHERE key = ?').get(key) as { value: string } | undefined;
-    return row ? parseJson(row.value, `meta.${key}`) : undefined;
+    return row ? parseJson(row.value, `meta.${key} (table meta, row "${key}", column value)`) : undefined;
   }
 
   private setMetaValue(key: string, value: unknown): void {
@@ -257,17 +310,17 @@ export class ProjectStore {
     const meta: Row = { name: '', description: '', revision: 0 };
     for (const r of metaRows) {
       if (r.key === 'created' || r.key === 'modified') continue;
-      meta[r.key] = parseJson(r.value, `meta.${r.key}`);
+      meta[r.key] = parseJson(r.value, `meta.${r.key} (table meta, row "${r.key}", column value)`);
     }
     const sources = (db.prepare('SELECT * FROM sources ORDER BY pos').all() as Row[]).map((r) => withExtra({
       id: r.id, name: r.name, vNom: r.v_nom, vMin: r.v_min, vMax: r.v_max, currentLimit: r.current_limit,
-    }, r.extra, `source ${String(r.id)}`));
+    }, r.extra, `source ${String(r.id)} (table sources, row "${String(r.id)}", column extra)`));
     const domains = (db.prepare('SELECT * FROM domains ORDER BY pos').all() as Row[]).map((r) => withExtra({
       id: r.id, name: r.name, isolation: r.isolation, workingVoltage: r.working_voltage,
-    }, r.extra, `domain ${String(r.id)}`));
+    }, r.extra, `domain ${String(r.id)} (table domains, row "${String(r.id)}", column extra)`));
     const modes = (db.prepare('SELECT * FROM modes ORDER BY pos').all() as Row[]).map((r) => withExtra({
       id: r.id, name: r.name, share: r.share,
-    }, r.extra, `mode ${String(r.id)}`));
+    }, r.extra, `mode ${String(r.id)} (table modes, row "${String(r.id)}", column extra)`));
     const currents = new Map<string, Row>();
     for (const c of db.prepare('SELECT load_id, mode_id, current FROM load_currents ORDER BY load_id, pos').all() as Row[]) {
       const id = String(c.load_id);
@@ -281,12 +334,12 @@ export class ProjectStore {
         current: currents.get(String(r.id)) ?? {}, rippleLimit: r.ripple_limit, noiseClass: r.noise_class,
       };
       if (r.rail_key !== null) known.railKey = r.rail_key;
-      return withExtra(known, r.extra, `load ${String(r.id)}`);
+      return withExtra(known, r.extra, `load ${String(r.id)} (table loads, row "${String(r.id)}", column extra)`);
     });
     const kv = (table: 'limits' | 'preferences') => {
       const o: Row = {};
       for (const r of db.prepare(`SELECT key, value FROM ${table} ORDER BY rowid`).all() as { key: string; value: string }[]) {
-        o[r.key] = parseJson(r.value, `${table}.${r.key}`);
+        o[r.key] = parseJson(r.value, `${table}.${r.key} (table ${table}, row "${r.key}", column value)`);
       }
       return o;
     };
@@ -354,7 +407,7 @@ export class ProjectStore {
     const row = this.db.prepare('SELECT revision, computed_at, result FROM plan_results WHERE slot = 1').get() as
       { revision: number; computed_at: string; result: string } | undefined;
     if (!row) return null;
-    const result = parseJson(row.result, 'plan result') as PlanResult;
+    const result = parseJson(row.result, 'plan result (table plan_results, column result)') as PlanResult;
     return { revision: row.revision, computedAt: row.computed_at, result, stale: row.revision !== this.revision };
   }
 
@@ -364,7 +417,7 @@ export class ProjectStore {
     if (problems.length) throw new StoreError('plan result refused', problems);
     this.db.prepare(`INSERT INTO plan_results (slot, revision, computed_at, result) VALUES (1, ?, ?, ?)
       ON CONFLICT(slot) DO UPDATE SET revision = excluded.revision, computed_at = excluded.computed_at, result = excluded.result`)
-      .run(result.revision, computedAt, JSON.stringify(result));
+      .run(result.revision, computedAt, storableJson(result, 'plan result'));
     this.isDirty = true;
   }
 
@@ -375,7 +428,7 @@ export class ProjectStore {
   getLibrary(): PartLibraryRow[] {
     return (this.db.prepare('SELECT id, part_class, name, cost, params FROM part_library ORDER BY pos').all() as Row[]).map((r) => ({
       id: String(r.id), partClass: String(r.part_class), name: String(r.name), cost: Number(r.cost),
-      params: parseJson(r.params, `part library row ${String(r.id)}`) as Record<string, unknown>,
+      params: parseJson(r.params, `part library row ${String(r.id)} (table part_library, row "${String(r.id)}", column params)`) as Record<string, unknown>,
     }));
   }
 
@@ -388,7 +441,7 @@ export class ProjectStore {
     db.transaction(() => {
       db.exec('DELETE FROM part_library');
       const ins = db.prepare('INSERT INTO part_library (id, pos, part_class, name, cost, params) VALUES (?, ?, ?, ?, ?, ?)');
-      rows.forEach((r, i) => ins.run(r.id, i, r.partClass, r.name, r.cost, JSON.stringify(r.params)));
+      rows.forEach((r, i) => ins.run(r.id, i, r.partClass, r.name, r.cost, storableJson(r.params, `part library row ${r.id}`)));
     })();
     this.isDirty = true;
   }
@@ -415,21 +468,40 @@ export class ProjectStore {
    * Write the project to `path` (Save As) or to its own path (Save). The bytes go to a
    * temporary file in the same folder, are flushed to disk, and replace the target by an
    * atomic rename; on any failure the previous file is untouched and the temp is removed.
+   *
+   * Refuses (SaveRefused, nothing written) when the target has another program's
+   * unfinished change beside it or is locked by an SQLite writer; when Save As meets an
+   * existing file, or Save finds its file changed since it was read, unless
+   * `opts.overwrite`.
    */
-  save(path?: string): void {
+  save(path?: string, opts: SaveOptions = {}): void {
     const target = path ?? this.filePath;
     if (!target) throw new StoreError('the project has no file name yet: choose one (Save As)');
+    const own = this.filePath !== null && resolve(target) === resolve(this.filePath);
+    const lock = lockForSave(target, { own, baseline: own ? this.diskIdentity : null, overwrite: opts.overwrite === true });
     const prevModified = this.getMetaValue('modified');
     this.setMetaValue('modified', this.clock().toISOString());
     let bytes: Buffer;
     try {
       bytes = this.db.serialize();
-      writeFileAtomic(target, bytes);
+      // Windows cannot rename over a file that is open (our lock holds it open): there the
+      // lock is let go just before the rename, and the system itself refuses the rename
+      // while another program has the file open.
+      writeFileAtomic(target, bytes, {
+        replace: lock.existed,
+        ...(process.platform === 'win32' ? { beforeRename: () => lock.release() } : {}),
+      });
     } catch (e) {
       this.setMetaValue('modified', prevModified);
+      if ((e as NodeJS.ErrnoException).code === 'EEXIST') {
+        throw new SaveRefused('exists', `${target} appeared while saving (another program made it): nothing was written; save again to choose`, target);
+      }
       throw new StoreError(`could not save to ${target}: ${(e as Error).message}`);
+    } finally {
+      lock.release();
     }
     this.filePath = target;
+    this.diskIdentity = identityOf(bytes);
     this.isDirty = false;
     removeStaleTemps(target);
   }
@@ -444,11 +516,25 @@ export class ProjectStore {
   }
 }
 
+export interface AtomicWriteOptions {
+  /**
+   * Replace an existing target (the default). With `false` the new file is linked into
+   * place only if nothing is there (an error with code EEXIST otherwise), so a file that
+   * appears between a check and the write is never replaced.
+   */
+  replace?: boolean;
+  /** Called after the bytes are on disk, just before the rename. */
+  beforeRename?: () => void;
+}
+
+/** Errors of link() meaning "this file system has no hard links" (then: check, rename). */
+const NO_LINKS = new Set(['EPERM', 'ENOTSUP', 'EOPNOTSUPP', 'ENOSYS', 'EXDEV', 'EMLINK', 'EACCES']);
+
 /**
  * Write bytes to `target` so that readers see either the old file or the complete new one:
  * temp file in the same folder (same file system), fsync, rename, fsync the folder.
  */
-export function writeFileAtomic(target: string, bytes: Uint8Array): void {
+export function writeFileAtomic(target: string, bytes: Uint8Array, opts: AtomicWriteOptions = {}): void {
   const dir = dirname(target);
   const tmp = join(dir, `.${basename(target)}.${process.pid}-${++saveCounter}.saving`);
   let fd: number | null = null;
@@ -459,7 +545,9 @@ export function writeFileAtomic(target: string, bytes: Uint8Array): void {
     fsyncSync(fd);
     closeSync(fd);
     fd = null;
-    renameSync(tmp, target);
+    opts.beforeRename?.();
+    if (opts.replace === false) placeNew(tmp, target);
+    else renameSync(tmp, target);
   } catch (e) {
     if (fd !== null) try { closeSync(fd); } catch { /* already failing */ }
     try { unlinkSync(tmp); } catch { /* not created */ }
@@ -470,6 +558,21 @@ export function writeFileAtomic(target: string, bytes: Uint8Array): void {
     const dfd = openSync(dir, 'r');
     try { fsyncSync(dfd); } finally { closeSync(dfd); }
   } catch { /* not supported here (e.g. Windows); the rename is still atomic */ }
+}
+
+/** Put `tmp` at `target` only if nothing is there; the temp name is gone afterwards. */
+function placeNew(tmp: string, target: string): void {
+  try {
+    linkSync(tmp, target);
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code ?? '';
+    if (!NO_LINKS.has(code)) throw e;
+    // No hard links here: check, then rename (a narrow window instead of none).
+    if (existsSync(target)) throw Object.assign(new Error(`${target} already exists`), { code: 'EEXIST' });
+    renameSync(tmp, target);
+    return;
+  }
+  unlinkSync(tmp);
 }
 
 /**
@@ -509,7 +612,11 @@ function processAlive(pid: number): boolean {
   }
 }
 
-/** Read a project file's bytes, refusing what cannot be a project. Never writes. */
+/**
+ * Read a project file's bytes, refusing what cannot be a project. Never writes. A file
+ * with another program's unfinished change beside it is refused before it is read, so its
+ * torn content is never shown.
+ */
 export function readProjectBytes(path: string): Buffer {
   let st;
   try {
@@ -521,6 +628,8 @@ export function readProjectBytes(path: string): Buffer {
   }
   if (!st.isFile()) throw new OpenError('not-a-file', `${path} is not a file`, path);
   if (st.size > MAX_FILE_BYTES) throw new OpenError('too-large', `${path} is larger than 1 GiB: not a Railwright project`, path);
+  const side = sideFileProblem(path);
+  if (side) throw new OpenError(side.kind === 'in-use' ? 'in-use' : 'side-file', `${side.message}. The file was not opened`, path);
   try {
     return readFileSync(path);
   } catch (e) {

@@ -7,7 +7,7 @@
  */
 import { mkdirSync, readdirSync, readFileSync, unlinkSync } from 'node:fs';
 import { join } from 'node:path';
-import { OpenError, ProjectStore, writeFileAtomic, type StoreOptions } from './project-store.ts';
+import { OpenError, ProjectStore, writeFileAtomic, type FileIdentity, type StoreOptions } from './project-store.ts';
 
 export const RECOVERY_EXTENSION = '.rwrecover';
 
@@ -20,6 +20,11 @@ export interface RecoveryEntry {
   writtenAt: string;
   revision: number;
   file: string;
+  /**
+   * What the original file held when the project was read from it (or last saved), so a
+   * restored copy is never saved over a version someone else saved since; null if unknown.
+   */
+  baseline: FileIdentity | null;
 }
 
 /** Keys are plain file names: letters, digits, dash, underscore. */
@@ -38,6 +43,7 @@ export function writeRecovery(store: ProjectStore, dir: string, key: string, now
   const file = join(dir, key + RECOVERY_EXTENSION);
   const entry: RecoveryEntry = {
     key, originalPath: store.path, name: req.meta.name, writtenAt: now.toISOString(), revision: req.meta.revision, file,
+    baseline: store.baseline,
   };
   writeFileAtomic(file, store.serialize());
   writeFileAtomic(join(dir, key + '.json'), Buffer.from(JSON.stringify(entry, null, 2) + '\n'));
@@ -67,6 +73,7 @@ export function listRecovery(dir: string): RecoveryEntry[] {
       writtenAt: typeof note.writtenAt === 'string' ? note.writtenAt : '',
       revision: typeof note.revision === 'number' ? note.revision : 0,
       file: join(dir, n),
+      baseline: isIdentity(note.baseline) ? note.baseline : null,
     });
   }
   return out.sort((a, b) => b.writtenAt.localeCompare(a.writtenAt) || a.key.localeCompare(b.key));
@@ -78,9 +85,14 @@ export function listRecovery(dir: string): RecoveryEntry[] {
  */
 export function restoreRecovery(entry: RecoveryEntry, opts: StoreOptions = {}): ProjectStore {
   const bytes = readFileSync(entry.file);
-  const store = ProjectStore.fromBytes(bytes, entry.originalPath, opts, entry.file);
+  const store = ProjectStore.fromBytes(bytes, entry.originalPath, { ...opts, baseline: entry.baseline }, entry.file);
   store.markDirty();
   return store;
+}
+
+function isIdentity(x: unknown): x is FileIdentity {
+  const o = x as Partial<FileIdentity> | null;
+  return !!o && typeof o === 'object' && typeof o.size === 'number' && typeof o.sha256 === 'string' && /^[0-9a-f]{64}$/.test(o.sha256);
 }
 
 /** Remove a recovery slot (after a clean save or when the user discards it). */

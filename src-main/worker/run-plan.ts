@@ -7,6 +7,10 @@
  * (stats.cancelled = true); if it has not answered within CANCEL_GRACE_MS (one engine
  * evaluation can take longer than that) it is terminated and the promise rejects with an
  * AbortError. Either way the caller is released within 100 ms.
+ *
+ * Any other failure (an error event, an unreadable message, the worker exiting, a value
+ * that cannot be copied into it, a stack overflow inside it) terminates the worker and
+ * rejects with one clear message, so the CLI exits and the hosts keep serving.
  */
 import { Worker } from 'node:worker_threads';
 import type { Requirements } from '../engine/model.ts';
@@ -20,6 +24,11 @@ export type { WorkerPlanOptions };
 
 export class PlanAbortError extends Error {
   override name = 'AbortError';
+}
+
+function describe(e: unknown): string {
+  const m = e instanceof Error ? e.message : String(e);
+  return m.length > 300 ? m.slice(0, 300) + '…' : m;
 }
 
 export function runPlanInWorker(
@@ -54,8 +63,16 @@ export function runPlanInWorker(
       else if (m.type === 'result') { onTrace?.(m.trace); settle(() => resolve(m.result)); }
       else if (m.type === 'error') settle(() => reject(new Error(`planner: ${m.message}`)));
     });
-    worker.on('error', (e) => settle(() => reject(e)));
+    worker.on('error', (e) => settle(() => reject(new Error(`planner failed: ${describe(e)}`))));
+    worker.on('messageerror', (e) => settle(() => reject(new Error(`planner: a message from the planner could not be read (${describe(e)})`))));
     worker.on('exit', (code) => settle(() => reject(new Error(`planner worker stopped unexpectedly (exit code ${code})`))));
-    worker.postMessage({ type: 'plan', requirements, options });
+    try {
+      // Copying the requirements into the worker walks them recursively: a value nested
+      // deep enough overflows the stack here. Any failure ends the worker (or it would keep
+      // the process alive) and becomes the answer.
+      worker.postMessage({ type: 'plan', requirements, options });
+    } catch (e) {
+      settle(() => reject(new Error(`planner: the requirements could not be handed to the planner (${describe(e)})`)));
+    }
   });
 }

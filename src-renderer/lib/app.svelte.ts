@@ -24,8 +24,13 @@ export interface Prompt {
    * dialog with the typed text kept (a bad path is corrected, not retyped).
    */
   submit?: (value: string) => Promise<string | null>;
+  /** A second way on beside `confirm` (answers ALTERNATIVE). */
+  alternative?: string;
   resolve: (v: string | null) => void;
 }
+
+/** What `ask` answers when the prompt's `alternative` button was chosen. */
+export const ALTERNATIVE = '\u0000alternative';
 
 class AppState {
   snapshot = $state<Snapshot | null>(null);
@@ -80,6 +85,12 @@ class AppState {
 
   info(text: string): void {
     this.message = { kind: 'info', text };
+  }
+
+  /** Ask whether an existing file may be replaced; true = the user confirmed. */
+  async confirmReplace(message: string): Promise<boolean> {
+    const a = await this.ask({ title: 'Replace the existing file?', label: message, value: '', hint: '', confirm: 'Replace it', question: true });
+    return a !== null;
   }
 
   ask(p: Omit<Prompt, 'resolve'>): Promise<string | null> {

@@ -1,7 +1,10 @@
 /**
  * The window's only way out: `window.railwright` when a desktop host's preload provides it,
- * otherwise the same interface over HTTP to the local web host (token in a header, events
- * as a server-sent stream read with fetch so the token never appears in a URL again).
+ * otherwise the same interface over HTTP to the local web host (events as a server-sent
+ * stream read with fetch). The host authenticates the window by the HttpOnly cookie its
+ * one-time launch address set, together with the `x-railwright-request` header; a token
+ * given in the address (tests) is taken once, removed from the address bar and sent as a
+ * header.
  */
 import type { ApiResult, EventName, Events, RailwrightBridge, RequestArgs, RequestName, RequestValue } from '../../src-main/api/contract.ts';
 
@@ -27,13 +30,14 @@ function takeToken(): string {
 
 function webBridge(): RailwrightBridge {
   const token = takeToken();
+  const auth: Record<string, string> = token ? { 'x-railwright-request': '1', 'x-railwright-token': token } : { 'x-railwright-request': '1' };
   const listeners = new Map<string, Set<(p: unknown) => void>>();
   let streaming = false;
 
   async function stream(): Promise<void> {
     for (;;) {
       try {
-        const res = await fetch('/api/events', { headers: { 'x-railwright-token': token }, cache: 'no-store' });
+        const res = await fetch('/api/events', { headers: auth, cache: 'no-store', credentials: 'same-origin' });
         if (!res.ok || !res.body) throw new Error(`events: ${res.status}`);
         const reader = res.body.pipeThrough(new TextDecoderStream()).getReader();
         let buf = '';
@@ -69,7 +73,8 @@ function webBridge(): RailwrightBridge {
       try {
         const res = await fetch('/api/request', {
           method: 'POST',
-          headers: { 'content-type': 'application/json', 'x-railwright-token': token },
+          headers: { 'content-type': 'application/json', ...auth },
+          credentials: 'same-origin',
           body: JSON.stringify({ name, args }),
         });
         if (res.status === 401) return { ok: false, error: { message: 'the host refused the request (token missing or wrong): open the address printed at start-up' } };

@@ -23,7 +23,9 @@ export async function exportFile(kind: ExportKind, ext: string, stageId?: string
     if (!p) return false;
     path = p;
   }
-  const r = await app.call('export.file', { kind, ...(path ? { path } : {}), ...(stageId ? { stageId } : {}) });
+  // A path comes only from the system dialog, which has already asked before replacing an
+  // existing file (`overwrite` carries that confirmation); without a path it is a download.
+  const r = await app.call('export.file', { kind, ...(path ? { path, overwrite: true } : {}), ...(stageId ? { stageId } : {}) });
   if (!r.ok) return false;
   if (r.value.writtenTo) {
     app.info(`Written to ${r.value.writtenTo}`);

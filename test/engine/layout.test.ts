@@ -2,7 +2,14 @@
 // every rail present, each domain box contains its nodes, edges end on their nodes.
 import { describe, expect, it } from 'vitest';
 import ELK from 'elkjs/lib/elk.bundled.js';
-import { buildTreeView, fmtQty, pctText, layoutTree, entryPoint, type Box, type ElkLike } from '../../src-main/engine/layout.ts';
+import {
+  buildTreeView, fmtQty, pctText, layoutTree, entryPoint, labelBoxes, groupText, nodeText, wrapText, shortName,
+  type Box, type ElkLike, type LaidOutTree,
+} from '../../src-main/engine/layout.ts';
+import { figuresForMode, rollupPlan } from '../../src-main/engine/rollup.ts';
+import { demoDocument } from '../../src-main/store/demo.ts';
+import { demoHandPlan } from '../export/demo-plan.ts';
+import { bigPlan, bigRequirements } from '../export/big-plan.ts';
 import { handPlan, handRequirements } from '../export/hand-plan.ts';
 import type { Requirements } from '../../src-main/engine/model.ts';
 import { DEFAULT_LIMITS, DEFAULT_PREFERENCES } from '../../src-main/engine/model.ts';
@@ -69,18 +76,63 @@ describe('layout adapter (real elkjs output)', () => {
     expect(overlaps(laid.groups[0]!, laid.groups[1]!)).toBe(false);
   });
 
-  it('keeps edge labels off the nodes (drawn with roll-up figures on every edge)', async () => {
+  // Item 2 of issue 15: at both levels of detail no two text boxes intersect and every text
+  // box lies inside its node or domain box (text widths from the fixed per-character model,
+  // whose advance is at least the widest DejaVu Sans glyph class drawn here: from the font's
+  // metrics table, from memory). On the demo (hand plan, rolled-up figures) and on a generated
+  // project of 40 rails.
+  const trees: Array<[string, () => Promise<LaidOutTree>]> = [
+    ['demo', async () => {
+      const req = demoDocument().requirements;
+      const result = demoHandPlan(req);
+      const rollup = rollupPlan(req, result.rails, result.best!);
+      return layoutTree(buildTreeView(req, result.rails, result.best!, figuresForMode(req, rollup)), elk);
+    }],
+    ['40 rails', async () => {
+      const req = bigRequirements(120, 3, 5);
+      const result = bigPlan(req);
+      expect(result.rails.length).toBe(40);
+      const rollup = rollupPlan(req, result.rails, result.best!);
+      return layoutTree(buildTreeView(req, result.rails, result.best!, figuresForMode(req, rollup)), elk);
+    }],
+  ];
+  for (const [name, make] of trees) {
+    it(`no text box overlaps another or leaves its box (${name})`, async () => {
+      const laid = await make();
+      for (const detail of ['glance', 'detail'] as const) {
+        const boxes = labelBoxes(laid, detail);
+        expect(boxes.length).toBeGreaterThan(laid.nodes.length);
+        for (const b of boxes) {
+          if (b.container) expect(contains(b.container, b.line.box), `${detail}: "${b.line.text}" inside ${b.owner}`).toBe(true);
+        }
+        for (let i = 0; i < boxes.length; i++)
+          for (let j = i + 1; j < boxes.length; j++)
+            expect(overlaps(boxes[i]!.line.box, boxes[j]!.line.box), `${detail}: "${boxes[i]!.line.text}" (${boxes[i]!.owner}) vs "${boxes[j]!.line.text}" (${boxes[j]!.owner})`).toBe(false);
+        // A domain's title stays clear of the nodes inside the domain (not over a block).
+        for (const g of laid.groups)
+          for (const l of groupText(g, detail))
+            for (const n of laid.nodes) expect(overlaps(l.box, n), `${g.id} title over ${n.id}`).toBe(false);
+      }
+      // At a glance each node shows its name and exactly one key figure.
+      for (const n of laid.nodes) {
+        const g = nodeText(n, 'glance');
+        expect(g.filter((l) => l.role === 'key').map((l) => l.text)).toEqual([n.key]);
+        expect(g.filter((l) => l.role === 'name').map((l) => l.text).join(' ').replace(/- /g, '-')).toBe(n.name);
+      }
+    });
+  }
+
+  it('writes a winding\'s turns on the node it feeds, and wraps names at spaces and hyphens', async () => {
     const req = handRequirements();
     const pr = handPlan(req);
-    const figs = {
-      modeName: 'Run',
-      nodes: Object.fromEntries([...pr.rails.map((r) => r.id), 'src', 'tap:sense:6v5'].map((id) => [id, { v: 5, i: 0.123, p: 0.615 }])),
-      stages: Object.fromEntries(pr.best!.stages.map((s) => [s.id, { efficiency: 0.9, loss: 0.1, iin: 0.05, pin: 1.2 }])),
-    };
-    const laid = await layoutTree(buildTreeView(req, pr.rails, pr.best!, figs), elk);
-    const labelled = laid.edges.filter((e) => e.labelBox);
-    expect(labelled.length).toBeGreaterThanOrEqual(3 + 3);
-    for (const e of labelled) for (const n of laid.nodes) expect(overlaps(e.labelBox!, n), `${e.id} label over ${n.id}`).toBe(false);
+    const view = buildTreeView(req, pr.rails, pr.best!);
+    expect(view.edges.every((e) => e.label === '')).toBe(true);
+    expect(view.nodes.some((n) => n.lines.some((l) => /^(primary|secondary|winding) -?\d+ T$/.test(l)))).toBe(true);
+    expect(wrapText('Coupled-winding buck 1V8', 10)).toEqual(['Coupled-', 'winding', 'buck 1V8']);
+    expect(wrapText('Tap 14.5 V for 12V quiet', 10)).toEqual(['Tap 14.5 V', 'for 12V', 'quiet']);
+    expect(shortName('Isolated front end 12V quiet', 'Isolated front end')).toBe('12V quiet');
+    expect(shortName('Tap 7.5 V for Isolated fieldbus 5V', 'Isolated fieldbus')).toBe('Tap 7.5 V for 5V');
+    expect(shortName('Mainline 5V', 'Main')).toBe('Mainline 5V');
   });
 
   it('routes every edge from its source node to its target node', async () => {

@@ -26,8 +26,8 @@ function outSpec(nodeId: Id, v: number, tol: number, imin: number, imax: number,
   return { nodeId, voltage: v as Volts, tolerance: tol as Ratio, currentMin: imin as Amps, currentMax: imax as Amps, rippleLimit: ripple as Volts };
 }
 
-export function bigRequirements(loads: number, seed = 7): Requirements {
-  const req = generateProject({ loads, seed }).requirements;
+export function bigRequirements(loads: number, seed = 7, isolatedDomains?: number): Requirements {
+  const req = generateProject({ loads, seed, ...(isolatedDomains !== undefined ? { isolatedDomains } : {}) }).requirements;
   for (const l of req.loads) {
     if (l.tolerance < 0.03) l.tolerance = 0.03 as Ratio;
     if (l.rippleLimit < 0.01) l.rippleLimit = 0.01 as Volts;

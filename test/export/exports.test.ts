@@ -191,14 +191,17 @@ describe('tree SVG (parsed with fast-xml-parser)', () => {
     const all = texts(doc.svg);
     for (const r of b.result.rails) {
       expect(items.some((d) => d['@data-id'] === r.id && d['@data-kind'] === 'rail'), r.name).toBe(true);
-      const i = all.indexOf(r.name);
+      // Drawn under its name inside the domain box (the domain's words left out, the box says them).
+      const drawn = b.tree.nodes.find((n) => n.id === r.id)!.name;
+      expect(r.name.endsWith(drawn) || r.name === drawn, r.name).toBe(true);
+      const i = all.indexOf(drawn);
       expect(i, r.name).toBeGreaterThanOrEqual(0);
       // The two lines after a rail's name: its voltage, then current · power (drawing rule).
       expect(all[i + 1]).toMatch(/V ±/);
       expect(all[i + 2]).toMatch(/A · .*W$/);
     }
     for (const st of b.plan.stages) {
-      const i = all.indexOf(st.name);
+      const i = all.indexOf(b.tree.nodes.find((n) => n.id === st.id)!.name);
       expect(all[i + 2], st.name).toMatch(/^η \d+\.\d % · loss/);
     }
     // The isolated domain is outlined with a dashed stroke; crossing edges carry the barrier mark.
@@ -214,15 +217,16 @@ describe('tree SVG (parsed with fast-xml-parser)', () => {
     const bb = await prepareExport({ req, result: pr, library: defaultLibraryRows(), elk: new ELK() as unknown as ElkLike });
     const svg = exportTreeSvg(bb);
     const doc = new XMLParser().parse(svg, true) as { svg: { text: unknown[] } };
-    expect(JSON.stringify(doc.svg.text)).toContain('A <b>&\\"quoted\\"\' & odd name');
+    // The control character is shown as an escape (engine/text-rules.ts), not dropped.
+    expect(JSON.stringify(doc.svg.text)).toContain('A <b>&\\"quoted\\"\' & odd\\\\u{1} name');
   });
 });
 
 describe('PDF exports (text extracted with pdfjs-dist)', () => {
   it('tree PDF carries every rail and stage name', async () => {
     const text = await pdfPlainText(await exportTreePdf(b));
-    for (const r of b.result.rails) expect(text, r.name).toContain(r.name);
-    for (const s of b.plan.stages) expect(text).toContain(s.name);
+    // Names as drawn (inside a domain box without the domain's words).
+    for (const n of b.tree.nodes) expect(text, n.title).toContain(n.name);
   });
 
   it('design report has every section, the tables and the safety cautions', async () => {
@@ -266,6 +270,18 @@ describe('magnetic specification sheet', () => {
     const need = Math.max(m.saturationCurrent, peak * 1.3);
     expect(spec!.text).toContain(`≥ ${fmtQty(need, 'A')} (`);
     expect(b.bom.lines.find((l) => l.partClass === 'magnetic-custom')!.rating).toContain(`Isat ≥ ${fmtQty(need, 'A')}`);
+  });
+
+  it('hands the winding shop a core, the turns as wound, the gap, the wire per layer and the assumed tolerances', () => {
+    const [spec] = exportMagneticSpecs(b);
+    const st = b.plan.stages.find((s) => s.kind === 'cwbuck')!;
+    const c = magneticSpec(st.design as CoupledBuckDesign).core!;
+    const md = spec!.text;
+    expect(md).toContain('## Core and construction');
+    expect(md).toContain(`| Turns as wound | ${c.windings.map((w) => Math.abs(w.turns)).join(' : ')}`);
+    expect(md).toContain(c.core.name);
+    for (const k of ['Air gap', 'Window fill', 'Core loss', 'Copper loss', 'Temperature rise', 'Winding order', 'Lp ±20 %', 'Turns-ratio convention']) expect(md).toContain(k);
+    for (const w of c.windings) expect(md).toMatch(new RegExp(`\\| ${w.name} \\| ${Math.abs(w.turns)}`));
   });
 });
 

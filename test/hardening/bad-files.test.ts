@@ -196,9 +196,22 @@ function corpus(): Crafted[] {
       expect: { opens: true, sideFiles: ['-wal', '-journal'] },
     },
     {
+      // A non-empty journal whose first byte is not zero is hot (SQLite's pager.c rule, from
+      // memory): the file may be torn, so it is not read (issue 10; it used to open).
       name: 'garbage hot journal beside the file',
-      make: (p) => { writeFileSync(p, demo); writeFileSync(p + '-journal', random.subarray(0, 8192)); },
+      make: (p) => { writeFileSync(p, demo); writeFileSync(p + '-journal', Buffer.concat([Buffer.from([0xd9]), random.subarray(1, 8192)])); },
+      expect: { refuse: 'side-file', message: /rollback journal \S+-journal \(8192 bytes\)/ },
+    },
+    {
+      // SQLite zeroes the header of a finished (or not yet synced) journal and ignores it.
+      name: 'journal with a zeroed header beside the file',
+      make: (p) => { writeFileSync(p, demo); writeFileSync(p + '-journal', Buffer.concat([Buffer.alloc(512), random.subarray(512, 4096)])); },
       expect: { opens: true, sideFiles: ['-journal'] },
+    },
+    {
+      name: 'non-empty write-ahead log beside the file',
+      make: (p) => { writeFileSync(p, demo); writeFileSync(p + '-wal', random.subarray(0, 4096)); },
+      expect: { refuse: 'side-file', message: /write-ahead log beside it \(\S+-wal, 4096 bytes\)/ },
     },
     { name: 'a symlink to a good project', make: (p) => { writeFileSync(p + '.target', demo); symlinkSync(p + '.target', p); }, expect: { opens: true } },
   ];

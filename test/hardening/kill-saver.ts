@@ -30,7 +30,7 @@ process.stdin.once('data', () => {
   for (let k = 0; ; k++) {
     const { store, hash } = stores[k % STORES]!;
     out(`begin ${hash}`);
-    store.save(file);
+    store.save(file, { overwrite: true }); // several documents replace each other on purpose
     out('end');
   }
 });

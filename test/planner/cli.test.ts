@@ -28,7 +28,9 @@ describe('railwright plan', () => {
       const path = makeProject(dir);
       const c = io();
       const code = await runCli(['plan', path, '--objective', 'loss'], c.io);
-      expect(c.err).toEqual([]);
+      // A project without its own part library is designed with the default library, and says so.
+      expect(c.err.filter((l) => !l.startsWith('note: the project has no part library'))).toEqual([]);
+      expect(c.err.join('\n')).toMatch(/using the default library/);
       const text = c.out.join('\n');
       expect(code).toBe(0);
       expect(text).toMatch(/Reasons:/);
@@ -36,6 +38,9 @@ describe('railwright plan', () => {
       // Isolated domains in the plan: the barrier and the safety caution are printed.
       expect(text).toMatch(/barrier: (basic|functional)/);
       expect(text).toMatch(/Caution: isolation barriers/);
+      // The claim names the space it holds over; "Proved optimal" only with the proof.
+      expect(text).toMatch(/^(Proved optimal;|Best found, not proved optimal \(.+\);)/m);
+      expect(text).toMatch(/^(Proved over|Searched): \d+ rails; feeds: /m);
       const store = ProjectStore.open(path);
       const saved = store.getPlanResult()!;
       expect(saved).not.toBeNull();
@@ -58,9 +63,11 @@ describe('railwright plan', () => {
       const path = makeProject(dir);
       const c = io();
       await runCli(['plan', path, '--json', '--budget-ms', '60000'], c.io);
-      const parsed = JSON.parse(c.out.join('\n')) as { rails: unknown[]; stats: { provedOptimal: boolean } };
+      const parsed = JSON.parse(c.out.join('\n')) as { rails: unknown[]; stats: { provedOptimal: boolean; notProved?: string; space?: { summary: string; candidates: number; designed: number } } };
       expect(parsed.rails.length).toBe(4);
       expect(typeof parsed.stats.provedOptimal).toBe('boolean');
+      expect(parsed.stats.space?.summary).toMatch(/4 rails; feeds: /);
+      expect(parsed.stats.provedOptimal).toBe(parsed.stats.notProved === undefined);
     } finally {
       rmSync(dir, { recursive: true, force: true });
     }

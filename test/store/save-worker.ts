@@ -14,6 +14,7 @@ a.requirements.meta.name = 'A';
 b.requirements.meta.name = 'B';
 const stores = [ProjectStore.fromDocument(a), ProjectStore.fromDocument(b)];
 for (let i = 0; ; i++) {
-  stores[i % 2]!.save(path);
+  // Two documents replacing each other on purpose: overwrite (as after a confirmation).
+  stores[i % 2]!.save(path, { overwrite: true });
   process.stdout.write(`saved ${i}\n`);
 }

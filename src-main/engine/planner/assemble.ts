@@ -2,7 +2,8 @@
  * Turn a selection of blocks into a complete Plan (stages in upstream-first order, internal
  * nodes, score, reasons), and explain infeasibility when no plan exists.
  */
-import type { Id, StageKind } from '../model.ts';
+import { DEFAULT_WINDOW_MARGIN, type Id, type Requirements, type StageKind } from '../model.ts';
+import { formatQuantity } from '../notation.ts';
 import type { Infeasibility, InternalNode, Plan, PlanLabel, PlanStage, Reason } from '../plan-types.ts';
 import { BlockFactory, type Miss } from './candidates.ts';
 import { planScore, type Scorer, type SelectionEval } from './score.ts';
@@ -87,6 +88,29 @@ export function assemblePlan(
       data: { share: myShare, ...(alt ? { alternativeShare: altShare } : {}) },
     });
   }
+  // Margins: a rail whose worst-case window comes within windowMargin × its band half-width
+  // of a band edge is reported as marginal.
+  const share = f.req.limits.windowMargin ?? DEFAULT_WINDOW_MARGIN;
+  sel.evals.forEach((e) => {
+    for (const w of e.windows) {
+      const rail = rails.find((x) => x.id === w.nodeId);
+      if (!rail) continue;
+      const a = Math.abs(rail.voltage);
+      const half = a * rail.tolerance;
+      const lo = Math.min(Math.abs(w.min), Math.abs(w.max)), hi = Math.max(Math.abs(w.min), Math.abs(w.max));
+      const margin = Math.min(lo - (a - half), a + half - hi);
+      if (margin < share * half) {
+        const side = lo - (a - half) <= a + half - hi ? 'lower' : 'upper';
+        reasons.push({
+          code: 'marginal', subjectId: rail.id,
+          text: `${rail.name} is marginal: its worst-case window ${formatQuantity(lo, 'voltage', 4)}…${formatQuantity(hi, 'voltage', 4)} comes within ` +
+            `${formatQuantity(Math.max(0, margin), 'voltage', 3)} of the ${side} edge of its ±${+(rail.tolerance * 100).toPrecision(3)} % band ` +
+            `(${+(100 * Math.max(0, margin) / half).toPrecision(2)} % of the ${formatQuantity(half, 'voltage', 3)} half-width; the margin asked is ${+(share * 100).toPrecision(3)} %)`,
+          data: { margin, halfWidth: half, share },
+        });
+      }
+    }
+  });
   return {
     id, labels, stages, internalNodes,
     score: planScore(sel, scorer),
@@ -94,65 +118,124 @@ export function assemblePlan(
   };
 }
 
-/** Remedies and shortfalls per rail when no plan exists. */
+/**
+ * A remedy to try: its text (with its target numbers) and the change to the requirements it
+ * stands for. The solver offers it only when re-planning with the change applied makes the
+ * rail feasible (or, for a tree-level failure, gives a plan): docs/planner.md.
+ */
+export interface RemedyCandidate {
+  text: string;
+  apply: (req: Requirements) => void;
+}
+
+export interface InfeasibleEntry {
+  inf: Infeasibility;
+  /** The rail to make feasible (index), or undefined for a tree-level failure. */
+  railIndex?: number;
+  candidates: RemedyCandidate[];
+}
+
+const KIND_LABEL: Partial<Record<StageKind, string>> = { cwbuck: 'coupled-winding buck (cwbuck)', buck: 'buck', ldo: 'LDO' };
+
+const v3 = (x: number) => formatQuantity(x, 'voltage', 3);
+
+/** Remedies and shortfalls per rail when no plan exists (remedies still to verify). */
 export function explainInfeasible(
   f: BlockFactory, blocks: readonly Block[], misses: ReadonlyMap<number, Miss[]>,
   leafFailures: ReadonlyMap<string, { count: number; example: NonNullable<SelectionEval['failure']> }>,
-): Infeasibility[] {
+): InfeasibleEntry[] {
   const rails = f.ctx.rails;
-  const out: Infeasibility[] = [];
+  const out: InfeasibleEntry[] = [];
   const allowed = new Set(f.req.preferences.allowedKinds);
   const notAllowed = (['buck', 'cwbuck', 'ldo'] as StageKind[]).filter((k) => !allowed.has(k));
+  const loadsOf = (req: Requirements, railId: string) => req.loads.filter((l) => rails.find((x) => x.id === railId)?.loadIds.includes(l.id));
+  const allowKind = (k: StageKind): RemedyCandidate => ({
+    text: `allow the ${KIND_LABEL[k] ?? k} stage kind`,
+    apply: (req) => { if (!req.preferences.allowedKinds.includes(k)) req.preferences.allowedKinds = [...req.preferences.allowedKinds, k]; },
+  });
   for (let r = 0; r < rails.length; r++) {
     if (blocks.some((b) => b.covers.includes(r))) continue;
     const rail = rails[r]!;
     const ms = misses.get(r) ?? [];
-    const remedies: string[] = [];
-    for (const k of notAllowed) remedies.push(`allow the ${k === 'cwbuck' ? 'coupled-winding buck (cwbuck)' : k} stage kind`);
+    const cands: RemedyCandidate[] = notAllowed.map(allowKind);
     if (!ms.length) {
       const iso = f.isolated(r);
+      const a = Math.abs(rail.voltage);
+      // The headroom a buck from each source would have, and what it needs (output below input).
+      const heads = f.req.sources.map((s) => `${s.name} lowest ${v3(s.vMin)}, headroom ${v3(s.vMin - a)}`);
       const text = iso
-        ? `${rail.name} is in an isolated domain and no allowed stage can cross the barrier to it`
-        : `${rail.name}: no allowed stage kind can make ${rail.voltage} V from the sources or other rails`;
-      out.push({ railId: rail.id, constraint: iso ? 'barrier' : 'no-candidate', shortfall: 0, unit: '', text, remedies: remedies.length ? remedies : ['add a source or a rail of the same domain and sign with a larger voltage'] });
+        ? `${rail.name} (${v3(rail.voltage)}) is in an isolated domain and no allowed stage can cross the barrier to it`
+        : `${rail.name} (${v3(rail.voltage)} ±${+(rail.tolerance * 100).toPrecision(3)} %): no allowed stage can make it: ` +
+          `a buck needs its output below the lowest input (${heads.join('; ')}), an LDO needs a rail of the same domain and sign above ${v3(a)} plus its dropout`;
+      const short = iso ? 0 : Math.max(0, a - Math.max(...f.req.sources.map((s) => s.vMin)));
+      out.push({ inf: { railId: rail.id, constraint: iso ? 'barrier' : 'headroom', shortfall: short, unit: iso ? '' : 'V', text, remedies: [] }, railIndex: r, candidates: cands });
       continue;
     }
     // The nearest miss: the smallest shortfall among constraints with a unit; else the first.
     const withUnit = ms.filter((m) => m.rejection.unit !== '' && m.rejection.shortfall > 0);
     const near = (withUnit.length ? withUnit : ms).reduce((a, b) => (normMiss(b, rail.voltage) < normMiss(a, rail.voltage) ? b : a));
     const rj = near.rejection;
+    const relaxTol = (need: number): RemedyCandidate => {
+      const tol = Math.ceil(need * 1000 - 1e-9) / 1000;
+      return {
+        text: `relax the tolerance of ${rail.name} to ±${+(tol * 100).toPrecision(3)} % (now ±${+(rail.tolerance * 100).toPrecision(3)} %)`,
+        apply: (req) => { for (const l of loadsOf(req, rail.id)) if (l.tolerance < tol) l.tolerance = tol as never; },
+      };
+    };
     if (rj.constraint === 'window') {
       const need = (Math.abs(rail.voltage) * rail.tolerance + rj.shortfall) / Math.abs(rail.voltage);
-      remedies.push(`relax the tolerance of ${rail.name} to ±${(Math.ceil(need * 1000) / 10).toFixed(1)} %`);
-      if (!allowed.has('ldo')) remedies.push('allow LDO post-regulation');
+      cands.push(relaxTol(need));
       if (near.shape.kind === 'cwbuck' && !/behind a tap winding/.test(rj.text)) {
-        remedies.push(`raise maxSecondaries (now ${f.req.preferences.maxSecondaries}) so a tap winding and LDO fit on a shared magnetic`);
+        const m = f.req.preferences.maxSecondaries;
+        cands.push({ text: `raise maxSecondaries to ${m + 1} (now ${m})`, apply: (req) => { req.preferences.maxSecondaries = m + 1; } });
       }
     } else if (rj.constraint === 'ripple') {
-      remedies.push(`relax the ripple limit of ${rail.name} to ${((rail.rippleLimit + rj.shortfall) * 1e3).toFixed(2)} mV`);
-      if (!allowed.has('ldo')) remedies.push('allow LDO post-regulation');
-    } else if (rj.constraint === 'tj') {
-      remedies.push(`lower the load of ${rail.name} or the ambient temperature (Tj over by ${rj.shortfall.toFixed(1)} K)`);
-    } else {
-      remedies.push(`lower the load of ${rail.name}`, `relax the tolerance of ${rail.name}`);
+      const lim = rail.rippleLimit + rj.shortfall;
+      cands.push({
+        text: `relax the ripple limit of ${rail.name} to ${v3(lim)} (now ${v3(rail.rippleLimit)})`,
+        apply: (req) => { for (const l of loadsOf(req, rail.id)) if (l.rippleLimit < lim) l.rippleLimit = lim as never; },
+      });
     }
+    if (rj.constraint === 'tj') {
+      const amb = f.req.limits.ambient - Math.ceil(rj.shortfall);
+      cands.push({ text: `lower the ambient to ${amb} °C (now ${f.req.limits.ambient} °C; Tj over by ${+rj.shortfall.toPrecision(3)} K)`, apply: (req) => { req.limits.ambient = amb as never; } });
+    }
+    cands.push({
+      text: `lower the load of ${rail.name} to half (${formatQuantity(Math.max(...Object.values(rail.current)) / 2, 'current', 3)} at most)`,
+      apply: (req) => { for (const l of loadsOf(req, rail.id)) for (const k of Object.keys(l.current)) l.current[k] = (l.current[k]! / 2) as never; },
+    });
     out.push({
-      railId: rail.id, constraint: rj.constraint, shortfall: rj.shortfall, unit: rj.unit,
-      text: `${rail.name}: every feed fails; the nearest, ${describeShape(f, near.shape)}, fails: ${rj.text}`,
-      remedies,
+      inf: {
+        railId: rail.id, constraint: rj.constraint, shortfall: rj.shortfall, unit: rj.unit,
+        text: `${rail.name}: every feed fails; the nearest, ${describeShape(f, near.shape)}, fails: ${rj.text}`,
+        remedies: [],
+      },
+      railIndex: r, candidates: cands,
     });
   }
   if (!out.length) {
     for (const [k, v] of leafFailures) {
       const railId = v.example.railIndex !== undefined ? rails[v.example.railIndex]!.id : (rails[0]?.id ?? '');
-      const remedies = k === 'source-current'
-        ? ['raise the source current limit', 'lower the loads', 'raise the source minimum voltage']
-        : ['relax the tolerances', `raise maxSecondaries (now ${f.req.preferences.maxSecondaries})`, 'lower the loads'];
-      out.push({ railId, constraint: k, shortfall: v.example.shortfall, unit: v.example.unit, text: `every complete tree fails (${v.count} tried): ${v.example.text}`, remedies });
+      const cands: RemedyCandidate[] = [];
+      if (k === 'source-current') {
+        for (const s of f.req.sources) {
+          const lim = +(s.currentLimit + v.example.shortfall * 1.05).toPrecision(3);
+          cands.push({ text: `raise the current limit of ${s.name} to ${formatQuantity(lim, 'current', 3)} (now ${formatQuantity(s.currentLimit, 'current', 3)})`, apply: (req) => { const x = req.sources.find((y) => y.id === s.id); if (x && x.currentLimit < lim) x.currentLimit = lim as never; } });
+        }
+      } else {
+        const m = f.req.preferences.maxSecondaries;
+        cands.push({ text: `raise maxSecondaries to ${m + 1} (now ${m})`, apply: (req) => { req.preferences.maxSecondaries = m + 1; } });
+      }
+      for (const kind of notAllowed) cands.push(allowKind(kind));
+      out.push({ inf: { railId, constraint: k, shortfall: v.example.shortfall, unit: v.example.unit, text: `every complete tree fails (${v.count} tried): ${v.example.text}`, remedies: [] }, candidates: cands });
     }
   }
   if (!out.length && rails.length) {
-    out.push({ railId: rails[0]!.id, constraint: 'cover', shortfall: 0, unit: '', text: 'no combination of feasible feeds covers every rail exactly once', remedies: [`raise maxSecondaries (now ${f.req.preferences.maxSecondaries})`, 'allow more stage kinds'] });
+    const m = f.req.preferences.maxSecondaries;
+    out.push({
+      inf: { railId: rails[0]!.id, constraint: 'cover', shortfall: 0, unit: '', text: 'no combination of feasible feeds covers every rail exactly once', remedies: [] },
+      candidates: [{ text: `raise maxSecondaries to ${m + 1} (now ${m})`, apply: (req) => { req.preferences.maxSecondaries = m + 1; } }, ...notAllowed.map(allowKind)],
+    });
   }
   return out;
 }

@@ -18,10 +18,11 @@
  *   the engine, and Tj ≤ tjMax − tjMargin.
  */
 import type { Amps, Celsius, Hertz, Ratio, Volts } from '../units.ts';
-import type { Domain, Id, Rail, Requirements, Source, StageKind } from '../model.ts';
+import { DEFAULT_MAX_RECTIFIER_VOLTAGE, DEFAULT_MAX_TURNS_RATIO, type Domain, type Id, type Rail, type Requirements, type Source, type StageKind } from '../model.ts';
 import type { Barrier, InternalNode, PlanOutput, Reason } from '../plan-types.ts';
 import type { OutputSpec, OutputWindow, StageEvaluation, StageSpec } from '../stages/types.ts';
 import { addParts, countParts, emptyParts } from './cost-model.ts';
+import { formatQuantity } from '../notation.ts';
 import type {
   Block, BlockEval, BlockShape, BlockStage, CostModel, FeedInput, PartCounts, PlanContext, Rejection, StageEvaluator,
 } from './types.ts';
@@ -64,6 +65,8 @@ export interface Miss { shape: BlockShape; rejection: Rejection }
 export type BlockResult = { ok: true; eval: BlockEval } | { ok: false; rejections: Rejection[] };
 
 const fmtV = (v: number) => `${Math.round(v * 1000) / 1000} V`;
+/** A miss or a limit in volts with three significant digits (0.39 mV prints as 390 µV, not 0 mV). */
+const fmtQ = (v: number) => formatQuantity(v, 'voltage', 3);
 const fmtA = (v: number) => `${Math.round(v * 1e4) / 1e4} A`;
 const fmtW = (v: number) => `${Math.round(v * 1e4) / 1e4} W`;
 
@@ -74,11 +77,30 @@ export function railBand(r: Rail): { min: number; nom: number; max: number } {
 
 /** Everything the evaluation of shapes needs about one requirements set. */
 export class BlockFactory {
+  /** Cost and count of a block: from the parts its designs name when the cost model can, else by category. */
+  private price(parts: PartCounts, kind: StageKind, stages: readonly BlockStage[]): { cost: number; parts: number } {
+    return this.costModel.priceStages?.(stages) ?? { cost: this.costModel.cost(parts, kind), parts: countParts(parts) };
+  }
+
   readonly ctx: PlanContext;
   private readonly domains: Map<Id, Domain>;
   private readonly sources: Map<Id, Source>;
   private readonly cache = new Map<string, BlockResult>();
   evaluations = 0;
+  /**
+   * Blocks whose loss, cost or part count fell when their downstream load rose: the bounds of
+   * the search assume this never happens, so any entry withdraws the "proved optimal" claim.
+   */
+  readonly boundViolations: { key: string; text: string }[] = [];
+
+  noteBoundViolation(key: string, base: { loss: number; cost: number; parts: number }, loaded: { loss: number; cost: number; parts: number }): void {
+    if (this.boundViolations.length >= 20 || this.boundViolations.some((v) => v.key === key)) return;
+    this.boundViolations.push({
+      key,
+      text: `${key}: with its downstream load the block scores loss ${loaded.loss.toPrecision(4)} W, cost ${loaded.cost.toPrecision(4)}, ${loaded.parts} parts, ` +
+        `below its unloaded loss ${base.loss.toPrecision(4)} W, cost ${base.cost.toPrecision(4)}, ${base.parts} parts`,
+    });
+  }
 
   constructor(
     readonly req: Requirements,
@@ -235,7 +257,7 @@ export class BlockFactory {
       if (p.tj > tjLimit + 1e-9 && !rej.some((r) => r.constraint === 'tj')) {
         rej.push({
           constraint: 'tj', shortfall: p.tj - tjLimit, unit: 'K', rail: railOf(0),
-          text: `${p.role} reaches Tj ${p.tj.toFixed(1)} °C ${where}, above the ${tjLimit} °C limit (tjMax − margin) by ${(p.tj - tjLimit).toFixed(1)} K`,
+          text: `${p.role} reaches Tj ${+p.tj.toPrecision(4)} °C ${where}, above the ${tjLimit} °C limit (tjMax − margin) by ${+(p.tj - tjLimit).toPrecision(3)} K`,
         });
       }
     }
@@ -244,7 +266,7 @@ export class BlockFactory {
       if (o.ripplePP > lim * (1 + 1e-9) && !rej.some((r) => r.constraint === 'ripple' && r.rail === railOf(i))) {
         rej.push({
           constraint: 'ripple', shortfall: o.ripplePP - lim, unit: 'V', rail: railOf(i),
-          text: `ripple ${(o.ripplePP * 1e3).toFixed(2)} mV p-p ${where} exceeds the ${(lim * 1e3).toFixed(2)} mV limit`,
+          text: `ripple ${fmtQ(o.ripplePP)} p-p ${where} exceeds the ${fmtQ(lim)} limit by ${fmtQ(o.ripplePP - lim)}`,
         });
       }
     });
@@ -300,7 +322,7 @@ export class BlockFactory {
         const tol = spec.outputs[i]!.tolerance;
         rej.push({
           constraint: 'window', shortfall: miss, unit: 'V', rail: railOf(i),
-          text: `window ${fmtV(a)}…${fmtV(b)} exceeds ±${+(tol * 100).toFixed(2)} % of ${fmtV(mirror * spec.outputs[i]!.voltage)} by ${(miss * 1000).toFixed(0)} mV (${w.minCorner} / ${w.maxCorner})`,
+          text: `window ${fmtV(a)}…${fmtV(b)} exceeds ±${+(tol * 100).toFixed(2)} % of ${fmtV(mirror * spec.outputs[i]!.voltage)} by ${fmtQ(miss)} (${w.minCorner} / ${w.maxCorner})`,
         });
       }
     });
@@ -352,8 +374,7 @@ export class BlockFactory {
         iinPerMode: run.perMode.map((e) => Math.abs(e.iin)),
         iinAtMin: run.perMode.map((e) => Math.abs(e.iin) * (vin.nom / Math.max(vin.min, 1e-9))),
         pinPerMode: run.perMode.map((e) => Math.abs(e.pin)),
-        cost: this.costModel.cost(parts, shape.kind),
-        parts: countParts(parts),
+        ...this.price(parts, shape.kind, [stage]),
         partCounts: parts,
         stages: [stage],
         internalNodes: [],
@@ -491,12 +512,53 @@ export class BlockFactory {
         if (!changed || !this.req.preferences.allowedKinds.includes('ldo')) return run;
         continue;
       }
-      if (shape.secondaries.length === 1) {
+      const stress = this.windingStress(run.design, shape, (i) => railOf[i]);
+      if (stress) return { ok: false, rejections: [stress] };
+      // The hint is the choice of the unloaded one-secondary block only (a loaded evaluation
+      // must not change where later sets start: the design of a block is a function of it).
+      const loaded = !!extra && [...extra.values()].some((e) => e.some((x) => x > 0));
+      if (shape.secondaries.length === 1 && !loaded) {
         for (const s of shape.secondaries) this.tapHints.set(`${primaryKey}|${s}`, useTap.get(s) ?? -1);
       }
       return { ok: true, eval: this.assembleCoupled(shape, src, vin, spec, run, taps, directMiss, primaryName) };
     }
     return { ok: false, rejections: [{ constraint: 'window', shortfall: 0, unit: 'V', text: 'no tap voltage keeps every secondary inside its window' }] };
+  }
+
+  /**
+   * Engineering limits on a coupled-winding design (design limits, defaults from common
+   * practice): the turns ratio |Ns/Np| of every secondary and its rectifier's reverse voltage.
+   */
+  private windingStress(design: unknown, shape: BlockShape & { kind: 'cwbuck' }, railOf: (i: number) => number | undefined): Rejection | null {
+    const d = design as { primaryTurns?: number; vinMax?: number; outputs?: { voltage: number }[]; secondaries?: { nodeId: string; turns: number; rectifierReverseVoltage: number }[] };
+    if (typeof d?.primaryTurns !== 'number' || !Array.isArray(d.secondaries)) return null;
+    const vpri = Math.abs(d.outputs?.[0]?.voltage ?? 0);
+    const maxRatio = this.req.limits.maxTurnsRatio ?? DEFAULT_MAX_TURNS_RATIO;
+    const maxVr = this.req.limits.maxRectifierVoltage ?? DEFAULT_MAX_RECTIFIER_VOLTAGE;
+    for (let k = 0; k < d.secondaries.length; k++) {
+      const w = d.secondaries[k]!;
+      const rail = railOf(k + 1) ?? shape.secondaries[k];
+      const name = rail !== undefined ? this.ctx.rails[rail]!.name : w.nodeId;
+      const ratio = Math.abs(w.turns) / d.primaryTurns;
+      if (ratio > maxRatio * (1 + 1e-9)) {
+        return {
+          constraint: 'turns-ratio', shortfall: ratio - maxRatio, unit: '', rail,
+          text: `the winding for ${name} needs turns ${d.primaryTurns}:${Math.abs(w.turns)} (ratio 1:${+ratio.toPrecision(3)}), above the 1:${maxRatio} limit of the design limits`,
+        };
+      }
+      // The limit is on the winding's steady reverse voltage n·(Vin,max − Vpri) + |Vout|, the
+      // stress the secondary circuit is built for; the turn-on spike above it is met by the
+      // chosen rectifier's rating (or a snubber) in the stage design.
+      const vout = Math.abs(d.outputs?.[k + 1]?.voltage ?? 0);
+      const steady = typeof d.vinMax === 'number' ? ratio * (d.vinMax - vpri) + vout : w.rectifierReverseVoltage;
+      if (steady > maxVr * (1 + 1e-9)) {
+        return {
+          constraint: 'rectifier-voltage', shortfall: steady - maxVr, unit: 'V', rail,
+          text: `the rectifier of ${name} sees ${fmtQ(steady)} steady reverse voltage at Vin max (turn-on spike ${fmtQ(w.rectifierReverseVoltage)}), above the ${fmtQ(maxVr)} limit of the design limits by ${fmtQ(steady - maxVr)}`,
+        };
+      }
+    }
+    return null;
   }
 
   private assembleCoupled(
@@ -600,8 +662,7 @@ export class BlockFactory {
       loss, lossPerMode, iinPerMode,
       iinAtMin: iinPerMode.map((i) => i * (vin.nom / Math.max(vin.min, 1e-9))),
       pinPerMode,
-      cost: this.costModel.cost(parts, 'cwbuck'),
-      parts: countParts(parts), partCounts: parts,
+      ...this.price(parts, 'cwbuck', stages), partCounts: parts,
       stages, internalNodes, windows, reasons,
       notes: { duty: run.atMin.duty ?? NaN, taps: taps.size },
     };
@@ -664,7 +725,7 @@ export function stageParts(kind: StageKind, secondaries: number): PartCounts {
 }
 
 /** Enumerate the candidate shapes of a requirements set (before evaluation). */
-export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { singles: BlockShape[]; coupled: (size: number) => BlockShape[]; pairShapes: BlockShape[] } {
+export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { singles: BlockShape[]; coupled: (size: number) => Generator<BlockShape>; primaries: { primary: number | null; busVoltage?: number; source: Source }[] } {
   const rails = f.ctx.rails;
   const req = f.req;
   const singles: BlockShape[] = [];
@@ -696,7 +757,6 @@ export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { sin
       }
     }
   }
-  const pairShapes: BlockShape[] = [];
   const primaries: { primary: number | null; busVoltage?: number; source: Source }[] = [];
   if (opts.allowed.has('cwbuck') && opts.maxSecondaries >= 1) {
     for (const s of req.sources) {
@@ -710,29 +770,45 @@ export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { sin
         if (bus > 0) primaries.push({ primary: null, busVoltage: bus, source: s });
       }
     }
-    for (const p of primaries) {
-      for (let j = 0; j < n; j++) {
-        if (j === p.primary) continue;
-        pairShapes.push(cw(p, [j]));
-      }
-    }
   }
-  /** Every shape with `size` secondaries on each primary (generateBlocks filters them a-priori style). */
-  const coupled = (size: number): BlockShape[] => {
-    const out: BlockShape[] = [];
-    if (size > opts.maxSecondaries) return out;
+  /** Every shape with `size` secondaries on each primary, one at a time (no list in memory). */
+  const coupled = function* (size: number): Generator<BlockShape> {
+    if (size > opts.maxSecondaries || size < 1) return;
     for (const p of primaries) {
       const cand: number[] = [];
       for (let j = 0; j < n; j++) if (j !== p.primary) cand.push(j);
-      const rec = (start: number, chosen: number[]) => {
-        if (chosen.length === size) { out.push(cw(p, [...chosen])); return; }
-        for (let q = start; q < cand.length; q++) { chosen.push(cand[q]!); rec(q + 1, chosen); chosen.pop(); }
-      };
-      rec(0, []);
+      if (size > cand.length) continue;
+      // Lexicographic combinations of `size` indices into cand.
+      const idx = Array.from({ length: size }, (_, k) => k);
+      for (;;) {
+        yield cw(p, idx.map((k) => cand[k]!));
+        let k = size - 1;
+        while (k >= 0 && idx[k] === cand.length - size + k) k--;
+        if (k < 0) break;
+        idx[k]!++;
+        for (let q = k + 1; q < size; q++) idx[q] = idx[q - 1]! + 1;
+      }
     }
-    return out;
   };
-  return { singles, coupled, pairShapes };
+  return { singles, coupled, primaries };
+}
+
+/** Size of the decision space: candidate feeds and coupled-winding primaries (counted, not listed). */
+export function spaceSize(f: BlockFactory, opts: GenerationOptions): { candidates: number; primaries: number } {
+  const { singles, primaries } = enumerateShapes(f, opts);
+  const n = f.ctx.rails.length;
+  let candidates = singles.length;
+  for (const p of primaries) {
+    const m = n - (p.primary === null ? 0 : 1);
+    for (let k = 1; k <= Math.min(opts.maxSecondaries, m); k++) candidates += binomial(m, k);
+  }
+  return { candidates, primaries: primaries.length };
+}
+
+function binomial(m: number, k: number): number {
+  let c = 1;
+  for (let i = 1; i <= k; i++) c = (c * (m - k + i)) / i;
+  return Math.round(c);
 }
 
 function cw(p: { primary: number | null; busVoltage?: number; source: Source }, secondaries: number[]): BlockShape {
@@ -759,7 +835,7 @@ export function busVoltageFor(vinMin: number): number {
 export function* generateBlocks(
   f: BlockFactory, opts: GenerationOptions,
   /** Filled as generation goes, so a caller that stops early keeps what was designed. */
-  into: { blocks: Block[]; misses: Map<number, Miss[]> } = { blocks: [], misses: new Map() },
+  into: { blocks: Block[]; misses: Map<number, Miss[]>; designed?: number } = { blocks: [], misses: new Map() },
 ): Generator<void, { blocks: Block[]; misses: Map<number, Miss[]> }> {
   const blocks = into.blocks;
   const misses = into.misses;
@@ -772,33 +848,40 @@ export function* generateBlocks(
       misses.set(rail, list);
     }
   };
+  into.designed = 0;
   const add = (shape: BlockShape): boolean => {
     const res = f.evaluate(shape);
+    into.designed = (into.designed ?? 0) + 1;
     if (!res.ok) { noteMiss(shape, res.rejections); return false; }
     blocks.push({ index: blocks.length, key: BlockFactory.shapeKey(shape), shape, covers: BlockFactory.covers(shape), base: res.eval, score: 0 });
     return true;
   };
-  const { singles, coupled, pairShapes } = enumerateShapes(f, opts);
+  const { singles, coupled } = enumerateShapes(f, opts);
   for (const s of singles) { add(s); yield; }
-  // A set of k secondaries on a primary is tried only if each of its subsets of k − 1 was
-  // feasible on that primary (a-priori rule). Feasible winding sets per primary, by size (input source folded into the primary key).
-  const feasibleSets = new Set<string>();
-  const setKey = (s: BlockShape & { kind: 'cwbuck' }) => `${s.input.id}|${s.primary ?? `bus${s.busVoltage}`}|${s.secondaries.join(',')}`;
-  for (const s of pairShapes) {
-    if (s.kind === 'cwbuck' && opts.maxSecondaries >= 1 && add(s)) feasibleSets.add(setKey(s));
-    yield;
+  // Every winding set from 1 to maxSecondaries secondaries on every primary. No set is
+  // skipped: a set whose subsets all miss can still be feasible (a ±12 V pair on a 5 V primary
+  // where each winding alone misses its window), so no subset rule is sound for the engine
+  // (docs/planner.md). The subset rule only orders the work, so that a budget cut keeps the
+  // likeliest sets: first every one-secondary set, then by size the sets whose subsets of one
+  // fewer secondary all designed, then by size every other set.
+  const feasible = new Set<string>();
+  const designed = new Set<string>();
+  const key = (s: BlockShape) => BlockFactory.shapeKey(s);
+  const promising = (s: BlockShape & { kind: 'cwbuck' }) =>
+    s.secondaries.every((_, d) => feasible.has(key({ ...s, secondaries: s.secondaries.filter((__, k) => k !== d) })));
+  const design = (s: BlockShape) => { designed.add(key(s)); if (add(s)) feasible.add(key(s)); };
+  for (const s of coupled(1)) { design(s); yield; }
+  for (let size = 2; size <= opts.maxSecondaries; size++) {
+    for (const s of coupled(size)) {
+      if (s.kind !== 'cwbuck' || !promising(s)) continue;
+      design(s);
+      yield;
+    }
   }
   for (let size = 2; size <= opts.maxSecondaries; size++) {
-    const level = coupled(size);
-    const okSet = (sh: BlockShape & { kind: 'cwbuck' }) => feasibleSets.has(setKey(sh));
-    for (const s of level) {
-      if (s.kind !== 'cwbuck') continue;
-      let ok = true;
-      for (let drop = 0; drop < s.secondaries.length && ok; drop++) {
-        ok = okSet({ ...s, secondaries: s.secondaries.filter((_, k) => k !== drop) });
-      }
-      if (!ok) continue;
-      if (add(s)) feasibleSets.add(setKey(s));
+    for (const s of coupled(size)) {
+      if (designed.has(key(s))) continue;
+      design(s);
       yield;
     }
   }

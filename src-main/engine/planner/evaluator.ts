@@ -10,12 +10,23 @@
 import { designStage, evaluateStage, stageWindows, type StageDesign } from '../stages/index.ts';
 import type { StageEvaluation } from '../stages/types.ts';
 import type { StageEvaluator } from './types.ts';
+import type { LibraryRow } from '../library.ts';
+import type { Ratio } from '../units.ts';
+import type { RatingMargins } from '../stages/part-choice.ts';
 
-export function engineEvaluator(): StageEvaluator {
+/**
+ * With a library, every stage is designed with the project's parts (their parameters drive
+ * the evaluation, and the BOM lists the same rows); without one, the generic defaults.
+ */
+export function engineEvaluator(opts: { library?: readonly LibraryRow[]; margins?: Partial<RatingMargins>; electrolyticDerating?: number } = {}): StageEvaluator {
   const evaluations = new WeakMap<object, Map<string, StageEvaluation>>();
   return {
     design(spec) {
-      const r = designStage(spec);
+      const r = designStage(opts.library ? {
+        ...spec, library: opts.library,
+        ...(opts.margins ? { margins: opts.margins } : {}),
+        ...(opts.electrolyticDerating !== undefined ? { electrolyticDerating: opts.electrolyticDerating as Ratio } : {}),
+      } : spec);
       return r.ok ? { ok: true, design: r.design } : { ok: false, flags: r.flags };
     },
     evaluate(design, op) {

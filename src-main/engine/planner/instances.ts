@@ -72,3 +72,50 @@ export function randomRequirements(o: InstanceOptions): Requirements {
     },
   };
 }
+
+/**
+ * An invented instance with a pair of isolated windings of opposite sign (±V) on a low
+ * primary, where the pair can design on one magnetic while each winding alone may miss its
+ * window (issue 11: winding sets feasible only together), plus up to `extra` further rails.
+ */
+export function pairedWindingRequirements(seed: number, extra = 1): Requirements {
+  const rnd = seededRandom(seed * 104729 + 17);
+  const pick = <T>(xs: readonly T[]): T => xs[Math.floor(rnd() * xs.length)]!;
+  const vpair = pick([12, 12, 15, 10]);
+  const tol = pick([0.06, 0.07, 0.08, 0.09, 0.1]);
+  const vnom = pick([12, 12, 15, 24]);
+  const vmin = vnom * pick([0.8, 0.83, 0.85]);
+  const vmax = vnom * pick([1.15, 1.17, 1.2]);
+  const ipair = 0.05 + rnd() * 0.1;
+  const load = (id: string, domainId: string, v: number, t: number, i: number, noise: NoiseClass = 'standard'): Load => ({
+    id, name: `load ${id}`, domainId, voltage: v as Volts, tolerance: t as Ratio,
+    current: { run: i as Amps, idle: (i * 0.3) as Amps }, rippleLimit: 0.1 as Volts, noiseClass: noise,
+  });
+  const loads: Load[] = [
+    load('P', 'main', pick([5, 5, 3.3]), 0.05, 0.1 + rnd() * 0.3),
+    load('A', 'iso', vpair, tol, ipair),
+    load('B', 'iso', -vpair, tol, ipair * (0.7 + rnd() * 0.6)),
+  ];
+  const extras: [string, number][] = [['main', 1.8], ['main', 3.3], ['iso', 5], ['main', 1.2]];
+  for (let k = 0; k < extra; k++) {
+    const [d, v] = extras[Math.floor(rnd() * extras.length)]!;
+    if (loads.some((l) => l.domainId === d && l.voltage === v)) continue;
+    loads.push(load(`X${k}`, d, v, pick([0.03, 0.05]), 0.05 + rnd() * 0.2));
+  }
+  return {
+    meta: { name: `paired windings seed ${seed}`, description: 'Invented paired-winding instance for planner tests', revision: 1 },
+    sources: [{ id: 'in', name: 'Input', vNom: vnom as Volts, vMin: vmin as Volts, vMax: vmax as Volts, currentLimit: 5 as Amps }],
+    domains: [
+      { id: 'main', name: 'Main', isolation: 'none', workingVoltage: 0 as Volts },
+      { id: 'iso', name: 'Iso', isolation: 'functional', workingVoltage: 60 as Volts },
+    ],
+    modes: [{ id: 'run', name: 'run', share: 0.9 as Ratio }, { id: 'idle', name: 'idle', share: 0.1 as Ratio }],
+    loads, limits: { ...DEFAULT_LIMITS },
+    preferences: {
+      ...DEFAULT_PREFERENCES,
+      maxSecondaries: 2,
+      allowedKinds: rnd() < 0.5 ? ['buck', 'cwbuck'] : ['buck', 'cwbuck', 'ldo'],
+      switchingFrequency: 400e3 as Hertz,
+    },
+  };
+}

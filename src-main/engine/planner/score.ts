@@ -12,7 +12,7 @@
  */
 import type { Requirements } from '../model.ts';
 import type { PlanScore } from '../plan-types.ts';
-import type { Amps, Watts } from '../units.ts';
+import type { Watts } from '../units.ts';
 import type { BlockFactory } from './candidates.ts';
 import type { Block, BlockEval, CostModel, PlanContext } from './types.ts';
 
@@ -133,6 +133,10 @@ export function evaluateSelection(f: BlockFactory, sel: readonly Block[], opts: 
       const rj = res.rejections[0]!;
       return fail(rj.constraint, `with the load of the stages it feeds, ${rj.text}`, rj.shortfall, rj.unit, rj.rail);
     }
+    // The search's bounds assume a block's loss, cost and part count do not fall when its
+    // downstream load rises; every evaluation with a downstream load checks it.
+    const e = res.eval, e0 = b.base;
+    if (e.loss < e0.loss - 1e-9 * Math.max(1, e0.loss) || e.cost < e0.cost - 1e-9 || e.parts < e0.parts) f.noteBoundViolation(b.key, e0, e);
     evals[i] = res.eval;
   }
   // Source current limits at each source's lowest voltage, every mode.
@@ -155,60 +159,3 @@ export function planScore(s: { loss: number; cost: number; parts: number }, scor
 }
 
 export type { BlockFactory };
-
-/**
- * Share of the smallest solo increment used as the coupling floor. The increment is computed
- * with the feeder's own design; the design the feeder gets for the larger load may differ a
- * little, so only half of it is trusted (a margin, not a measured figure).
- */
-export const COUPLING_FLOOR_SHARE = 0.5;
-
-/**
- * Coupling floor of each block fed from a rail: a lower bound of the loss its input current
- * adds to whichever block feeds that rail, as a weighted score. For each candidate feeder B of
- * the rail: the loss increase of B's stage that outputs the rail, evaluated with that stage's
- * design at each mode's currents plus this block's input current; the floor is the smallest over
- * all feeders, times COUPLING_FLOOR_SHARE. With losses convex in the load current, the solo
- * increments of several blocks on one feeder add up to no more than their joint increment, so
- * the floors of a tree never exceed its coupling cost. Blocks fed from a source get 0. In watts
- * (mode-weighted); floorScores turns them into weighted scores.
- */
-export function couplingFloorsW(f: BlockFactory, blocks: readonly Block[]): number[] {
-  const rails = f.ctx.rails;
-  const shares = f.ctx.shares;
-  const ambient = f.req.limits.ambient;
-  const byRail = new Map<number, Block[]>();
-  for (const b of blocks) for (const r of b.covers) byRail.set(r, [...(byRail.get(r) ?? []), b]);
-  return blocks.map((b) => {
-    if (b.shape.input.kind !== 'rail') return 0;
-    const R = b.shape.input.rail;
-    const railId = rails[R]!.id;
-    let min = Infinity;
-    for (const B of byRail.get(R) ?? []) {
-      const st = B.base.stages.find((s) => s.outputs.some((o) => o.nodeId === railId));
-      const k = st ? st.outputs.findIndex((o) => o.nodeId === railId) : -1;
-      if (!st || k < 0 || !st.modeCurrents || !st.lossPerMode) { min = 0; break; }
-      let inc = 0;
-      for (let m = 0; m < shares.length; m++) {
-        const iout = st.modeCurrents[m]!.slice();
-        iout[k] = iout[k]! + b.base.iinPerMode[m]!;
-        try {
-          const ev = f.evaluator.evaluate(st.design, { vin: st.spec.vinNom, iout: iout as Amps[], ambient });
-          inc += (shares[m] ?? 0) * Math.max(0, ev.loss - st.lossPerMode[m]!);
-        } catch {
-          inc = 0;
-          break;
-        }
-      }
-      if (inc < min) min = inc;
-      if (min === 0) break;
-    }
-    if (!Number.isFinite(min)) min = 0;
-    return COUPLING_FLOOR_SHARE * min;
-  });
-}
-
-/** Coupling floors (watts, from couplingFloorsW) as weighted scores. */
-export function floorScores(floorsW: readonly number[], scorer: Scorer): number[] {
-  return floorsW.map((w) => (scorer.weights.loss * w) / scorer.norm.loss);
-}

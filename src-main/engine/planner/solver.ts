@@ -13,11 +13,12 @@
  */
 import { groupRails } from '../rails.ts';
 import type { Rail, Requirements, StageKind } from '../model.ts';
-import type { Infeasibility, Plan, PlanLabel, PlanResult } from '../plan-types.ts';
-import { assemblePlan, explainInfeasible } from './assemble.ts';
-import { BlockFactory, generateBlocks, type GenerationOptions, type Miss } from './candidates.ts';
+import type { Infeasibility, Plan, PlanLabel, PlanResult, PlanSpace } from '../plan-types.ts';
+import { assemblePlan, explainInfeasible, type InfeasibleEntry } from './assemble.ts';
+import { BlockFactory, generateBlocks, spaceSize, type GenerationOptions, type Miss } from './candidates.ts';
 import { inventedCostModel } from './cost-model.ts';
-import { couplingFloorsW, floorScores, makeScorer, OBJECTIVES, type Objective, type Scorer, type SelectionEval } from './score.ts';
+import { generationOptions, railHasFeed } from './remedies.ts';
+import { makeScorer, OBJECTIVES, type Objective, type Scorer, type SelectionEval } from './score.ts';
 import { branchAndBound, MAX_RAILS, type SearchOutcome } from './search.ts';
 import type { Block, CostModel, StageEvaluator } from './types.ts';
 
@@ -34,6 +35,8 @@ export interface PlannerOptions {
   now?: () => number;
   /** Search only the chosen objective (no alternatives). */
   singleObjective?: boolean;
+  /** Check each remedy by re-planning before offering it (default true). */
+  verifyRemedies?: boolean;
 }
 
 export type PlannerPhase = 'rails' | 'candidates' | 'search' | 'done';
@@ -54,6 +57,9 @@ export interface PlanProgress {
 export const EXACT_RAILS = 12;
 /** Safety cap of an exact run (it never hangs). */
 export const EXACT_SEARCH_CAP_MS = 60_000;
+
+/** Share of the budget candidate design may use before the search starts with what it has. */
+export const DESIGN_SHARE = 0.6;
 
 /** Node cap of the source-only seeding search. */
 const SEED_SEARCH_NODES = 20_000;
@@ -103,6 +109,12 @@ export class PlanSolver {
    */
   private get deadline(): number { return this.t0 + Math.min(this.budgetMs, EXACT_SEARCH_CAP_MS); }
 
+  /**
+   * Candidate design may use DESIGN_SHARE of the budget; the rest is kept for the search, so a
+   * large space cut by the budget still gets searched (anytime) rather than left unsearched.
+   */
+  private get designDeadline(): number { return this.t0 + DESIGN_SHARE * Math.min(this.budgetMs, EXACT_SEARCH_CAP_MS); }
+
   cancel(): void { this.cancelled = true; }
 
   get done(): boolean { return this.result !== null; }
@@ -114,12 +126,12 @@ export class PlanSolver {
       if (this.cancelled) { this.finish(); return true; }
       if (!this.advance()) return true;
       // A candidate design can take tens of milliseconds: look at the clock after each one.
-      if (this.progress.phase === 'candidates' && this.now() > this.deadline) break;
+      if (this.progress.phase === 'candidates' && this.now() > this.designDeadline) break;
     }
-    if (this.progress.phase === 'candidates' && this.gen && this.now() > this.deadline) {
+    if (this.progress.phase === 'candidates' && this.gen && this.now() > this.designDeadline) {
       // Out of time while designing candidates: search with the blocks designed so far.
       this.allComplete = false;
-      this.trace.push(`budget of ${this.budgetMs} ms reached while designing candidates; searching the ${this.factory?.evaluations ?? 0} designed so far`);
+      this.trace.push(`${Math.round(DESIGN_SHARE * 100)} % of the ${this.budgetMs} ms budget used while designing candidates; searching the ${this.genState?.designed ?? 0} of ${this.space?.candidates ?? 0} designed so far`);
       this.gen = null;
       this.candidatesCut = true;
       this.startSearches();
@@ -218,14 +230,18 @@ export class PlanSolver {
     }
     this.trace.push(`${this.rails.length} rails from ${req.loads.length} loads`);
     this.factory = new BlockFactory(req, this.rails, this.options.evaluator, this.costModel);
-    const genOpts: GenerationOptions = {
-      allowRailFeeds: this.options.allowRailFeeds ?? true,
-      maxSecondaries: Math.max(0, Math.floor(req.preferences.maxSecondaries)),
-      allowed: new Set<StageKind>(req.preferences.allowedKinds.filter((k) => k === 'buck' || k === 'cwbuck' || k === 'ldo')),
-    };
+    const genOpts: GenerationOptions = generationOptions(req, this.options.allowRailFeeds ?? true);
     const ignored = req.preferences.allowedKinds.filter((k) => k !== 'buck' && k !== 'cwbuck' && k !== 'ldo');
     if (ignored.length) this.trace.push(`stage kinds not modelled by the planner and left out: ${ignored.join(', ')}`);
-    this.gen = generateBlocks(this.factory, genOpts, { blocks: this.blocks, misses: this.misses });
+    const size = spaceSize(this.factory, genOpts);
+    this.space = {
+      summary: '',
+      kinds: [...genOpts.allowed], notModelled: ignored as StageKind[], railFeeds: genOpts.allowRailFeeds,
+      maxSecondaries: genOpts.allowed.has('cwbuck') ? genOpts.maxSecondaries : 0,
+      primaries: size.primaries, candidates: size.candidates, designed: 0,
+    };
+    this.genState = { blocks: this.blocks, misses: this.misses, designed: 0 };
+    this.gen = generateBlocks(this.factory, genOpts, this.genState);
     this.progress = { phase: 'candidates', fraction: 0.01, candidates: 0, explored: 0, message: 'designing candidate stages' };
     return true;
   }
@@ -262,16 +278,16 @@ export class PlanSolver {
       }
     }
     const out: SearchOutcome = { best: null, explored: 0, leaves: 0, complete: false, leafFailures: new Map() };
-    this.floorsW ??= couplingFloorsW(f, this.blocks);
-    this.search = { objective: obj, scorer, it: branchAndBound(f, this.blocks, scorer, seed, out, floorScores(this.floorsW, scorer)), deadline: this.now() + share, out };
+    this.search = { objective: obj, scorer, it: branchAndBound(f, this.blocks, scorer, seed, out), deadline: this.now() + share, out };
     this.progress = { ...this.progress, objective: obj, message: `searching for the ${LABEL_OF[obj]} plan` };
     this.pendingSeed = seed;
   }
 
+  private space: PlanSpace | null = null;
+  private genState: { blocks: Block[]; misses: Map<number, Miss[]>; designed?: number } | null = null;
   private pendingSeed: Seed | null = null;
   private seenBest: SearchOutcome['best'] = null;
   private candidatesCut = false;
-  private floorsW: number[] | null = null;
   private firstFeasibleMs: number | undefined;
   private bestFoundMs: number | undefined;
 
@@ -296,6 +312,39 @@ export class PlanSolver {
     }
     this.progress.fraction = Math.min(0.99, this.progress.fraction + 0.12);
     this.progress.incumbent = chosen ? chosen.sel.evals.reduce((a, e) => a + s.scorer.score(e), 0) : undefined;
+  }
+
+  /**
+   * Keep only the remedies that work: each is applied to a copy of the requirements and
+   * checked by re-planning (the rail's feeds, or the whole tree for a tree-level failure)
+   * within what is left of the budget (at most 10 s); a remedy not confirmed in time is left out.
+   */
+  private verifyRemedies(entries: InfeasibleEntry[]): void {
+    if (this.options.verifyRemedies === false) {
+      for (const e of entries) e.inf.remedies = e.candidates.map((c) => c.text);
+      return;
+    }
+    // Within the budget: the checks use what the planning left, at most 10 s.
+    const total = Math.max(0, Math.min(10_000, this.deadline - this.now()));
+    const deadline = this.now() + total;
+    const count = entries.reduce((a, e) => a + e.candidates.length, 0) || 1;
+    const each = total / count;
+    for (const e of entries) {
+      for (const c of e.candidates) {
+        const req = structuredClone(this.req);
+        c.apply(req);
+        const until = Math.min(deadline, this.now() + each);
+        let ok = false;
+        if (e.railIndex !== undefined) {
+          ok = railHasFeed(req, e.inf.railId, this.options.evaluator, this.costModel, this.options.allowRailFeeds ?? true, until, this.now) === 'yes';
+        } else {
+          const r = new PlanSolver(req, { ...this.options, budgetMs: Math.max(1, until - this.now()), singleObjective: true, verifyRemedies: false }).solve();
+          ok = r.best !== null;
+        }
+        if (ok) e.inf.remedies.push(c.text);
+        this.trace.push(`remedy "${c.text}" for ${e.inf.railId || 'the tree'}: ${ok ? 'verified, offered' : 'does not help within its check, not offered'}`);
+      }
+    }
   }
 
   private buildPlan(obj: Objective): Plan {
@@ -335,13 +384,26 @@ export class PlanSolver {
       if (this.candidatesCut) {
         infeasible.push({
           railId: this.rails[0]?.id ?? '', constraint: 'budget', shortfall: 0, unit: '',
-          text: `the time budget (${this.budgetMs} ms) ran out after ${this.factory.evaluations} stage designs, before every candidate was designed; the reasons below cover only those`,
+          text: `the design share (${Math.round(DESIGN_SHARE * 100)} %) of the time budget (${this.budgetMs} ms) ran out after ${this.genState?.designed ?? 0} of ${this.space?.candidates ?? 0} candidate feeds (${this.factory.evaluations} stage designs); the reasons below cover only those`,
           remedies: ['raise the time budget (--budget-ms)'],
         });
       }
-      infeasible.push(...explainInfeasible(this.factory, this.blocks, this.misses, this.leafFailures));
+      const entries = explainInfeasible(this.factory, this.blocks, this.misses, this.leafFailures);
+      this.verifyRemedies(entries);
+      infeasible.push(...entries.map((e) => e.inf));
     }
-    const provedOptimal = !this.cancelled && this.allComplete && this.found.get(this.objective)?.complete === true;
+    const violations = this.factory?.boundViolations ?? [];
+    const provedOptimal = !this.cancelled && this.allComplete && this.found.get(this.objective)?.complete === true && violations.length === 0;
+    const space = this.space ? { ...this.space, designed: this.genState?.designed ?? 0 } : null;
+    if (space) space.summary = spaceSummary(space, this.rails.length);
+    let notProved: string | undefined;
+    if (best && !provedOptimal) {
+      notProved = this.cancelled ? 'planning was cancelled before the search finished'
+        : this.candidatesCut ? `the design share of the time budget (${this.budgetMs} ms) ran out after ${space?.designed ?? 0} of ${space?.candidates ?? 0} candidate feeds were designed`
+        : violations.length ? `a bound the search relies on failed: ${violations[0]!.text}`
+        : `the time budget (${this.budgetMs} ms) ran out before the search finished`;
+    }
+    if (violations.length) this.trace.push(`bound assumption failed on ${violations.length} block(s): ${violations.map((v) => v.text).join('; ')}`);
     this.best = best;
     this.result = {
       revision: this.req.meta.revision,
@@ -353,11 +415,28 @@ export class PlanSolver {
         explored: this.explored, provedOptimal, elapsedMs, cancelled: this.cancelled,
         ...(best && this.firstFeasibleMs !== undefined ? { firstFeasibleMs: this.firstFeasibleMs } : {}),
         ...(best && this.bestFoundMs !== undefined ? { bestFoundMs: this.bestFoundMs } : {}),
+        ...(space ? { space } : {}),
+        ...(notProved ? { notProved } : {}),
       },
     };
     this.progress = { ...this.progress, phase: 'done', fraction: 1, message: best ? 'plan ready' : (this.cancelled ? 'cancelled' : 'no feasible plan') };
     this.trace.push(`done in ${elapsedMs.toFixed(1)} ms: ${best ? `best weighted ${best.score.weighted.toFixed(4)}, ${plans.length} alternative(s)` : 'no plan'}${provedOptimal ? ', proved optimal' : ''}`);
   }
+}
+
+const KIND_WORD: Record<StageKind, string> = { buck: 'buck', ldo: 'LDO', cwbuck: 'coupled-winding buck', 'iso-module': 'isolated module', 'load-switch': 'load switch' };
+
+/** The decision space in one line (docs/planner.md states it in full). */
+export function spaceSummary(s: PlanSpace, rails: number): string {
+  const kinds = s.kinds.map((k) => KIND_WORD[k]);
+  const parts = [`${rails} rails`, `feeds: ${kinds.join(', ') || 'none'}`];
+  if (s.kinds.includes('cwbuck')) {
+    parts.push(`coupled-winding: ${s.primaries} primaries (a rail or an internal bus) × every set of 1–${s.maxSecondaries} secondaries, each direct or tap + LDO`);
+  }
+  parts.push(s.railFeeds ? 'stages fed from rails allowed' : 'every stage fed from a source');
+  parts.push(s.designed >= s.candidates ? `${s.candidates} candidate feeds, all designed` : `${s.designed} of ${s.candidates} candidate feeds designed`);
+  if (s.notModelled.length) parts.push(`not modelled: ${s.notModelled.map((k) => KIND_WORD[k]).join(', ')}`);
+  return parts.join('; ');
 }
 
 /** Plan in one call. */

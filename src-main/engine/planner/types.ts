@@ -45,6 +45,12 @@ export interface CostModel {
   /** Cost of a reference plan stage (one buck), used to normalise the weighted score. */
   referenceStageCost: number;
   referenceStageParts: number;
+  /**
+   * Cost and part count of a block's stages from the parts their designs name (the same
+   * function the BOM lists them with), when the model is the project's part library. The
+   * planner then ranks trees by the numbers the BOM will show.
+   */
+  priceStages?(stages: readonly BlockStage[]): { cost: number; parts: number };
 }
 
 /** Where a block draws its power. */

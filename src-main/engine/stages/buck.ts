@@ -5,10 +5,14 @@
  * are common practice (DESIGN.md §4), each reported separately.
  */
 import type { Amps, Celsius, Henries, Hertz, Ohms, Ratio, Volts, Watts } from '../units.ts';
-import type { OperatingPoint, OutputSpec, StageEvaluation, StageFlag, StageSpec } from './types.ts';
+import type { OperatingPoint, OutputSpec, OutputWindow, StageEvaluation, StageFlag, StageSpec } from './types.ts';
 import { bestDivider, nearest, type DividerChoice } from '../eseries.ts';
 import { GENERIC_DEFAULTS, diodeVf, type ControllerParams, type DiodeModel, type SwitchParams } from './defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from './common.ts';
+import { chooseCeramicRow, chooseInductor, chooseSwitcher, cheapestResistorOfGrade, vrefToleranceOf, type StagePartRef } from './part-choice.ts';
+import type { LibraryRow } from '../library.ts';
+// windows.ts imports this module too; each side uses the other only inside functions.
+import { stageWindows } from './windows.ts';
 
 export interface ThermalParams {
   highSide: number;
@@ -45,6 +49,32 @@ export interface SwitchingDesignBase {
   controller: ControllerParams;
   thetaJA: ThermalParams;
   tjMax: Celsius;
+  /**
+   * True when controller and switches are one package (an integrated regulator): they then
+   * share one junction temperature, from the sum of their losses.
+   */
+  integrated?: boolean;
+  /** The library rows the design was built from (absent: generic defaults from memory). */
+  parts?: StagePartRef[];
+}
+
+/** Where a design's thermal resistances came from. */
+export function thetaSourceOf(d: { parts?: StagePartRef[] }): 'library' | 'default-from-memory' {
+  return d.parts && d.parts.length > 0 ? 'library' : 'default-from-memory';
+}
+
+/**
+ * The dissipating parts of the switch pair and controller: one package with one Tj when the
+ * switches are integrated, three otherwise.
+ */
+export function switchingParts(d: SwitchingDesignBase, hs: number, ls: number, ctl: number, ta: number) {
+  const src = thetaSourceOf(d);
+  if (d.integrated) return [part('regulator (integrated switches)', hs + ls + ctl, d.thetaJA.controller, ta, src)];
+  return [
+    part('high-side switch', hs, d.thetaJA.highSide, ta, src),
+    part('low-side switch', ls, d.thetaJA.lowSide, ta, src),
+    part('controller', ctl, d.thetaJA.controller, ta, src),
+  ];
 }
 
 export interface BuckDesign extends SwitchingDesignBase {
@@ -140,9 +170,10 @@ export function evaluateBuck(d: BuckDesign, op: OperatingPoint): StageEvaluation
   const ripplePP = ripple * d.cout.esr + ripple / (8 * fsw * d.cout.effective);
   const ta = op.ambient as number;
   const parts = [
-    part('high-side switch', loss['hs-conduction']! + loss['hs-switching']! + loss['output-capacitance']! / 2, d.thetaJA.highSide, ta),
-    part('low-side switch', loss['ls-conduction']! + loss['dead-time']! + loss['output-capacitance']! / 2, d.thetaJA.lowSide, ta),
-    part('controller', loss['gate-drive']! + loss.quiescent!, d.thetaJA.controller, ta),
+    ...switchingParts(d,
+      loss['hs-conduction']! + loss['hs-switching']! + loss['output-capacitance']! / 2,
+      loss['ls-conduction']! + loss['dead-time']! + loss['output-capacitance']! / 2,
+      loss['gate-drive']! + loss.quiescent!, ta),
     part('inductor', loss['inductor-copper']! + loss['inductor-core']!, d.thetaJA.inductor, ta),
   ];
   const outputs = [{ nodeId: d.outputs[0]!.nodeId, voltage: p.vout as Volts, current: io as Amps, ripplePP: ripplePP as Volts }];
@@ -230,7 +261,13 @@ export function specErrors(spec: StageSpec): StageFlag[] {
   return out;
 }
 
-export function designBuck(spec: StageSpec): { ok: true; design: BuckDesign; reasons: string[]; flags: StageFlag[] } | { ok: false; flags: StageFlag[] } {
+type BuckResult = { ok: true; design: BuckDesign; reasons: string[]; flags: StageFlag[] } | { ok: false; flags: StageFlag[] };
+
+/** One grade of the feedback network: divider resistor tolerance and the reference's at most. */
+interface FeedbackGrade { resistorTolerance: number; vrefToleranceMax?: number }
+
+/** One buck design at a given switching frequency and feedback grade. */
+function designBuckAt(spec: StageSpec, fswIn: number, grade: FeedbackGrade): BuckResult {
   const bad = specErrors(spec);
   if (bad.length) return { ok: false, flags: bad };
   if (spec.outputs.length !== 1) return { ok: false, flags: [flag('bad-input', 'error', `a buck has exactly one output (got ${spec.outputs.length})`, { field: 'outputs' })] };
@@ -241,54 +278,238 @@ export function designBuck(spec: StageSpec): { ok: true; design: BuckDesign; rea
   if (vout >= spec.vinMin) {
     return { ok: false, flags: [flag('no-headroom', 'error', `output ${r3(vout)} V is not below the lowest input ${r3(spec.vinMin)} V`, { vout, vinMin: spec.vinMin })] };
   }
-  const ctl: ControllerParams = { ...GENERIC_DEFAULTS.controller };
-  const divider = bestDivider(vout, ctl.vref);
-  if (!divider) return { ok: false, flags: [flag('below-reference', 'error', `output ${r3(vout)} V is not above the ${ctl.vref} V reference`, { vout, vref: ctl.vref })] };
-  reasons.push(`feedback divider ${divider.rTop} Ω / ${divider.rBottom} Ω (E96) gives ${r3(divider.vout)} V, error ${r3(divider.error * 100)} %`);
-  const fsw = spec.fsw as number;
+  const fsw = fswIn;
   const imax = Math.max(o.currentMax as number, 0.05);
   const target = GENERIC_DEFAULTS.rippleTarget;
   const dMax = vout / spec.vinMax;
   const lCalc = ((spec.vinMax - vout) * dMax) / (target * imax * fsw);
-  const L = nearest('E12', lCalc);
-  reasons.push(`L = ${r3(L * 1e6)} µH (E12) for ${target * 100} % ripple of ${r3(imax)} A at Vin ${r3(spec.vinMax)} V (calculated ${r3(lCalc * 1e6)} µH)`);
+  let L = nearest('E12', lCalc);
+  const lib = spec.library;
+  // With a library the inductance must be one a library inductor offers: the E12 values
+  // nearest the target first, within a ripple of about 15–80 % of the load [common practice].
+  let inductorPick: ReturnType<typeof chooseInductor> | null = null;
+  if (lib) {
+    const tried: number[] = [];
+    for (const k of [1, 1.2, 0.82, 1.5, 0.68, 1.8, 0.56, 2.2, 0.47]) {
+      const Lk = nearest('E12', L * k);
+      if (tried.includes(Lk)) continue;
+      tried.push(Lk);
+      const rip = ((spec.vinMax - vout) * dMax) / (Lk * fsw);
+      const pick = chooseInductor(lib, Lk, (imax + rip / 2) * (1 + GENERIC_DEFAULTS.saturationMargin));
+      if (!('problem' in pick)) { L = Lk; inductorPick = pick; break; }
+      inductorPick ??= pick;
+    }
+  }
   const ripple = ((spec.vinMax - vout) * dMax) / (L * fsw);
   const ipk = imax + ripple / 2;
   const isat = ipk * (1 + GENERIC_DEFAULTS.saturationMargin);
-  const dcr = (GENERIC_DEFAULTS.inductorDcrCoeff * Math.sqrt(L / 1e-6)) / Math.sqrt(isat);
+  // Parts: from the project's library when it is given (their parameters drive the analysis),
+  // else the generic defaults from memory.
+  const refs: StagePartRef[] = [];
+  let ctl: ControllerParams = { ...GENERIC_DEFAULTS.controller };
+  let highSide = { ...GENERIC_DEFAULTS.highSide };
+  let lowSide = { ...GENERIC_DEFAULTS.lowSide };
+  let rdsHotFactor: number = GENERIC_DEFAULTS.rdsHotFactor;
+  let thetaJA: ThermalParams = { highSide: GENERIC_DEFAULTS.switchThetaJA, lowSide: GENERIC_DEFAULTS.switchThetaJA, controller: GENERIC_DEFAULTS.controllerThetaJA, inductor: GENERIC_DEFAULTS.inductorThetaJA };
+  let integrated = false;
+  let dcr = (GENERIC_DEFAULTS.inductorDcrCoeff * Math.sqrt(L / 1e-6)) / Math.sqrt(isat);
+  if (lib) {
+    const sw = chooseSwitcher(lib, {
+      vinMin: spec.vinMin, vinMax: spec.vinMax, iNeed: o.currentMax as number, ipk, forcedPwm: false,
+      ...(spec.margins ? { margins: spec.margins } : {}),
+      ...(grade.vrefToleranceMax !== undefined ? { vrefToleranceMax: grade.vrefToleranceMax } : {}),
+    });
+    if ('problem' in sw) return { ok: false, flags: [flag('no-library-part', 'error', sw.problem, { vinMax: spec.vinMax, current: o.currentMax })] };
+    ({ controller: ctl, highSide, lowSide, rdsHotFactor, integrated } = sw);
+    thetaJA = { ...sw.thetaJA, inductor: GENERIC_DEFAULTS.inductorThetaJA };
+    refs.push(...sw.refs);
+    reasons.push(`parts: ${sw.reason}`);
+    const ind = inductorPick!;
+    if ('problem' in ind) return { ok: false, flags: [flag('no-library-part', 'error', `${ind.problem} (nor a neighbouring E12 value)`, { inductance: L, isat })] };
+    dcr = ind.dcr;
+    refs.push(ind.ref);
+  }
+  const e96 = bestDivider(vout, ctl.vref);
+  if (!e96) return { ok: false, flags: [flag('below-reference', 'error', `output ${r3(vout)} V is not above the ${ctl.vref} V reference`, { vout, vref: ctl.vref })] };
+  // The values are E96; the resistors are bought in the grade chosen (E96 values exist in 1 %, 0.5 % and 0.1 %).
+  const divider: DividerChoice = { ...e96, tolerance: grade.resistorTolerance };
+  reasons.push(`feedback divider ${divider.rTop} Ω / ${divider.rBottom} Ω (E96) gives ${r3(divider.vout)} V, error ${r3(divider.error * 100)} %`);
+  reasons.push(`L = ${r3(L * 1e6)} µH (E12${lib ? ', offered by the library' : ''}) for ${r3((ripple / imax) * 100)} % ripple of ${r3(imax)} A at Vin ${r3(spec.vinMax)} V (calculated ${r3(lCalc * 1e6)} µH for ${target * 100} %)`);
   const rippleLimit = o.rippleLimit as number;
-  const esr = GENERIC_DEFAULTS.ceramicEsr;
-  const budget = Math.max(rippleLimit * 0.5 - ripple * esr, rippleLimit * 0.1);
-  // ΔV = ΔI/(8·fsw·C)  [Erickson & Maksimović] solved for C; at least 10 µF [common practice]
-  const coutNeed = Math.max(ripple / (8 * fsw * budget), 10e-6);
-  const cout = chooseCeramic('output', coutNeed, vout * (1 + o.tolerance), spec.ceramicDerating);
-  reasons.push(`output capacitor ${cout.count} × ${r3(cout.value * 1e6)} µF ${cout.ratedVoltage} V ceramic (${r3(cout.effective * 1e6)} µF left at ${r3(vout)} V) for half the ${r3(rippleLimit * 1e3)} mV ripple limit`);
+  // ΔV = ΔI·ESR + ΔI/(8·fsw·C)  [Erickson & Maksimović] solved for C with the ESR of the whole
+  // bank (parts in parallel), at least 10 µF [common practice]; the count and the bank's ESR
+  // depend on each other, so iterate to a fixed point.
+  let cout = chooseCeramic('output', 10e-6, vout * (1 + o.tolerance), spec.ceramicDerating);
+  for (let k = 0; k < 6; k++) {
+    const budget = Math.max(rippleLimit * 0.5 - ripple * cout.esr, rippleLimit * 0.1);
+    const next = chooseCeramic('output', Math.max(ripple / (8 * fsw * budget), 10e-6), vout * (1 + o.tolerance), spec.ceramicDerating);
+    const same = next.count === cout.count && next.value === cout.value;
+    cout = next;
+    if (same) break;
+  }
   // Cin ≥ Io·D(1−D)/(fsw·ΔVin) with D(1−D) ≤ ¼, ΔVin = 1 % of Vin min [common practice]
   const cinNeed = Math.max((imax * 0.25) / (fsw * 0.01 * spec.vinMin), 1e-6);
-  const cin = chooseCeramic('input', cinNeed, spec.vinMax, spec.ceramicDerating);
-  const icinRms = imax * 0.5;
-  reasons.push(`input capacitor ${cin.count} × ${r3(cin.value * 1e6)} µF ${cin.ratedVoltage} V ceramic; RMS current up to ${r3(icinRms)} A (Io·√(D(1−D)))`);
+  let cin = chooseCeramic('input', cinNeed, spec.vinMax, spec.ceramicDerating);
+  // RMS ripple each bank carries [Erickson & Maksimović]: input Io·√(D(1−D)), largest at the
+  // duty nearest ½ over the input range; output ΔIL/√12 at Vin max (the largest ripple).
+  const dLo = vout / spec.vinMax;
+  const dHi = Math.min(1, vout / spec.vinMin);
+  const dWorst = dLo <= 0.5 && dHi >= 0.5 ? 0.5 : (Math.abs(dLo - 0.5) < Math.abs(dHi - 0.5) ? dLo : dHi);
+  cin = { ...cin, rmsCurrent: imax * Math.sqrt(dWorst * (1 - dWorst)) };
+  cout = { ...cout, rmsCurrent: ripple / Math.sqrt(12) };
+  if (lib) {
+    for (const which of ['cout', 'cin'] as const) {
+      const pick = chooseCeramicRow(lib, which === 'cout' ? cout : cin, spec.electrolyticDerating);
+      if (!pick) continue; // the BOM then looks for a polymer or aluminium part and says so
+      if (which === 'cout') cout = pick.bank; else cin = pick.bank;
+      refs.push(pick.ref);
+    }
+  }
+  reasons.push(`output capacitor ${cout.count} × ${r3(cout.value * 1e6)} µF ${cout.ratedVoltage} V ${cout.partKind ?? 'ceramic'} (${r3(cout.effective * 1e6)} µF left at ${r3(vout)} V) for half the ${r3(rippleLimit * 1e3)} mV ripple limit`);
+  reasons.push(`input capacitor ${cin.count} × ${r3(cin.value * 1e6)} µF ${cin.ratedVoltage} V ${cin.partKind ?? 'ceramic'}; RMS current up to ${r3(cin.rmsCurrent ?? 0)} A (Io·√(D(1−D)))`);
   const design: BuckDesign = {
     kind: 'buck',
     vinMin: spec.vinMin, vinNom: spec.vinNom, vinMax: spec.vinMax,
     outputs: [{ ...o }],
-    fsw: spec.fsw,
+    fsw: fsw as Hertz,
     inductance: L as Henries,
     dcr: dcr as Ohms,
     isat: isat as Amps,
     coreLossFraction: GENERIC_DEFAULTS.coreLossFraction,
     cout, cin, divider,
-    highSide: { ...GENERIC_DEFAULTS.highSide },
-    lowSide: { ...GENERIC_DEFAULTS.lowSide },
-    rdsHotFactor: GENERIC_DEFAULTS.rdsHotFactor,
+    highSide, lowSide, rdsHotFactor,
     bodyDiode: { ...GENERIC_DEFAULTS.bodyDiode },
     controller: ctl,
-    thetaJA: { highSide: GENERIC_DEFAULTS.switchThetaJA, lowSide: GENERIC_DEFAULTS.switchThetaJA, controller: GENERIC_DEFAULTS.controllerThetaJA, inductor: GENERIC_DEFAULTS.inductorThetaJA },
+    thetaJA,
     tjMax: spec.tjMax,
+    ...(integrated ? { integrated } : {}),
+    ...(refs.length ? { parts: refs } : {}),
   };
   const flags = feasibility(design, spec.ambient as number, [o.currentMax as number]);
   if (flags.some((f) => f.severity === 'error')) return { ok: false, flags };
   return { ok: true, design, reasons, flags };
+}
+
+/** Resistor grades the divider may be bought in, loosest (cheapest) first [common practice: 1 %, 0.5 %, 0.1 %]. */
+export const RESISTOR_GRADES: readonly number[] = [0.01, 0.005, 0.001];
+
+/**
+ * Switching frequencies a buck falls back to, highest first, when the project's frequency
+ * puts the on-time at Vin max below the controller's minimum (on-time = D/fsw, Erickson &
+ * Maksimović ch. 2). The values are the usual settings of buck regulators' frequency pins
+ * [common practice]; only those below the project's frequency are tried.
+ */
+export const FSW_SET: readonly number[] = [2e6, 1e6, 600e3, 400e3, 300e3, 200e3, 150e3, 100e3];
+
+const pct = (x: number) => `${+(x * 100).toPrecision(3)} %`;
+const hz = (f: number) => (f >= 1e6 ? `${+(f / 1e6).toPrecision(3)} MHz` : `${+(f / 1e3).toPrecision(3)} kHz`);
+
+/** The window of the buck's output over the corners the planner checks (vin min/nom/max × load min/max). */
+function buckWindow(d: BuckDesign, spec: StageSpec): OutputWindow {
+  const o = spec.outputs[0]!;
+  return stageWindows(d, { vin: [spec.vinMin, spec.vinNom, spec.vinMax], iout: [{ min: o.currentMin, max: o.currentMax }] })[0]!;
+}
+const excess = (w: OutputWindow) => Math.max(w.allowedMin - w.min, w.max - w.allowedMax);
+const band = (w: OutputWindow) => `${r3(w.min)}…${r3(w.max)} V`;
+
+/** Library cost of the switcher rows a design uses (regulator, or controller and switches). */
+function switcherCost(d: BuckDesign, lib: readonly LibraryRow[]): number {
+  let c = 0;
+  for (const ref of d.parts ?? []) {
+    if (ref.role === 'inductor' || ref.role === 'output' || ref.role === 'input') continue;
+    const row = lib.find((r) => r.id === ref.libraryId);
+    if (row && (row.partClass === 'controller' || row.partClass === 'switch')) c += row.cost;
+  }
+  return c;
+}
+
+/**
+ * The feedback grade: the cheapest pair of divider resistor grade (RESISTOR_GRADES) and
+ * reference grade (the controllers the library offers, by their reference tolerance) whose
+ * worst-case window (windows.ts: reference and both resistors at their extremes, stacked,
+ * common practice) fits the rail's band. When none fits, the tightest is kept and the
+ * window check reports the miss.
+ */
+function designBuckGraded(spec: StageSpec, fsw: number): BuckResult {
+  const lib = spec.library;
+  let grades = RESISTOR_GRADES.filter((t) => !lib || cheapestResistorOfGrade(lib, t));
+  if (grades.length === 0) grades = [RESISTOR_GRADES[0]!]; // no resistor at all: the BOM says so
+  const resCost = (t: number) => (lib ? cheapestResistorOfGrade(lib, t)?.cost ?? 0 : 0);
+  const base = designBuckAt(spec, fsw, { resistorTolerance: grades[0]! });
+  if (!base.ok) return base;
+  const w0 = buckWindow(base.design, spec);
+  const refNote = (d: BuckDesign) => `±${pct(d.controller.vrefTolerance)} reference${d.parts?.[0] ? ` (${d.parts[0].libraryId})` : ''}`;
+  if (w0.inside) {
+    base.reasons.push(`feedback grade: ${pct(grades[0]!)} resistors with the ${refNote(base.design)} give ${band(w0)}, inside ${r3(w0.allowedMin)}…${r3(w0.allowedMax)} V: the cheapest grade`);
+    return base;
+  }
+  // Reference grades: each tighter reference tolerance a controller row offers.
+  const designs: BuckDesign[] = [base.design];
+  const reasonsOf = new Map<BuckDesign, string[]>([[base.design, base.reasons]]);
+  const flagsOf = new Map<BuckDesign, StageFlag[]>([[base.design, base.flags]]);
+  if (lib) {
+    const tols = [...new Set(lib.filter((r) => r.partClass === 'controller').map(vrefToleranceOf))]
+      .filter((g) => g < base.design.controller.vrefTolerance - 1e-12).sort((a, b) => b - a);
+    for (const g of tols) {
+      const r = designBuckAt(spec, fsw, { resistorTolerance: grades[0]!, vrefToleranceMax: g });
+      if (!r.ok || designs.some((d) => d.parts?.[0]?.libraryId === r.design.parts?.[0]?.libraryId)) continue;
+      designs.push(r.design);
+      reasonsOf.set(r.design, r.reasons);
+      flagsOf.set(r.design, r.flags);
+    }
+  }
+  const cands = designs.flatMap((d) => grades.map((t) => ({ d, t, cost: (lib ? switcherCost(d, lib) : 0) + 2 * resCost(t) })))
+    .sort((a, b) => a.cost - b.cost || b.t - a.t || b.d.controller.vrefTolerance - a.d.controller.vrefTolerance);
+  let best: { design: BuckDesign; w: OutputWindow; src: BuckDesign; t: number; cost: number } | null = null;
+  for (const c of cands) {
+    const design: BuckDesign = { ...c.d, divider: { ...c.d.divider, tolerance: c.t } };
+    const w = buckWindow(design, spec);
+    if (!best || (w.inside && !best.w.inside) || (!best.w.inside && excess(w) < excess(best.w) - 1e-12)) best = { design, w, src: c.d, t: c.t, cost: c.cost };
+    if (w.inside) break;
+  }
+  const b = best!;
+  const baseCost = cands.find((c) => c.d === base.design && c.t === grades[0])!.cost;
+  const reasons = [...reasonsOf.get(b.src)!];
+  const first = `${pct(grades[0]!)} resistors with the ${refNote(base.design)} give ${band(w0)}, outside ${r3(w0.allowedMin)}…${r3(w0.allowedMax)} V`;
+  reasons.push(b.w.inside
+    ? `feedback grade: ${pct(b.t)} resistors with the ${refNote(b.design)} give ${band(b.w)}, the cheapest grade inside the band (${lib ? `+${r3(b.cost - baseCost)} in parts; ` : ''}${first})`
+    : `feedback grade: no grade fits; the tightest, ${pct(b.t)} resistors with the ${refNote(b.design)}, gives ${band(b.w)} (${first})`);
+  return { ok: true, design: b.design, reasons, flags: flagsOf.get(b.src)! };
+}
+
+/**
+ * Design a buck: at the project's switching frequency when the on-time allows, else at the
+ * highest frequency of FSW_SET below it that passes the on-time and duty checks; with the
+ * cheapest feedback grade whose window fits (designBuckGraded).
+ */
+export function designBuck(spec: StageSpec): BuckResult {
+  const bad = specErrors(spec);
+  if (bad.length) return { ok: false, flags: bad };
+  const f0 = spec.fsw as number;
+  const first = designBuckGraded(spec, f0);
+  // The shortest on-time (at Vin max) is the one a lower frequency must lift.
+  const ton0 = first.ok ? undefined : first.flags.filter((f) => f.code === 'min-on-time')
+    .sort((a, b) => Number(a.data?.onTime) - Number(b.data?.onTime))[0];
+  if (first.ok || !ton0) return first;
+  const lower = FSW_SET.filter((f) => f < f0 * (1 - 1e-9));
+  let last: BuckResult = first;
+  for (const f of lower) {
+    const r = designBuckGraded(spec, f);
+    if (r.ok) {
+      const o = spec.outputs[0]!;
+      const ev = evaluateBuck(r.design, { vin: spec.vinMax, iout: [o.currentMax], ambient: spec.ambient });
+      const d0 = ton0.data ?? {};
+      r.reasons.unshift(`fsw ${hz(f)}: on-time ${r3(Number(d0.onTime) * 1e9)} ns at Vin ${r3(Number(d0.vin))} V is below the ${r3(Number(d0.minOnTime) * 1e9)} ns minimum at the project's ${hz(f0)}; ${hz(f)} gives ${r3(((ev.duty ?? 0) / f) * 1e9)} ns (the highest of ${lower.map(hz).join(', ')} that passes)`);
+      return r;
+    }
+    last = r;
+  }
+  if (lower.length === 0) return first;
+  const why = last.ok ? '' : last.flags.find((x) => x.severity === 'error')?.text ?? '';
+  return {
+    ok: false,
+    flags: first.flags.map((x) => (x === ton0 ? { ...x, text: `${x.text}; the lower frequencies ${lower.map(hz).join(', ')} fail too (at ${hz(lower.at(-1)!)}: ${why})` } : x)),
+  };
 }
 
 /** Evaluate at Vin min and max with the largest currents; collect unique flags. */

@@ -21,6 +21,10 @@ export interface CapacitorChoice {
   effective: number;
   /** Working voltage / rated voltage. */
   stress: number;
+  /** Largest RMS ripple current the bank carries (A), when the designer computed it. */
+  rmsCurrent?: number;
+  /** Kind of part the bank is made of (absent: ceramic). */
+  partKind?: 'ceramic' | 'polymer' | 'aluminium';
 }
 
 export function ceramicRetained(working: number, rated: number): number {

@@ -25,6 +25,15 @@ export interface DiodeModel {
   rs: number;
   /** ± spread of the forward drop (unit to unit and over temperature), as a ratio. */
   vfSpread: number;
+  /**
+   * Junction capacitance C(V) = cjo/(1 + Vr/vj)^m at reverse voltage Vr (SPICE CJO, VJ, M).
+   * Absent: no capacitance (the coupled-winding model then ignores the leakage ring).
+   */
+  cjo?: number;
+  vj?: number;
+  m?: number;
+  /** Transit time (SPICE TT): stored charge TT·I at turn-off, the recovery of silicon parts. */
+  tt?: number;
 }
 
 export interface ControllerParams {

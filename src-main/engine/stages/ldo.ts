@@ -9,6 +9,8 @@ import type { OperatingPoint, OutputSpec, StageEvaluation, StageFlag, StageSpec 
 import { GENERIC_DEFAULTS, type LdoPackage } from './defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from './common.ts';
 import { specErrors } from './buck.ts';
+import { DEFAULT_MARGINS, type StagePartRef } from './part-choice.ts';
+import type { LibraryRow } from '../library.ts';
 
 export interface LdoDesign {
   kind: 'ldo';
@@ -36,6 +38,8 @@ export interface LdoDesign {
   cin: CapacitorChoice;
   cout: CapacitorChoice;
   tjMax: Celsius;
+  /** The library row the regulator is (absent: generic defaults from memory). */
+  parts?: StagePartRef[];
 }
 
 export function ldoDropout(d: LdoDesign, i: number): number {
@@ -96,6 +100,60 @@ export function evaluateLdo(d: LdoDesign, op: OperatingPoint): StageEvaluation {
   };
 }
 
+const pnum = (r: LibraryRow, k: string) => (typeof r.params[k] === 'number' ? r.params[k] as number : NaN);
+
+/**
+ * With a library: the cheapest LDO row of the output's polarity rated for the current, the
+ * input (with the input-rating margin) and the dissipation (Tj with its θJA), that holds its
+ * headroom at the input trough; its dropout, quiescent current, ripple rejection, accuracy
+ * and θJA become the design's.
+ */
+function designFromLibrary(spec: StageSpec, lib: readonly LibraryRow[], base: LdoDesign, vinLo: number, vinHi: number, imax: number): { design: LdoDesign; reason: string } | { problem: string } {
+  const neg = base.outputs[0]!.voltage < 0 ? 1 : 0;
+  const margin = spec.margins?.controllerInput ?? DEFAULT_MARGINS.controllerInput;
+  const vout = Math.abs(base.outputs[0]!.voltage);
+  const tjBudget = (spec.tjMax as number) - (spec.ambient as number);
+  const rows = lib.filter((r) => r.partClass === 'ldo' && (pnum(r, 'negative') || 0) === neg && pnum(r, 'iMax') >= imax && pnum(r, 'vinMax') >= vinHi * (1 + margin) - 1e-9)
+    .sort((a, b) => a.cost - b.cost || (a.id < b.id ? -1 : 1));
+  const why: string[] = [];
+  let loose: { design: LdoDesign; reason: string } | null = null;
+  for (const r of rows) {
+    const iq = pnum(r, 'iq');
+    const pmax = (vinHi - vout) * imax + vinHi * iq;
+    const th = pnum(r, 'thetaJA');
+    if (pmax * th > tjBudget) { why.push(`${r.id}: ${r3(pmax)} W × ${th} K/W exceeds the ${r3(tjBudget)} K budget`); continue; }
+    const generic: string[] = [];
+    const acc = Number.isFinite(pnum(r, 'accuracy')) ? pnum(r, 'accuracy') : (generic.push('accuracy'), GENERIC_DEFAULTS.ldo.accuracy);
+    const floor = Number.isFinite(pnum(r, 'dropoutFloor')) ? pnum(r, 'dropoutFloor') : (generic.push('dropoutFloor'), GENERIC_DEFAULTS.ldo.dropoutFloor);
+    const d: LdoDesign = {
+      ...base,
+      ratedCurrent: pnum(r, 'iMax') as Amps,
+      dropoutAtRated: pnum(r, 'dropout') as Volts,
+      dropoutFloor: floor as Volts,
+      iq: iq as Amps,
+      accuracy: acc as Ratio,
+      psrrDb: pnum(r, 'psrrDb'),
+      package: { name: typeof r.params.package === 'string' ? r.params.package : '', thetaJA: th },
+      thetaSource: 'library',
+      parts: [{ role: neg ? 'negative LDO' : 'LDO', libraryId: r.id, used: { iMax: pnum(r, 'iMax'), vinMax: pnum(r, 'vinMax'), dropout: pnum(r, 'dropout'), iq, psrrDb: pnum(r, 'psrrDb'), thetaJA: th, accuracy: acc }, generic }],
+    };
+    const p = ldoPoint(d, vinLo, imax);
+    if (p.headroom < 0) { why.push(`${r.id}: ${r3(-p.headroom)} V short of its dropout at the ${r3(p.trough)} V trough`); continue; }
+    // Accuracy grade: the row's accuracy plus half the output ripple must fit the rail's band
+    // (the window stacks them, windows.ts); a cheaper, looser row is skipped for a tighter one.
+    const tol = base.outputs[0]!.tolerance as number;
+    const reason = `${r.name} (${r.id}): ${pnum(r, 'iMax')} A, ${pnum(r, 'vinMax')} V in (≥ ${r3(vinHi * (1 + margin))} V), θJA ${th} K/W from the library keeps ${r3(pmax)} W under ${spec.tjMax} °C`;
+    if (acc * vout + p.ripple / 2 > tol * vout + 1e-12) {
+      // Kept in reserve: when no row is accurate enough the cheapest stands and the window check reports the miss.
+      loose ??= { design: d, reason: `${reason}; its accuracy ±${r3(acc * 100)} % with ${r3(p.ripple * 1e3)} mV ripple does not fit ±${r3(tol * 100)} % and no row in the library does` };
+      continue;
+    }
+    return { design: d, reason: `${r.name} (${r.id}): ${pnum(r, 'iMax')} A, ${pnum(r, 'vinMax')} V in (≥ ${r3(vinHi * (1 + margin))} V), θJA ${th} K/W from the library keeps ${r3(pmax)} W under ${spec.tjMax} °C; accuracy ±${r3(acc * 100)} % within the rail's ±${r3(tol * 100)} %` };
+  }
+  if (loose) return loose;
+  return { problem: `no ${neg ? 'negative ' : ''}LDO in the library carries ${r3(imax)} A from ${r3(vinHi)} V (rated ≥ ${r3(vinHi * (1 + margin))} V)${why.length ? `: ${why.slice(0, 3).join('; ')}` : ''}` };
+}
+
 export function designLdo(spec: StageSpec): { ok: true; design: LdoDesign; reasons: string[]; flags: StageFlag[] } | { ok: false; flags: StageFlag[] } {
   const bad = specErrors(spec);
   if (bad.length) return { ok: false, flags: bad };
@@ -112,14 +170,16 @@ export function designLdo(spec: StageSpec): { ok: true; design: LdoDesign; reaso
   const imax = o.currentMax as number;
   const L = GENERIC_DEFAULTS.ldo;
   const reasons: string[] = [];
-  const rated = L.ratedCurrents.find((r) => r >= imax * 1.2);
+  // With a library the row sets rating and package (designFromLibrary); the generic choice
+  // below only stands in as the base the row's values replace.
+  const rated = L.ratedCurrents.find((r) => r >= imax * 1.2) ?? (spec.library ? imax * 1.2 : undefined);
   if (rated === undefined) {
     return { ok: false, flags: [flag('current-too-high', 'error', `${r3(imax)} A is beyond the largest generic LDO rating ${L.ratedCurrents.at(-1)} A (with 20 % margin)`, { imax })] };
   }
   const ripple = Math.max(0, (spec.vinRipple ?? 0) as number);
   const pmax = (vinHi - vout) * imax + vinHi * L.iq;
   const tjBudget = (spec.tjMax as number) - (spec.ambient as number);
-  const pkg = L.packages.find((p) => pmax * p.thetaJA <= tjBudget);
+  const pkg = L.packages.find((p) => pmax * p.thetaJA <= tjBudget) ?? (spec.library ? L.packages[L.packages.length - 1] : undefined);
   if (!pkg) {
     const best = L.packages[L.packages.length - 1]!;
     return { ok: false, flags: [flag('tj-over-limit', 'error',
@@ -127,7 +187,7 @@ export function designLdo(spec: StageSpec): { ok: true; design: LdoDesign; reaso
       { power: r3(pmax), thetaNeeded: r3(tjBudget / pmax) })] };
   }
   reasons.push(`${rated} A rating for ${r3(imax)} A (20 % margin); package ${pkg.name} (θJA ${pkg.thetaJA} K/W, default from memory) keeps ${r3(pmax)} W under ${spec.tjMax} °C`);
-  const design: LdoDesign = {
+  const generic: LdoDesign = {
     kind: 'ldo',
     vinMin: spec.vinMin, vinNom: spec.vinNom, vinMax: spec.vinMax,
     vinRipple: ripple as Volts,
@@ -147,6 +207,14 @@ export function designLdo(spec: StageSpec): { ok: true; design: LdoDesign; reaso
     cout: chooseCeramic('LDO output', 2.2e-6, vout * 1.1, spec.ceramicDerating),
     tjMax: spec.tjMax,
   };
+  let design = generic;
+  if (spec.library) {
+    const r = designFromLibrary(spec, spec.library, generic, vinLo, vinHi, imax);
+    if ('problem' in r) return { ok: false, flags: [flag('no-library-part', 'error', r.problem, { imax, vinMax: vinHi })] };
+    design = r.design;
+    reasons.length = 0;
+    reasons.push(`part: ${r.reason}`);
+  }
   const flags: StageFlag[] = [];
   const seen = new Set<string>();
   for (const vin of [vinLo, vinHi]) {

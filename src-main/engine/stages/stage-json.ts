@@ -95,6 +95,24 @@ export function parseSpec(v: unknown, path = 'spec'): StageSpec {
     return x;
   }, path);
   if (maxSec !== undefined) spec.maxSecondaries = maxSec;
+  // cwbuck: the rectifier model (numbers in SI units; the designer checks their ranges) and
+  // the coupling between secondaries.
+  const rect = optional(o, 'rectifier', (x, p) => {
+    const r = obj(x, p);
+    const out: Record<string, number> = {};
+    for (const [key, val] of Object.entries(r)) {
+      if (!['is', 'n', 'rs', 'vfSpread', 'cjo', 'vj', 'm', 'tt'].includes(key)) fail(`${p}.${key}`, 'not a rectifier field (is, n, rs, vfSpread, cjo, vj, m, tt)');
+      if (typeof val !== 'number' || !Number.isFinite(val)) fail(`${p}.${key}`, 'a finite number in SI units');
+      out[key] = val;
+    }
+    return out;
+  }, path);
+  if (rect !== undefined) spec.rectifier = rect as unknown as NonNullable<StageSpec['rectifier']>;
+  const kss = optional(o, 'secondaryCoupling', (x, p) => {
+    if (!Array.isArray(x) || x.some((row) => !Array.isArray(row) || row.some((v) => typeof v !== 'number' || !Number.isFinite(v)))) fail(p, 'a square list of lists of numbers, one row per secondary');
+    return x as number[][];
+  }, path);
+  if (kss !== undefined) spec.secondaryCoupling = kss;
   if (o.isolation !== undefined && o.isolation !== null) {
     const iso = obj(o.isolation, `${path}.isolation`);
     if (!ISOLATION_CLASSES.includes(iso.class as IsolationClass)) fail(`${path}.isolation.class`, `one of ${ISOLATION_CLASSES.join(', ')}`);

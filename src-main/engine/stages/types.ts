@@ -7,6 +7,9 @@
  */
 import type { Amps, Celsius, Hertz, KelvinPerWatt, Ratio, Volts, Watts } from '../units.ts';
 import type { Id, IsolationClass, StageKind } from '../model.ts';
+import type { LibraryRow } from '../library.ts';
+import type { RatingMargins } from './part-choice.ts';
+import type { DiodeModel } from './defaults.ts';
 
 /** One output the planner wants from a stage. */
 export interface OutputSpec {
@@ -41,8 +44,26 @@ export interface StageSpec {
   maxSecondaries?: number;
   /** Coupled-winding stages: coupling factor of the magnetic (default from stages/defaults.ts). */
   coupling?: number;
+  /**
+   * Coupled-winding stages: the rectifier (e.g. from the part library), with its junction
+   * capacitance (cjo, vj, m) and transit time when known; default: a generic Schottky
+   * without capacitance (the leakage ring is then not modelled and the 2 % preload rule applies).
+   */
+  rectifier?: DiodeModel;
+  /** Coupled-winding stages: coupling between secondaries [i][j] (absent: k·k, no shared leakage). */
+  secondaryCoupling?: number[][];
   /** Coupled-winding stages: the barrier the windings cross, carried onto the magnetic's spec. */
   isolation?: { class: IsolationClass; workingVoltage: Volts } | null;
+  /**
+   * The project's part library. When given, the designer chooses the stage's parts from it
+   * and the design carries their parameters and references (stages/part-choice.ts); without
+   * it the generic defaults from memory stand in.
+   */
+  library?: readonly LibraryRow[];
+  /** Share of an aluminium or polymer capacitor's rating it may see (default 0.8). */
+  electrolyticDerating?: Ratio;
+  /** Rating margins of the part choice (stages/part-choice.ts DEFAULT_MARGINS). */
+  margins?: Partial<RatingMargins>;
 }
 
 /** Severity `error` makes a stage infeasible; `warning` is shown but allowed. */

@@ -82,12 +82,20 @@ describe('synchronous buck: textbook closed forms (Erickson & Maksimović, Funda
     const d = buck();
     expect(evaluateStage(d, op(12, [2])).duty!).toBeGreaterThan(d.divider.vout / 12);
   });
-  it('refuses a minimum on-time violation at Vin max, with the numbers', () => {
+  it('a minimum on-time violation at the project frequency moves the stage to a lower frequency of the set', () => {
     const r = designStage(spec({ kind: 'buck', vinMin: 36, vinNom: 48, vinMax: 60, fsw: 2e6, outputs: [out(1.0, 1)] }));
+    // D ≈ 1/60 at 2 MHz: about 8.5 ns against the 100 ns minimum; on-time = D/fsw
+    // [Erickson & Maksimović, ch. 2] reaches 100 ns near 170 kHz, so 150 kHz is the highest that passes.
+    expect(r.ok).toBe(true);
+    expect(r.ok && r.design.kind === 'buck' && r.design.fsw).toBe(150e3);
+    expect(r.ok && r.reasons[0]).toMatch(/^fsw 150 kHz: on-time [\d.]+ ns at Vin 60 V is below the 100 ns minimum at the project's 2 MHz; 150 kHz gives [\d.]+ ns/);
+  });
+  it('refuses a minimum on-time violation at Vin max when no frequency of the set passes, with the numbers', () => {
+    const r = designStage(spec({ kind: 'buck', vinMin: 100, vinNom: 120, vinMax: 150, fsw: 2e6, outputs: [out(1.0, 1)] }));
     expect(r.ok).toBe(false);
-    const f = !r.ok ? r.flags.find((x) => x.code === 'min-on-time' && x.data?.vin === 60) : undefined;
-    // D ≈ 1/60 at 2 MHz: about 8.5 ns against the 100 ns minimum
-    expect(f?.text).toMatch(/on-time \d.* ns at Vin 60 V is below the controller's minimum 100 ns/);
+    const f = !r.ok ? r.flags.find((x) => x.code === 'min-on-time' && x.data?.vin === 150) : undefined;
+    // D ≈ 1/150: about 3.4 ns at 2 MHz and 67 ns even at 100 kHz, against the 100 ns minimum
+    expect(f?.text).toMatch(/on-time \d.* ns at Vin 150 V is below the controller's minimum 100 ns: lower fsw or the input range; the lower frequencies 1 MHz, .*, 100 kHz fail too \(at 100 kHz: on-time/);
   });
   it('out of duty the output follows M = D (Erickson & Maksimović, ch. 2) and the flag quotes the duty it wanted', () => {
     const d = buck();
@@ -114,13 +122,18 @@ describe('synchronous buck: textbook closed forms (Erickson & Maksimović, Funda
     // the designed ripple stays under the limit at Vin max
     expect(evaluateStage(d, op(14, [2])).outputs[0]!.ripplePP).toBeLessThan(0.05);
   });
-  it('window: the setpoint extremes from reference ±1 % and E96 ±1 % resistors, ± half the ripple', () => {
+  it('window: the setpoint extremes from the reference (±1 %) and E96 resistors of the chosen grade, ± half the ripple', () => {
     const d = buck();
     const [w] = stageWindows(d, { vin: [10, 12, 14] as Volts[], iout: [{ min: 0.2 as Amps, max: 2 as Amps }] });
     const { vref, rTop, rBottom } = d.divider;
+    // ±3 % at 3.3 V: 1 % resistors with the ±1 % reference miss the band, so the designer
+    // buys the divider in 0.5 % (the cheapest grade that fits).
+    const tr = d.divider.tolerance;
+    expect(tr).toBe(0.005);
+    expect(d.controller.vrefTolerance).toBe(0.01);
     // Vout = Vref·(1 + Rtop/Rbottom) at the tolerance corners (common practice worst case)
-    const hi = vref * 1.01 * (1 + (rTop * 1.01) / (rBottom * 0.99));
-    const lo = vref * 0.99 * (1 + (rTop * 0.99) / (rBottom * 1.01));
+    const hi = vref * 1.01 * (1 + (rTop * (1 + tr)) / (rBottom * (1 - tr)));
+    const lo = vref * 0.99 * (1 + (rTop * (1 - tr)) / (rBottom * (1 + tr)));
     const ripples = [10, 12, 14].flatMap((v) => [0.2, 2].map((i) => evaluateStage(d, op(v, [i])).outputs[0]!.ripplePP as number));
     expect(w!.max).toBeCloseTo(hi + Math.max(...ripples) / 2, 9);
     expect(w!.min).toBeCloseTo(lo - Math.max(...ripples) / 2, 9);

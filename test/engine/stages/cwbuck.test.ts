@@ -192,6 +192,21 @@ describe('magnetic specification', () => {
     expect(m.cautions.join(' ')).toMatch(/reinforced barrier .* 250 V/);
     expect(m.cautions.join(' ')).toMatch(/certifies nothing/);
   });
+  it('designs the magnetic on a core: turns kept in ratio and within the flux limit, wire fits the window', () => {
+    const d = design(spec(three.outputs, { isolation: { class: 'reinforced', workingVoltage: 250 as Volts } }));
+    const m = magneticSpec(d);
+    const c = m.core!;
+    expect(c).not.toBeNull();
+    const designTurns = [d.primaryTurns, ...d.secondaries.map((w) => w.turns)];
+    expect(c.windings.map((w) => w.turns)).toEqual(designTurns.map((t) => t * c.turnsMultiplier));
+    // Erickson & Maksimović ch. 14: N ≥ L·Ipk/(Bmax·Ae) with the worst primary peak.
+    const ipk = m.windings[0]!.peakCurrent;
+    expect((d.inductance * ipk) / (c.windings[0]!.turns * c.core.ae)).toBeLessThanOrEqual(c.fluxLimit * (1 + 1e-9));
+    expect(c.fill).toBeLessThanOrEqual(c.windowUtilisation);
+    // Reinforced barrier: secondaries in triple-insulated wire, three layers of tape (common practice).
+    expect(c.windings.slice(1).every((w) => w.insulation === 'triple-insulated')).toBe(true);
+    expect(c.windingOrder.join(' ')).toMatch(/3 layers of polyester/);
+  });
 });
 
 describe('netlists (structure; ngspice runs them in test/reference)', () => {
