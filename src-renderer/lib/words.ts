@@ -123,6 +123,7 @@ const LOSSES: Record<string, string> = {
   'magnetic-core': 'magnetic core',
   'output-capacitor-esr': 'output capacitor ESR',
   'input-capacitor-esr': 'input capacitor ESR',
+  snubber: 'rectifier RC snubber',
   preload: 'preload resistor',
   quiescent: 'quiescent current',
   'pass-element': 'pass element (dropout × current)',
