@@ -49,6 +49,17 @@ export interface ProjectState {
   recent: string[];
   /** The host the handlers run in; the window adapts file dialogs to it. */
   host: 'electron' | 'web' | 'test';
+  /**
+   * Job id of the planning run in progress, whoever started it (the window, a menu, or the
+   * host planning the demo at first run); null when none runs. A window that opens or
+   * reloads mid-plan follows that job's progress events.
+   */
+  planning: string | null;
+  /**
+   * The host asks the window to plan this project as soon as it is shown (the demo at first
+   * run), so a newcomer opens on a tree; cleared when a plan starts.
+   */
+  planOnOpen: boolean;
 }
 
 /** One part of the editable part library as the window sees it (plain rows). */
@@ -305,8 +316,16 @@ export interface Requests {
   'project.save': (args: { path?: string; overwrite?: boolean }) => ProjectState;
   'project.importJson': (args: { text: string; discard?: boolean }) => Snapshot;
   'project.rename': (args: { name: string }) => Snapshot;
+  /** The project's description (free text shown in exports and the report). */
+  'project.describe': (args: { description: string }) => Snapshot;
 
   'requirements.editCell': (args: CellEdit) => Snapshot;
+  /**
+   * Paste a rectangular block (from a spreadsheet) in one undoable step: `rowIds` are the
+   * rows it lands on (rows past them are added), `fields` the columns. Any bad cell refuses
+   * the whole block with every bad cell named by row and column; nothing changes.
+   */
+  'requirements.paste': (args: { table: Exclude<TableName, 'library'>; rowIds: Id[]; fields: string[]; cells: string[][] }) => Snapshot;
   'requirements.addRow': (args: { table: TableName }) => Snapshot & { rowId: Id };
   'requirements.removeRow': (args: { table: TableName; rowId: Id }) => Snapshot;
   'requirements.undo': (args: Record<string, never>) => Snapshot;
@@ -337,8 +356,14 @@ export interface PlanProgress {
   jobId: string;
   /** 0..1 where known, else null (anytime search without a bound). */
   fraction: number | null;
+  /** Planner phase: 'rails', 'candidates' (designing candidate stages), 'search', 'done'. */
+  phase: string;
+  /** Candidate stage designs evaluated so far (the first, longest phase). */
+  candidates: number;
+  /** Branches of the tree search explored so far. */
   explored: number;
-  bestLoss: number | null;
+  /** Weighted score of the best complete tree so far (lower is better); null before one. */
+  bestScore: number | null;
   elapsedMs: number;
   message: string;
 }

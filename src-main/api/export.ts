@@ -106,7 +106,8 @@ export const exportHandlers = {
         }
       }
       return {
-        fileName: `${baseName(s)}${meta.suffix}${meta.ext}`,
+        // One stage's netlist is named after its stage, so several downloads never collide.
+        fileName: a.kind === 'spice' && a.stageId ? `${baseName(s)}-${a.stageId.replace(/[^\w.-]+/g, '-')}${meta.ext}` : `${baseName(s)}${meta.suffix}${meta.ext}`,
         mime: meta.mime,
         base64: target ? '' : Buffer.from(bytes).toString('base64'),
         writtenTo: target,

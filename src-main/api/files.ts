@@ -160,9 +160,10 @@ export function openPath(s: Session, raw: string): void {
  * projects folder (written on first run). A project that fails to open, or whose first
  * view cannot be built, is marked in the recent list so it is never reopened
  * automatically again; the demo opens instead and the window shows why (state.notice).
- * `approve` lets a host whitelist the paths it opens here.
+ * `approve` lets a host whitelist the paths it opens here. `planFirstRun` asks the window to
+ * plan the demo once it is shown, when the demo is written for the first time.
  */
-export async function openAtStart(s: Session, opts: { demoFile: string; approve?: (path: string) => void }): Promise<void> {
+export async function openAtStart(s: Session, opts: { demoFile: string; approve?: (path: string) => void; planFirstRun?: boolean }): Promise<void> {
   loadRecent(s);
   if (recoverIfAny(s)) return;
   const dir = settingsDir(s);
@@ -188,6 +189,7 @@ export async function openAtStart(s: Session, opts: { demoFile: string; approve?
     } else {
       openDemo(s);
       saveTo(s, opts.demoFile);
+      if (opts.planFirstRun) s.planOnOpen = true;
     }
     await buildSnapshot(s);
   } catch {

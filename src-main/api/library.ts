@@ -61,7 +61,9 @@ function getField(r: Rec, key: string): unknown {
   return inner && typeof inner === 'object' ? (inner as Rec)[key.slice(dot + 1)] : undefined;
 }
 
-const NUM = /^([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:e[+-]?\d+)?)([fpnuµmkKMG]?)$/;
+// A number, an optional SI prefix, and optionally the unit the window shows (80n, 80ns, 8e-8;
+// 110 K/W; 90 % for a share), so a value can be typed back as it is displayed.
+const NUM = /^([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:e[+-]?\d+)?)([fpnuµmkKMG]?)(V|A|Ω|ohm|F|H|Hz|s|W|C|K\/W|°C\/W|dB|%)?$/;
 const MULT: Record<string, number> = { f: 1e-15, p: 1e-12, n: 1e-9, u: 1e-6, 'µ': 1e-6, m: 1e-3, '': 1, k: 1e3, K: 1e3, M: 1e6, G: 1e9 };
 
 export function editLibraryCell(lib: unknown, rowId: string, field: string, text: string): unknown {
@@ -80,7 +82,7 @@ export function editLibraryCell(lib: unknown, rowId: string, field: string, text
   const t = text.trim();
   if (typeof old === 'number') {
     const m = NUM.exec(t.replace(/\s+/g, ''));
-    const v = m ? Number(m[1]) * MULT[m[2] ?? '']! : NaN;
+    const v = m ? Number(m[1]) * MULT[m[2] ?? '']! / (m[3] === '%' ? 100 : 1) : NaN;
     if (!Number.isFinite(v)) throw new ApiFailure(`${where}: "${t}" is not a number`, field);
     if (v < 0) throw new ApiFailure(`${where}: must not be negative`, field);
     holder[leaf] = v;

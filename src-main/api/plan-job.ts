@@ -24,12 +24,14 @@ export function startPlanJob(s: Session): PlanJob {
   const req = clone(s.requirements);
   const t0 = performance.now();
   s.planJob = { jobId, abort };
+  s.planOnOpen = false;
+  s.emit('project.state', s.state());
   let last = 0;
-  const onProgress = (p: { fraction: number; explored: number; incumbent?: number; message: string }) => {
+  const onProgress = (p: { fraction: number; phase: string; candidates: number; explored: number; incumbent?: number; message: string }) => {
     const now = performance.now();
     if (now - last < 50) return;
     last = now;
-    s.emit('plan.progress', { jobId, fraction: p.fraction, explored: p.explored, bestLoss: p.incumbent ?? null, elapsedMs: now - t0, message: p.message });
+    s.emit('plan.progress', { jobId, fraction: p.fraction, phase: p.phase, candidates: p.candidates, explored: p.explored, bestScore: p.incumbent ?? null, elapsedMs: now - t0, message: p.message });
   };
   const finish = (outcome: 'done' | 'cancelled' | 'failed', message: string) => {
     if (s.planJob?.jobId === jobId) s.planJob = null;
@@ -42,6 +44,12 @@ export function startPlanJob(s: Session): PlanJob {
     (result: PlanResult) => s.serialise(() => {
       // A job replaced by opening another project is dropped.
       if (s.planJob?.jobId !== jobId) return;
+      // Cancelled before any feasible tree: nothing was learned, so the previous plan stays
+      // (an empty result would read as "no feasible tree", which the search never showed).
+      if (result.stats.cancelled && !result.best) {
+        finish('cancelled', s.planResult ? 'Planning cancelled before a feasible tree was found; the previous plan is kept.' : 'Planning cancelled before a feasible tree was found; there is no plan yet.');
+        return;
+      }
       // Edits made while planning leave the plan stale: it keeps the revision it was made at.
       const sameReq = JSON.stringify(req) === JSON.stringify(s.requirements);
       result.revision = sameReq ? s.requirements.meta.revision : req.meta.revision;
@@ -51,11 +59,13 @@ export function startPlanJob(s: Session): PlanJob {
       s.markDirty();
       const n = result.alternatives.length;
       const msg = result.best
-        ? `Planned: ${result.best.stages.length} stages, ${n} alternative${n === 1 ? '' : 's'} in ${result.stats.elapsedMs.toFixed(0)} ms${result.stats.cancelled ? ' (cancelled: best found so far)' : ''}.`
+        ? result.stats.cancelled
+          ? `Planning cancelled after ${result.stats.elapsedMs.toFixed(0)} ms: showing the best tree found so far (${result.best.stages.length} stages, ${n} alternative${n === 1 ? '' : 's'}), not proven the best.`
+          : `Planned: ${result.best.stages.length} stages, ${n} alternative${n === 1 ? '' : 's'} in ${result.stats.elapsedMs.toFixed(0)} ms.`
         : `No feasible tree: ${result.infeasible[0]?.text ?? 'see the reasons'}`;
       finish(result.stats.cancelled ? 'cancelled' : 'done', msg);
     }),
-    (e: Error) => finish(e.name === 'AbortError' ? 'cancelled' : 'failed', e.name === 'AbortError' ? 'Planning cancelled; the previous plan is kept.' : `planning failed: ${e.message}`),
+    (e: Error) => finish(e.name === 'AbortError' ? 'cancelled' : 'failed', e.name === 'AbortError' ? s.planResult ? 'Planning cancelled; the previous plan is kept.' : 'Planning cancelled; there is no plan yet.' : `planning failed: ${e.message}`),
   );
   return { jobId };
 }

@@ -30,10 +30,16 @@ export function guardDiscard(s: Session, discard: boolean | undefined): void {
 
 export const projectHandlers = {
   'project.snapshot': handler('project.snapshot', noArgs, (s: Session) => buildSnapshot(s)),
-  'project.rename': handler('project.rename', z.object({ name: z.string().trim().min(1).max(500) }).strict(), (s: Session, a) => {
+  'project.rename': handler('project.rename', z.object({ name: z.string().trim().min(1, 'the project needs a name').max(500) }).strict(), (s: Session, a) => {
     const bad = checkText(a.name, 'name');
     if (bad) throw new ApiFailure(`project name: ${bad}`, 'name');
     s.edit('Rename the project', (req) => { req.meta.name = a.name; });
+    return buildSnapshot(s);
+  }),
+  'project.describe': handler('project.describe', z.object({ description: z.string().max(100_000) }).strict(), (s: Session, a) => {
+    const bad = checkText(a.description, 'description');
+    if (bad) throw new ApiFailure(`project description: ${bad}`, 'description');
+    s.edit('Change the project description', (req) => { req.meta.description = a.description.trim(); });
     return buildSnapshot(s);
   }),
 };

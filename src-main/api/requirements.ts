@@ -16,6 +16,7 @@ import { buildSnapshot } from './snapshot.ts';
 import { TABLE_COLUMNS, type ColumnDef } from './tables.ts';
 import { editLibraryCell, addLibraryRow, removeLibraryRow } from './library.ts';
 import { checkShapes } from './files.ts';
+import { sourceCapacityProblems } from '../engine/validate.ts';
 
 const tableName = z.enum(['sources', 'domains', 'modes', 'loads', 'limits', 'preferences', 'library']);
 const id = z.string().min(1).max(200);
@@ -105,8 +106,11 @@ function checkRow(req: Requirements, table: TableName, rowId: Id): void {
   }
 }
 
-/** Apply one cell edit to a copy of the requirements (throws on bad input). */
-export function applyCell(req: Requirements, e: CellEdit): void {
+/**
+ * Apply one cell edit to a copy of the requirements (throws on bad input). `rowChecks` off
+ * leaves the checks across a row's cells to the caller (a paste fills a whole row first).
+ */
+export function applyCell(req: Requirements, e: CellEdit, rowChecks = true): void {
   const where = `${rowLabel(req, e.table, e.rowId)} › ${e.field}`;
   if (e.table === 'loads' && e.field.startsWith('current:')) {
     const modeId = e.field.slice('current:'.length);
@@ -148,7 +152,53 @@ export function applyCell(req: Requirements, e: CellEdit): void {
     const dup = rows.find((r) => r !== row && String(r.name).toLowerCase() === String(value).toLowerCase());
     if (dup) throw new ApiFailure(`${where}: another row of ${e.table} is already called "${String(value)}"`, where);
   }
-  checkRow(req, e.table, e.rowId);
+  if (rowChecks) checkRow(req, e.table, e.rowId);
+}
+
+/** Column name as the grid shows it (a load current column names its mode). */
+function columnLabel(req: Requirements, table: TableName, field: string): string {
+  if (field.startsWith('current:')) return `I ${req.modes.find((m) => m.id === field.slice(8))?.name ?? field.slice(8)}`;
+  return TABLE_COLUMNS[table as Exclude<TableName, 'library'>]?.find((c) => c.key === field)?.label ?? field;
+}
+
+export interface PasteArgs {
+  table: Exclude<TableName, 'library'>;
+  /** Existing rows the block lands on, top to bottom; rows of the block past these are added. */
+  rowIds: Id[];
+  /** Column keys the block's columns land on, left to right. */
+  fields: string[];
+  /** The block as typed in a spreadsheet (tab-separated text split into cells). */
+  cells: string[][];
+}
+
+/**
+ * Paste a rectangular block in one undoable step. Every cell is checked; when any is bad the
+ * error lists each bad cell by row and column and nothing changes.
+ */
+export function applyPaste(req: Requirements, a: PasteArgs): void {
+  if (!a.cells.length) throw new ApiFailure('paste: the clipboard holds no cells', 'cells');
+  const width = Math.max(...a.cells.map((r) => r.length));
+  if (width > a.fields.length) throw new ApiFailure(`paste: the block is ${width} columns wide but only ${a.fields.length} column(s) lie from the selected cell to the right; nothing changed`, 'cells');
+  const single = a.table === 'limits' || a.table === 'preferences';
+  if (single && a.cells.length > 1) throw new ApiFailure(`paste: ${a.table} has one row; the block has ${a.cells.length}; nothing changed`, 'cells');
+  const bad: string[] = [];
+  const rowsOf = () => (single ? [{ id: 'project' }] : (req[a.table as 'sources' | 'domains' | 'modes' | 'loads'] as { id: Id }[]));
+  a.cells.forEach((line, i) => {
+    const rowId = a.rowIds[i] ?? addRow(req, a.table);
+    const rowNo = rowsOf().findIndex((x) => x.id === rowId) + 1;
+    line.forEach((text, j) => {
+      const field = a.fields[j]!;
+      try {
+        applyCell(req, { table: a.table, rowId, field, text }, false);
+      } catch (e) {
+        bad.push(`row ${rowNo}, column "${columnLabel(req, a.table, field)}": ${(e as Error).message}`);
+      }
+    });
+    try { checkRow(req, a.table, rowId); } catch (e) { bad.push(`row ${rowNo}: ${(e as Error).message}`); }
+  });
+  if (bad.length) {
+    throw new ApiFailure(`paste refused, nothing changed: ${bad.length} bad cell${bad.length === 1 ? '' : 's'}\n${bad.join('\n')}`, 'cells');
+  }
 }
 
 function freshId(prefix: string, taken: { id: Id }[]): Id {
@@ -235,11 +285,16 @@ export function projectProblems(req: Requirements): { field?: string; message: s
       if (table === 'loads') bad(`loads.${showText(String(r.id))}.railKey`, `${label} › rail key`, r.railKey);
     }
   }
+  for (const p of sourceCapacityProblems(req)) out.push({ field: p.path, message: p.message });
   return out;
 }
 
+/** Undo title in words: the row's name and the column as the grid shows it. */
 function describe(e: CellEdit, req: Requirements): string {
-  return `Edit ${rowLabel(req, e.table, e.rowId)} › ${e.field}`;
+  const col = e.field.startsWith('current:')
+    ? `current in ${req.modes.find((m) => m.id === e.field.slice(8))?.name ?? 'a mode'}`
+    : TABLE_COLUMNS[e.table as Exclude<TableName, 'library'>]?.find((c) => c.key === e.field)?.label ?? e.field;
+  return `Edit ${rowLabel(req, e.table, e.rowId)} › ${col}`;
 }
 
 export const requirementHandlers = {
@@ -258,6 +313,18 @@ export const requirementHandlers = {
     }
     return buildSnapshot(s);
   }),
+  'requirements.paste': handler('requirements.paste', z.object({
+    table: z.enum(['sources', 'domains', 'modes', 'loads', 'limits', 'preferences']),
+    rowIds: z.array(id).max(5000),
+    fields: z.array(z.string().min(1).max(200)).min(1).max(100),
+    cells: z.array(z.array(z.string().max(500)).max(100)).min(1).max(5000),
+  }).strict(), async (s: Session, a) => {
+    s.edit(`Paste ${a.cells.length} row${a.cells.length === 1 ? '' : 's'} into ${a.table}`, (req, lib) => {
+      applyPaste(req, a);
+      checkShapes(req, lib);
+    });
+    return buildSnapshot(s);
+  }),
   'requirements.addRow': handler('requirements.addRow', z.object({ table: tableName }).strict(), async (s: Session, a) => {
     let rowId = '';
     s.edit(`Add a row to ${a.table}`, (req, lib) => {
@@ -271,7 +338,7 @@ export const requirementHandlers = {
     return { ...(await buildSnapshot(s)), rowId };
   }),
   'requirements.removeRow': handler('requirements.removeRow', z.object({ table: tableName, rowId: id }).strict(), async (s: Session, a) => {
-    s.edit(`Remove ${a.table} › ${a.rowId}`, (req, lib) => {
+    s.edit(a.table === 'library' ? `Remove library › ${a.rowId}` : `Remove ${rowLabel(s.requirements, a.table, a.rowId)}`, (req, lib) => {
       if (a.table === 'library') return { library: removeLibraryRow(lib, a.rowId) };
       removeRow(req, a.table, a.rowId);
     });

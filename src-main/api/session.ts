@@ -99,6 +99,8 @@ export class Session {
       notice: this.notice,
       recent: [...this.recent],
       host: this.host,
+      planning: this.planJob?.jobId ?? null,
+      planOnOpen: this.planOnOpen,
     };
   }
 
@@ -156,6 +158,9 @@ export class Session {
     this.markDirty();
   }
 
+  /** Plan as soon as a window shows the project (set by a host for the first run's demo). */
+  planOnOpen = false;
+
   /** The requirements the current plan was computed from (to tell a stale plan). */
   plannedFrom: Requirements | null = null;
 
@@ -168,6 +173,7 @@ export class Session {
   replace(p: { requirements: Requirements; library: unknown; planResult: PlanResult | null; path: string | null; store?: unknown; dirty?: boolean; recovered?: boolean }): void {
     this.planJob?.abort.abort();
     this.planJob = null;
+    this.planOnOpen = false;
     this.requirements = p.requirements;
     this.library = p.library;
     this.planResult = p.planResult;

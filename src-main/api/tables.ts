@@ -57,9 +57,9 @@ export const TABLE_COLUMNS: Record<Exclude<TableName, 'library'>, ColumnDef[]> =
     { key: 'ambient', label: 'Ambient', kind: q('temperature', { signed: true, min: -60, max: 150 }), width: 90, hint: 'e.g. 55' },
     { key: 'tjMax', label: 'Tj max', kind: q('temperature', { signed: true, min: 0, max: 200 }), width: 90, hint: 'no part may exceed' },
     { key: 'tjMargin', label: 'Tj margin', kind: { type: 'number', min: 0, max: 100, unit: 'K' }, width: 90, hint: 'kept below Tj max' },
-    { key: 'ceramicDerating', label: 'Ceramic V use', kind: { type: 'fraction', min: 0.1, max: 1 }, width: 100, hint: 'share of rated voltage' },
-    { key: 'electrolyticDerating', label: 'Electrolytic V use', kind: { type: 'fraction', min: 0.1, max: 1 }, width: 120, hint: 'share of rated voltage' },
-    { key: 'powerDerating', label: 'Power use', kind: { type: 'fraction', min: 0.1, max: 1 }, width: 90, hint: 'share of rated power' },
+    { key: 'ceramicDerating', label: 'Ceramic capacitor voltage derating', kind: { type: 'fraction', min: 0.1, max: 1 }, width: 120, hint: 'largest share of the rated voltage a ceramic capacitor may see' },
+    { key: 'electrolyticDerating', label: 'Electrolytic capacitor voltage derating', kind: { type: 'fraction', min: 0.1, max: 1 }, width: 120, hint: 'largest share of the rated voltage an electrolytic capacitor may see' },
+    { key: 'powerDerating', label: 'Power derating', kind: { type: 'fraction', min: 0.1, max: 1 }, width: 90, hint: 'largest share of the rated power a resistor or package may dissipate' },
   ],
   preferences: [
     { key: 'switchingFrequency', label: 'f switching', kind: q('frequency', { min: 10e3, max: 10e6 }), width: 100, hint: 'e.g. 400k' },
@@ -67,7 +67,7 @@ export const TABLE_COLUMNS: Record<Exclude<TableName, 'library'>, ColumnDef[]> =
     { key: 'weights.loss', label: 'Weight: loss', kind: { type: 'number', min: 0, max: 100, unit: '' }, width: 90, hint: 'objective weight' },
     { key: 'weights.cost', label: 'Weight: cost', kind: { type: 'number', min: 0, max: 100, unit: '' }, width: 90, hint: 'objective weight' },
     { key: 'weights.parts', label: 'Weight: parts', kind: { type: 'number', min: 0, max: 100, unit: '' }, width: 90, hint: 'objective weight' },
-    { key: 'budgetMs', label: 'Time budget', kind: { type: 'integer', min: 100, max: 600000 }, width: 100, hint: 'milliseconds' },
+    { key: 'budgetMs', label: 'Time budget (ms)', kind: { type: 'integer', min: 100, max: 600000 }, width: 100, hint: 'milliseconds the planner may search' },
   ],
 };
 

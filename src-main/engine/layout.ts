@@ -157,8 +157,9 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
       const crosses = st.barriers.some((b) => b.toDomainId === toDomain) && toDomain !== group;
       const role = o.role === 'output' ? '' : o.role === 'primary' ? 'primary' : 'secondary';
       const nT = designTurns.get(o.nodeId) ?? o.turns;
-      // The winding's turns are a line of the node it feeds (not an edge label).
-      if (nT !== undefined) winding.set(o.nodeId, `${role || 'winding'} ${nT} T`);
+      // The winding's turns are a line of the node it feeds (not an edge label), as a count with
+      // the polarity marked in words (a negative count is a reversed winding).
+      if (nT !== undefined) winding.set(o.nodeId, `${role || 'winding'} ${Math.abs(nT)} T${nT < 0 ? ' reversed' : ''}`);
       edges.push({ id: `e:${st.id}>${o.nodeId}`, from: st.id, to: o.nodeId, label: '', crossesBarrier: crosses });
     }
   }

@@ -41,8 +41,27 @@ const SAME_VOLTAGE = 0.5e-3;
 
 const isNum = (x: unknown): x is number => typeof x === 'number' && Number.isFinite(x);
 
-export function validateRequirements(req: Requirements): Problem[] {
+/**
+ * Load power against what the sources can give: in any mode the loads take Σ|V|·I, and no
+ * converter gives out more power than it takes in (η ≤ 1), so the sources must give at least
+ * that at their lowest voltage, V min × I limit (energy conservation, common practice).
+ */
+export function sourceCapacityProblems(req: Requirements): Problem[] {
+  const cap = req.sources.reduce((a, s) => a + (isNum(s.vMin) && isNum(s.currentLimit) ? Math.max(0, s.vMin) * Math.max(0, s.currentLimit) : 0), 0);
+  const w = (x: number) => formatQuantity(x, 'power', 3);
   const out: Problem[] = [];
+  req.modes.forEach((m, i) => {
+    const p = req.loads.reduce((a, l) => a + (isNum(l.voltage) && isNum(l.current?.[m.id]) ? Math.abs(l.voltage) * l.current[m.id]! : 0), 0);
+    if (req.sources.length && p > cap * (1 + 1e-9)) {
+      const how = req.sources.map((s) => `${s.name}: ${formatQuantity(s.vMin, 'voltage', 3)} × ${formatQuantity(s.currentLimit, 'current', 3)}`).join(', ');
+      out.push({ path: `modes[${i}]`, message: `mode "${m.name}": the loads take ${w(p)}, more than the sources can give at their minimum voltage (${how} = ${w(cap)}), before any conversion loss` });
+    }
+  });
+  return out;
+}
+
+export function validateRequirements(req: Requirements): Problem[] {
+  const out: Problem[] = [...sourceCapacityProblems(req)];
   const add = (path: string, message: string) => out.push({ path, message });
   const v = (x: number) => formatQuantity(x, 'voltage', 4);
   // User text quoted in a message is shown escaped: the message may reach a terminal.

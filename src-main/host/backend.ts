@@ -40,7 +40,7 @@ export function createBackend(opts: BackendOptions) {
   });
   const s = api.session;
   // Requests wait behind the start-up open (they go through the same queue).
-  void s.serialise(() => openAtStart(s, { demoFile: join(opts.userDataDir, 'projects', 'demo.rwproj'), approve: (p) => approved.add(p) }));
+  void s.serialise(() => openAtStart(s, { demoFile: join(opts.userDataDir, 'projects', 'demo.rwproj'), approve: (p) => approved.add(p), planFirstRun: true }));
   const timer = s.autosaveMs > 0 ? setInterval(() => void s.serialise(() => { try { autosave(s); } catch { /* retry next period */ } }), s.autosaveMs) : null;
   timer?.unref();
 

@@ -20,6 +20,8 @@ export interface WebMainOptions {
   autosaveMs?: number;
   /** Extra folders the window may read and write (tests use a temp folder). */
   allowedRoots?: string[];
+  /** Plan the demo at first run so the window opens on a tree (default true). */
+  firstRunPlan?: boolean;
 }
 
 export function defaultUserDataDir(): string {
@@ -44,7 +46,7 @@ export async function startWebMain(opts: WebMainOptions): Promise<{ api: Api; ho
     loadRecent(s);
     openPath(s, opts.project);
   } else {
-    await openAtStart(s, { demoFile: join(projects, 'demo.rwproj'), approve: (p) => policy.allowFolder(dirname(p)) });
+    await openAtStart(s, { demoFile: join(projects, 'demo.rwproj'), approve: (p) => policy.allowFolder(dirname(p)), planFirstRun: opts.firstRunPlan !== false });
   }
   const host = await startWebHost({ api, rendererDir: opts.rendererDir, port: opts.port });
   s.emit = (event, payload) => host.broadcast(event, payload);

@@ -19,6 +19,11 @@ export interface Prompt {
   question?: boolean;
   /** Values offered with one click (recent files). */
   choices?: string[];
+  /**
+   * Act on the value while the dialog stays open: null closes it, a message is shown in the
+   * dialog with the typed text kept (a bad path is corrected, not retyped).
+   */
+  submit?: (value: string) => Promise<string | null>;
   /** A second way on beside `confirm` (answers ALTERNATIVE). */
   alternative?: string;
   resolve: (v: string | null) => void;
@@ -56,9 +61,22 @@ class AppState {
 
   adopt(s: Snapshot): void {
     this.snapshot = s;
+    this.follow(s.state.planning);
     if (!this.modeId || !s.requirements.modes.some((m) => m.id === this.modeId)) this.modeId = s.requirements.modes[0]?.id ?? null;
     const sel = this.selection;
     if (sel && s.plan?.layout && !s.plan.layout.nodes.some((n) => n.id === sel.id)) this.selection = null;
+  }
+
+  /** Time of the last planning event seen (a lost "finished" event is noticed by polling). */
+  lastPlanEvent = 0;
+
+  /** Follow a planning run started elsewhere (first run, a menu, another window's request). */
+  follow(jobId: string | null | undefined): void {
+    if (jobId && !this.jobId) {
+      this.jobId = jobId;
+      this.progress = { jobId, fraction: 0, phase: 'rails', candidates: 0, explored: 0, bestScore: null, elapsedMs: 0, message: 'planning' };
+      this.lastPlanEvent = Date.now();
+    }
   }
 
   fail(e: ApiError): void {

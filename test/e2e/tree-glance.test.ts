@@ -74,7 +74,8 @@ describe.skipIf(tool.skip)('window: the tree at a glance', () => {
     mkdirSync(SHOTS, { recursive: true });
     tmp = mkdtempSync(join(tmpdir(), 'rw-e2e-tree-'));
     const { startWebMain } = await import('../../src-main/host/web-main.ts');
-    const h = await startWebMain({ userDataDir: join(tmp, 'data'), rendererDir: RENDERER, autosaveMs: 0, allowedRoots: [tmp] });
+    // The test presses Plan itself (no first-run plan racing it).
+    const h = await startWebMain({ userDataDir: join(tmp, 'data'), rendererDir: RENDERER, autosaveMs: 0, allowedRoots: [tmp], firstRunPlan: false });
     stop = h.stop;
     const { chromium } = await import('playwright-core');
     context = await chromium.launchPersistentContext(join(tmp, 'browser'), {

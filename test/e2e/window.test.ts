@@ -64,9 +64,12 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
     return cell;
   }
 
-  it('opens the demo on first run', async () => {
+  it('opens the demo on first run, already planned', { timeout: 150_000 }, async () => {
     await page.goto(entryUrl);
     await expect.poll(() => page.locator('[data-testid=file-state]').textContent()).toContain('Field transmitter');
+    // The host plans the demo at first run; the window follows and then shows the tree.
+    await page.waitForSelector('[data-testid=tree-svg]', { timeout: 140_000 });
+    await page.click('[data-viewtab=requirements]');
     // The token left the address bar once the page took it.
     expect(page.url()).not.toContain('token=');
     await expect.poll(() => page.locator('[data-testid=caution]').count()).toBe(1);
@@ -107,7 +110,9 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
     // The window keeps answering while the worker plans.
     await page.click('[data-viewtab=help]');
     await page.click('[data-viewtab=tree]');
-    await page.waitForSelector('[data-testid=tree-svg]', { timeout: 110_000 });
+    // The first-run tree is already drawn: wait for this run to finish before looking.
+    await page.waitForSelector('[data-testid=plan]', { timeout: 110_000 });
+    await page.waitForSelector('[data-testid=tree-svg]', { timeout: 10_000 });
     expect(await page.locator('[data-kind=stage]').count()).toBeGreaterThan(0);
     expect(await page.locator('[data-kind=rail]').count()).toBeGreaterThan(3);
     await page.waitForTimeout(300);
@@ -239,6 +244,10 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
     await page.click('text=Open…');
     await page.locator('[data-testid=prompt] input').fill('/etc/passwd.rwproj');
     await page.click('[data-testid=prompt-ok]');
-    await expect.poll(() => status().textContent()).toMatch(/path:/);
+    // The dialog stays open with the reason and the typed path.
+    await expect.poll(() => page.locator('[data-testid=prompt-error]').textContent()).toMatch(/path:/);
+    expect(await page.locator('[data-testid=prompt] input').inputValue()).toBe('/etc/passwd.rwproj');
+    await page.click('[data-testid=prompt] >> text=Cancel');
+    expect(await page.locator('[data-testid=prompt]').count()).toBe(0);
   });
 });

@@ -1,0 +1,167 @@
+/**
+ * The words an engineer reads for the engine's own keys: stage design fields, loss terms,
+ * BOM groups. Base SI units stay inside; here each field gets a name in words and the kind of
+ * quantity it is, so the window prints it in engineering notation with its unit. A key not
+ * listed falls back to its own words split apart ("someField" → "some field"), never code.
+ */
+import type { QuantityKind } from '../../src-main/engine/units.ts';
+import { q, pct, num } from './fmt.ts';
+import { CLASS_PARAMS, type PartClass } from '../../src-main/engine/library.ts';
+
+type Unit = QuantityKind | 'ratio' | 'dB' | 'K/W' | 'turns' | 'factor' | 'plain';
+
+/** Design fields: words and unit. */
+const FIELDS: Record<string, [string, Unit]> = {
+  vinMin: ['input voltage, min', 'voltage'], vinNom: ['input voltage, nominal', 'voltage'], vinMax: ['input voltage, max', 'voltage'],
+  vinRipple: ['input ripple (p-p)', 'voltage'], voltage: ['voltage', 'voltage'], tolerance: ['tolerance', 'ratio'],
+  currentMin: ['current, min', 'current'], currentMax: ['current, max', 'current'], rippleLimit: ['ripple limit (p-p)', 'voltage'],
+  fsw: ['switching frequency', 'frequency'], primaryTurns: ['primary turns', 'turns'], inductance: ['inductance', 'inductance'],
+  primaryResistance: ['primary winding resistance', 'resistance'], isat: ['saturation current', 'current'],
+  coreLossFraction: ['core loss share', 'ratio'], turns: ['turns', 'turns'], coupling: ['coupling coefficient', 'ratio'],
+  resistance: ['resistance', 'resistance'], is: ['diode saturation current', 'current'], n: ['diode emission coefficient', 'plain'],
+  rs: ['diode series resistance', 'resistance'], vfSpread: ['forward-voltage spread', 'ratio'],
+  rectifierReverseVoltage: ['rectifier reverse voltage', 'voltage'], role: ['role', 'plain'], value: ['capacitance', 'capacitance'],
+  count: ['count', 'plain'], ratedVoltage: ['rated voltage', 'voltage'], workingVoltage: ['working voltage', 'voltage'],
+  dielectric: ['dielectric', 'plain'], esr: ['ESR', 'resistance'], effective: ['effective capacitance at bias', 'capacitance'],
+  stress: ['share of rated voltage used', 'ratio'], current: ['current', 'current'], rTop: ['top resistor', 'resistance'],
+  rBottom: ['bottom resistor', 'resistance'], vref: ['reference voltage', 'voltage'], vout: ['output voltage', 'voltage'],
+  error: ['set-point error', 'ratio'], rdsOn: ['on-resistance', 'resistance'], qg: ['gate charge', 'charge'],
+  coss: ['output capacitance', 'capacitance'], tr: ['rise time', 'time'], tf: ['fall time', 'time'],
+  rdsHotFactor: ['on-resistance rise when hot', 'factor'], iq: ['quiescent current', 'current'], minOnTime: ['minimum on-time', 'time'],
+  maxDuty: ['maximum duty cycle', 'ratio'], vrefTolerance: ['reference tolerance', 'ratio'],
+  negCurrentLimit: ['negative current limit', 'current'], vDrive: ['gate-drive voltage', 'voltage'], deadTime: ['dead time', 'time'],
+  tjMax: ['junction temperature, max', 'temperature'], maxSecondaries: ['largest number of secondaries', 'plain'],
+  powerLimit: ['power limit', 'power'], dutyWarn: ['duty cycle warning threshold', 'ratio'], class: ['class', 'plain'],
+  rippleFrequency: ['ripple frequency', 'frequency'], ratedCurrent: ['rated current', 'current'],
+  dropoutAtRated: ['dropout at rated current', 'voltage'], dropoutFloor: ['dropout floor', 'voltage'], accuracy: ['accuracy', 'ratio'],
+  psrrDb: ['ripple rejection (PSRR)', 'dB'], psrrKnee: ['headroom for full ripple rejection', 'voltage'],
+  headroomMargin: ['headroom margin', 'voltage'], name: ['name', 'plain'], thetaSource: ['source of θJA', 'plain'],
+  thetaJA: ['thermal resistance θJA', 'K/W'], kind: ['kind', 'plain'], dropout: ['dropout', 'voltage'],
+  inductor: ['inductor', 'plain'], highSide: ['high-side switch', 'plain'], lowSide: ['low-side switch', 'plain'], controller: ['controller', 'plain'],
+};
+
+/** Groups of fields (objects and lists inside a design). */
+const GROUPS: Record<string, string> = {
+  outputs: 'output', secondaries: 'secondary winding', cout: 'output capacitor', cin: 'input capacitor',
+  divider: 'feedback divider', highSide: 'high-side switch', lowSide: 'low-side switch', bodyDiode: 'low-side body diode',
+  controller: 'controller', thetaJA: 'θJA', rectifier: 'rectifier diode', preload: 'preload', isolation: 'isolation',
+  package: 'package', inductor: 'inductor',
+};
+
+export function splitWords(key: string): string {
+  return key.replace(/[-_]+/g, ' ').replace(/([a-z0-9])([A-Z])/g, '$1 $2').replace(/\s+/g, ' ').trim().toLowerCase();
+}
+
+const cap = (s: string) => (s ? s[0]!.toUpperCase() + s.slice(1) : s);
+
+function formatValue(v: number, unit: Unit): string {
+  switch (unit) {
+    case 'ratio': return pct(v, 2);
+    case 'dB': return `${num(v, 3)} dB`;
+    case 'K/W': return `${num(v, 3)} K/W`;
+    case 'turns': return turnsText(v);
+    case 'factor': return `× ${num(v, 3)}`;
+    case 'plain': return num(v);
+    default: return q(v, unit, 4);
+  }
+}
+
+/** Winding turns with the polarity as engineers mark it: a count and "reversed" (dot at the far end). */
+export function turnsText(t: number): string {
+  const n = Math.abs(t);
+  return `${num(n)} turn${n === 1 ? '' : 's'}${t < 0 ? ', reversed polarity (dot at the far end)' : ''}`;
+}
+
+/**
+ * A stage design as rows of [name in words, value with unit]. `nodeName` turns node ids into
+ * rail names. The path reads as groups: "Secondary winding 1 › output capacitor › capacitance".
+ */
+export function designRows(design: unknown, nodeName: (id: string) => string): [string, string][] {
+  const out: [string, string][] = [];
+  const walk = (x: unknown, path: string[], leaf: string, underTheta: boolean) => {
+    if (out.length > 160 || x === null || x === undefined) return;
+    const label = () => cap(path.join(' › '));
+    if (leaf === 'nodeId' && typeof x === 'string') { out.push([cap(path.slice(0, -1).concat('rail').join(' › ')), nodeName(x)]); return; }
+    if (typeof x === 'number') {
+      const unit: Unit = underTheta || leaf === 'thetaJA' ? 'K/W' : FIELDS[leaf]?.[1] ?? 'plain';
+      out.push([label(), formatValue(x, unit)]);
+      return;
+    }
+    if (typeof x === 'string' || typeof x === 'boolean') {
+      if (leaf === 'kind') return;
+      out.push([label(), String(x)]);
+      return;
+    }
+    if (Array.isArray(x)) {
+      const g = GROUPS[leaf] ?? splitWords(leaf);
+      x.forEach((v, i) => walk(v, [...path.slice(0, -1), `${g} ${i + 1}`], leaf, underTheta));
+      return;
+    }
+    if (typeof x === 'object') {
+      for (const [k, v] of Object.entries(x)) {
+        const isGroup = v !== null && typeof v === 'object';
+        const word = isGroup ? GROUPS[k] ?? FIELDS[k]?.[0] ?? splitWords(k) : FIELDS[k]?.[0] ?? splitWords(k);
+        walk(v, [...path, word], k, underTheta || leaf === 'thetaJA');
+      }
+    }
+  };
+  walk(design, [], '', false);
+  return out;
+}
+
+/** Loss terms as an engineer names them. */
+const LOSSES: Record<string, string> = {
+  'hs-conduction': 'high-side switch conduction',
+  'ls-conduction': 'low-side switch conduction',
+  'hs-switching': 'high-side switching transitions',
+  'output-capacitance': 'switch output capacitance (Coss) charge',
+  'dead-time': 'body diode in dead time',
+  'gate-drive': 'gate drive',
+  'primary-copper': 'primary winding copper',
+  'secondary-copper': 'secondary winding copper',
+  rectifiers: 'rectifier diodes',
+  'magnetic-core': 'magnetic core',
+  'output-capacitor-esr': 'output capacitor ESR',
+  'input-capacitor-esr': 'input capacitor ESR',
+  snubber: 'rectifier RC snubber',
+  preload: 'preload resistor',
+  quiescent: 'quiescent current',
+  'pass-element': 'pass element (dropout × current)',
+  'inductor-copper': 'inductor copper (DCR)',
+  'inductor-core': 'inductor core',
+};
+export const lossName = (key: string): string => LOSSES[key] ?? splitWords(key);
+/** True when the term has its own name here (tests check the engine's terms are all named). */
+export const isNamedLoss = (key: string): boolean => key in LOSSES;
+
+/** BOM groups in words. */
+const BOM_GROUPS: Record<string, string> = {
+  controller: 'Controllers', ldo: 'Linear regulators (LDO)', 'magnetic-custom': 'Custom magnetics (to specification)',
+  inductor: 'Inductors', rectifier: 'Rectifier diodes', 'cap-aluminium': 'Aluminium electrolytic capacitors',
+  'cap-ceramic': 'Ceramic capacitors', resistor: 'Resistors', mosfet: 'Switches (MOSFETs)', switch: 'Switches (MOSFETs)',
+  diode: 'Diodes', capacitor: 'Capacitors',
+};
+export const bomGroupName = (key: string): string => BOM_GROUPS[key] ?? cap(splitWords(key));
+
+/** Base SI unit of a library parameter → the quantity printed in engineering notation. */
+const UNIT_KIND: Record<string, QuantityKind> = {
+  V: 'voltage', A: 'current', 'Ω': 'resistance', F: 'capacitance', H: 'inductance', s: 'time', W: 'power', C: 'charge', 'K/W': 'thermal-resistance',
+};
+
+/** What a library column means: the parameter's own description and its unit, where known. */
+export function libraryColumn(key: string, partClass?: string): { label: string; hint: string; kind: QuantityKind | null; unit: string } {
+  if (!key.startsWith('params.')) return { label: key === 'partClass' ? 'class' : key === 'cost' ? 'cost estimate' : splitWords(key), hint: '', kind: null, unit: '' };
+  const k = key.slice(7);
+  const classes = (partClass ? [partClass] : Object.keys(CLASS_PARAMS)) as PartClass[];
+  const spec = classes.map((c) => CLASS_PARAMS[c]?.find((p) => p.key === k)).find((p) => p) ?? Object.values(CLASS_PARAMS).flat().find((p) => p.key === k);
+  const unit = spec?.unit ?? '';
+  return { label: splitWords(k) + (unit ? ` (${unit})` : ''), hint: spec?.doc ?? '', kind: UNIT_KIND[unit] ?? null, unit };
+}
+
+/** A library value as the grid shows it: engineering notation with its unit. */
+export function libraryValue(v: unknown, col: { kind: QuantityKind | null; unit: string }): string {
+  if (v === null || v === undefined) return '';
+  if (typeof v !== 'number') return String(v);
+  if (col.kind) return q(v, col.kind, 4);
+  return col.unit ? `${num(v)} ${col.unit}` : num(v);
+}
