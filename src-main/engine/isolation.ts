@@ -22,10 +22,10 @@ export interface LeakageLimit {
 }
 
 export const LEAKAGE_LIMITS: readonly LeakageLimit[] = [
-  { id: 'ite-class2', label: 'IT equipment, class II, touch current', limit: 0.25e-3, standard: 'IEC 60950-1:2005 (ed. 2)', source: 'from memory' },
-  { id: 'ite-class1-handheld', label: 'IT equipment, class I hand-held, touch current', limit: 0.75e-3, standard: 'IEC 60950-1:2005 (ed. 2)', source: 'from memory' },
-  { id: 'ite-class1-movable', label: 'IT equipment, class I movable, touch current', limit: 3.5e-3, standard: 'IEC 60950-1:2005 (ed. 2)', source: 'from memory' },
-  { id: 'av-ict-es1', label: 'audio/video and ICT equipment, ES1 touch current', limit: 0.5e-3, standard: 'IEC 62368-1:2018 (ed. 3)', source: 'from memory' },
+  { id: 'ite-class2', label: 'IT equipment, class II, touch current', limit: 0.25e-3, standard: 'IEC 60950-1:2005 (ed. 2, withdrawn and superseded by IEC 62368-1; kept for equipment still assessed to it)', source: 'from memory' },
+  { id: 'ite-class1-handheld', label: 'IT equipment, class I hand-held, touch current', limit: 0.75e-3, standard: 'IEC 60950-1:2005 (ed. 2, withdrawn and superseded by IEC 62368-1; kept for equipment still assessed to it)', source: 'from memory' },
+  { id: 'ite-class1-movable', label: 'IT equipment, class I movable, touch current', limit: 3.5e-3, standard: 'IEC 60950-1:2005 (ed. 2, withdrawn and superseded by IEC 62368-1; kept for equipment still assessed to it)', source: 'from memory' },
+  { id: 'av-ict-es1', label: 'audio/video and ICT equipment, ES1 touch current', limit: 0.5e-3, standard: 'IEC 62368-1:2018 (ed. 3; a later edition may apply)', source: 'from memory' },
   { id: 'medical-touch-normal', label: 'medical equipment, touch current, normal condition', limit: 0.1e-3, standard: 'IEC 60601-1:2005+A1:2012 (ed. 3.1)', source: 'from memory' },
   { id: 'medical-touch-fault', label: 'medical equipment, touch current, single fault', limit: 0.5e-3, standard: 'IEC 60601-1:2005+A1:2012 (ed. 3.1)', source: 'from memory' },
 ];

@@ -15,6 +15,9 @@ describe('Y-capacitor leakage across a barrier', () => {
     expect(under.ok).toBe(true);
     expect(under.cautions.join(' ')).toMatch(/certifies nothing/);
     expect(LEAKAGE_LIMITS.every((l) => l.source === 'from memory' && /IEC \d+/.test(l.standard))).toBe(true);
+    // A withdrawn standard is said to be withdrawn, with its successor (from memory: IEC 60950-1
+    // was superseded by IEC 62368-1).
+    for (const l of LEAKAGE_LIMITS.filter((x) => x.standard.startsWith('IEC 60950-1'))) expect(l.standard).toMatch(/withdrawn.*IEC 62368-1/);
   });
   it('rejects bad input by name', () => {
     expect(() => checkBarrier({ capacitance: -1, voltageRms: 230, frequency: 50, limitId: 'ite-class2' })).toThrow(/^capacitance:/);
