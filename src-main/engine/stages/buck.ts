@@ -9,7 +9,7 @@ import type { OperatingPoint, OutputSpec, OutputWindow, StageEvaluation, StageFl
 import { bestDivider, nearest, type DividerChoice } from '../eseries.ts';
 import { GENERIC_DEFAULTS, diodeVf, type ControllerParams, type DiodeModel, type SwitchParams } from './defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from './common.ts';
-import { chooseCeramicRow, chooseInductor, chooseSwitcher, cheapestResistorOfGrade, vrefToleranceOf, type StagePartRef } from './part-choice.ts';
+import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitcher, cheapestResistorOfGrade, vrefToleranceOf, type StagePartRef } from './part-choice.ts';
 import type { LibraryRow } from '../library.ts';
 // windows.ts imports this module too; each side uses the other only inside functions.
 import { stageWindows } from './windows.ts';
@@ -289,16 +289,12 @@ function designBuckAt(spec: StageSpec, fswIn: number, grade: FeedbackGrade): Buc
   // nearest the target first, within a ripple of about 15–80 % of the load [common practice].
   let inductorPick: ReturnType<typeof chooseInductor> | null = null;
   if (lib) {
-    const tried: number[] = [];
-    for (const k of [1, 1.2, 0.82, 1.5, 0.68, 1.8, 0.56, 2.2, 0.47]) {
-      const Lk = nearest('E12', L * k);
-      if (tried.includes(Lk)) continue;
-      tried.push(Lk);
+    const chosen = chooseLibraryInductance(lib, L, (Lk) => {
       const rip = ((spec.vinMax - vout) * dMax) / (Lk * fsw);
-      const pick = chooseInductor(lib, Lk, (imax + rip / 2) * (1 + GENERIC_DEFAULTS.saturationMargin));
-      if (!('problem' in pick)) { L = Lk; inductorPick = pick; break; }
-      inductorPick ??= pick;
-    }
+      return (imax + rip / 2);
+    });
+    L = chosen.inductance;
+    inductorPick = chosen.pick;
   }
   const ripple = ((spec.vinMax - vout) * dMax) / (L * fsw);
   const ipk = imax + ripple / 2;

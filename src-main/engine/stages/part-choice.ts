@@ -13,6 +13,7 @@
 import type { LibraryRow } from '../library.ts';
 import { GENERIC_DEFAULTS, VT, type ControllerParams, type DiodeModel, type SwitchParams } from './defaults.ts';
 import { ceramicRetained, type CapacitorChoice } from './common.ts';
+import { nearest } from '../eseries.ts';
 
 /** Which library row fills one role of a stage, and what of it the model used. */
 export interface StagePartRef {
@@ -206,6 +207,27 @@ export function chooseInductor(lib: readonly LibraryRow[], L: number, isat: numb
   // The row's DCR is stated at its largest value and falls as √(L/lMax) (fewer turns).
   const dcr = num(row, 'dcr') * Math.sqrt(L / num(row, 'lMax'));
   return { ref: { role: 'inductor', libraryId: row.id, used: { dcr, iSat: num(row, 'iSat') * Math.sqrt(num(row, 'lMax') / L) }, generic: [] }, dcr, cost: row.cost };
+}
+
+/**
+ * With a library the inductance must be one a library inductor offers: the E12 values
+ * nearest the target first, within a ripple of about 15–80 % of the load [common practice],
+ * each checked for a saturation current of peakFor(L)·(1 + margin). Returns the inductance
+ * kept (the target when none fits) and the pick, or the first miss.
+ */
+export function chooseLibraryInductance(lib: readonly LibraryRow[], target: number, peakFor: (L: number) => number):
+  { inductance: number; pick: ReturnType<typeof chooseInductor> } {
+  let miss: ChoiceMiss | null = null;
+  const tried: number[] = [];
+  for (const k of [1, 1.2, 0.82, 1.5, 0.68, 1.8, 0.56, 2.2, 0.47]) {
+    const Lk = nearest('E12', target * k);
+    if (tried.includes(Lk)) continue;
+    tried.push(Lk);
+    const pick = chooseInductor(lib, Lk, peakFor(Lk) * (1 + GENERIC_DEFAULTS.saturationMargin));
+    if (!('problem' in pick)) return { inductance: Lk, pick };
+    miss ??= pick;
+  }
+  return { inductance: target, pick: miss! };
 }
 
 /** Parts needed so the bank's ripple rating covers its RMS current (1 when either is unknown). */

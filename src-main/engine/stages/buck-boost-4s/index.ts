@@ -20,7 +20,7 @@ import type { DissipatingPart, OperatingPoint, StageEvaluation, StageFlag, Stage
 import { bestDivider, nearest } from '../../eseries.ts';
 import { GENERIC_DEFAULTS, diodeVf, type ControllerParams } from '../defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags } from '../common.ts';
-import { chooseCeramicRow, chooseInductor, chooseSwitcher, type StagePartRef } from '../part-choice.ts';
+import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitcher, type StagePartRef } from '../part-choice.ts';
 import { feasibility, specErrors, thetaSourceOf, type SwitchingDesignBase, type ThermalParams } from '../buck.ts';
 import { NETLIST_CAUTION, commentText, spiceNumber as f, transientLines } from '../netlist-text.ts';
 import { inductorStageParts, type LibraryRow, type PartPick, type PickOptions } from '../../library.ts';
@@ -265,15 +265,9 @@ export function designFourSwitch(spec: StageSpec): Result {
   const lib = spec.library;
   let inductorPick: ReturnType<typeof chooseInductor> | null = null;
   if (lib) {
-    const tried: number[] = [];
-    for (const k of [1, 1.2, 0.82, 1.5, 0.68, 1.8, 0.56, 2.2, 0.47]) {
-      const Lk = nearest('E12', L * k);
-      if (tried.includes(Lk)) continue;
-      tried.push(Lk);
-      const pick = chooseInductor(lib, Lk, peakFor(Lk) * (1 + GENERIC_DEFAULTS.saturationMargin));
-      if (!('problem' in pick)) { L = Lk; inductorPick = pick; break; }
-      inductorPick ??= pick;
-    }
+    const chosen = chooseLibraryInductance(lib, L, peakFor);
+    L = chosen.inductance;
+    inductorPick = chosen.pick;
   }
   const ipk = peakFor(L);
   const isat = ipk * (1 + GENERIC_DEFAULTS.saturationMargin);
