@@ -4,10 +4,10 @@
  * suggested wire from the AWG table at a stated current density, and the isolation class
  * and working voltage of the barrier the windings cross (from the domain), with cautions.
  */
-import type { BuckDesign } from './stages/buck.ts';
-import { coupledPoint, windingCurrents, type CoupledBuckDesign } from './stages/cwbuck.ts';
+import type { BuckDesign } from './stages/buck/index.ts';
+import { coupledPoint, windingCurrents, type CoupledBuckDesign } from './stages/cwbuck/index.ts';
 import { designMagneticCore, type CoreDesign, type MagneticDesignOptions } from './core-design.ts';
-import { buckPoint } from './stages/buck.ts';
+import { buckPoint } from './stages/buck/index.ts';
 import { awgDiameterMm, copperOhmsPerMetre, wireFor } from './awg.ts';
 import { ISOLATION_CAUTIONS } from './isolation.ts';
 import type { IsolationClass } from './model.ts';

@@ -14,8 +14,8 @@
  * (signed, against its own return), vpp_out<i> its peak-to-peak ripple, and i_in, the
  * average current drawn from the input source (negative by the SPICE sign convention).
  */
-import { buckPoint, type BuckDesign } from '../engine/stages/buck.ts';
-import { coupledPoint, type CoupledBuckDesign } from '../engine/stages/cwbuck.ts';
+import { buckPoint, type BuckDesign } from '../engine/stages/buck/index.ts';
+import { coupledPoint, type CoupledBuckDesign } from '../engine/stages/cwbuck/index.ts';
 import type { OperatingPoint } from '../engine/stages/types.ts';
 import { showText } from '../engine/text-rules.ts';
 

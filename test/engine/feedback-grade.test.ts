@@ -1,12 +1,12 @@
 // Feedback grade and per-stage switching frequency as design choices of the buck designer
-// (src-main/engine/stages/buck.ts), with the default library (invented costs).
+// (src-main/engine/stages/buck/index.ts), with the default library (invented costs).
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { partsForStage, tableToRows, type LibraryRow } from '../../src-main/engine/library.ts';
 import { readCsv } from '../../src-main/export/csv.ts';
 import { designStage, evaluateStage, stageWindows } from '../../src-main/engine/stages/index.ts';
-import { FSW_SET, type BuckDesign } from '../../src-main/engine/stages/buck.ts';
+import { FSW_SET, type BuckDesign } from '../../src-main/engine/stages/buck/index.ts';
 import type { StageSpec } from '../../src-main/engine/stages/types.ts';
 import type { Amps, Celsius, Hertz, Ratio, Volts } from '../../src-main/engine/units.ts';
 import { libraryCostModel } from '../../src-main/engine/library.ts';

@@ -4,7 +4,7 @@
  * rectifier drop parameters and capacitances, output capacitors), evaluated with the primary
  * at its simulated voltage and every load at its simulated current.
  */
-import { coupledPoint, evaluateCoupledBuck, rectifierPeakReverse, type CoupledBuckDesign } from '../../src-main/engine/stages/cwbuck.ts';
+import { coupledPoint, evaluateCoupledBuck, rectifierPeakReverse, type CoupledBuckDesign } from '../../src-main/engine/stages/cwbuck/index.ts';
 import { GENERIC_DEFAULTS } from '../../src-main/engine/stages/defaults.ts';
 import type { CapacitorChoice } from '../../src-main/engine/stages/common.ts';
 import type { StageFlag } from '../../src-main/engine/stages/types.ts';

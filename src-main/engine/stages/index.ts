@@ -4,9 +4,9 @@
  * stageWindows (worst-case output windows over a corner set).
  */
 import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from './types.ts';
-import { designBuck, evaluateBuck, type BuckDesign } from './buck.ts';
-import { designCoupledBuck, evaluateCoupledBuck, type CoupledBuckDesign, type CoupledEvalOptions } from './cwbuck.ts';
-import { designLdo, evaluateLdo, type LdoDesign } from './ldo.ts';
+import { designBuck, evaluateBuck, type BuckDesign } from './buck/index.ts';
+import { designCoupledBuck, evaluateCoupledBuck, type CoupledBuckDesign, type CoupledEvalOptions } from './cwbuck/index.ts';
+import { designLdo, evaluateLdo, type LdoDesign } from './ldo/index.ts';
 import { designBoost, evaluateBoost, type BoostDesign } from './boost/index.ts';
 import { designInverting, evaluateInverting, type InvertingDesign } from './inverting/index.ts';
 import { designFourSwitch, evaluateFourSwitch, type FourSwitchDesign } from './buck-boost-4s/index.ts';
@@ -16,9 +16,9 @@ import { stageWindows as windows, type WindowCorners, type WindowOptions } from 
 import type { OutputWindow } from './types.ts';
 import { flag } from './common.ts';
 
-export type { BuckDesign } from './buck.ts';
-export type { CoupledBuckDesign, SecondaryWinding, CoupledEvalOptions } from './cwbuck.ts';
-export type { LdoDesign } from './ldo.ts';
+export type { BuckDesign } from './buck/index.ts';
+export type { CoupledBuckDesign, SecondaryWinding, CoupledEvalOptions } from './cwbuck/index.ts';
+export type { LdoDesign } from './ldo/index.ts';
 export type { BoostDesign } from './boost/index.ts';
 export type { InvertingDesign } from './inverting/index.ts';
 export type { FourSwitchDesign } from './buck-boost-4s/index.ts';

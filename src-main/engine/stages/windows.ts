@@ -13,9 +13,9 @@
 import type { Amps, Celsius, Volts } from '../units.ts';
 import type { OutputSpec, OutputWindow } from './types.ts';
 import type { DividerChoice } from '../eseries.ts';
-import { buckAtDuty, buckPoint, evaluateBuck, type BuckDesign } from './buck.ts';
-import { coupledOutputs, type CoupledBuckDesign } from './cwbuck.ts';
-import { ldoPoint, type LdoDesign } from './ldo.ts';
+import { buckAtDuty, buckPoint, evaluateBuck, type BuckDesign } from './buck/index.ts';
+import { coupledOutputs, type CoupledBuckDesign } from './cwbuck/index.ts';
+import { ldoPoint, type LdoDesign } from './ldo/index.ts';
 import { boostWindowAt, type BoostDesign } from './boost/index.ts';
 import { invertingWindowAt, type InvertingDesign } from './inverting/index.ts';
 import { fourSwitchWindowAt, type FourSwitchDesign } from './buck-boost-4s/index.ts';

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { designStage, evaluateStage, stageWindows, StageInputError, type BuckDesign, type LdoDesign } from '../../../src-main/engine/stages/index.ts';
-import { buckPoint } from '../../../src-main/engine/stages/buck.ts';
+import { buckPoint } from '../../../src-main/engine/stages/buck/index.ts';
 import type { StageSpec } from '../../../src-main/engine/stages/types.ts';
 import type { Amps, Celsius, Volts } from '../../../src-main/engine/units.ts';
 

@@ -3,7 +3,7 @@
 // secondaries wound together, the computed preload and the turn-on spike.
 import { describe, expect, it } from 'vitest';
 import { designStage, evaluateStage, type CoupledBuckDesign } from '../../../src-main/engine/stages/index.ts';
-import { coupledPoint, mutualLeakage } from '../../../src-main/engine/stages/cwbuck.ts';
+import { coupledPoint, mutualLeakage } from '../../../src-main/engine/stages/cwbuck/index.ts';
 import { parseSpec } from '../../../src-main/engine/stages/stage-json.ts';
 import type { StageSpec } from '../../../src-main/engine/stages/types.ts';
 import type { Amps, Celsius, Volts } from '../../../src-main/engine/units.ts';

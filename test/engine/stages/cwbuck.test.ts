@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { designStage, evaluateStage, stageWindows, type CoupledBuckDesign } from '../../../src-main/engine/stages/index.ts';
-import { coupledOutputs, coupledPoint } from '../../../src-main/engine/stages/cwbuck.ts';
+import { coupledOutputs, coupledPoint } from '../../../src-main/engine/stages/cwbuck/index.ts';
 import { diodeVf } from '../../../src-main/engine/stages/defaults.ts';
 import { magneticSpec } from '../../../src-main/engine/magnetics.ts';
 import { buckNetlist, coupledBuckNetlist } from '../../../src-main/export/spice.ts';

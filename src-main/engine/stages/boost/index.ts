@@ -8,7 +8,7 @@
  * ΔVout ≈ Iout·D/(fsw·Cout) + ESR·Ipk; output-capacitor RMS current Iout·√(D/(1 − D))) and
  * ch. 8 (the right-half-plane zero of the control-to-output transfer function,
  * f_RHP = Vout·(1 − D)²/(2π·L·Iout), which limits the loop crossover). Loss terms are common
- * practice, each reported separately, as for the buck (stages/buck.ts).
+ * practice, each reported separately, as for the buck (stages/buck/index.ts).
  *
  * Switches: `lowSide` is the main (ground-referenced) switch, on for D·T; `highSide` is the
  * synchronous rectifier to the output, on for the rest of the period less two dead times,
@@ -21,7 +21,7 @@ import { bestDivider, nearest } from '../../eseries.ts';
 import { GENERIC_DEFAULTS, diodeVf, type ControllerParams } from '../defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags } from '../common.ts';
 import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitcher, type StagePartRef } from '../part-choice.ts';
-import { feasibility, specErrors, switchingFlags, switchingParts, type SwitchingDesignBase, type ThermalParams } from '../buck.ts';
+import { feasibility, specErrors, switchingFlags, switchingParts, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
 import { NETLIST_CAUTION, commentText, spiceNumber as f, transientLines } from '../netlist-text.ts';
 import { inductorStageParts, type LibraryRow, type PartPick, type PickOptions } from '../../library.ts';
 

@@ -18,7 +18,7 @@ import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../t
 import type { IsolationClass } from '../../model.ts';
 import { nearest } from '../../eseries.ts';
 import { flag, part, r3, rippleFlags, thermalFlags } from '../common.ts';
-import { specErrors } from '../buck.ts';
+import { specErrors } from '../buck/index.ts';
 import { costNote, numParam, pickResistorPart, strParam, type LibraryRow, type PartPick, type PickOptions } from '../../library.ts';
 import type { StagePartRef } from '../part-choice.ts';
 

@@ -10,7 +10,7 @@
 import type { Amps, Celsius, Ratio, Volts, Watts } from '../../units.ts';
 import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { flag, part, r3, thermalFlags } from '../common.ts';
-import { specErrors } from '../buck.ts';
+import { specErrors } from '../buck/index.ts';
 import { cheapest, costNote, numParam, strParam, type LibraryRow, type PartPick } from '../../library.ts';
 import type { StagePartRef } from '../part-choice.ts';
 

@@ -19,15 +19,15 @@
  * leakage term), for τ ≪ Toff E = Rt·Isec/(1−D) (the resistive term): the two limits of
  * Vsec ≈ n·Vpri − Vf − 2·Llk·fsw·Isec/(1−D)² − R·Isec/(1−D).
  */
-import type { Amps, Henries, Ohms, Ratio, Volts, Watts } from '../units.ts';
-import type { OperatingPoint, OutputResult, OutputSpec, StageEvaluation, StageFlag, StageSpec } from './types.ts';
-import type { IsolationClass } from '../model.ts';
-import type { LibraryRow } from '../library.ts';
-import { bestDivider, nearest } from '../eseries.ts';
-import { GENERIC_DEFAULTS, VT, diodeVf, type ControllerParams, type DiodeModel } from './defaults.ts';
-import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from './common.ts';
-import { feasibility, specErrors, switchingFlags, switchingParts, thetaSourceOf, type SwitchingDesignBase } from './buck.ts';
-import { chooseCeramicRow, chooseRectifier, chooseSwitcher, diodeFromRow, type StagePartRef } from './part-choice.ts';
+import type { Amps, Henries, Ohms, Ratio, Volts, Watts } from '../../units.ts';
+import type { OperatingPoint, OutputResult, OutputSpec, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { IsolationClass } from '../../model.ts';
+import type { LibraryRow } from '../../library.ts';
+import { bestDivider, nearest } from '../../eseries.ts';
+import { GENERIC_DEFAULTS, VT, diodeVf, type ControllerParams, type DiodeModel } from '../defaults.ts';
+import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
+import { feasibility, specErrors, switchingFlags, switchingParts, thetaSourceOf, type SwitchingDesignBase } from '../buck/index.ts';
+import { chooseCeramicRow, chooseRectifier, chooseSwitcher, diodeFromRow, type StagePartRef } from '../part-choice.ts';
 
 // Module-local bindings for the innermost loops (saves a lookup through the module namespace
 // on every call when the sources run through a CommonJS transform).

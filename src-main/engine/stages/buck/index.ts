@@ -4,15 +4,15 @@
  * volt-second balance, inductor ripple, capacitor ripple, input-capacitor RMS); loss terms
  * are common practice (DESIGN.md §4), each reported separately.
  */
-import type { Amps, Celsius, Henries, Hertz, Ohms, Ratio, Volts, Watts } from '../units.ts';
-import type { OperatingPoint, OutputSpec, OutputWindow, StageEvaluation, StageFlag, StageSpec } from './types.ts';
-import { bestDivider, nearest, type DividerChoice } from '../eseries.ts';
-import { GENERIC_DEFAULTS, diodeVf, type ControllerParams, type DiodeModel, type SwitchParams } from './defaults.ts';
-import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from './common.ts';
-import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitcher, cheapestResistorOfGrade, vrefToleranceOf, type StagePartRef } from './part-choice.ts';
-import type { LibraryRow } from '../library.ts';
+import type { Amps, Celsius, Henries, Hertz, Ohms, Ratio, Volts, Watts } from '../../units.ts';
+import type { OperatingPoint, OutputSpec, OutputWindow, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import { bestDivider, nearest, type DividerChoice } from '../../eseries.ts';
+import { GENERIC_DEFAULTS, diodeVf, type ControllerParams, type DiodeModel, type SwitchParams } from '../defaults.ts';
+import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
+import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitcher, cheapestResistorOfGrade, vrefToleranceOf, type StagePartRef } from '../part-choice.ts';
+import type { LibraryRow } from '../../library.ts';
 // windows.ts imports this module too; each side uses the other only inside functions.
-import { stageWindows } from './windows.ts';
+import { stageWindows } from '../windows.ts';
 
 export interface ThermalParams {
   highSide: number;

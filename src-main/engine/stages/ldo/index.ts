@@ -4,13 +4,13 @@
  * trough, ripple out = ripple in × 10^(−PSRR/20) with PSRR fading near dropout, and
  * Tj = Ta + P·θJA (θJA as JEDEC JESD51-2 defines it: a package comparison figure).
  */
-import type { Amps, Celsius, Ratio, Volts, Watts } from '../units.ts';
-import type { OperatingPoint, OutputSpec, StageEvaluation, StageFlag, StageSpec } from './types.ts';
-import { GENERIC_DEFAULTS, type LdoPackage } from './defaults.ts';
-import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from './common.ts';
-import { specErrors } from './buck.ts';
-import { DEFAULT_MARGINS, type StagePartRef } from './part-choice.ts';
-import type { LibraryRow } from '../library.ts';
+import type { Amps, Celsius, Ratio, Volts, Watts } from '../../units.ts';
+import type { OperatingPoint, OutputSpec, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import { GENERIC_DEFAULTS, type LdoPackage } from '../defaults.ts';
+import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
+import { specErrors } from '../buck/index.ts';
+import { DEFAULT_MARGINS, type StagePartRef } from '../part-choice.ts';
+import type { LibraryRow } from '../../library.ts';
 
 export interface LdoDesign {
   kind: 'ldo';
