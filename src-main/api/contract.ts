@@ -302,6 +302,48 @@ export interface BarrierCheckView {
   cautions: string[];
 }
 
+/** Load-list import: what a column of the file fills. `current:*` fills every mode without a column of its own. */
+export interface LoadImportTarget { key: string; label: string; required: boolean }
+
+export interface LoadImportMapping {
+  /** 0-based index of the header row in the file's rows; data rows follow it. */
+  headerRow: number;
+  /** Per column of the file, the target key it fills, or null to leave it out. */
+  columns: (string | null)[];
+  /** Replace the project's loads instead of adding to them. */
+  replace: boolean;
+}
+
+/** One bad cell, by the file's own row number (1-based, as a spreadsheet shows it) and column letter. */
+export interface LoadImportBadCell { row: number; column: string; header: string; field: string; message: string }
+
+export interface LoadImportPreview {
+  headerRow: number;
+  headers: { column: string; text: string; unit: string | null }[];
+  mapping: LoadImportMapping;
+  targets: LoadImportTarget[];
+  /** What each data row becomes, in engineering notation, keyed by target key (current per mode as `current:<modeId>`). */
+  rows: { row: number; bad: boolean; cells: Record<string, string> }[];
+  bad: LoadImportBadCell[];
+  good: number;
+  total: number;
+  /** Why the mapping cannot be applied at all (a required field unmapped, a column mapped twice). */
+  problems: string[];
+  notes: string[];
+}
+
+/** A load list read from a file: its cells as text, the sheet read, and the preview under the guessed mapping. */
+export interface LoadImportFile {
+  fileName: string;
+  format: 'csv' | 'xlsx';
+  sheets: string[];
+  sheet: string | null;
+  delimiter: string | null;
+  decimalComma: boolean;
+  rows: string[][];
+  preview: LoadImportPreview;
+}
+
 export interface Requests {
   'project.snapshot': (args: Record<string, never>) => Snapshot;
   'project.new': (args: { discard?: boolean }) => Snapshot;
@@ -345,6 +387,21 @@ export interface Requests {
   'isolation.check': (args: { capacitance: string; voltageRms: string; frequency: string; limitId: string }) => BarrierCheckView;
 
   /** An existing file at `path` is replaced only with `overwrite: true` (else code `exists`). */
+  /** Read a load list (CSV or XLSX bytes as base64) and preview it under a guessed column mapping; changes nothing. */
+  'loads.importRead': (args: { fileName: string; base64: string; sheet?: string }) => LoadImportFile;
+  /** Preview the rows under a mapping: every bad cell by row and column; changes nothing. */
+  'loads.importPreview': (args: { rows: string[][]; mapping: LoadImportMapping; decimalComma?: boolean }) => LoadImportPreview;
+  /**
+   * Add (or with `mapping.replace`, replace) the loads in one undoable edit. Any bad cell refuses
+   * the whole import, unless `onlyGoodRows`: then the rows holding a bad cell are left out.
+   */
+  'loads.importApply': (args: { rows: string[][]; mapping: LoadImportMapping; decimalComma?: boolean; onlyGoodRows?: boolean }) => Snapshot & { imported: number; skipped: number };
+  /**
+   * Open a project from a file's bytes (the web host's file picker): checked like any project
+   * file; the project is opened unsaved (no path), so Save asks for a file name.
+   */
+  'project.openBytes': (args: { fileName: string; base64: string; discard?: boolean }) => Snapshot;
+
   'export.file': (args: { kind: ExportKind; path?: string; stageId?: Id; overwrite?: boolean }) => ExportFile;
 }
 

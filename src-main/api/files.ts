@@ -224,6 +224,12 @@ export function saveTo(s: Session, raw: string | undefined, overwrite = false): 
   s.emit('project.state', s.state());
 }
 
+/** A project read from a file's bytes (the web host's picker): unsaved, no path, so Save asks for one. */
+export function adoptBytes(s: Session, store: ProjectStore): void {
+  adoptStore(s, store, null, { dirty: true });
+  clearRecovery(s);
+}
+
 export function importDocument(s: Session, text: string): void {
   const r = importProjectJson(text);
   if (!r.ok) {
