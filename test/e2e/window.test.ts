@@ -144,7 +144,15 @@ describe.skipIf(tool.skip)('window end to end (local web host + Chromium)', () =
     expect(await page.locator('[data-testid=barrier-check]').count()).toBe(1);
     {
       const form = page.locator('[data-testid=barrier-check]');
+      // Nothing is pre-filled until the user says what the working voltage (250 V) is.
+      expect(await form.locator('[data-testid=barrier-vrms]').inputValue()).toBe('');
+      await form.locator('[data-testid=working-voltage-form]').selectOption('peak');
+      expect(await form.locator('[data-testid=barrier-vrms]').inputValue()).toBe('176.8 V');
       await form.locator('input').first().fill('2n2');
+      await form.locator('button[type=submit]').click();
+      // I = 2π·f·C·V rms: 2π · 50 Hz · 2.2 nF · 176.8 V = 122.2 µA (common practice).
+      await expect.poll(() => form.textContent()).toMatch(/122 µA|122.2 µA/);
+      await form.locator('[data-testid=working-voltage-form]').selectOption('rms');
       await form.locator('button[type=submit]').click();
       await expect.poll(() => form.textContent()).toMatch(/173 µA|172.8 µA/);
       await form.scrollIntoViewIfNeeded();
