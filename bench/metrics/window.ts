@@ -1,7 +1,8 @@
 /**
  * Window metrics: start of the local web host until Chromium shows the loaded project;
  * one load edit until the recomputed roll-up is back (60-load project, through the same
- * request the window sends); ELK layout of a 150-node tree.
+ * request the window sends); ELK layout of a 150-node tree; a 500-row load list imported
+ * from CSV (read, preview and apply through the same requests the import dialog sends).
  */
 import { existsSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -112,6 +113,32 @@ export const metrics: Metric[] = [
       if (view.nodes.length < 150) throw new Error(`only ${view.nodes.length} nodes`);
       const elk = new ELK();
       return timeRuns(7, () => layoutTree(view, elk), 1);
+    },
+  },
+  {
+    name: 'load_import_ms_500_rows',
+    unit: 'ms',
+    async sample() {
+      // An invented 500-row load list in CSV with header units, on the demo project.
+      const doc = demoDocument();
+      doc.library = defaultLibrary();
+      const req = doc.requirements;
+      const lines = [`Name,Domain,Voltage (V),${req.modes.map((m) => `${m.name} current (mA)`).join(',')},Tolerance,Ripple (mV)`];
+      for (let i = 0; i < 500; i++) {
+        lines.push([`Bench load ${i + 1}`, req.domains[i % req.domains.length]!.name, ['3.3', '5', '1V8', '12'][i % 4], ...req.modes.map((_, j) => String(10 + ((i * 7 + j) % 90))), '±5%', '50'].join(','));
+      }
+      const base64 = Buffer.from(lines.join('\r\n')).toString('base64');
+      return timeRuns(7, async () => {
+        const api = createApi({ host: 'test', userDataDir: null });
+        const store = ProjectStore.fromDocument(doc);
+        api.session.replace({ requirements: store.getRequirements(), library: store.getLibrary(), planResult: null, path: null, store });
+        const read = await api.request('loads.importRead', { fileName: 'bench.csv', base64 });
+        if (!read.ok) throw new Error(read.error.message);
+        const f = read.value as { rows: string[][]; preview: { mapping: never; bad: unknown[] } };
+        if (f.preview.bad.length) throw new Error('the bench list has bad cells');
+        const r = await api.request('loads.importApply', { rows: f.rows, mapping: f.preview.mapping });
+        if (!r.ok || (r.value as { imported: number }).imported !== 500) throw new Error(r.ok ? 'not 500 imported' : r.error.message);
+      }, 1);
     },
   },
 ];
