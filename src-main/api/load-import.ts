@@ -243,7 +243,7 @@ function build(req: Requirements, rows: string[][], mapping: LoadImportMapping, 
       let rowBad = false;
       const mark = (j: number, field: string, message: string) => {
         rowBad = true;
-        bad.push({ row: rowNo, column: columnLetter(j), header: showText(header[j] ?? ''), field, message });
+        bad.push({ row: rowNo, column: columnLetter(j), header: showText(header[j] ?? ''), field, message: showText(message) });
       };
       for (const { k, j } of mapped) {
         const raw = line[j] ?? '';
