@@ -114,7 +114,7 @@ export function headerUnit(header: string): string | null {
   return /^(?:[fpnuµmkKMG]|meg)?(?:A|V|Hz|W|Ω|ohm)?$|^%$/.test(u) && u !== '' ? u : null;
 }
 
-const BARE_NUMBER = /^[+\-\u2212]?(\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?$/;
+const BARE_NUMBER = /^(?:±\s*|\+\/-\s*)?[+\-\u2212]?(\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?$/;
 
 /**
  * The text a cell stands for: a bare number under a header that names a unit gets that unit

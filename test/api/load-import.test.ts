@@ -65,6 +65,7 @@ describe('units from headers and cells (engineering notation)', () => {
   });
   it('a bare number takes the header unit; a cell with its own unit or multiplier keeps it', () => {
     expect(cellText('250', 'mA')).toBe('250 mA');
+    expect(cellText('±5', '%')).toBe('±5 %');
     expect(cellText('0.25A', 'mA')).toBe('0.25A');
     expect(cellText('1.2 k', null)).toBe('1.2 k');
     expect(cellText('3,3', 'V', true)).toBe('3.3 V');
