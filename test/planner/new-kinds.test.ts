@@ -16,7 +16,7 @@ import { GENERIC_DEFAULTS } from '../../src-main/engine/stages/defaults.ts';
 import type { PlanResult, PlanStage } from '../../src-main/engine/plan-types.ts';
 import { checkPlan } from './helpers/check-plan.ts';
 
-type L = Partial<Load> & { id: string; voltage: number; current: Record<string, number> };
+type L = Omit<Partial<Load>, 'voltage' | 'current' | 'tolerance'> & { id: string; voltage: number; tolerance?: number; current: Record<string, number> };
 
 function board(o: {
   source: { vMin: number; vNom: number; vMax: number };
