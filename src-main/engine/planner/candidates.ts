@@ -884,8 +884,9 @@ export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { sin
  * decides the rest (duty limits, ratings, windows).
  * - boost: a positive non-isolated rail whose lowest value (band minimum) is above the
  *   input's highest (source vMax, or the feeding rail's band maximum);
- * - four-switch buck-boost: a positive non-isolated rail a buck cannot serve (it is not below
- *   the input's lowest) and a boost cannot either (it is not above the input's highest);
+ * - four-switch buck-boost: a positive non-isolated rail a buck cannot be sure to serve (it is
+ *   not below the generic largest duty × the input's lowest) and a boost cannot either (it is
+ *   not above the input's highest);
  * - inverting: a negative non-isolated rail from a positive input;
  * - isolated module: a rail of an isolated domain from a positive input of a non-isolated one;
  * - load switch: a rail that draws nothing in some mode (gated per mode), from an input of the
@@ -914,7 +915,9 @@ function newKindShapes(f: BlockFactory, opts: GenerationOptions, i: number): Blo
     for (const x of inputs) {
       if (!x.positive || x.quiet || !sameDomain(x)) continue;
       if (opts.allowed.has('boost') && band.min > x.max) out.push({ kind: 'boost', input: x.input, rail: i });
-      const buckCan = x.input.kind === 'source' ? r.voltage < x.min : rails[x.input.rail]!.voltage > r.voltage;
+      // A buck reaches at most Dmax·Vin: from the generic largest duty up, only a step-up-and-down
+      // stage is sure to serve the rail (a library buck with a larger duty may compete).
+      const buckCan = r.voltage < BUCK_MAX_DUTY * x.min;
       if (opts.allowed.has('buck-boost-4s') && !buckCan && !(band.min > x.max) && !(x.input.kind === 'rail' && rails[x.input.rail]!.voltage === r.voltage)) {
         out.push({ kind: 'buck-boost-4s', input: x.input, rail: i });
       }
