@@ -170,7 +170,8 @@ export function explainInfeasible(
       const text = iso
         ? `${rail.name} (${v3(rail.voltage)}) is in an isolated domain and no allowed stage can cross the barrier to it`
         : `${rail.name} (${v3(rail.voltage)} ±${+(rail.tolerance * 100).toPrecision(3)} %): no allowed stage can make it: ` +
-          `a buck needs its output below the lowest input (${heads.join('; ')}), an LDO needs a rail of the same domain and sign above ${v3(a)} plus its dropout`;
+          `a buck needs its output below the lowest input (${heads.join('; ')}), an LDO needs a rail of the same domain and sign above ${v3(a)} plus its dropout` +
+          (allowed.has('boost') || allowed.has('buck-boost-4s') || allowed.has('inverting') ? '; the boost, four-switch and inverting feeds serve only non-quiet rails of a non-isolated domain with a positive input there' : '');
       const short = iso ? 0 : Math.max(0, a - Math.max(...f.req.sources.map((s) => s.vMin)));
       out.push({ inf: { railId: rail.id, constraint: iso ? 'barrier' : 'headroom', shortfall: short, unit: iso ? '' : 'V', text, remedies: [] }, railIndex: r, candidates: cands });
       continue;
