@@ -25,6 +25,7 @@ import { parse } from 'csv-parse/sync';
 import ELK from 'elkjs/lib/elk.bundled.js';
 import { rollupPlan } from '../../src-main/engine/rollup.ts';
 import { runtimeLines } from '../../src-main/cli/plan.ts';
+import { toRollupView } from '../../src-main/api/figures.ts';
 import { prepareExport, exportBomCsv, exportNetlists, exportReportPdf } from '../../src-main/export/bundle.ts';
 import { BOM_HEADER } from '../../src-main/export/bom-files.ts';
 import type { ElkLike } from '../../src-main/engine/layout.ts';
@@ -276,6 +277,12 @@ describe('scenario: handheld sensor on one 1S Li-ion cell, 3.0–4.2 V, two mode
     expect(b.mixPower).toBeCloseTo(0.1 * b.perMode[0]!.power + 0.9 * b.perMode[1]!.power, 12);
     expect(b.mixHours).toBeCloseTo(b.energyWh / b.mixPower, 9);
     expect(b.mixHours).toBeGreaterThan(b.perMode[0]!.hours);
+    // The window's Budget view reads the same figures through the contract (RollupView.batteries).
+    const view = toRollupView({ requirements: p.req } as Parameters<typeof toRollupView>[0], roll);
+    expect(view.batteries).toEqual([{
+      sourceId: 'cell', sourceName: 'Li-ion cell 1S', energyWh: b.energyWh, mixPower: b.mixPower, mixHours: b.mixHours,
+      perMode: b.perMode.map((m) => ({ modeId: m.modeId, modeName: m.modeName, power: m.power, hours: m.hours })),
+    }]);
     expect(runtimeLines(p.req, p.plan)[0]).toMatch(/^Battery runtime \(roll-up, at nominal input\) — Li-ion cell 1S: [0-9.]+ Wh usable .* runtime [0-9.]+ (h|days) for the mode mix .*Active [0-9.]+ h .*Sleep/);
   });
   it('exports: the BOM CSV reads back with csv-parse, the report states the runtime, the switching stages have netlists', async () => {
