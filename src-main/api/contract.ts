@@ -130,6 +130,21 @@ export interface RollupView {
   /** Time-weighted loss over the modes. */
   weightedLoss: number;
   messages: string[];
+  /**
+   * Battery sources: usable energy to the end-of-discharge voltage over the power the plan
+   * draws from each at nominal input (conversion losses included), for the mode mix and per
+   * mode; hours null where a mode draws nothing.
+   */
+  batteries?: BatteryFigures[];
+}
+
+export interface BatteryFigures {
+  sourceId: Id;
+  sourceName: string;
+  energyWh: number;
+  mixPower: number;
+  mixHours: number | null;
+  perMode: { modeId: Id; modeName: string; power: number; hours: number | null }[];
 }
 
 /** One line of text in the drawing, placed by the engine (baseline at y; box = the room it takes). */

@@ -71,6 +71,11 @@ export function toRollupView(s: Session, r: Rollup): RollupView {
     system,
     weightedLoss: r.weighted.loss,
     messages,
+    batteries: r.batteries.map((b) => ({
+      sourceId: b.sourceId, sourceName: req.sources.find((x) => x.id === b.sourceId)?.name ?? b.sourceId,
+      energyWh: b.energyWh, mixPower: b.mixPower, mixHours: Number.isFinite(b.mixHours) ? b.mixHours : null,
+      perMode: b.perMode.map((m) => ({ modeId: m.modeId, modeName: m.modeName, power: m.power, hours: Number.isFinite(m.hours) ? m.hours : null })),
+    })),
   };
 }
 

@@ -59,6 +59,18 @@ export function parseCell(col: ColumnDef, text: string, where: string, req: Requ
       if (!hit) throw new ApiFailure(`${where}: "${t}" is not one of ${opts.join(', ')}`, field);
       return hit;
     }
+    case 'list': {
+      const items = t.split(/[,;\s]+/).filter((x) => x !== '');
+      if (!items.length) throw new ApiFailure(`${where}: list at least one of ${k.options.join(', ')}`, field);
+      const out: string[] = [];
+      for (const it of items) {
+        const hit = k.options.find((o) => o.toLowerCase() === it.toLowerCase());
+        if (!hit) throw new ApiFailure(`${where}: "${it.slice(0, 40)}" is not one of ${k.options.join(', ')}`, field);
+        if (out.includes(hit)) throw new ApiFailure(`${where}: "${hit}" is listed twice`, field);
+        out.push(hit);
+      }
+      return out;
+    }
     case 'quantity': {
       const r = parseQuantity(t, k.quantity, where);
       if (!r.ok) throw new ApiFailure(r.message, field);

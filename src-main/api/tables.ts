@@ -5,6 +5,7 @@
  */
 import type { QuantityKind } from '../engine/units.ts';
 import type { TableName } from './contract.ts';
+import { STAGE_KINDS } from '../engine/model.ts';
 
 export type ColumnKind =
   | { type: 'text'; optional?: boolean }
@@ -14,7 +15,9 @@ export type ColumnKind =
   | { type: 'fraction'; min: number; max: number }
   | { type: 'integer'; min: number; max: number }
   | { type: 'number'; min: number; max: number; unit: string }
-  | { type: 'enum'; options: readonly string[] | 'domains' };
+  | { type: 'enum'; options: readonly string[] | 'domains' }
+  /** A list of options typed comma-separated ("buck, ldo, boost"), at least one, each once. */
+  | { type: 'list'; options: readonly string[] };
 
 export interface ColumnDef {
   key: string;
@@ -67,6 +70,7 @@ export const TABLE_COLUMNS: Record<Exclude<TableName, 'library'>, ColumnDef[]> =
     { key: 'weights.loss', label: 'Weight: loss', kind: { type: 'number', min: 0, max: 100, unit: '' }, width: 90, hint: 'objective weight' },
     { key: 'weights.cost', label: 'Weight: cost', kind: { type: 'number', min: 0, max: 100, unit: '' }, width: 90, hint: 'objective weight' },
     { key: 'weights.parts', label: 'Weight: parts', kind: { type: 'number', min: 0, max: 100, unit: '' }, width: 90, hint: 'objective weight' },
+    { key: 'allowedKinds', label: 'Allowed stage kinds', kind: { type: 'list', options: STAGE_KINDS }, width: 260, hint: `comma-separated: ${STAGE_KINDS.join(', ')}` },
     { key: 'budgetMs', label: 'Time budget (ms)', kind: { type: 'integer', min: 100, max: 600000 }, width: 100, hint: 'milliseconds the planner may search' },
   ],
 };

@@ -13,6 +13,10 @@ import type { Objective } from '../engine/planner/score.ts';
 import { runPlanInWorker } from '../worker/run-plan.ts';
 import { projectLibrary } from './open-project.ts';
 import { safeJsonText } from '../store/json-format.ts';
+import { rollupPlan } from '../engine/rollup.ts';
+import { groupRails } from '../engine/rails.ts';
+import { runtimeText } from '../engine/battery.ts';
+import { showText } from '../engine/text-rules.ts';
 
 const OBJECTIVES: Objective[] = ['loss', 'cost', 'parts', 'balanced'];
 
@@ -74,6 +78,17 @@ export function renderPlan(req: Requirements, result: PlanResult, plan: Plan): s
   return out;
 }
 
+/** Battery runtime of the plan (its roll-up: conversion losses included), one line per battery source. */
+export function runtimeLines(req: Requirements, plan: Plan): string[] {
+  if (!req.sources.some((s) => s.battery)) return [];
+  try {
+    const r = rollupPlan(req, groupRails(req), plan);
+    return r.batteries.map((b) => showText(`Battery runtime (roll-up, at nominal input) — ${runtimeText(b, req.sources.find((s) => s.id === b.sourceId)?.name ?? b.sourceId)}.`));
+  } catch (e) {
+    return [`Battery runtime: the roll-up failed (${(e as Error).message})`];
+  }
+}
+
 function renderResult(req: Requirements, result: PlanResult, io: CliIo): void {
   if (!result.best) {
     io.out(result.stats.cancelled ? 'Planning was cancelled before a plan was found.' : 'No feasible power tree:');
@@ -96,6 +111,7 @@ function renderResult(req: Requirements, result: PlanResult, io: CliIo): void {
   const st = result.stats;
   io.out(`${st.provedOptimal ? 'Proved optimal' : `Best found, not proved optimal${st.notProved ? ` (${st.notProved})` : ''}`}; ${st.explored} search nodes, ${st.elapsedMs.toFixed(0)} ms.`);
   if (st.space) io.out(`${st.provedOptimal ? 'Proved over' : 'Searched'}: ${st.space.summary}.`);
+  for (const line of runtimeLines(req, result.best)) io.out(line);
   if (result.best.stages.some((s) => s.barriers.length)) { io.out(''); io.out(ISOLATION_CAUTION); }
 }
 

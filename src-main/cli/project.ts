@@ -14,6 +14,7 @@ import { exportProjectJson, importProjectJson } from '../store/json-format.ts';
 import { PROJECT_EXTENSION, ProjectStore, StoreError, hasProjectExtension, writeFileAtomic } from '../store/project-store.ts';
 import { demoDocument } from '../store/demo.ts';
 import { checkText, showText } from '../engine/text-rules.ts';
+import { runtimeLines } from './plan.ts';
 
 const ISOLATION_CAUTION =
   'Caution: isolated domains and mains-connected inputs can kill. Railwright records the isolation ' +
@@ -323,7 +324,19 @@ const summary: CliCommand = {
   async run(args, io) {
     const { positional } = parseFlags(args, {});
     if (positional.length > 1) throw new CliError('too many arguments (see --help)', 2);
-    for (const l of summaryText(loadRequirements(positional[0], io))) io.out(l);
+    const req = loadRequirements(positional[0], io);
+    for (const l of summaryText(req)) io.out(l);
+    // A project file with a current saved plan: the planned runtime (its roll-up, losses included).
+    if (req.sources.some((s) => s.battery) && positional[0] && !positional[0].toLowerCase().endsWith('.json')) {
+      const store = openStore(positional[0]);
+      try {
+        const saved = store.getPlanResult();
+        if (saved?.result.best && !saved.stale) for (const l of runtimeLines(req, saved.result.best)) io.out(l);
+        else io.out(saved?.result.best ? 'The saved plan is older than the requirements: plan again for the planned runtime' : 'No saved plan: railwright plan gives the runtime with the conversion losses');
+      } finally {
+        store.close();
+      }
+    }
     return 0;
   },
 };

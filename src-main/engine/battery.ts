@@ -85,3 +85,16 @@ export function batteryRuntime(sourceId: string, b: BatterySpec, modes: Readonly
   const mixPower = perMode.reduce((a, m, i) => a + (modes[i]!.share / shareSum) * m.power, 0);
   return { sourceId, energyWh: e.wh, meanVoltage: e.meanVoltage, perMode, mixPower, mixHours: mixPower > 0 ? e.wh / mixPower : Infinity };
 }
+
+/** Hours as an engineer reads them: hours below two days, else days; "no draw" for none. */
+export function hoursText(h: number): string {
+  if (!Number.isFinite(h)) return 'no draw';
+  return h < 48 ? `${+h.toPrecision(3)} h` : `${+(h / 24).toPrecision(3)} days`;
+}
+
+/** One sentence on a battery's runtime (report, CLI): the mix and each mode, with the powers. */
+export function runtimeText(rt: BatteryRuntime, sourceName: string): string {
+  const w = (p: number) => (p >= 1 ? `${+p.toPrecision(3)} W` : `${+(p * 1e3).toPrecision(3)} mW`);
+  return `${sourceName}: ${+rt.energyWh.toPrecision(3)} Wh usable to the end-of-discharge voltage; runtime ${hoursText(rt.mixHours)} for the mode mix (${w(rt.mixPower)} drawn)` +
+    `; ${rt.perMode.map((m) => `${m.modeName} ${hoursText(m.hours)} (${w(m.power)})`).join(', ')}`;
+}

@@ -46,6 +46,9 @@ export const STAGE_KIND_LABEL: Record<StageKind, string> = {
   buck: 'synchronous buck',
   cwbuck: 'coupled-winding buck',
   ldo: 'LDO',
+  boost: 'synchronous boost',
+  inverting: 'inverting buck-boost',
+  'buck-boost-4s': 'four-switch buck-boost',
   'iso-module': 'isolated module',
   'load-switch': 'load switch',
 };

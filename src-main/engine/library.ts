@@ -725,8 +725,8 @@ export function partsForStage(stageId: string, design: unknown, library: Library
 // The library as the planner's cost model
 
 /** Median unit cost of the rows of some classes (0 when the library has none). */
-function medianCost(library: LibraryRow[], classes: PartClass[], extra: (r: LibraryRow) => number = () => 0): number {
-  const xs = library.filter((r) => classes.includes(r.partClass)).map((r) => r.cost + extra(r)).sort((a, b) => a - b);
+function medianCost(library: LibraryRow[], classes: PartClass[], extra: (r: LibraryRow) => number = () => 0, keep: (r: LibraryRow) => boolean = () => true): number {
+  const xs = library.filter((r) => classes.includes(r.partClass) && keep(r)).map((r) => r.cost + extra(r)).sort((a, b) => a - b);
   if (xs.length === 0) return 0;
   const m = Math.floor(xs.length / 2);
   return xs.length % 2 ? xs[m]! : (xs[m - 1]! + xs[m]!) / 2;
@@ -742,7 +742,8 @@ function medianCost(library: LibraryRow[], classes: PartClass[], extra: (r: Libr
 export function libraryUnitCosts(library: LibraryRow[]): Record<keyof PartCounts, number> {
   return {
     ...INVENTED_UNIT_COST,
-    controller: medianCost(library, ['controller']),
+    // The buck controllers only: the reference stage is a buck (rows of other topologies do not move it).
+    controller: medianCost(library, ['controller'], undefined, (r) => rowTopology(r) === 'buck'),
     switch: medianCost(library, ['switch']),
     magnetic: medianCost(library, ['inductor']),
     coupledMagnetic: medianCost(library, ['magnetic-custom'], (r) => 2 * numParam(r, 'costPerWinding', 0)),

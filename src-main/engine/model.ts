@@ -18,18 +18,17 @@ export const ISOLATION_CLASSES: readonly IsolationClass[] = ['none', 'functional
 export type NoiseClass = 'rugged' | 'standard' | 'quiet';
 export const NOISE_CLASSES: readonly NoiseClass[] = ['rugged', 'standard', 'quiet'];
 
-/** Converter kinds the planner may use. */
-export type StageKind = 'buck' | 'cwbuck' | 'ldo' | 'iso-module' | 'load-switch';
-export const STAGE_KINDS: readonly StageKind[] = ['buck', 'cwbuck', 'ldo', 'iso-module', 'load-switch'];
-
 /**
- * Every kind the stage engine models (engine/stages/: designStage, evaluateStage,
- * stageWindows, the stage file format). The kinds beyond StageKind are engine models the
- * planner does not choose among yet: they join StageKind (the project setting of allowed
- * kinds) with the planner's integration.
+ * Converter kinds the planner may use (the project setting of allowed kinds): every kind the
+ * stage engine models (engine/stages/: designStage, evaluateStage, stageWindows, the stage
+ * file format). docs/planner.md states where the planner offers each.
  */
-export type StageModelKind = StageKind | 'boost' | 'inverting' | 'buck-boost-4s';
-export const STAGE_MODEL_KINDS: readonly StageModelKind[] = ['buck', 'cwbuck', 'ldo', 'boost', 'inverting', 'buck-boost-4s', 'load-switch', 'iso-module'];
+export type StageKind = 'buck' | 'cwbuck' | 'ldo' | 'boost' | 'inverting' | 'buck-boost-4s' | 'load-switch' | 'iso-module';
+export const STAGE_KINDS: readonly StageKind[] = ['buck', 'cwbuck', 'ldo', 'boost', 'inverting', 'buck-boost-4s', 'load-switch', 'iso-module'];
+
+/** Every kind the stage engine models: since the planner's integration, the same list as StageKind. */
+export type StageModelKind = StageKind;
+export const STAGE_MODEL_KINDS: readonly StageModelKind[] = STAGE_KINDS;
 
 /** Battery chemistries with presets (engine/battery.ts, generic curves from memory). */
 export type BatteryChemistry = 'li-ion' | 'lifepo4' | 'alkaline' | 'nimh';
@@ -181,7 +180,8 @@ export const DEFAULT_LIMITS: DesignLimits = {
 export const DEFAULT_PREFERENCES: PlannerPreferences = {
   weights: { loss: 1, cost: 1, parts: 0.2 },
   maxSecondaries: 3,
-  allowedKinds: ['buck', 'cwbuck', 'ldo'],
+  // Every kind the planner models (a project may narrow the list). The demo project lists its own.
+  allowedKinds: [...STAGE_KINDS],
   switchingFrequency: 400e3 as Hertz,
   budgetMs: 10_000,
 };

@@ -159,7 +159,7 @@ function evaluateCached(models: StageModels, design: unknown, op: OperatingPoint
   if (design === null || typeof design !== 'object') return models.evaluate(design, op);
   let m = cache.get(design);
   if (!m) { m = new Map(); cache.set(design, m); }
-  const key = `${op.vin}|${op.ambient}|${op.iout.join(',')}`;
+  const key = `${op.vin}|${op.ambient}|${op.iout.join(',')}${op.mode !== undefined ? `|${op.mode}` : ''}`;
   let ev = m.get(key);
   if (!ev) {
     ev = models.evaluate(design, op);
@@ -252,7 +252,9 @@ function evaluateCase(ctx: Context, modeId: Id, vinCase: VinCase): CaseRollup {
       if (vin === undefined) throw new RollupError(`stage ${st.id}: its input node ${st.inputNodeId} is neither a source, a rail nor an internal node of the plan`);
       let ev: StageEvaluation;
       try {
-        ev = evaluateCached(models, st.design, { vin: vin as Volts, iout, ambient: req.limits.ambient });
+        // The mode matters to a load switch (off in some modes); other kinds ignore it.
+        const mode = (st.design as { kind?: unknown } | null)?.kind === 'load-switch' ? { mode: modeId } : {};
+        ev = evaluateCached(models, st.design, { vin: vin as Volts, iout, ambient: req.limits.ambient, ...mode });
       } catch (e) {
         throw new RollupError(`stage ${st.id} (${st.name}): ${(e as Error).message}`);
       }

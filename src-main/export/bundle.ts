@@ -17,6 +17,9 @@ import { treeToPdf } from './tree-pdf.ts';
 import { reportToPdf, type PlannedProject } from './report-pdf.ts';
 import { magneticSpecMarkdown } from './magnetic-spec.ts';
 import { buckNetlist, coupledBuckNetlist, spiceComment } from './spice.ts';
+import { boostNetlist } from '../engine/stages/boost/index.ts';
+import { invertingNetlist } from '../engine/stages/inverting/index.ts';
+import { fourSwitchNetlist } from '../engine/stages/buck-boost-4s/index.ts';
 
 export interface ExportBundle extends PlannedProject {
   names: Map<string, string>;
@@ -97,14 +100,19 @@ export function exportNetlists(b: ExportBundle): { files: Array<{ file: string; 
   const skipped: string[] = [];
   for (const st of b.plan.stages) {
     const d = st.design as StageDesign | null;
-    if (!d || (d.kind !== 'buck' && d.kind !== 'cwbuck')) continue;
+    // Switching kinds have a netlist; an LDO, a load switch and an isolated module do not.
+    if (!d || !(['buck', 'cwbuck', 'boost', 'inverting', 'buck-boost-4s'] as const).includes(d.kind as 'buck')) continue;
     const f = mode?.cases.nom.stages.find((x) => x.stageId === st.id);
     if (!f) { skipped.push(`${st.id}: no operating point`); continue; }
     const iout = d.outputs.map((o) => (f.outputs.find((x) => x.nodeId === o.nodeId)?.i ?? 0) as Amps);
     const op = { vin: f.vin as Volts, iout, ambient: b.req.limits.ambient };
     const file = `${st.id.replace(/[^A-Za-z0-9._-]+/g, '_')}.cir`;
     try {
-      const text = d.kind === 'buck' ? buckNetlist(d as BuckDesign, op) : coupledBuckNetlist(d as CoupledBuckDesign, op);
+      const text = d.kind === 'buck' ? buckNetlist(d as BuckDesign, op)
+        : d.kind === 'boost' ? boostNetlist(d, op)
+        : d.kind === 'inverting' ? invertingNetlist(d, op)
+        : d.kind === 'buck-boost-4s' ? fourSwitchNetlist(d, op)
+        : coupledBuckNetlist(d as CoupledBuckDesign, op);
       // Names come from the project file, which anyone may have written: one comment line.
       const title = spiceComment(`Stage ${st.name} (${st.id}) of project "${b.req.meta.name}", mode "${mode!.modeName}", Vin ${fmtQty(f.vin, 'V')}`);
       files.push({ file, text: `${title}\n${text}`, stageId: st.id });

@@ -7,6 +7,7 @@ import type { Requirements } from '../engine/model.ts';
 import type { Plan, PlanResult } from '../engine/plan-types.ts';
 import type { Rollup } from '../engine/rollup.ts';
 import { VIN_CASES } from '../engine/rollup.ts';
+import { runtimeText } from '../engine/battery.ts';
 import type { Bom } from '../engine/bom.ts';
 import { compactRefs } from '../engine/bom.ts';
 import { fmtPct, fmtQty, STAGE_KIND_LABEL, textWidth, type LaidOutTree } from '../engine/layout.ts';
@@ -197,6 +198,10 @@ export async function reportToPdf(input: ReportInput): Promise<Uint8Array> {
   for (const s of req.sources) {
     const sc = w.sourceCurrent[s.id]!;
     para(doc, `${s.name}: time-weighted current ${q(sc.min, 'A')} at Vin min ${q(s.vMin, 'V')}, ${q(sc.nom, 'A')} at nominal ${q(s.vNom, 'V')}, ${q(sc.max, 'A')} at Vin max ${q(s.vMax, 'V')}.`);
+  }
+  for (const b of rollup.batteries ?? []) {
+    const s = req.sources.find((x) => x.id === b.sourceId);
+    para(doc, `Battery runtime (power drawn at nominal input, conversion losses included) — ${runtimeText(b, s?.name ?? b.sourceId)}.`, { bold: true });
   }
   if (rollup.unfed.length) para(doc, `Rails no stage of this plan feeds (left out of the figures): ${rollup.unfed.map((id) => railName.get(id) ?? id).join(', ')}.`, { bold: true, size: 8.5, color: '#b5452f' });
   for (const o of rollup.sourceOverloads) para(doc, `Source over its limit: ${o.text}.`, { bold: true, size: 8.5, color: '#b5452f' });

@@ -34,7 +34,7 @@ export const PALETTE = {
   groupStroke: '#9aa7b6',
   isoFill: '#fbf4ec',
   barrier: '#b5452f',
-  kind: { buck: '#2f7f8f', cwbuck: '#c27a17', ldo: '#6a55a8', 'iso-module': '#8a5a44', 'load-switch': '#55606b' } as Record<StageKind, string>,
+  kind: { buck: '#2f7f8f', cwbuck: '#c27a17', ldo: '#6a55a8', boost: '#3f7f3a', inverting: '#8f3f6a', 'buck-boost-4s': '#2f5f9f', 'iso-module': '#8a5a44', 'load-switch': '#55606b' } as Record<StageKind, string>,
 };
 
 export const SAFETY_LINE =

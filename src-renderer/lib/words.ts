@@ -38,13 +38,25 @@ const FIELDS: Record<string, [string, Unit]> = {
   headroomMargin: ['headroom margin', 'voltage'], name: ['name', 'plain'], thetaSource: ['source of θJA', 'plain'],
   thetaJA: ['thermal resistance θJA', 'K/W'], kind: ['kind', 'plain'], dropout: ['dropout', 'voltage'],
   inductor: ['inductor', 'plain'], highSide: ['high-side switch', 'plain'], lowSide: ['low-side switch', 'plain'], controller: ['controller', 'plain'],
+  // Boost, inverting and four-switch buck-boost
+  dcr: ['inductor DC resistance', 'resistance'], rhpZero: ['right-half-plane zero (Vin min, full load)', 'frequency'],
+  crossoverLimit: ['loop crossover limit (RHP zero / 5)', 'frequency'], transitionBand: ['transition band (both legs switch)', 'voltage'],
+  // Load switch
+  ron: ['on-resistance at 25 °C', 'resistance'], ronTempCoeff: ['on-resistance temperature coefficient (per K)', 'plain'],
+  iMax: ['current rating', 'current'], iOff: ['off-state current', 'current'], cload: ['capacitance on the gated rail', 'capacitance'],
+  inrush: ['inrush current at turn-on', 'current'], inrushLimit: ['inrush limit', 'current'], slewRate: ['turn-on slew rate (V/s)', 'plain'],
+  riseTime: ['rise time', 'time'], offModes: ['off in mode', 'plain'],
+  // Isolated module
+  ratio: ['output over input at full load', 'plain'], pRated: ['rated output power', 'power'], loadReg: ['output rise from full to 10 % load', 'ratio'],
+  minLoad: ['minimum load (share of rated)', 'ratio'], etaFull: ['efficiency at full load', 'ratio'], pNoLoad: ['input power at no load', 'power'],
+  ripple: ['output ripple (p-p)', 'voltage'], iRated: ['rated output current', 'current'],
 };
 
 /** Groups of fields (objects and lists inside a design). */
 const GROUPS: Record<string, string> = {
   outputs: 'output', secondaries: 'secondary winding', cout: 'output capacitor', cin: 'input capacitor',
   divider: 'feedback divider', highSide: 'high-side switch', lowSide: 'low-side switch', bodyDiode: 'low-side body diode',
-  controller: 'controller', thetaJA: 'θJA', rectifier: 'rectifier diode', preload: 'preload', isolation: 'isolation',
+  controller: 'controller', thetaJA: 'θJA', rectifier: 'rectifier diode', preload: 'preload', isolation: 'isolation', module: 'isolated module', transitionBand: 'transition band edge',
   package: 'package', inductor: 'inductor',
 };
 
@@ -129,7 +141,19 @@ const LOSSES: Record<string, string> = {
   'pass-element': 'pass element (dropout × current)',
   'inductor-copper': 'inductor copper (DCR)',
   'inductor-core': 'inductor core',
+  'ls-switching': 'low-side (main) switch transitions',
+  'a-conduction': 'switch A (input leg, high side) conduction', 'b-conduction': 'switch B (input leg, low side) conduction',
+  'c-conduction': 'switch C (output leg, low side) conduction', 'd-conduction': 'switch D (output leg, high side) conduction',
+  'input-leg-switching': 'input-leg switching transitions', 'output-leg-switching': 'output-leg switching transitions',
+  conduction: 'switch conduction (I² × Ron)', 'off-state': 'off-state current', module: 'isolated module',
 };
+
+/** Stage kinds as an engineer names them (our own words; trade terms only). */
+const KINDS: Record<string, string> = {
+  buck: 'synchronous buck', cwbuck: 'coupled-winding buck', ldo: 'linear regulator (LDO)', boost: 'synchronous boost',
+  inverting: 'inverting buck-boost', 'buck-boost-4s': 'four-switch buck-boost', 'load-switch': 'load switch', 'iso-module': 'isolated module',
+};
+export const kindName = (kind: string): string => KINDS[kind] ?? splitWords(kind);
 export const lossName = (key: string): string => LOSSES[key] ?? splitWords(key);
 /** True when the term has its own name here (tests check the engine's terms are all named). */
 export const isNamedLoss = (key: string): boolean => key in LOSSES;

@@ -50,6 +50,9 @@ describe('cell edits', () => {
     }
     const p = await ok<Snapshot>(api.request('requirements.editCell', { table: 'preferences', rowId: 'project', field: 'switchingFrequency', text: '1.2M' }));
     expect(p.requirements.preferences.switchingFrequency).toBeCloseTo(1.2e6, 6);
+    // The allowed stage kinds, typed comma-separated (any case), are the project setting.
+    const k = await ok<Snapshot>(api.request('requirements.editCell', { table: 'preferences', rowId: 'project', field: 'allowedKinds', text: 'buck, LDO,boost buck-boost-4s' }));
+    expect(k.requirements.preferences.allowedKinds).toEqual(['buck', 'ldo', 'boost', 'buck-boost-4s']);
     const sh = await ok<Snapshot>(api.request('requirements.editCell', { table: 'modes', rowId: m.id, field: 'share', text: '70%' }));
     expect(sh.requirements.modes[0]!.share).toBeCloseTo(0.7, 12);
     expect(sh.problems.some((x) => /add up to/.test(x.message))).toBe(true);
@@ -69,6 +72,9 @@ describe('cell edits', () => {
       ['sources', src.id, 'vMin', '100', /V min ≤ V nominal/],
       ['limits', 'project', 'tjMax', '30', /must stay above the ambient/],
       ['modes', api.session.requirements.modes[0]!.id, 'share', '150%', /outside/],
+      ['preferences', 'project', 'allowedKinds', 'buck, flyback', /Allowed stage kinds: "flyback" is not one of buck, cwbuck, ldo, boost/],
+      ['preferences', 'project', 'allowedKinds', 'buck, buck', /"buck" is listed twice/],
+      ['preferences', 'project', 'allowedKinds', ' ', /list at least one of/],
     ];
     for (const [table, rowId, field, text, re] of bad) {
       const r = await api.request('requirements.editCell', { table, rowId, field, text });

@@ -51,7 +51,9 @@ describe('validateRequirements', () => {
     ['negative weight', (r) => { r.preferences.weights.cost = -1; }, 'preferences.weights.cost', /≥ 0/],
     ['zero secondaries', (r) => { r.preferences.maxSecondaries = 0; }, 'preferences.maxSecondaries', /1 to 8/],
     ['no allowed kind', (r) => { r.preferences.allowedKinds = []; }, 'preferences.allowedKinds', /at least one/],
-    ['unknown kind', (r) => { (r.preferences.allowedKinds as string[]).push('flyback-x'); }, 'preferences.allowedKinds[3]', /not one of/],
+    // The demo allows all eight kinds: the ninth entry is the unknown one.
+    ['unknown kind', (r) => { (r.preferences.allowedKinds as string[]).push('flyback-x'); }, 'preferences.allowedKinds[8]', /not one of/],
+    ['repeated kind', (r) => { r.preferences.allowedKinds.push('boost'); }, 'preferences.allowedKinds[8]', /listed twice/],
     ['switching frequency 0', (r) => { r.preferences.switchingFrequency = 0 as never; }, 'preferences.switchingFrequency', /1 kHz and 50 MHz/],
     ['budget 0', (r) => { r.preferences.budgetMs = 0; }, 'preferences.budgetMs', /between 10 ms/],
   ];

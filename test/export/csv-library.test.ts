@@ -79,7 +79,7 @@ describe('part library', () => {
     for (const r of res.rows) {
       // A part number typically runs two or more capitals into two or more digits (common practice).
       expect(r.name, r.id).not.toMatch(/\b[A-Z]{2,}\d{2,}/);
-      expect(r.name, r.id).toMatch(/^(Buck|Synchronous|N-channel|LDO|Low-noise|Negative|Schottky|Ultrafast|Ceramic|Aluminium|Polymer|Thick-film|Thin-film|Shielded|Custom|Load switch|Isolated module)[ ,]/);
+      expect(r.name, r.id).toMatch(/^(Buck|Synchronous|N-channel|LDO|Low-noise|Negative|Schottky|Ultrafast|Ceramic|Aluminium|Polymer|Thick-film|Thin-film|Shielded|Custom|Load switch|Isolated module|Boost|Four-switch|Inverting)[ ,]/);
     }
   });
 

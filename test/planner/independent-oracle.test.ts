@@ -16,11 +16,12 @@ import { engineEvaluator } from '../../src-main/engine/planner/evaluator.ts';
 import { inventedCostModel } from '../../src-main/engine/planner/cost-model.ts';
 import { pairedWindingRequirements, randomRequirements } from '../../src-main/engine/planner/instances.ts';
 import type { Requirements } from '../../src-main/engine/model.ts';
+import type { PlanResult } from '../../src-main/engine/plan-types.ts';
 import { IndependentOracle } from './helpers/independent-oracle.ts';
 
 interface Tally { instances: number; proved: number; feasible: number; together: number }
 
-function compare(req: Requirements, tally: Tally): void {
+function compare(req: Requirements, tally: Tally): PlanResult {
   const result = new PlanSolver(req, { evaluator: engineEvaluator(), budgetMs: 60_000, singleObjective: true }).solve();
   const oracle = new IndependentOracle(req, inventedCostModel()).best('balanced', { maxMs: 30_000 });
   expect(oracle.complete, req.meta.name).toBe(true);
@@ -28,13 +29,14 @@ function compare(req: Requirements, tally: Tally): void {
   const tol = 1e-7 * Math.max(1, Math.abs(oracle.bestScore));
   tally.instances++;
   expect(planned === Infinity, `${req.meta.name}: planner ${planned}, oracle ${oracle.bestScore}`).toBe(oracle.bestScore === Infinity);
-  if (planned === Infinity) return;
+  if (planned === Infinity) return result;
   tally.feasible++;
   expect(oracle.bestScore, `${req.meta.name}: the oracle found a worse best than a tree the planner built`).toBeLessThanOrEqual(planned + tol);
   if (result.stats.provedOptimal) {
     tally.proved++;
     expect(Math.abs(planned - oracle.bestScore), `${req.meta.name}: proved ${planned}, oracle ${oracle.bestScore}: ${oracle.bestFeeds?.join('; ')}`).toBeLessThanOrEqual(tol);
   }
+  return result;
 }
 
 /** True when the paired windings A and B design together on some primary but neither alone. */
@@ -70,6 +72,22 @@ describe('planner against the independent oracle (real engine)', () => {
       if (onlyTogether(req)) tally.together++;
     }
     expect(tally.together, 'instances whose ±V pair designs only together').toBeGreaterThanOrEqual(3);
+  }, 600_000);
+
+  // The boost, four-switch buck-boost and inverting feeds (docs/planner.md table): a one-cell
+  // input (3.0–4.2 V) puts 3.3 V inside the input range and 5 V, 6 V, 9 V, 12 V above it.
+  const STEP_KINDS = ['buck', 'cwbuck', 'ldo', 'boost', 'buck-boost-4s', 'inverting'] as const;
+  it('3-rail instances on a 3.0–4.2 V input with the step-up kinds (30)', () => {
+    const step: Tally = { instances: 0, proved: 0, feasible: 0, together: 0 };
+    const used = new Set<string>();
+    for (let seed = 1; seed <= 30; seed++) {
+      const res = compare(randomRequirements({ rails: 3, seed: 5000 + seed, maxSecondaries: 2, isolatedShare: 0, allowedKinds: [...STEP_KINDS], source: { vMin: 3, vNom: 3.7, vMax: 4.2 } }), step);
+      for (const st of res.best?.stages ?? []) used.add(st.kind);
+    }
+    expect(step.feasible).toBeGreaterThanOrEqual(10);
+    // The instances exercise the new kinds: best trees use the boost and the four-switch stage.
+    expect(used.has('boost') && used.has('buck-boost-4s'), [...used].join(', ')).toBe(true);
+    console.log(`independent oracle, step kinds on 3.0–4.2 V: ${step.instances} instances, ${step.feasible} with a tree, ${step.proved} proved`);
   }, 600_000);
 
   it('covered at least 200 instances, most with a tree', () => {

@@ -21,6 +21,15 @@ import type { Plan, PlanResult, PlanStage } from '../../src-main/engine/plan-typ
 import type { StageEvaluator } from '../../src-main/engine/planner/types.ts';
 import type { Amps, Volts } from '../../src-main/engine/units.ts';
 import { checkPlan } from './helpers/check-plan.ts';
+import { parse } from 'csv-parse/sync';
+import ELK from 'elkjs/lib/elk.bundled.js';
+import { rollupPlan } from '../../src-main/engine/rollup.ts';
+import { runtimeLines } from '../../src-main/cli/plan.ts';
+import { toRollupView } from '../../src-main/api/figures.ts';
+import { prepareExport, exportBomCsv, exportNetlists, exportReportPdf } from '../../src-main/export/bundle.ts';
+import { BOM_HEADER } from '../../src-main/export/bom-files.ts';
+import type { ElkLike } from '../../src-main/engine/layout.ts';
+import { pdfPages } from '../export/pdf-text.ts';
 
 const library: LibraryRow[] = (() => {
   const r = tableToRows(readCsv(readFileSync(join(import.meta.dirname, '../../db/default-library.csv'), 'utf8')));
@@ -233,4 +242,62 @@ describe('scenario: 12 V board with only non-isolated rails (invented)', () => {
   // custom magnetic) and an LDO, where an LDO from the 3.3 V rail (0.04 W) is what a
   // reviewer expects on a board of plain positive rails.
   it.fails('uses no custom magnetic (no isolation, no negative rail)', () => noCustomMagnetic(p));
+});
+
+describe('scenario: handheld sensor on one 1S Li-ion cell, 3.0–4.2 V, two modes (invented)', () => {
+  let p: Planned;
+  beforeAll(() => { p = planScenario('li-ion-1s-handheld.json'); }, HANG);
+  commonChecks(() => p);
+  it('makes 3.3 V (inside the cell range) with a four-switch buck-boost and 5 V (above it) with a boost, from the cell', () => {
+    // 3.3 V ±5 %: a buck needs Vin ≥ 3.3 V / Dmax, above the 3.0 V end of discharge; a boost
+    // needs the rail above 4.2 V (Erickson & Maksimović, ch. 2: Vout = D·Vin and Vin/(1 − D)).
+    const st33 = p.feeder.get(railOf(p, 'io').id)!;
+    expect(st33.kind).toBe('buck-boost-4s');
+    expect(st33.inputNodeId).toBe('cell');
+    const st5 = p.feeder.get(railOf(p, 'sens').id)!;
+    expect(st5.kind).toBe('boost');
+    const why = p.plan.reasons.find((r) => r.subjectId === railOf(p, 'io').id && r.code === 'feed-buck-boost-4s')!.text;
+    expect(why).toMatch(/four-switch buck-boost, because a buck cannot reach 3\.3 V below [0-9.]+ V input .* the input falls to 3 V/);
+    // The cores stay below the cell's lowest 3.0 V: a buck or an LDO, never a step-up stage.
+    for (const id of ['core', 'mem']) expect(['buck', 'ldo'], id).toContain(p.feeder.get(railOf(p, id).id)!.kind);
+  });
+  it('gives the battery runtime for the mode mix and per mode from the roll-up (losses included)', () => {
+    const roll = rollupPlan(p.req, p.result.rails, p.plan);
+    expect(roll.batteries).toHaveLength(1);
+    const b = roll.batteries[0]!;
+    // Usable energy of the 2.4 A·h cell down to 3.0 V (preset curve, from memory): below 2.4 A·h × 4.2 V, above 2.4 A·h × 3.0 V.
+    expect(b.energyWh).toBeGreaterThan(2.4 * 3.0);
+    expect(b.energyWh).toBeLessThan(2.4 * 4.2);
+    const load = (m: string) => p.req.loads.reduce((a, l) => a + Math.abs(l.voltage) * (l.current[m] ?? 0), 0);
+    for (const m of b.perMode) {
+      // Power drawn = load power + conversion losses; runtime = energy / power (hand arithmetic).
+      expect(m.power, m.modeName).toBeGreaterThan(load(m.modeId));
+      expect(m.hours).toBeCloseTo(b.energyWh / m.power, 9);
+    }
+    expect(b.mixPower).toBeCloseTo(0.1 * b.perMode[0]!.power + 0.9 * b.perMode[1]!.power, 12);
+    expect(b.mixHours).toBeCloseTo(b.energyWh / b.mixPower, 9);
+    expect(b.mixHours).toBeGreaterThan(b.perMode[0]!.hours);
+    // The window's Budget view reads the same figures through the contract (RollupView.batteries).
+    const view = toRollupView({ requirements: p.req } as Parameters<typeof toRollupView>[0], roll);
+    expect(view.batteries).toEqual([{
+      sourceId: 'cell', sourceName: 'Li-ion cell 1S', energyWh: b.energyWh, mixPower: b.mixPower, mixHours: b.mixHours,
+      perMode: b.perMode.map((m) => ({ modeId: m.modeId, modeName: m.modeName, power: m.power, hours: m.hours })),
+    }]);
+    expect(runtimeLines(p.req, p.plan)[0]).toMatch(/^Battery runtime \(roll-up, at nominal input\) — Li-ion cell 1S: [0-9.]+ Wh usable .* runtime [0-9.]+ (h|days) for the mode mix .*Active [0-9.]+ h .*Sleep/);
+  });
+  it('exports: the BOM CSV reads back with csv-parse, the report states the runtime, the switching stages have netlists', async () => {
+    const b = await prepareExport({ req: p.req, result: p.result, library, elk: new ELK() as unknown as ElkLike });
+    const rows = parse(exportBomCsv(b), { relax_column_count: true }) as string[][];
+    expect(rows[0]).toEqual([...BOM_HEADER]);
+    const body = rows.slice(1, 1 + b.bom.lines.length);
+    // The BOM lists the parts the stages were designed with: the four-switch and boost controllers.
+    expect(body.some((r) => /Four-switch buck-boost regulator/.test(r.join(' ')))).toBe(true);
+    expect(body.some((r) => /Boost regulator/.test(r.join(' ')))).toBe(true);
+    expect(body.filter((r) => r.some((c) => /no library part/.test(c)))).toEqual([]);
+    const text = (await pdfPages(await exportReportPdf(b))).join('\n').replace(/\s+/g, ' ');
+    expect(text).toMatch(/Battery runtime .* Li-ion cell 1S: [0-9.]+ Wh usable/);
+    const nets = exportNetlists(b);
+    const kinds = new Set(nets.files.map((f) => p.plan.stages.find((s) => s.id === f.stageId)!.kind));
+    expect(kinds.has('boost') && kinds.has('buck-boost-4s')).toBe(true);
+  }, HANG);
 });

@@ -56,3 +56,24 @@ describe('loss terms, BOM groups, turns, costs', () => {
     expect(splitWords('output-capacitor-esr')).toBe('output capacitor esr');
   });
 });
+
+describe('the new stage kinds in words', () => {
+  it('names every stage kind and every loss term of the boost, inverting, four-switch, load-switch and module models', async () => {
+    const { readFileSync } = await import('node:fs');
+    const { join } = await import('node:path');
+    const { STAGE_KINDS } = await import('../../src-main/engine/model.ts');
+    const { designStage, evaluateStage } = await import('../../src-main/engine/stages/index.ts');
+    const { parseStageFile } = await import('../../src-main/engine/stages/stage-json.ts');
+    const { kindName, isNamedLoss } = await import('../../src-renderer/lib/words.ts');
+    for (const k of STAGE_KINDS) expect(kindName(k), k).not.toBe(k);
+    for (const k of ['boost', 'inverting', 'buck-boost-4s', 'load-switch', 'iso-module']) {
+      const file = parseStageFile(JSON.parse(readFileSync(join(import.meta.dirname, `../../docs/examples/stage-${k}.json`), 'utf8'))) as { spec: Parameters<typeof designStage>[0] };
+      const d = designStage(file.spec);
+      expect(d.ok, k).toBe(true);
+      if (!d.ok) continue;
+      const ev = evaluateStage(d.design, { vin: file.spec.vinMin, iout: file.spec.outputs.map((o) => o.currentMax), ambient: file.spec.ambient });
+      for (const term of Object.keys(ev.lossBreakdown)) expect(isNamedLoss(term), `${k}: ${term}`).toBe(true);
+      for (const [label] of designRows(d.design, (id) => id)) expect(label, `${k}: ${label}`).not.toMatch(/[[\].]|[a-z][A-Z]/);
+    }
+  });
+});

@@ -2,7 +2,7 @@
  * Turn a selection of blocks into a complete Plan (stages in upstream-first order, internal
  * nodes, score, reasons), and explain infeasibility when no plan exists.
  */
-import { DEFAULT_WINDOW_MARGIN, type Id, type Requirements, type StageKind } from '../model.ts';
+import { DEFAULT_WINDOW_MARGIN, STAGE_KINDS, type Id, type Requirements, type StageKind } from '../model.ts';
 import { formatQuantity } from '../notation.ts';
 import type { Infeasibility, InternalNode, Plan, PlanLabel, PlanStage, Reason } from '../plan-types.ts';
 import { BlockFactory, type Miss } from './candidates.ts';
@@ -10,7 +10,8 @@ import { planScore, type Scorer, type SelectionEval } from './score.ts';
 import type { Block, BlockShape } from './types.ts';
 
 const KIND_NAME: Record<StageKind, string> = {
-  buck: 'its own buck', ldo: 'an LDO', cwbuck: 'a coupled-winding buck', 'iso-module': 'an isolated module', 'load-switch': 'a load switch',
+  buck: 'its own buck', ldo: 'an LDO', cwbuck: 'a coupled-winding buck',
+  boost: 'a boost', inverting: 'an inverting buck-boost', 'buck-boost-4s': 'a four-switch buck-boost', 'iso-module': 'an isolated module', 'load-switch': 'a load switch',
 };
 
 export function describeShape(f: BlockFactory, s: BlockShape): string {
@@ -135,7 +136,10 @@ export interface InfeasibleEntry {
   candidates: RemedyCandidate[];
 }
 
-const KIND_LABEL: Partial<Record<StageKind, string>> = { cwbuck: 'coupled-winding buck (cwbuck)', buck: 'buck', ldo: 'LDO' };
+const KIND_LABEL: Record<StageKind, string> = {
+  cwbuck: 'coupled-winding buck (cwbuck)', buck: 'buck', ldo: 'LDO', boost: 'boost', inverting: 'inverting buck-boost (inverting)',
+  'buck-boost-4s': 'four-switch buck-boost (buck-boost-4s)', 'iso-module': 'isolated module (iso-module)', 'load-switch': 'load switch (load-switch)',
+};
 
 const v3 = (x: number) => formatQuantity(x, 'voltage', 3);
 
@@ -147,7 +151,7 @@ export function explainInfeasible(
   const rails = f.ctx.rails;
   const out: InfeasibleEntry[] = [];
   const allowed = new Set(f.req.preferences.allowedKinds);
-  const notAllowed = (['buck', 'cwbuck', 'ldo'] as StageKind[]).filter((k) => !allowed.has(k));
+  const notAllowed = STAGE_KINDS.filter((k) => !allowed.has(k));
   const loadsOf = (req: Requirements, railId: string) => req.loads.filter((l) => rails.find((x) => x.id === railId)?.loadIds.includes(l.id));
   const allowKind = (k: StageKind): RemedyCandidate => ({
     text: `allow the ${KIND_LABEL[k] ?? k} stage kind`,
@@ -166,7 +170,8 @@ export function explainInfeasible(
       const text = iso
         ? `${rail.name} (${v3(rail.voltage)}) is in an isolated domain and no allowed stage can cross the barrier to it`
         : `${rail.name} (${v3(rail.voltage)} ±${+(rail.tolerance * 100).toPrecision(3)} %): no allowed stage can make it: ` +
-          `a buck needs its output below the lowest input (${heads.join('; ')}), an LDO needs a rail of the same domain and sign above ${v3(a)} plus its dropout`;
+          `a buck needs its output below the lowest input (${heads.join('; ')}), an LDO needs a rail of the same domain and sign above ${v3(a)} plus its dropout` +
+          (allowed.has('boost') || allowed.has('buck-boost-4s') || allowed.has('inverting') ? '; the boost, four-switch and inverting feeds serve only non-quiet rails of a non-isolated domain with a positive input there' : '');
       const short = iso ? 0 : Math.max(0, a - Math.max(...f.req.sources.map((s) => s.vMin)));
       out.push({ inf: { railId: rail.id, constraint: iso ? 'barrier' : 'headroom', shortfall: short, unit: iso ? '' : 'V', text, remedies: [] }, railIndex: r, candidates: cands });
       continue;

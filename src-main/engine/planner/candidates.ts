@@ -23,6 +23,7 @@ import type { Barrier, InternalNode, PlanOutput, Reason } from '../plan-types.ts
 import type { OutputSpec, OutputWindow, StageEvaluation, StageSpec } from '../stages/types.ts';
 import { addParts, countParts, emptyParts } from './cost-model.ts';
 import { formatQuantity } from '../notation.ts';
+import { GENERIC_DEFAULTS } from '../stages/defaults.ts';
 import type {
   Block, BlockEval, BlockShape, BlockStage, CostModel, FeedInput, PartCounts, PlanContext, Rejection, StageEvaluator,
 } from './types.ts';
@@ -69,6 +70,14 @@ const fmtV = (v: number) => `${Math.round(v * 1000) / 1000} V`;
 const fmtQ = (v: number) => formatQuantity(v, 'voltage', 3);
 const fmtA = (v: number) => `${Math.round(v * 1e4) / 1e4} A`;
 const fmtW = (v: number) => `${Math.round(v * 1e4) / 1e4} W`;
+
+/** Stage names as the plan shows them ("Boost Main 5V"). */
+const STAGE_NAME: Record<StageKind, string> = {
+  buck: 'Buck', ldo: 'LDO', cwbuck: 'Coupled-winding buck', boost: 'Boost', inverting: 'Inverting buck-boost',
+  'buck-boost-4s': 'Four-switch buck-boost', 'iso-module': 'Isolated module', 'load-switch': 'Load switch',
+};
+/** A buck's largest duty, for the reasons ("a buck cannot reach 12 V below 13.3 V input"). */
+const BUCK_MAX_DUTY = GENERIC_DEFAULTS.controller.maxDuty;
 
 export function railBand(r: Rail): { min: number; nom: number; max: number } {
   const a = Math.abs(r.voltage);
@@ -279,7 +288,9 @@ export class BlockFactory {
     const rej: Rejection[] = [];
     const perMode: StageEvaluation[] = [];
     for (let m = 0; m < modeCurrents.length; m++) {
-      const ev = this.evaluator.evaluate(heavy.design, { vin: spec.vinNom, iout: modeCurrents[m]! as Amps[], ambient });
+      // A load switch is off in some modes (the op's mode decides); other kinds ignore it.
+      const mode = spec.kind === 'load-switch' ? { mode: this.ctx.modeIds[m]! } : {};
+      const ev = this.evaluator.evaluate(heavy.design, { vin: spec.vinNom, iout: modeCurrents[m]! as Amps[], ambient, ...mode });
       perMode.push(ev);
       this.check(spec, rej, ev, `in mode ${this.req.modes[m]?.name ?? m} at Vin nominal`, railOf);
     }
@@ -343,13 +354,22 @@ export class BlockFactory {
     const currents = this.railCurrents(rail, extra?.get(rail));
     const vin = this.inputWindow(shape.input);
     const mirror = 1;
-    const spec = this.baseSpec(shape.kind, vin, [this.railOutput(rail, currents)]);
+    let spec = this.baseSpec(shape.kind, vin, [this.railOutput(rail, currents)]);
+    const barriers: Barrier[] = [];
+    if (shape.kind === 'iso-module') {
+      // The module is the barrier: its class and working voltage must cover the domain's.
+      const iso = this.strongestIsolation([rail]);
+      spec = { ...spec, isolation: iso };
+      const dom = this.domainOf(rail);
+      if (dom && iso) barriers.push({ fromDomainId: this.inputDomain(shape.input), toDomainId: dom.id, isolation: dom.isolation as Barrier['isolation'], workingVoltage: dom.workingVoltage });
+    }
+    if (shape.kind === 'load-switch') spec = { ...spec, loadSwitch: { offModes: [...shape.offModes] } };
     const run = this.runStage(spec, currents.map((c) => [c]), () => rail, mirror);
     if (!run.ok) return run;
     const parts = stageParts(shape.kind, 0);
     const stage: BlockStage = {
-      localId: 's0', kind: shape.kind, name: `${shape.kind === 'ldo' ? 'LDO' : 'Buck'} ${r.name}`,
-      inputNode: 'input', outputs: [{ nodeId: r.id, role: 'output' }], barriers: [], design: run.design, spec,
+      localId: 's0', kind: shape.kind, name: `${STAGE_NAME[shape.kind]} ${r.name}`,
+      inputNode: 'input', outputs: [{ nodeId: r.id, role: 'output' }], barriers, design: run.design, spec,
       modeCurrents: run.modeCurrents, lossPerMode: run.perMode.map((e) => e.loss),
     };
     const lossPerMode: number[] = run.perMode.map((e) => e.loss);
@@ -357,13 +377,9 @@ export class BlockFactory {
     const w = run.windows[0]!;
     const lo = Math.min(mirror * w.min, mirror * w.max), hi = Math.max(mirror * w.min, mirror * w.max);
     const reasons: Reason[] = [{
-      code: shape.kind === 'ldo' ? 'feed-ldo' : 'feed-buck',
+      code: `feed-${shape.kind}`,
       subjectId: r.id,
-      text: shape.kind === 'ldo'
-        ? `${r.name} comes from an LDO on ${inputName}: headroom ${fmtV(vin.min - Math.abs(r.voltage))} at the input's lowest ${fmtV(vin.min * vin.sign)}, ` +
-          `mode-weighted loss ${fmtW(this.weighted(lossPerMode))}, window ${fmtV(lo)}…${fmtV(hi)} inside ±${+(r.tolerance * 100).toFixed(2)} %`
-        : `${r.name} gets its own buck from ${inputName}: duty ${pct(run.atMin.duty)} at Vin min, mode-weighted loss ${fmtW(this.weighted(lossPerMode))}, ` +
-          `window ${fmtV(lo)}…${fmtV(hi)} inside ±${+(r.tolerance * 100).toFixed(2)} %`,
+      text: this.singleReason(shape, r, inputName, vin, run, this.weighted(lossPerMode), lo, hi),
       data: { loss: this.weighted(lossPerMode), windowMin: lo, windowMax: hi, tolerance: r.tolerance },
     }];
     return {
@@ -383,6 +399,63 @@ export class BlockFactory {
         notes: { duty: run.atMin.duty ?? NaN },
       },
     };
+  }
+
+  /** The domain a feed draws from: the rail's, or for a source the galvanically connected one. */
+  private inputDomain(input: FeedInput): Id {
+    if (input.kind === 'rail') return this.ctx.rails[input.rail]!.domainId;
+    return this.req.domains.find((d) => d.isolation === 'none')?.id ?? '';
+  }
+
+  /** Why a one-rail feed was chosen, with the numbers that decide it. */
+  private singleReason(
+    shape: BlockShape & { rail: number }, r: Rail, inputName: string, vin: { min: number; max: number; sign: number },
+    run: StageRun, loss: number, lo: number, hi: number,
+  ): string {
+    const a = Math.abs(r.voltage);
+    const band = railBand(r);
+    const tail = `mode-weighted loss ${fmtW(loss)}, window ${fmtV(lo)}…${fmtV(hi)} inside ±${+(r.tolerance * 100).toFixed(2)} %`;
+    const range = `${fmtV(vin.min)}…${fmtV(vin.max)}`;
+    // A buck's output stays below its input times its largest duty (the generic controller's).
+    const buckReach = a / BUCK_MAX_DUTY;
+    switch (shape.kind) {
+      case 'ldo':
+        return `${r.name} comes from an LDO on ${inputName}: headroom ${fmtV(vin.min - a)} at the input's lowest ${fmtV(vin.min * vin.sign)}, ${tail}`;
+      case 'buck':
+        return `${r.name} gets its own buck from ${inputName}: duty ${pct(run.atMin.duty)} at Vin min, ${tail}`;
+      case 'boost':
+        return `${r.name} (${fmtV(a)}) from ${inputName} (${range}): boost, because the rail's lowest ${fmtV(band.min)} is above the input's highest ${fmtV(vin.max)} ` +
+          `(a buck or an LDO cannot step up); duty ${pct(run.atMin.duty)} at Vin min ${fmtV(vin.min)}, ${tail}`;
+      case 'buck-boost-4s': {
+        const d = run.design as { transitionBand?: [number, number] };
+        const tb = d?.transitionBand;
+        return `${fmtV(a)} from a ${range} input (${inputName} to ${r.name}): four-switch buck-boost, because a buck cannot reach ${fmtV(a)} below ` +
+          `${fmtV(buckReach)} input (${+(BUCK_MAX_DUTY * 100).toFixed(0)} % largest duty) and the input falls to ${fmtV(vin.min)}, ` +
+          `while a boost cannot step down to it from the input's highest ${fmtV(vin.max)}` +
+          (tb ? `; boost region below ${fmtV(tb[0])}, both legs switch up to ${fmtV(tb[1])}, buck region above` : '') + `; ${tail}`;
+      }
+      case 'inverting':
+        return `${r.name} (${fmtV(r.voltage)}) is a negative rail without isolation: inverting buck-boost from ${inputName} (${range}), ` +
+          `duty ${pct(run.atMin.duty)} at Vin min ${fmtV(vin.min)}; ${tail}`;
+      case 'iso-module': {
+        const d = run.design as { module?: { pRated: number; ratio: number; isolation: string; workingVoltage: number }; iRated?: number };
+        const m = d?.module;
+        const dom = this.domainOf(this.ctx.rails.indexOf(r));
+        return `${r.name} is a small isolated load (${fmtA(Math.max(...Object.values(r.current), 0))} peak, ${fmtW(a * Math.max(...Object.values(r.current), 0))}): ` +
+          `a fixed-ratio isolated module from ${inputName} (${range})` +
+          (m ? ` rated ${fmtW(m.pRated)}, ratio ${+m.ratio.toPrecision(3)}, ${m.isolation} isolation for ${fmtV(m.workingVoltage)} working` : '') +
+          (dom ? ` (the domain asks ${dom.isolation}, ${fmtV(dom.workingVoltage)})` : '') +
+          `, instead of a custom coupled winding; unregulated output ${tail}`;
+      }
+      case 'load-switch': {
+        const off = shape.kind === 'load-switch' ? shape.offModes : [];
+        const names = off.map((id) => this.req.modes.find((m) => m.id === id)?.name ?? id);
+        return `${r.name} is a gated copy of ${inputName} (${range}, inside its ${fmtV(band.min)}…${fmtV(band.max)} band): a load switch, ` +
+          `off in ${names.join(', ')} where the rail draws nothing, so it needs no regulator of its own; ${tail}`;
+      }
+      default:
+        return `${r.name} from ${inputName}: ${tail}`;
+    }
   }
 
   private strongestIsolation(rails: number[]): { class: Domain['isolation']; workingVoltage: Volts } | null {
@@ -720,6 +793,16 @@ export function stageParts(kind: StageKind, secondaries: number): PartCounts {
     Object.assign(p, { controller: 1, switch: 2, coupledMagnetic: 1, rectifier: secondaries, capacitor: 4 + 2 * secondaries, resistor: 2 + secondaries });
   } else if (kind === 'ldo') {
     Object.assign(p, { ldo: 1, capacitor: 2, resistor: 2 });
+  } else if (kind === 'boost' || kind === 'inverting') {
+    Object.assign(p, { controller: 1, switch: 2, magnetic: 1, capacitor: 4, resistor: 2 });
+  } else if (kind === 'buck-boost-4s') {
+    // Four switches, a current-sense resistor beside the divider.
+    Object.assign(p, { controller: 1, switch: 4, magnetic: 1, capacitor: 4, resistor: 3 });
+  } else if (kind === 'iso-module') {
+    // The module is one bought part (counted as a controller), its input and output capacitors and a preload.
+    Object.assign(p, { controller: 1, capacitor: 2, resistor: 1 });
+  } else if (kind === 'load-switch') {
+    Object.assign(p, { switch: 1, capacitor: 1 });
   }
   return p;
 }
@@ -756,6 +839,7 @@ export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { sin
         }
       }
     }
+    singles.push(...newKindShapes(f, opts, i));
   }
   const primaries: { primary: number | null; busVoltage?: number; source: Source }[] = [];
   if (opts.allowed.has('cwbuck') && opts.maxSecondaries >= 1) {
@@ -791,6 +875,71 @@ export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { sin
     }
   };
   return { singles, coupled, primaries };
+}
+
+/**
+ * Feeds of rail i by the boost, four-switch buck-boost, inverting, isolated-module and
+ * load-switch kinds (docs/planner.md, "Decision space"). Inputs are the sources and, with rail
+ * feeds, the other rails of the domain (for a module: of a non-isolated domain); the engine
+ * decides the rest (duty limits, ratings, windows).
+ * - boost: a positive non-isolated rail whose lowest value (band minimum) is above the
+ *   input's highest (source vMax, or the feeding rail's band maximum);
+ * - four-switch buck-boost: a positive non-isolated rail a buck cannot be sure to serve (it is
+ *   not below the generic largest duty × the input's lowest) and a boost cannot either (it is
+ *   not above the input's highest);
+ * - inverting: a negative non-isolated rail from a positive input;
+ * - isolated module: a rail of an isolated domain from a positive input of a non-isolated one;
+ * - load switch: a rail that draws nothing in some mode (gated per mode), from an input of the
+ *   same domain whose whole range lies inside the rail's band (the switch passes its input).
+ * Quiet rails take none of the switching kinds directly (common practice, as for the buck) and
+ * feed nothing but quiet rails; no switching stage runs from a quiet rail.
+ */
+function newKindShapes(f: BlockFactory, opts: GenerationOptions, i: number): BlockShape[] {
+  const rails = f.ctx.rails;
+  const r = rails[i]!;
+  const out: BlockShape[] = [];
+  const iso = f.isolated(i);
+  const quiet = r.noiseClass === 'quiet';
+  const band = railBand(r);
+  type In = { input: FeedInput; min: number; max: number; positive: boolean; isolated: boolean; quiet: boolean; domainId: Id | null };
+  const inputs: In[] = f.req.sources.map((s) => ({ input: { kind: 'source', id: s.id }, min: s.vMin, max: s.vMax, positive: s.vMin > 0, isolated: false, quiet: false, domainId: null }));
+  if (opts.allowRailFeeds) {
+    rails.forEach((u, j) => {
+      if (j === i) return;
+      const b = railBand(u);
+      inputs.push({ input: { kind: 'rail', rail: j }, min: b.min, max: b.max, positive: u.voltage > 0, isolated: f.isolated(j), quiet: u.noiseClass === 'quiet', domainId: u.domainId });
+    });
+  }
+  const sameDomain = (x: In) => x.domainId === null ? !iso : x.domainId === r.domainId;
+  if (!quiet && !iso && r.voltage > 0) {
+    for (const x of inputs) {
+      if (!x.positive || x.quiet || !sameDomain(x)) continue;
+      if (opts.allowed.has('boost') && band.min > x.max) out.push({ kind: 'boost', input: x.input, rail: i });
+      // A buck reaches at most Dmax·Vin: from the generic largest duty up, only a step-up-and-down
+      // stage is sure to serve the rail (a library buck with a larger duty may compete).
+      const buckCan = r.voltage < BUCK_MAX_DUTY * x.min;
+      if (opts.allowed.has('buck-boost-4s') && !buckCan && !(band.min > x.max) && !(x.input.kind === 'rail' && rails[x.input.rail]!.voltage === r.voltage)) {
+        out.push({ kind: 'buck-boost-4s', input: x.input, rail: i });
+      }
+    }
+  }
+  if (opts.allowed.has('inverting') && !quiet && !iso && r.voltage < 0) {
+    for (const x of inputs) if (x.positive && !x.quiet && sameDomain(x)) out.push({ kind: 'inverting', input: x.input, rail: i });
+  }
+  if (opts.allowed.has('iso-module') && !quiet && iso) {
+    for (const x of inputs) if (x.positive && !x.quiet && !x.isolated) out.push({ kind: 'iso-module', input: x.input, rail: i });
+  }
+  if (opts.allowed.has('load-switch') && r.voltage > 0) {
+    const peak = Math.max(...f.ctx.modeIds.map((m) => r.current[m] ?? 0));
+    const offModes = f.ctx.modeIds.filter((m) => !((r.current[m] ?? 0) > 0));
+    if (peak > 0 && offModes.length) {
+      for (const x of inputs) {
+        if (!x.positive || !sameDomain(x) || (x.quiet && !quiet)) continue;
+        if (x.min >= band.min - 1e-12 && x.max <= band.max + 1e-12) out.push({ kind: 'load-switch', input: x.input, rail: i, offModes });
+      }
+    }
+  }
+  return out;
 }
 
 /** Size of the decision space: candidate feeds and coupled-winding primaries (counted, not listed). */

@@ -34,7 +34,7 @@ export function engineEvaluator(opts: { library?: readonly LibraryRow[]; margins
       let seen = evaluations.get(design);
       if (!seen) { seen = new Map(); evaluations.set(design, seen); }
       // Numbers print exactly (shortest round-trip form), so equal keys mean equal inputs.
-      const key = `${op.vin}|${op.ambient}|${op.iout.join(',')}`;
+      const key = `${op.vin}|${op.ambient}|${op.iout.join(',')}${op.mode !== undefined ? `|${op.mode}` : ''}`;
       const hit = seen.get(key);
       if (hit) return hit;
       const ev = evaluateStage(design as StageDesign, op);

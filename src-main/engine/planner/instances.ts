@@ -19,6 +19,8 @@ export interface InstanceOptions {
   quietShare?: number;
   /** Chance a rail is negative (isolated domains only). */
   negativeShare?: number;
+  /** The input (default 18–30 V, 24 V nominal). */
+  source?: { vMin: number; vNom: number; vMax: number };
 }
 
 const MAIN_V = [12, 5, 3.3, 2.5, 1.8, 1.5, 1.2, 1.0, 0.9, 6, 9, 2.8];
@@ -62,7 +64,7 @@ export function randomRequirements(o: InstanceOptions): Requirements {
   }
   return {
     meta: { name: `random ${o.rails} rails seed ${o.seed}`, description: 'Invented random instance for planner tests', revision: 1 },
-    sources: [{ id: 'in', name: 'Input', vNom: 24 as Volts, vMin: 18 as Volts, vMax: 30 as Volts, currentLimit: 5 as Amps }],
+    sources: [{ id: 'in', name: 'Input', vNom: (o.source?.vNom ?? 24) as Volts, vMin: (o.source?.vMin ?? 18) as Volts, vMax: (o.source?.vMax ?? 30) as Volts, currentLimit: 5 as Amps }],
     domains, modes, loads, limits: { ...DEFAULT_LIMITS },
     preferences: {
       ...DEFAULT_PREFERENCES,

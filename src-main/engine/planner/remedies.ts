@@ -7,7 +7,7 @@
  * tree. A remedy whose check does not finish in time is not offered.
  */
 import { groupRails } from '../rails.ts';
-import type { Requirements, StageKind } from '../model.ts';
+import { STAGE_KINDS, type Requirements, type StageKind } from '../model.ts';
 import { BlockFactory, enumerateShapes, type GenerationOptions } from './candidates.ts';
 import type { CostModel, StageEvaluator } from './types.ts';
 
@@ -15,7 +15,7 @@ export function generationOptions(req: Requirements, allowRailFeeds: boolean): G
   return {
     allowRailFeeds,
     maxSecondaries: Math.max(0, Math.floor(req.preferences.maxSecondaries)),
-    allowed: new Set<StageKind>(req.preferences.allowedKinds.filter((k) => k === 'buck' || k === 'cwbuck' || k === 'ldo')),
+    allowed: new Set<StageKind>(req.preferences.allowedKinds.filter((k) => STAGE_KINDS.includes(k))),
   };
 }
 

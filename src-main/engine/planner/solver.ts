@@ -231,7 +231,7 @@ export class PlanSolver {
     this.trace.push(`${this.rails.length} rails from ${req.loads.length} loads`);
     this.factory = new BlockFactory(req, this.rails, this.options.evaluator, this.costModel);
     const genOpts: GenerationOptions = generationOptions(req, this.options.allowRailFeeds ?? true);
-    const ignored = req.preferences.allowedKinds.filter((k) => k !== 'buck' && k !== 'cwbuck' && k !== 'ldo');
+    const ignored = req.preferences.allowedKinds.filter((k) => !genOpts.allowed.has(k));
     if (ignored.length) this.trace.push(`stage kinds not modelled by the planner and left out: ${ignored.join(', ')}`);
     const size = spaceSize(this.factory, genOpts);
     this.space = {
@@ -424,7 +424,8 @@ export class PlanSolver {
   }
 }
 
-const KIND_WORD: Record<StageKind, string> = { buck: 'buck', ldo: 'LDO', cwbuck: 'coupled-winding buck', 'iso-module': 'isolated module', 'load-switch': 'load switch' };
+const KIND_WORD: Record<StageKind, string> = { buck: 'buck', ldo: 'LDO', cwbuck: 'coupled-winding buck',
+  boost: 'boost', inverting: 'inverting buck-boost', 'buck-boost-4s': 'four-switch buck-boost', 'iso-module': 'isolated module', 'load-switch': 'load switch' };
 
 /** The decision space in one line (docs/planner.md states it in full). */
 export function spaceSummary(s: PlanSpace, rails: number): string {

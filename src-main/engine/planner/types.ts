@@ -62,6 +62,10 @@ export type SecondaryUse = 'direct' | 'tap';
 export type BlockShape =
   | { kind: 'buck'; input: FeedInput; rail: number }
   | { kind: 'ldo'; input: FeedInput & { kind: 'rail' }; rail: number }
+  /** One rail from one switching stage or module: boost, four-switch buck-boost, inverting, isolated module. */
+  | { kind: 'boost' | 'buck-boost-4s' | 'inverting' | 'iso-module'; input: FeedInput; rail: number }
+  /** A gated rail passed through from a rail (or a source) of the same voltage; off in `offModes`. */
+  | { kind: 'load-switch'; input: FeedInput; rail: number; offModes: string[] }
   | {
       kind: 'cwbuck';
       input: FeedInput & { kind: 'source' };

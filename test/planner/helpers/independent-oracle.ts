@@ -34,9 +34,16 @@ type Feed =
   | { kind: 'buck-src'; source: number }
   | { kind: 'buck-rail'; from: number }
   | { kind: 'ldo'; from: number }
+  /** A boost, four-switch buck-boost or inverting stage for this rail alone, from a source or a rail. */
+  | { kind: 'step-src'; stage: StepKind; source: number }
+  | { kind: 'step-rail'; stage: StepKind; from: number }
   | { kind: 'primary'; mag: number }
   /** `group`: which of the magnetics on an internal bus (a bus primary may carry several). */
   | { kind: 'secondary'; mag: number; group: number };
+
+type StepKind = 'boost' | 'buck-boost-4s' | 'inverting';
+/** Largest duty of the generic buck controller [the planner's stated space, docs/planner.md]. */
+const BUCK_DMAX = 0.9;
 
 interface StageResult { loss: number[]; iin: number[]; iinAtMin: number[]; cost: number; parts: number }
 
@@ -106,6 +113,26 @@ export class IndependentOracle {
         }
       });
     }
+    // The one-rail step kinds, from the table of docs/planner.md ("Decision space"), written
+    // from that text: inputs are the sources (for a non-isolated rail) and, with rail feeds,
+    // the positive non-quiet rails of the same domain.
+    if (!quiet && !this.iso(r)) {
+      const lo = Math.abs(r.voltage) * (1 - r.tolerance);
+      const ins: { src?: number; from?: number; min: number; max: number; v?: number }[] = this.req.sources.map((s, si) => ({ src: si, min: s.vMin, max: s.vMax }));
+      if (this.railFeeds) {
+        this.rails.forEach((u, j) => {
+          if (j !== i && u.domainId === r.domainId && u.voltage > 0 && u.noiseClass !== 'quiet') ins.push({ from: j, min: u.voltage * (1 - u.tolerance), max: u.voltage * (1 + u.tolerance), v: u.voltage });
+        });
+      }
+      const add = (stage: StepKind, x: (typeof ins)[number]) => out.push(x.src !== undefined ? { kind: 'step-src', stage, source: x.src } : { kind: 'step-rail', stage, from: x.from! });
+      for (const x of ins) {
+        if (r.voltage > 0) {
+          const up = lo > x.max;
+          if (up && this.kinds.has('boost')) add('boost', x);
+          if (!up && this.kinds.has('buck-boost-4s') && r.voltage >= BUCK_DMAX * x.min && x.v !== r.voltage) add('buck-boost-4s', x);
+        } else if (r.voltage < 0 && this.kinds.has('inverting')) add('inverting', x);
+      }
+    }
     this.mags.forEach((m, k) => {
       if (m.primary === i) out.push({ kind: 'primary', mag: k });
       else if (m.primary !== null) out.push({ kind: 'secondary', mag: k, group: 0 });
@@ -164,7 +191,7 @@ export class IndependentOracle {
           if (state[r] === 1) return false;
           state[r] = 1;
           const f = assign[r]!;
-          if ((f.kind === 'buck-rail' || f.kind === 'ldo') && !visit(f.from)) return false;
+          if ((f.kind === 'buck-rail' || f.kind === 'ldo' || f.kind === 'step-rail') && !visit(f.from)) return false;
           state[r] = 2;
           return true;
         };
@@ -187,6 +214,8 @@ export class IndependentOracle {
       case 'buck-src': return `buck from ${this.req.sources[f.source]!.name}`;
       case 'buck-rail': return `buck from ${this.rails[f.from]!.name}`;
       case 'ldo': return `LDO from ${this.rails[f.from]!.name}`;
+      case 'step-src': return `${f.stage} from ${this.req.sources[f.source]!.name}`;
+      case 'step-rail': return `${f.stage} from ${this.rails[f.from]!.name}`;
       default: {
         const m = this.mags[f.mag]!;
         return `${f.kind} of the magnetic with ${m.primary === null ? `a ${m.bus} V bus` : this.rails[m.primary]!.name} as primary`;
@@ -200,9 +229,10 @@ export class IndependentOracle {
     const nm = this.modeIds.length;
     // Downstream input current on each rail, per mode: filled from the leaves up.
     const extra: number[][] = this.rails.map(() => new Array<number>(nm).fill(0));
-    const depth = (r: number): number => { const f = assign[r]!; return f.kind === 'buck-rail' || f.kind === 'ldo' ? 1 + depth(f.from) : 0; };
+    const fromRail = (f: Feed): f is Feed & { from: number } => f.kind === 'buck-rail' || f.kind === 'ldo' || f.kind === 'step-rail';
+    const depth = (r: number): number => { const f = assign[r]!; return fromRail(f) ? 1 + depth(f.from) : 0; };
     // A magnetic's rails are all at depth 0 (fed from a source); rail-fed stages go deepest first.
-    const railFed = [...Array(n).keys()].filter((r) => assign[r]!.kind === 'buck-rail' || assign[r]!.kind === 'ldo').sort((a, b) => depth(b) - depth(a));
+    const railFed = [...Array(n).keys()].filter((r) => fromRail(assign[r]!)).sort((a, b) => depth(b) - depth(a));
     let loss = 0, cost = 0, parts = 0;
     const sourceI = this.req.sources.map(() => new Array<number>(nm).fill(0));
     const account = (res: StageResult) => {
@@ -210,17 +240,19 @@ export class IndependentOracle {
       cost += res.cost; parts += res.parts;
     };
     for (const r of railFed) {
-      const f = assign[r] as { kind: 'buck-rail' | 'ldo'; from: number };
-      const res = this.simpleStage(f.kind === 'ldo' ? 'ldo' : 'buck', { rail: f.from }, r, this.currents(r, extra[r]!));
-      if (!res || !this.simpleStage(f.kind === 'ldo' ? 'ldo' : 'buck', { rail: f.from }, r, this.own(r))) return Infinity;
+      const f = assign[r] as Feed & { from: number };
+      const kind = f.kind === 'ldo' ? 'ldo' : f.kind === 'step-rail' ? f.stage : 'buck';
+      const res = this.simpleStage(kind, { rail: f.from }, r, this.currents(r, extra[r]!));
+      if (!res || !this.simpleStage(kind, { rail: f.from }, r, this.own(r))) return Infinity;
       account(res);
       for (let m = 0; m < nm; m++) extra[f.from]![m]! += res.iin[m]!;
     }
     for (let r = 0; r < n; r++) {
       const f = assign[r]!;
-      if (f.kind !== 'buck-src') continue;
-      const res = this.simpleStage('buck', { source: f.source }, r, this.currents(r, extra[r]!));
-      if (!res || !this.simpleStage('buck', { source: f.source }, r, this.own(r))) return Infinity;
+      if (f.kind !== 'buck-src' && f.kind !== 'step-src') continue;
+      const kind = f.kind === 'step-src' ? f.stage : 'buck';
+      const res = this.simpleStage(kind, { source: f.source }, r, this.currents(r, extra[r]!));
+      if (!res || !this.simpleStage(kind, { source: f.source }, r, this.own(r))) return Infinity;
       account(res);
       for (let m = 0; m < nm; m++) sourceI[f.source]![m]! += res.iinAtMin[m]!;
     }
@@ -312,15 +344,18 @@ export class IndependentOracle {
     return { ok: true, perMode, atMin, design: d.design };
   }
 
-  private parts(kind: 'buck' | 'ldo' | 'cwbuck', secondaries = 0): PartCounts {
+  private parts(kind: 'buck' | 'ldo' | 'cwbuck' | StepKind, secondaries = 0): PartCounts {
     const p = emptyParts();
+    // A boost or inverting stage has a buck's parts; the four-switch stage two more switches and a sense resistor.
+    if (kind === 'boost' || kind === 'inverting') Object.assign(p, { controller: 1, switch: 2, magnetic: 1, capacitor: 4, resistor: 2 });
+    if (kind === 'buck-boost-4s') Object.assign(p, { controller: 1, switch: 4, magnetic: 1, capacitor: 4, resistor: 3 });
     if (kind === 'buck') Object.assign(p, { controller: 1, switch: 2, magnetic: 1, capacitor: 4, resistor: 2 });
     if (kind === 'ldo') Object.assign(p, { ldo: 1, capacitor: 2, resistor: 2 });
     if (kind === 'cwbuck') Object.assign(p, { controller: 1, switch: 2, coupledMagnetic: 1, rectifier: secondaries, capacitor: 4 + 2 * secondaries, resistor: 2 + secondaries });
     return p;
   }
 
-  private simpleStage(kind: 'buck' | 'ldo', input: { source: number } | { rail: number }, r: number, currents: number[]): StageResult | null {
+  private simpleStage(kind: 'buck' | 'ldo' | StepKind, input: { source: number } | { rail: number }, r: number, currents: number[]): StageResult | null {
     const key = `${kind}|${JSON.stringify(input)}|${r}|${currents.join(',')}`;
     if (this.blockCache.has(key)) return this.blockCache.get(key)!;
     const vin = this.band(input);
