@@ -1018,11 +1018,29 @@ export function* generateBlocks(
   const key = (s: BlockShape) => BlockFactory.shapeKey(s);
   const promising = (s: BlockShape & { kind: 'cwbuck' }) =>
     s.secondaries.every((_, d) => feasible.has(key({ ...s, secondaries: s.secondaries.filter((__, k) => k !== d) })));
-  const design = (s: BlockShape) => { designed.add(key(s)); if (add(s)) feasible.add(key(s)); };
+  // Rails with a feasible feed so far. A rail that none of the one-secondary sets serves may
+  // still be served by a pair (a winding that misses alone can fit beside another), so the
+  // pairs and triples that serve a rail still without a feed go before the rest, so that a
+  // budget cut leaves a tree whenever one is reachable. This only orders the work: every set
+  // is still designed when the budget allows.
+  const covered = new Set<number>();
+  for (const b of blocks) for (const r of b.covers) covered.add(r);
+  const design = (s: BlockShape) => {
+    designed.add(key(s));
+    if (add(s)) { feasible.add(key(s)); for (const r of BlockFactory.covers(s)) covered.add(r); }
+  };
+  const servesUncovered = (s: BlockShape) => BlockFactory.covers(s).some((r) => !covered.has(r));
   for (const s of coupled(1)) { design(s); yield; }
+  for (let size = 2; size <= Math.min(3, opts.maxSecondaries); size++) {
+    for (const s of coupled(size)) {
+      if (designed.has(key(s)) || !servesUncovered(s)) continue;
+      design(s);
+      yield;
+    }
+  }
   for (let size = 2; size <= opts.maxSecondaries; size++) {
     for (const s of coupled(size)) {
-      if (s.kind !== 'cwbuck' || !promising(s)) continue;
+      if (s.kind !== 'cwbuck' || designed.has(key(s)) || !promising(s)) continue;
       design(s);
       yield;
     }
