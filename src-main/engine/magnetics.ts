@@ -5,7 +5,7 @@
  * and working voltage of the barrier the windings cross (from the domain), with cautions.
  */
 import type { BuckDesign } from './stages/buck/index.ts';
-import { coupledPoint, windingCurrents, type CoupledBuckDesign } from './stages/cwbuck/index.ts';
+import { coupledPoint, magneticTolerance, windingCurrents, withMagneticCorner, type CoupledBuckDesign } from './stages/cwbuck/index.ts';
 import { designMagneticCore, type CoreDesign, type MagneticDesignOptions } from './core-design.ts';
 import { buckPoint } from './stages/buck/index.ts';
 import { awgDiameterMm, copperOhmsPerMetre, wireFor } from './awg.ts';
@@ -36,8 +36,11 @@ export interface MagneticSpec {
   /** Saturation current: the worst peak × (1 + margin). */
   saturationCurrent: number;
   saturationMargin: number;
-  /** Largest leakage inductance each secondary may see (H), and the equivalent coupling. */
-  leakageTargets: { nodeId: string; maxLeakage: number; minCoupling: number }[];
+  /**
+   * Leakage each secondary may have (H), from minLeakage to maxLeakage (the design value), and
+   * the equivalent coupling range at nominal Lp; the windows sweep the same range.
+   */
+  leakageTargets: { nodeId: string; maxLeakage: number; minCoupling: number; minLeakage: number; maxCoupling: number }[];
   windings: WindingSpec[];
   /** Largest voltage across each winding (V), for the insulation of the wire. */
   windingVoltages: number[];
@@ -117,9 +120,12 @@ export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentD
       })),
     ],
   }, { currentDensity: density, ...opts.core });
-  const leakageTargets = d.secondaries.map((w) => {
+  const tol = magneticTolerance(d);
+  const tight = withMagneticCorner(d, 1, tol.leakageLow);
+  const leakageTargets = d.secondaries.map((w, i) => {
     const n = Math.abs(w.turns) / d.primaryTurns;
-    return { nodeId: w.nodeId, maxLeakage: (n * n * d.inductance * (1 - w.coupling ** 2)) / w.coupling ** 2, minCoupling: w.coupling };
+    const maxLeakage = (n * n * d.inductance * (1 - w.coupling ** 2)) / w.coupling ** 2;
+    return { nodeId: w.nodeId, maxLeakage, minCoupling: w.coupling, minLeakage: maxLeakage * tol.leakageLow, maxCoupling: tight.secondaries[i]!.coupling };
   });
   // The construction's estimated leakage, referred to each secondary (× n²), must not exceed
   // what the stage design assumed, or the secondaries sag below the computed windows.
@@ -136,7 +142,7 @@ export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentD
   return {
     kind: 'coupled',
     core,
-    inductance: d.inductance, inductanceTolerance: 0.2, switchingFrequency: d.fsw,
+    inductance: d.inductance, inductanceTolerance: tol.inductance, switchingFrequency: d.fsw,
     saturationCurrent: d.isat, saturationMargin: d.isat / peak[0]! - 1,
     leakageTargets,
     windings,

@@ -90,6 +90,14 @@ export const GENERIC_DEFAULTS = {
   rippleTarget: 0.35,
   /** Coupling factor of a small multi-winding magnetic with interleaved windings. */
   coupling: 0.99,
+  /**
+   * Tolerances of a custom magnetic that the windows sweep and its specification sheet states
+   * (one number each): Lp ±20 % (from memory: a gapped ferrite is usually held to ±10–20 %),
+   * and each secondary's leakage between leakageLow × and 1 × the design's value, i.e. the
+   * coupling between the design's k and the k that halves the leakage (from memory: leakage
+   * varies by up to a factor of two between builds of the same winding instructions).
+   */
+  magneticTolerance: { inductance: 0.2, leakageLow: 0.5 },
   /** Saturation-current margin over the peak current. */
   saturationMargin: 0.3,
   /** Ceramic capacitor ESR per part. */

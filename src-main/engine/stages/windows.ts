@@ -7,14 +7,18 @@
  *   rectifier drop (1 ∓ spread) for coupled windings, LDO accuracy ± (outputs rise with the
  *   setpoint and fall with the drop, so "setpoint low, drop high" and "setpoint high, drop
  *   low" bound every output);
+ * × for a coupled-winding stage, the magnetic's own tolerances as its specification sheet
+ *   states them: Lp at 1 ∓ its tolerance, each with the leakage at both ends of its range,
+ *   and the nominal magnetic (cwbuck/index.ts coupledMagneticCorners);
  * and each output's value at a corner is its DC voltage ∓ half its peak-to-peak ripple.
- * An optional seeded Monte Carlo draws every quantity uniformly inside its range.
+ * An optional seeded Monte Carlo draws every quantity uniformly inside its range (the
+ * magnetic's Lp and leakage too).
  */
 import type { Amps, Celsius, Volts } from '../units.ts';
 import type { OutputSpec, OutputWindow } from './types.ts';
 import type { DividerChoice } from '../eseries.ts';
 import { buckAtDuty, buckPoint, evaluateBuck, type BuckDesign } from './buck/index.ts';
-import { coupledOutputs, type CoupledBuckDesign } from './cwbuck/index.ts';
+import { coupledMagneticCorners, coupledOutputs, magneticTolerance, withMagneticCorner, type CoupledBuckDesign } from './cwbuck/index.ts';
 import { ldoPoint, type LdoDesign } from './ldo/index.ts';
 import { boostWindowAt, type BoostDesign } from './boost/index.ts';
 import { invertingWindowAt, type InvertingDesign } from './inverting/index.ts';
@@ -131,8 +135,9 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
   const hi = new Array<number>(n).fill(-Infinity);
   const loAt = new Array<string>(n).fill('');
   const hiAt = new Array<string>(n).fill('');
-  const tolCases: { x: Draw; label: string }[] = [];
+  const tolCases: { x: Draw; label: string; design: WindowDesign }[] = [];
   const hasVf = d.kind === 'cwbuck';
+  const magnetic = d.kind === 'cwbuck' ? coupledMagneticCorners(d) : null;
   // Every output rises with the setpoint and falls with the rectifier drop, so two cases
   // bound them all: setpoint low with the drop high, and setpoint high with the drop low.
   for (const s of [-1, 1]) {
@@ -141,10 +146,14 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
     const label = `${d.kind === 'ldo' ? 'accuracy' : 'reference and divider'} ${s < 0 ? 'low' : 'high'}${hasVf ? `, rectifier drop ${f < 0 ? 'low' : 'high'}` : ''}`;
     // A load switch has no setpoint: its output is the input less the drop, one case.
     if (d.kind === 'load-switch' || d.kind === 'iso-module') {
-      if (s > 0) tolCases.push({ x, label: d.kind === 'load-switch' ? 'input less the hot switch drop' : 'ratio and load-regulation line' });
+      if (s > 0) tolCases.push({ x, design: d, label: d.kind === 'load-switch' ? 'input less the hot switch drop' : 'ratio and load-regulation line' });
       continue;
     }
-    tolCases.push({ x, label });
+    if (d.kind === 'cwbuck') {
+      for (const m of magnetic!) tolCases.push({ x, design: m.design, label: m.design === d ? label : `${label}, ${m.label}` });
+      continue;
+    }
+    tolCases.push({ x, design: d, label });
   }
   // An output whose smallest and largest currents are equal, or an input voltage given twice,
   // repeats corners already evaluated: they cannot set a new (strict) extreme, so skip them.
@@ -157,7 +166,7 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
       if (mask & fixed) continue;
       const iout = corners.iout.map((c, i) => (mask & (1 << i) ? c.max : c.min) as number);
       for (const tc of tolCases) {
-        const vals = outputsAt(d, vin, iout, tc.x);
+        const vals = outputsAt(tc.design, vin, iout, tc.x);
         // The corner's label is built only when it sets a new extreme.
         let where: string | null = null;
         for (let i = 0; i < vals.length; i++) {
@@ -182,7 +191,13 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
       const vin = vmin + (vmax - vmin) * rnd();
       const iout = corners.iout.map((c) => c.min + (c.max - c.min) * rnd());
       const x: Draw = { vref: u(), rTop: u(), rBottom: u(), vf: hasVf ? u() : 0, accuracy: u() };
-      outputsAt(d, vin, iout, x).forEach((v, i) => {
+      // A coupled-winding stage also draws its magnetic inside the tolerances its sheet states.
+      let dd: WindowDesign = d;
+      if (d.kind === 'cwbuck') {
+        const t = magneticTolerance(d);
+        dd = withMagneticCorner(d, 1 + t.inductance * u(), t.leakageLow + (1 - t.leakageLow) * rnd());
+      }
+      outputsAt(dd, vin, iout, x).forEach((v, i) => {
         mc!.min[i] = Math.min(mc!.min[i]!, v.lo);
         mc!.max[i] = Math.max(mc!.max[i]!, v.hi);
       });

@@ -72,6 +72,56 @@ export interface CoupledBuckDesign extends SwitchingDesignBase {
    * Secondaries wound together (bifilar) couple tighter than k_i·k_j and share leakage.
    */
   secondaryCoupling?: number[][];
+  /**
+   * Tolerances of the magnetic the windows sweep and the specification sheet states: Lp ±
+   * inductance, leakage between leakageLow × and 1 × the design value (absent: the generic
+   * defaults, GENERIC_DEFAULTS.magneticTolerance).
+   */
+  magneticTolerance?: { inductance: number; leakageLow: number };
+}
+
+/** The magnetic's tolerances (the windows sweep them; the specification sheet states them). */
+export function magneticTolerance(d: CoupledBuckDesign): { inductance: number; leakageLow: number } {
+  return d.magneticTolerance ?? { ...GENERIC_DEFAULTS.magneticTolerance };
+}
+
+/**
+ * The design with its magnetic at one corner of its tolerances: Lp × lpFactor and every
+ * leakage (each secondary's own, Llk = n²·Lp·(1 − k²)/k², and the shared Lm_ij of wound-
+ * together secondaries) × leakFactor. Leakage is set by the winding geometry, not the gap,
+ * so it is held while Lp moves: (1 − k'²)/k'² = leakFactor·(1 − k²)/k² / lpFactor.
+ */
+export function withMagneticCorner(d: CoupledBuckDesign, lpFactor: number, leakFactor: number): CoupledBuckDesign {
+  const kOf = (k: number) => 1 / Math.sqrt(1 + (leakFactor * (1 - k * k)) / (k * k) / lpFactor);
+  const secondaries = d.secondaries.map((w) => ({ ...w, coupling: kOf(w.coupling) }));
+  const out: CoupledBuckDesign = { ...d, inductance: (d.inductance * lpFactor) as Henries, secondaries };
+  const mutual = mutualLeakage(d);
+  if (d.secondaryCoupling && mutual) {
+    const ls = secondaries.map((w) => ((w.turns / d.primaryTurns) ** 2 * out.inductance) / (w.coupling * w.coupling));
+    out.secondaryCoupling = secondaries.map((wi, i) => secondaries.map((wj, j) =>
+      i === j ? 1 : wi.coupling * wj.coupling + (leakFactor * mutual[i]![j]!) / Math.sqrt(ls[i]! * ls[j]!)));
+  }
+  return out;
+}
+
+/**
+ * The magnetic corners the windows add: nominal, and Lp at 1 ∓ its tolerance with the
+ * leakage at each end of its range (the output is not monotonic in the leakage: the drop at
+ * load grows with it, the charge the ring delivers at light load too).
+ */
+export function coupledMagneticCorners(d: CoupledBuckDesign): { design: CoupledBuckDesign; label: string }[] {
+  const t = magneticTolerance(d);
+  const out = [{ design: d, label: 'magnetic nominal' }];
+  if (!(t.inductance > 0) && !(t.leakageLow < 1)) return out;
+  const lps = t.inductance > 0 ? [1 - t.inductance, 1 + t.inductance] : [1];
+  const leaks = t.leakageLow < 1 ? [t.leakageLow, 1] : [1];
+  for (const g of lps) {
+    for (const f of leaks) {
+      if (g === 1 && f === 1) continue;
+      out.push({ design: withMagneticCorner(d, g, f), label: `Lp ${g === 1 ? 'nominal' : `${g < 1 ? '−' : '+'}${r3(Math.abs(g - 1) * 100)} %`}, leakage ${r3(f * 100)} %` });
+    }
+  }
+  return out;
 }
 
 export interface CoupledEvalOptions {
@@ -871,6 +921,10 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
   }
   const rectBad = diodeErrors(rect);
   if (rectBad) return { ok: false, flags: [flag('bad-input', 'error', `rectifier.${rectBad}`, { field: `rectifier.${rectBad.split(':')[0]}` })] };
+  const mt = spec.magneticTolerance;
+  if (mt !== undefined && !(mt && mt.inductance >= 0 && mt.inductance < 0.5 && mt.leakageLow > 0 && mt.leakageLow <= 1)) {
+    return { ok: false, flags: [flag('bad-input', 'error', 'magneticTolerance: inductance must be 0 to below 0.5 and leakageLow above 0, at most 1', { field: 'magneticTolerance' })] };
+  }
   const nSecs = spec.outputs.length - 1;
   const kss = spec.secondaryCoupling;
   if (kss !== undefined) {
@@ -950,6 +1004,7 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     dutyWarn: GENERIC_DEFAULTS.coupledDutyWarn as Ratio,
     isolation: spec.isolation ?? null,
     ...(kss ? { secondaryCoupling: kss.map((row) => [...row]) } : {}),
+    ...(spec.magneticTolerance ? { magneticTolerance: { ...spec.magneticTolerance } } : {}),
   });
   // Turns: the smallest Np (from 3, common practice for a defined leakage and flux) whose
   // integer secondaries keep every secondary's band (secondaries light at Vin max, at full
