@@ -5,7 +5,7 @@
  * and working voltage of the barrier the windings cross (from the domain), with cautions.
  */
 import type { BuckDesign } from './stages/buck/index.ts';
-import { coupledPoint, magneticTolerance, windingCurrents, withMagneticCorner, type CoupledBuckDesign } from './stages/cwbuck/index.ts';
+import { coupledMagneticDemand, magneticTolerance, windingCurrents, withMagneticCorner, type CoupledBuckDesign } from './stages/cwbuck/index.ts';
 import { designMagneticCore, type CoreDesign, type MagneticDesignOptions } from './core-design.ts';
 import { buckPoint } from './stages/buck/index.ts';
 import { awgDiameterMm, copperOhmsPerMetre, wireFor } from './awg.ts';
@@ -103,23 +103,12 @@ export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentD
     cautions.push(`The windings cross a ${d.isolation.class} barrier rated for ${d.isolation.workingVoltage} V working voltage: insulation system, creepage and clearance per the applicable safety standard.`);
     cautions.push(...ISOLATION_CAUTIONS);
   }
-  // Flux: the peak magnetizing current and its ripple at Vin max with every output at full
-  // load (the largest ripple); the winding currents are the worst of the points above.
-  const worst = coupledPoint(d, d.vinMax, full);
-  const ipkFlux = Math.max(peak[0]!, worst.impk);
-  const swing = d.vinMax - vpri;
-  const core = opts.withCore === false ? null : designMagneticCore({
-    inductance: d.inductance, peakCurrent: ipkFlux, rippleCurrent: worst.dim, fsw: d.fsw,
-    isolation: d.isolation?.class ?? 'none',
-    windings: [
-      { name: 'P', designTurns: d.primaryTurns, rms: rms[0]!, average: full[0]!, peak: peak[0]!, voltage: Math.max(swing, vpri), crossesBarrier: false },
-      ...d.secondaries.map((w, i) => ({
-        name: `S${i + 1}`, designTurns: w.turns, rms: rms[i + 1]!, average: full[i + 1]!, peak: peak[i + 1]!,
-        voltage: (Math.abs(w.turns) / d.primaryTurns) * Math.max(swing, vpri),
-        crossesBarrier: !!d.isolation && d.isolation.class !== 'none',
-      })),
-    ],
-  }, { currentDensity: density, ...opts.core });
+  // The core: the one the stage design was made with (its losses are those the evaluation
+  // uses), unless other core-design options are asked for here.
+  const own = d.magneticCore && !opts.core && opts.currentDensity === undefined;
+  const core = opts.withCore === false ? null
+    : own ? structuredClone(d.magneticCore!)
+    : designMagneticCore(coupledMagneticDemand(d), { currentDensity: density, ...opts.core });
   const tol = magneticTolerance(d);
   const tight = withMagneticCorner(d, 1, tol.leakageLow);
   const leakageTargets = d.secondaries.map((w, i) => {

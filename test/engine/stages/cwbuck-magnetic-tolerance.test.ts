@@ -79,3 +79,39 @@ describe('windows over the magnetic\'s tolerances', () => {
     expect(Math.abs(w.max as number)).toBeLessThanOrEqual(Math.abs(nom.max as number) + 1e-9);
   });
 });
+
+describe('stage loss breakdown from the designed core', () => {
+  const three = { ...loose, coupling: 0.99, outputs: [o('p5', 5, 0.05, 0.5, 0.03, 0.05), o('p12', 12, 0.01, 0.15), o('n12', -12, 0.01, 0.1), o('iso5', 5, 0, 0.2)] } as unknown as StageSpec;
+  it('core and copper loss in the evaluation are the specification sheet\'s at its stated point', () => {
+    const d = design(three);
+    const c = d.magneticCore!;
+    expect(c).toBeDefined();
+    const m = magneticSpec(d);
+    const full = d.outputs.map((x) => x.currentMax);
+    const ev = evaluateStage(d, { vin: d.vinMax, iout: full as Amps[], ambient: 40 as Celsius });
+    // one number per quantity: the sheet's core and copper loss at Vin max, full load
+    expect(ev.lossBreakdown['magnetic-core']).toBeCloseTo(m.core!.coreLoss, 12);
+    expect((ev.lossBreakdown['primary-copper'] as number) + (ev.lossBreakdown['secondary-copper'] as number)).toBeCloseTo(m.core!.copperLoss, 9);
+    // the windings' resistances the stage uses are the designed windings' DC resistances
+    expect(d.primaryResistance).toBe(m.core!.windings[0]!.rdc);
+    d.secondaries.forEach((w, i) => expect(w.resistance).toBe(m.core!.windings[i + 1]!.rdc));
+  });
+  it('core loss follows Steinmetz at the point\'s flux swing, copper loss Rdc·(Idc² + F_R·Iac²)', () => {
+    const d = design(three);
+    const c = d.magneticCore!;
+    for (const vin of [d.vinMin, d.vinNom]) {
+      const iout = d.outputs.map((x) => x.currentMax as number);
+      const ev = evaluateStage(d, { vin, iout: iout as Amps[], ambient: 40 as Celsius });
+      const p = coupledPoint(d, vin, iout);
+      // ΔB = Lp·ΔIm/(N·Ae) [Erickson ch. 14]; Pv = k·f^α·B^β with B = ΔB/2 (Steinmetz)
+      const dB = (d.inductance * p.dim) / (d.primaryTurns * c.turnsMultiplier * c.core.ae);
+      const s = c.material.steinmetz;
+      expect(ev.lossBreakdown['magnetic-core']).toBeCloseTo(s.k * d.fsw ** s.alpha * (dB / 2) ** s.beta * c.core.ve, 12);
+      // secondaries: each winding's average is its load plus preload, its RMS the sampled one
+      const sec = p.sec.reduce((a, x, i) => a + c.windings[i + 1]!.rdc * (x.isec ** 2 + c.windings[i + 1]!.fr * (x.irms ** 2 - x.isec ** 2)), 0);
+      expect(ev.lossBreakdown['secondary-copper']).toBeCloseTo(sec, 12);
+      // the AC factor matters: with F_R > 1 the copper loss is above the plain I²R
+      expect(c.windings.some((w) => w.fr > 1.01)).toBe(true);
+    }
+  });
+});

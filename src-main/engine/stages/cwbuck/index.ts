@@ -28,6 +28,7 @@ import { GENERIC_DEFAULTS, VT, diodeVf, type ControllerParams, type DiodeModel }
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
 import { feasibility, specErrors, switchingFlags, switchingParts, thetaSourceOf, type SwitchingDesignBase } from '../buck/index.ts';
 import { chooseCeramicRow, chooseRectifier, chooseSwitcher, diodeFromRow, type StagePartRef } from '../part-choice.ts';
+import { coreLossAt, designMagneticCore, temperatureRise, windingCopperLoss, type CoreDesign, type MagneticDemand } from '../../core-design.ts';
 
 // Module-local bindings for the innermost loops (saves a lookup through the module namespace
 // on every call when the sources run through a CommonJS transform).
@@ -78,6 +79,13 @@ export interface CoupledBuckDesign extends SwitchingDesignBase {
    * defaults, GENERIC_DEFAULTS.magneticTolerance).
    */
   magneticTolerance?: { inductance: number; leakageLow: number };
+  /**
+   * The custom magnetic designed on a core of the table (core-design.ts). When present the
+   * evaluation takes its core loss (Steinmetz at the point's flux swing) and its windings'
+   * resistance and Dowell AC factor from it, and the winding resistances above are its DC
+   * resistances; the magnetic specification sheet prints this same design.
+   */
+  magneticCore?: CoreDesign;
 }
 
 /** The magnetic's tolerances (the windows sweep them; the specification sheet states them). */
@@ -555,6 +563,68 @@ export function windingCurrents(d: CoupledBuckDesign, vin: number, iout: number[
   ];
 }
 
+/** Current density of the custom magnetic's windings [common practice: 4–6 A/mm², natural cooling]. */
+export const WINDING_CURRENT_DENSITY = 5;
+
+/**
+ * What the custom magnetic must carry: Lp, the flux's peak and swing at Vin max with every
+ * output at full load, and per winding the largest RMS and peak over Vin min/max × (all
+ * outputs at full load | primary at its minimum) for the wire; the losses are stated at the
+ * one point Vin max, all outputs at full load (where the flux swing is largest), with that
+ * point's RMS and average currents, so the stage evaluation there reads the same numbers.
+ */
+export function coupledMagneticDemand(d: CoupledBuckDesign): MagneticDemand {
+  const full = d.outputs.map((o) => o.currentMax as number);
+  const lightPri = [d.outputs[0]!.currentMin as number, ...full.slice(1)];
+  const points = [d.vinMin, d.vinMax].flatMap((vin) => [full, lightPri].map((iout) => windingCurrents(d, vin, iout)));
+  const rms = points[0]!.map((_, i) => Math.max(...points.map((p) => p[i]!.rms)));
+  const peak = points[0]!.map((_, i) => Math.max(...points.map((p) => p[i]!.peak)));
+  const worst = coupledPoint(d, d.vinMax, full);
+  const atWorst = windingCurrents(d, d.vinMax, full);
+  const vpri = d.divider.vout;
+  const swing = Math.max(d.vinMax - vpri, vpri);
+  const crosses = !!d.isolation && d.isolation.class !== 'none';
+  return {
+    inductance: d.inductance, peakCurrent: Math.max(peak[0]!, worst.impk), rippleCurrent: worst.dim, fsw: d.fsw,
+    isolation: d.isolation?.class ?? 'none',
+    windings: [
+      { name: 'P', designTurns: d.primaryTurns, rms: rms[0]!, average: full[0]!, peak: peak[0]!, voltage: swing, crossesBarrier: false,
+        lossRms: atWorst[0]!.rms, lossAverage: full[0]! },
+      ...d.secondaries.map((w, i) => ({
+        name: `S${i + 1}`, designTurns: w.turns, rms: rms[i + 1]!, average: full[i + 1]!, peak: peak[i + 1]!,
+        voltage: (Math.abs(w.turns) / d.primaryTurns) * swing, crossesBarrier: crosses,
+        lossRms: atWorst[i + 1]!.rms, lossAverage: worst.sec[i]!.isec,
+      })),
+    ],
+  };
+}
+
+/**
+ * Magnetic losses at one operating point. With the designed core: Steinmetz core loss at the
+ * point's flux swing ΔB = Lp·ΔIm/(Np·Ae) (core-design.ts coreLossAt, coefficients from the
+ * core table), copper loss per winding Rdc·(Iavg² + F_R·(Irms² − Iavg²)) with the Dowell
+ * factor F_R of the designed winding [Erickson ch. 13]. Without it (a design made before the
+ * core was designed): the labelled κ·½·L·ΔI²·fsw and the plain I²R of the winding resistances.
+ */
+function magneticLosses(d: CoupledBuckDesign, p: CoupledPoint, ipri: number, primaryMs: number): { core: number; primary: number; secondary: number } {
+  const c = d.magneticCore;
+  if (!c) {
+    return {
+      core: d.coreLossFraction * 0.5 * d.inductance * p.dim * p.dim * d.fsw,
+      primary: primaryMs * (d.primaryResistance as number),
+      secondary: p.sec.reduce((a, s, i) => a + s.irms * s.irms * (d.secondaries[i]!.resistance as number), 0),
+    };
+  }
+  const np = d.primaryTurns * c.turnsMultiplier;
+  const swing = (d.inductance * p.dim) / (np * c.core.ae);
+  const w = c.windings;
+  return {
+    core: coreLossAt(c, d.fsw, swing),
+    primary: windingCopperLoss(w[0]!.rdc, w[0]!.fr, Math.sqrt(primaryMs), ipri),
+    secondary: p.sec.reduce((a, s, i) => a + windingCopperLoss(w[i + 1]!.rdc, w[i + 1]!.fr, s.irms, s.isec), 0),
+  };
+}
+
 /**
  * The operating point, with the primary out of regulation when the controller runs out of
  * duty: the primary then settles where the maximum duty puts it (found by bisection).
@@ -604,6 +674,7 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
   const td = d.controller.deadTime;
   const vfb = diodeVf(d.bodyDiode, Math.max(Math.abs(p.impk), Math.abs(p.iend)));
   const hsRmsSq = msOn * p.duty;
+  const mag = magneticLosses(d, p, ipri, hsRmsSq + msOff * offShare);
   const icinRms = Math.sqrt(Math.max(0, hsRmsSq - (p.im * p.duty) ** 2));
   const loss: Record<string, number> = {
     'hs-conduction': hsRmsSq * rhs,
@@ -613,10 +684,10 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
     'output-capacitance': 0.5 * (d.highSide.coss + d.lowSide.coss) * vin * vin * fsw,
     'dead-time': vfb * (Math.abs(p.impk) + Math.abs(p.iend)) * td * fsw,
     'gate-drive': (d.highSide.qg + d.lowSide.qg) * d.controller.vDrive * fsw,
-    'primary-copper': (hsRmsSq + msOff * offShare) * rp,
-    'secondary-copper': p.sec.reduce((a, s, i) => a + s.irms * s.irms * (d.secondaries[i]!.resistance as number), 0),
+    'primary-copper': mag.primary,
+    'secondary-copper': mag.secondary,
     rectifiers: p.sec.reduce((a, s) => a + s.pRect, 0),
-    'magnetic-core': d.coreLossFraction * 0.5 * d.inductance * p.dim * p.dim * fsw,
+    'magnetic-core': mag.core,
     'output-capacitor-esr': (p.dim * p.dim / 12) * d.cout.esr
       + p.sec.reduce((a, s, i) => a + Math.max(0, s.irms * s.irms - s.isec * s.isec) * d.secondaries[i]!.cout.esr, 0),
     'input-capacitor-esr': icinRms * icinRms * d.cin.esr,
@@ -642,12 +713,16 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
     }),
   ];
   const ta = op.ambient as number;
+  // The designed magnetic's hot spot from McLyman's surface rise at this loss (not linear in
+  // the loss, so expressed as the equivalent K/W at this point); else the generic K/W.
+  const magPower = loss['primary-copper']! + loss['secondary-copper']! + loss['magnetic-core']!;
+  const magTheta = d.magneticCore && magPower > 0 ? temperatureRise(magPower, d.magneticCore.core.surface) / magPower : d.thetaJA.inductor;
   const parts = [
     ...switchingParts(d,
       loss['hs-conduction']! + loss['hs-switching']! + loss['output-capacitance']! / 2,
       loss['ls-conduction']! + loss['dead-time']! + loss['output-capacitance']! / 2,
       loss['gate-drive']! + loss.quiescent!, ta),
-    part('coupled magnetic', loss['primary-copper']! + loss['secondary-copper']! + loss['magnetic-core']!, d.thetaJA.inductor, ta),
+    part('coupled magnetic', magPower, magTheta, ta),
     ...p.sec.map((s, i) => part(`rectifier D${i + 1}`, s.pRect, d.secondaries[i]!.thetaJA, ta, thetaSourceOf(d))),
   ];
   const flags: StageFlag[] = [...switchingFlags(d, vin, required, p.impk, p.iend), ...thermalFlags(parts, d.tjMax), ...rippleFlags(outputs, d.outputs)];
@@ -1155,6 +1230,22 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     design.isat = Math.max(design.isat as number, Math.max(pk.impk, Math.abs(pk.iend)) * (1 + GENERIC_DEFAULTS.saturationMargin)) as Amps;
   }
 
+  // The custom magnetic on a core of the table: its windings' DC resistance replaces the
+  // generic estimate (the currents move a little with it, so the core is designed again
+  // until the wire, and so the resistance, stays put; twice is usually enough).
+  for (let pass = 0; pass < 3; pass++) {
+    const core = designMagneticCore(coupledMagneticDemand(design), { currentDensity: WINDING_CURRENT_DENSITY });
+    const same = design.magneticCore && core.windings.every((w, i) => w.rdc === design.magneticCore!.windings[i]!.rdc);
+    design.magneticCore = core;
+    design.primaryResistance = core.windings[0]!.rdc as Ohms;
+    design.secondaries.forEach((w, i) => { w.resistance = core.windings[i + 1]!.rdc as Ohms; });
+    if (same) break;
+  }
+  {
+    const c = design.magneticCore!;
+    reasons.push(`magnetic: ${c.core.name}, ${c.material.name}, turns × ${c.turnsMultiplier} = ${c.windings.map((w) => Math.abs(w.turns)).join(':')}, peak flux ${r3(c.peakFlux * 1e3)} mT (limit ${r3(c.fluxLimit * 1e3)} mT); at Vin ${r3(spec.vinMax)} V and full load core loss ${r3(c.coreLoss * 1e3)} mW (Steinmetz, coefficients from memory), copper ${r3(c.copperLoss * 1e3)} mW (DC resistance with the Dowell AC factor); winding resistances are the designed windings'`);
+  }
+
   // Second pass on the output capacitors with the full ripple model: where an output uses
   // more than half its ripple limit at Vin min or max (full load), enlarge its bank.
   const fullLoad = spec.outputs.map((o) => o.currentMax);
@@ -1214,5 +1305,10 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     return { ...a, flags: [...a.flags, ...b.flags] };
   });
   if (flags.some((f) => f.severity === 'error')) return { ok: false, flags };
+  const mc = design.magneticCore!;
+  if (!mc.ok) {
+    flags.push(flag('magnetic-core-open', 'warning', `the custom magnetic does not close on any core of the table (best attempt ${mc.core.name}: ${mc.problems.join('; ')}); its losses are those of that attempt`,
+      { core: mc.core.name, problems: mc.problems.length }));
+  }
   return { ok: true, design, reasons, flags };
 }
