@@ -23,6 +23,11 @@ export interface CapacitorChoice {
   stress: number;
   /** Largest RMS ripple current the bank carries (A), when the designer computed it. */
   rmsCurrent?: number;
+  /**
+   * Ripple-current rating of one part (A) when known: the library row's, or for a ceramic row
+   * without one the generic rating of its case size (part-choice.ts).
+   */
+  rippleRating?: number;
   /** Kind of part the bank is made of (absent: ceramic). */
   partKind?: 'ceramic' | 'polymer' | 'aluminium';
 }
@@ -81,6 +86,22 @@ export function thermalFlags(parts: DissipatingPart[], tjMax: number): StageFlag
 
 /** Deterministic PRNG for the seeded Monte Carlo (the project's one generator). */
 export { seededRandom as mulberry32 } from '../random.ts';
+
+/**
+ * Warn for every capacitor bank whose RMS ripple current at this point passes its parts'
+ * rating × count (banks without a known rating are not checked).
+ */
+export function bankRippleFlags(banks: { bank: CapacitorChoice; rms: number }[]): StageFlag[] {
+  const out: StageFlag[] = [];
+  for (const { bank, rms } of banks) {
+    const r = bank.rippleRating;
+    if (!(r !== undefined && r > 0) || !(rms > r * bank.count * (1 + 1e-9))) continue;
+    out.push(flag('capacitor-ripple-over-rating', 'warning',
+      `${bank.role} capacitor bank carries ${r3(rms)} A rms, above its rating ${bank.count} × ${r3(r)} A = ${r3(r * bank.count)} A`,
+      { role: bank.role, rms: r3(rms), rating: r3(r), count: bank.count }));
+  }
+  return out;
+}
 
 /** Warn for every output whose ripple passes its limit. */
 export function rippleFlags(outputs: { nodeId: string; ripplePP: number }[], specs: { rippleLimit: number }[]): StageFlag[] {

@@ -25,7 +25,7 @@ import type { IsolationClass } from '../../model.ts';
 import type { LibraryRow } from '../../library.ts';
 import { bestDivider, nearest } from '../../eseries.ts';
 import { GENERIC_DEFAULTS, VT, diodeVf, type ControllerParams, type DiodeModel } from '../defaults.ts';
-import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
+import { bankRippleFlags, chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
 import { feasibility, specErrors, switchingFlags, switchingParts, thetaSourceOf, type SwitchingDesignBase } from '../buck/index.ts';
 import { chooseCeramicRow, chooseRectifier, chooseSwitcher, diodeFromRow, type StagePartRef } from '../part-choice.ts';
 import { coreLossAt, designMagneticCore, temperatureRise, windingCopperLoss, type CoreDesign, type MagneticDemand } from '../../core-design.ts';
@@ -563,6 +563,25 @@ export function windingCurrents(d: CoupledBuckDesign, vin: number, iout: number[
   ];
 }
 
+/**
+ * RMS ripple current of each capacitor bank at one point. A capacitor carries what its
+ * source delivers less the DC it passes on, so its RMS is that of the AC part,
+ * √(Irms² − Iavg²) [Erickson & Maksimović, capacitor charge balance; common practice]:
+ * an output bank the rectified winding's pulsed current less the load and preload (the
+ * primary's bank the primary-winding current less the primary load), the input bank the
+ * high-side current less the input's average.
+ */
+export function coupledBankRms(d: CoupledBuckDesign, p: CoupledPoint, ipri: number): { cin: number; cout: number; secondaries: number[] } {
+  const { msOn, msOff } = primaryMeanSquares(p);
+  const hsSq = msOn * p.duty;
+  const priSq = hsSq + msOff * p.toff * d.fsw;
+  return {
+    cin: Math.sqrt(Math.max(0, hsSq - (p.im * p.duty) ** 2)),
+    cout: Math.sqrt(Math.max(0, priSq - ipri * ipri)),
+    secondaries: p.sec.map((s) => Math.sqrt(Math.max(0, s.irms * s.irms - s.isec * s.isec))),
+  };
+}
+
 /** Current density of the custom magnetic's windings [common practice: 4–6 A/mm², natural cooling]. */
 export const WINDING_CURRENT_DENSITY = 5;
 
@@ -675,7 +694,7 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
   const vfb = diodeVf(d.bodyDiode, Math.max(Math.abs(p.impk), Math.abs(p.iend)));
   const hsRmsSq = msOn * p.duty;
   const mag = magneticLosses(d, p, ipri, hsRmsSq + msOff * offShare);
-  const icinRms = Math.sqrt(Math.max(0, hsRmsSq - (p.im * p.duty) ** 2));
+  const bankRms = coupledBankRms(d, p, ipri);
   const loss: Record<string, number> = {
     'hs-conduction': hsRmsSq * rhs,
     'ls-conduction': msOff * rls * Math.max(0, 1 - p.duty - 2 * td * fsw),
@@ -688,9 +707,10 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
     'secondary-copper': mag.secondary,
     rectifiers: p.sec.reduce((a, s) => a + s.pRect, 0),
     'magnetic-core': mag.core,
-    'output-capacitor-esr': (p.dim * p.dim / 12) * d.cout.esr
-      + p.sec.reduce((a, s, i) => a + Math.max(0, s.irms * s.irms - s.isec * s.isec) * d.secondaries[i]!.cout.esr, 0),
-    'input-capacitor-esr': icinRms * icinRms * d.cin.esr,
+    // Each bank's RMS ripple current (coupledBankRms) through its ESR.
+    'output-capacitor-esr': bankRms.cout ** 2 * d.cout.esr
+      + bankRms.secondaries.reduce((a, x, i) => a + x * x * d.secondaries[i]!.cout.esr, 0),
+    'input-capacitor-esr': bankRms.cin ** 2 * d.cin.esr,
     // An RC snubber across a rectifier charges and discharges its capacitor through its
     // resistor at both edges: Cs·Vr²·fsw with Vr = n·Von + Vsec [common practice].
     snubber: snubberLoss(d, p),
@@ -732,6 +752,10 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
       { duty: r3(p.duty), limit: d.dutyWarn, vin }));
   }
   flags.push(...regionFlags(d, p));
+  flags.push(...bankRippleFlags([
+    { bank: d.cin, rms: bankRms.cin }, { bank: d.cout, rms: bankRms.cout },
+    ...d.secondaries.map((w, i) => ({ bank: w.cout, rms: bankRms.secondaries[i]! })),
+  ]));
   if (pout > d.powerLimit) {
     flags.push(flag('power-above-range', 'warning', `output power ${r3(pout)} W is above the ${d.powerLimit} W a coupled-winding buck suits`, { pout: r3(pout), limit: d.powerLimit }));
   }
@@ -1260,6 +1284,14 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
       else design.secondaries[i - 1]!.cout = grown;
     });
   }
+  // Every bank's RMS ripple current, the largest at Vin min and max with every output at full
+  // load: the library part count below covers it with the parts' ripple rating.
+  {
+    const at = [spec.vinMin, spec.vinMax].map((vin) => coupledBankRms(design, coupledPoint(design, vin, fullLoad as number[]), pri.currentMax as number));
+    design.cin = { ...design.cin, rmsCurrent: Math.max(...at.map((a) => a.cin)) };
+    design.cout = { ...design.cout, rmsCurrent: Math.max(...at.map((a) => a.cout)) };
+    design.secondaries.forEach((w, i) => { w.cout = { ...w.cout, rmsCurrent: Math.max(...at.map((a) => a.secondaries[i]!)) }; });
+  }
   if (lib) {
     // Capacitor banks as library rows (ESR, rating and ripple current of the part).
     const banks: [CapacitorChoice, (c: CapacitorChoice) => void][] = [
@@ -1275,6 +1307,10 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     }
     design.parts = refs;
   }
+  design.secondaries.forEach((w) => {
+    const c = w.cout;
+    reasons.push(`${w.nodeId}: output capacitor ${c.count} × ${r3(c.value * 1e6)} µF ${c.ratedVoltage} V ${c.partKind ?? 'ceramic'}; RMS ripple current up to ${r3(c.rmsCurrent ?? 0)} A (√(Irect,rms² − Iload²) of the rectified winding's pulses)${c.rippleRating ? ` against ${c.count} × ${r3(c.rippleRating)} A` : ''}`);
+  });
   reasons.push(`turns ${chosen.np}:${chosen.ns.join(':')} (primary:secondaries, sign = winding sense) centre the secondaries' bands (light load at Vin max to full load at Vin min) at ${chosen.err.map((e) => `${r3(e * 100)} %`).join(', ')} of target`);
   reasons.push(`coupling k = ${k} (leakage ${design.secondaries.map((w) => `${r3(((w.turns / chosen!.np) ** 2 * Lp * (1 - k * k)) / (k * k) * 1e9)} nH`).join(', ')} seen from the secondaries)`);
   design.secondaries.forEach((w, i) => {
