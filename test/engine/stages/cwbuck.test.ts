@@ -146,7 +146,7 @@ describe('coupled-winding buck designer', () => {
     });
     const designs = [d, ...[0.8, 1.2].flatMap((g) => [0.5, 1].map((f) => variant(g, f)))];
     const vins = [18, 24, 32];
-    const ws = stageWindows(d, { vin: vins as Volts[], iout: d.outputs.map((x) => ({ min: x.currentMin, max: x.currentMax })) });
+    const ws = stageWindows(d, { vin: vins as Volts[], iout: d.outputs.map((x) => ({ min: x.currentMin, max: x.currentMax })) }, { magneticSweep: 'full' });
     const { vref, rTop, rBottom } = d.divider;
     const lo = new Array(4).fill(Infinity);
     const hi = new Array(4).fill(-Infinity);
