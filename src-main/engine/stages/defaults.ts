@@ -16,6 +16,8 @@ export interface SwitchParams {
   /** Voltage rise and fall times of the switch node. */
   tr: number;
   tf: number;
+  /** Body-diode reverse-recovery charge (C); absent: GENERIC_DEFAULTS.qrrPerAmp × the current. */
+  qrr?: number;
 }
 
 /** A diode as Shockley's equation with series resistance: Vf = n·Vt·ln(1 + I/Is) + Rs·I. */
@@ -64,6 +66,12 @@ export const GENERIC_DEFAULTS = {
   rdsHotFactor: 1.4,
   highSide: { rdsOn: 0.06, qg: 4e-9, coss: 120e-12, tr: 8e-9, tf: 8e-9 } satisfies SwitchParams,
   lowSide: { rdsOn: 0.035, qg: 6e-9, coss: 150e-12, tr: 8e-9, tf: 8e-9 } satisfies SwitchParams,
+  /**
+   * Body-diode stored charge per ampere it carries when the high side turns on, for the
+   * reverse-recovery loss Qrr·Vin·fsw (from memory: small trench switches store a few nC per
+   * ampere at the usual 20–50 ns dead times; 4 nC/A gives the ≈ 20 nC of a 5 A part).
+   */
+  qrrPerAmp: 4e-9,
   /** A silicon body diode (≈ 0.8 V at 1 A). */
   bodyDiode: { is: 5e-14, n: 1.0, rs: 0.02, vfSpread: 0.1 } satisfies DiodeModel,
   /** A small Schottky rectifier (≈ 0.4 V at 1 A). */
@@ -126,6 +134,15 @@ export const GENERIC_DEFAULTS = {
     accuracy: 0.015,
     /** Ripple rejection at a few hundred kHz (dB), and the headroom below which it fades. */
     psrrDb: 40,
+    /**
+     * Two-region PSRR against frequency and load (from memory, a generic LDO): the stated
+     * psrrDb holds up to psrrCornerHz, above it the loop's gain runs out and the rejection
+     * falls 20 dB per decade to a floor of psrrFloorDb (the output capacitor against the pass
+     * device's capacitance); at the rated current it is psrrLoadDb lower (linear in the load).
+     */
+    psrrCornerHz: 100e3,
+    psrrFloorDb: 20,
+    psrrLoadDb: 6,
     psrrKnee: 0.5,
     /** Headroom margin kept above dropout (V). */
     headroomMargin: 0.1,

@@ -130,12 +130,13 @@ function controllerFrom(r: LibraryRow, generic: string[]): { params: ControllerP
 }
 
 function switchFrom(r: LibraryRow, fallback: SwitchParams, generic: string[]): SwitchParams {
-  const pick = (key: keyof SwitchParams): number => {
+  const pick = (key: 'qg' | 'coss' | 'tr' | 'tf'): number => {
     if (has(r, key)) return num(r, key);
     generic.push(key);
     return fallback[key];
   };
-  return { rdsOn: num(r, 'rdsOn'), qg: pick('qg'), coss: pick('coss'), tr: pick('tr'), tf: pick('tf') };
+  // A row may state its body diode's recovery charge; without it the per-ampere generic applies.
+  return { rdsOn: num(r, 'rdsOn'), qg: pick('qg'), coss: pick('coss'), tr: pick('tr'), tf: pick('tf'), ...(has(r, 'qrr') ? { qrr: num(r, 'qrr') } : {}) };
 }
 
 /**
