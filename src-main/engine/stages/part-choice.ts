@@ -238,12 +238,20 @@ export function chooseLibraryInductance(lib: readonly LibraryRow[], target: numb
  */
 const CERAMIC_CASE_RIPPLE: Record<string, number> = { '0402': 1, '0603': 1.5, '0805': 2, '1206': 3, '1210': 4, '1812': 5 };
 
+function rowPackage(r: LibraryRow): string | undefined {
+  const v = (r.params as Record<string, unknown>).package;
+  return typeof v === 'string' ? v : undefined;
+}
+function rowDielectric(r: LibraryRow): string | undefined {
+  const v = (r.params as Record<string, unknown>).dielectric;
+  return typeof v === 'string' ? v : undefined;
+}
+
 /** A row's ripple rating per part and whether it came from the generic case-size table. */
 function rippleRatingOf(row: LibraryRow): { rating: number; generic: boolean } | null {
   if (has(row, 'iRipple') && num(row, 'iRipple') > 0) return { rating: num(row, 'iRipple'), generic: false };
   if (row.partClass !== 'cap-ceramic') return null;
-  const pkg = String((row.params as Record<string, unknown>).package ?? '');
-  const caseRating = CERAMIC_CASE_RIPPLE[pkg];
+  const caseRating = CERAMIC_CASE_RIPPLE[rowPackage(row) ?? ''];
   return caseRating ? { rating: caseRating, generic: true } : null;
 }
 
@@ -268,7 +276,11 @@ export function chooseCeramicRow(lib: readonly LibraryRow[], c: CapacitorChoice,
   let rowCount = c.count;
   for (const r of lib) {
     if (r.partClass !== 'cap-ceramic' || !(num(r, 'vRated') >= c.ratedVoltage - 1e-9 && num(r, 'cMin') <= c.value * (1 + 1e-9) && num(r, 'cMax') >= c.value * (1 - 1e-9))) continue;
-    const count = Math.max(c.count, rippleCount(r, c.rmsCurrent));
+    // The row's own DC-bias curve (case size, dielectric) may keep less than the generic one:
+    // then more parts, so the bank still holds what the designer needed.
+    const keep = ceramicRetained(c.workingVoltage, num(r, 'vRated'), rowPackage(r), rowDielectric(r));
+    const forC = c.needEffective !== undefined ? Math.ceil(c.needEffective / (c.value * keep) - 1e-9) : c.count;
+    const count = Math.max(c.count, forC, rippleCount(r, c.rmsCurrent));
     const cost = r.cost * count;
     const bestCost = row ? row.cost * rowCount : Infinity;
     if (cost < bestCost || (cost === bestCost && row && r.id < row.id)) { row = r; rowCount = count; }
@@ -303,7 +315,7 @@ export function chooseCeramicRow(lib: readonly LibraryRow[], c: CapacitorChoice,
   else generic.push('esr');
   // The part's own rating sets its DC-bias loss and stress.
   const rated = num(row, 'vRated');
-  const effective = c.value * count * ceramicRetained(c.workingVoltage, rated);
+  const effective = c.value * count * ceramicRetained(c.workingVoltage, rated, rowPackage(row), rowDielectric(row));
   const rr = rippleRatingOf(row);
   if (rr?.generic) generic.push('iRipple');
   return {

@@ -95,3 +95,26 @@ describe('coupled-winding output-bank ripple current', () => {
     }
   });
 });
+
+describe('ceramic DC-bias derating by case size', () => {
+  it('a small case keeps less at its working voltage, and the library bank grows to hold the capacitance needed', async () => {
+    const { ceramicRetained, chooseCeramic } = await import('../../../src-main/engine/stages/common.ts');
+    const { chooseCeramicRow } = await import('../../../src-main/engine/stages/part-choice.ts');
+    // From memory (generic class-II curves): at half the rating a 0402 keeps about 55 %, a
+    // 1210 about 73 %; the generic linear rule says 70 % for any case; C0G keeps all.
+    expect(ceramicRetained(3.15, 6.3, '0402')).toBeCloseTo(1 - 0.8 * 0.5 ** 0.7, 12);
+    expect(ceramicRetained(3.15, 6.3, '1210')).toBeCloseTo(1 - 0.45 * 0.5 ** 0.7, 12);
+    expect(ceramicRetained(3.15, 6.3)).toBeCloseTo(0.7, 12);
+    expect(ceramicRetained(40, 50, '0603', 'C0G')).toBe(1);
+    expect(ceramicRetained(3.15, 6.3, '0402')).toBeLessThan(ceramicRetained(3.15, 6.3, '0805'));
+    // A bank of 1 µF parts at 3.3 V needing 4 µF: only the 0402/0603 rows offer 1 µF at ≥ 6.3 V
+    // in a library of those two; the chosen row's own curve sets the count.
+    const only = lib.filter((r) => r.id === 'cc-0402-x5r-6v3');
+    const bank = chooseCeramic('output', 4e-6, 3.3, 0.6, 1e-6);
+    const pick = chooseCeramicRow(only, { ...bank, value: 1e-6, count: Math.ceil(4e-6 / (1e-6 * 0.69)) })!;
+    const keep = 1 - 0.8 * (3.3 / 6.3) ** 0.7;
+    expect(pick.bank.count).toBe(Math.ceil(4e-6 / (1e-6 * keep) - 1e-9));
+    expect(pick.bank.effective).toBeGreaterThanOrEqual(4e-6);
+    expect(pick.bank.effective).toBeCloseTo(pick.bank.count * 1e-6 * keep, 15);
+  });
+});
