@@ -553,8 +553,8 @@ export function primaryRipple(p: CoupledPoint, ipri: number, cap: CapacitorChoic
 }
 
 /** RMS and peak current of every winding (primary first) at one operating point. */
-export function windingCurrents(d: CoupledBuckDesign, vin: number, iout: number[]): { rms: number; peak: number }[] {
-  const p = coupledPoint(d, vin, iout);
+export function windingCurrents(d: CoupledBuckDesign, vin: number, iout: number[], at?: CoupledPoint): { rms: number; peak: number }[] {
+  const p = at ?? coupledPoint(d, vin, iout);
   const { msOn, msOff } = primaryMeanSquares(p);
   const primaryRms = Math.sqrt(msOn * p.duty + msOff * p.toff * d.fsw);
   return [
@@ -595,11 +595,11 @@ export const WINDING_CURRENT_DENSITY = 5;
 export function coupledMagneticDemand(d: CoupledBuckDesign): MagneticDemand {
   const full = d.outputs.map((o) => o.currentMax as number);
   const lightPri = [d.outputs[0]!.currentMin as number, ...full.slice(1)];
-  const points = [d.vinMin, d.vinMax].flatMap((vin) => [full, lightPri].map((iout) => windingCurrents(d, vin, iout)));
+  const worst = coupledPoint(d, d.vinMax, full);
+  const atWorst = windingCurrents(d, d.vinMax, full, worst);
+  const points = [windingCurrents(d, d.vinMin, full), windingCurrents(d, d.vinMin, lightPri), atWorst, windingCurrents(d, d.vinMax, lightPri)];
   const rms = points[0]!.map((_, i) => Math.max(...points.map((p) => p[i]!.rms)));
   const peak = points[0]!.map((_, i) => Math.max(...points.map((p) => p[i]!.peak)));
-  const worst = coupledPoint(d, d.vinMax, full);
-  const atWorst = windingCurrents(d, d.vinMax, full);
   const vpri = d.divider.vout;
   const swing = Math.max(d.vinMax - vpri, vpri);
   const crosses = !!d.isolation && d.isolation.class !== 'none';
