@@ -43,6 +43,13 @@ export interface WindingDemand {
   voltage: number;
   /** True when this winding sits on the far side of a galvanic barrier from the primary. */
   crossesBarrier: boolean;
+  /**
+   * RMS and average current at the operating point the losses are stated for (default: rms
+   * and average above). The wire is sized from `rms`, the worst of several points; the
+   * losses belong to one point so the stage evaluation there gives the same numbers.
+   */
+  lossRms?: number;
+  lossAverage?: number;
 }
 
 export interface MagneticDemand {
@@ -169,6 +176,23 @@ export function steinmetzLoss(m: CoreMaterial, f: number, bPeak: number): number
   return s.k * f ** s.alpha * Math.abs(bPeak) ** s.beta;
 }
 
+/**
+ * Copper loss of a winding carrying `rms` with DC part `average`: the DC part sees Rdc, the
+ * AC part Rdc·F_R [Erickson ch. 13, harmonics lumped at fsw: an estimate for the
+ * non-sinusoidal current].
+ */
+export function windingCopperLoss(rdc: number, fr: number, rms: number, average: number): number {
+  return rdc * (average * average + fr * Math.max(0, rms * rms - average * average));
+}
+
+/**
+ * Core loss (W) of a designed core at a peak-to-peak flux swing (T): Steinmetz at the
+ * switching frequency with B the half swing, times Ve (the same expression tryCore uses).
+ */
+export function coreLossAt(core: Pick<CoreDesign, 'core' | 'material'>, fsw: number, fluxSwing: number): number {
+  return steinmetzLoss(core.material, fsw, fluxSwing / 2) * core.core.ve;
+}
+
 /** McLyman's surface temperature rise (K) of a wound part losing p (W) over surface (m²). */
 export function temperatureRise(p: number, surface: number): number {
   const psi = p / (surface / 1e-4); // W/cm²
@@ -243,8 +267,7 @@ function tryCore(dem: MagneticDemand, core: CoreShape, mat: CoreMaterial, o: typ
     const eta = Math.min(1, (Math.min(turns * wire.strands, perLayer) * bare) / core.breadth);
     const delta = (Math.sqrt(Math.PI / 4) * bare * Math.sqrt(eta)) / delta0;
     const fr = dowellFr(delta, layers);
-    const acSq = Math.max(0, w.rms * w.rms - w.average * w.average);
-    const copperLoss = rdc * (w.average * w.average + fr * acSq);
+    const copperLoss = windingCopperLoss(rdc, fr, w.lossRms ?? w.rms, w.lossAverage ?? w.average);
     return {
       name: w.name, turns: w.designTurns < 0 ? -turns : turns, awg: wire.awg, strands: wire.strands,
       bareDiameter: bare, insulatedDiameter: ins, insulation: triple ? 'triple-insulated' : 'single-coat enamel',
@@ -253,7 +276,7 @@ function tryCore(dem: MagneticDemand, core: CoreShape, mat: CoreMaterial, o: typ
   });
   const fill = copperArea / core.aw;
   const s = mat.steinmetz;
-  const coreLoss = steinmetzLoss(mat, dem.fsw, fluxSwing / 2) * core.ve;
+  const coreLoss = coreLossAt({ core, material: mat }, dem.fsw, fluxSwing);
   const copperLoss = windings.reduce((a, w) => a + w.copperLoss, 0);
   const rise = temperatureRise(coreLoss + copperLoss, core.surface);
   // [McLyman] Ap ≥ L·Ipk·ΣIrms'/(Bmax·J·Ku), the secondaries' RMS referred to the primary by turns.

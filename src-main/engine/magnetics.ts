@@ -5,7 +5,7 @@
  * and working voltage of the barrier the windings cross (from the domain), with cautions.
  */
 import type { BuckDesign } from './stages/buck/index.ts';
-import { coupledPoint, windingCurrents, type CoupledBuckDesign } from './stages/cwbuck/index.ts';
+import { coupledMagneticDemand, magneticTolerance, windingCurrents, withMagneticCorner, type CoupledBuckDesign } from './stages/cwbuck/index.ts';
 import { designMagneticCore, type CoreDesign, type MagneticDesignOptions } from './core-design.ts';
 import { buckPoint } from './stages/buck/index.ts';
 import { awgDiameterMm, copperOhmsPerMetre, wireFor } from './awg.ts';
@@ -36,8 +36,11 @@ export interface MagneticSpec {
   /** Saturation current: the worst peak × (1 + margin). */
   saturationCurrent: number;
   saturationMargin: number;
-  /** Largest leakage inductance each secondary may see (H), and the equivalent coupling. */
-  leakageTargets: { nodeId: string; maxLeakage: number; minCoupling: number }[];
+  /**
+   * Leakage each secondary may have (H), from minLeakage to maxLeakage (the design value), and
+   * the equivalent coupling range at nominal Lp; the windows sweep the same range.
+   */
+  leakageTargets: { nodeId: string; maxLeakage: number; minCoupling: number; minLeakage: number; maxCoupling: number }[];
   windings: WindingSpec[];
   /** Largest voltage across each winding (V), for the insulation of the wire. */
   windingVoltages: number[];
@@ -100,26 +103,18 @@ export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentD
     cautions.push(`The windings cross a ${d.isolation.class} barrier rated for ${d.isolation.workingVoltage} V working voltage: insulation system, creepage and clearance per the applicable safety standard.`);
     cautions.push(...ISOLATION_CAUTIONS);
   }
-  // Flux: the peak magnetizing current and its ripple at Vin max with every output at full
-  // load (the largest ripple); the winding currents are the worst of the points above.
-  const worst = coupledPoint(d, d.vinMax, full);
-  const ipkFlux = Math.max(peak[0]!, worst.impk);
-  const swing = d.vinMax - vpri;
-  const core = opts.withCore === false ? null : designMagneticCore({
-    inductance: d.inductance, peakCurrent: ipkFlux, rippleCurrent: worst.dim, fsw: d.fsw,
-    isolation: d.isolation?.class ?? 'none',
-    windings: [
-      { name: 'P', designTurns: d.primaryTurns, rms: rms[0]!, average: full[0]!, peak: peak[0]!, voltage: Math.max(swing, vpri), crossesBarrier: false },
-      ...d.secondaries.map((w, i) => ({
-        name: `S${i + 1}`, designTurns: w.turns, rms: rms[i + 1]!, average: full[i + 1]!, peak: peak[i + 1]!,
-        voltage: (Math.abs(w.turns) / d.primaryTurns) * Math.max(swing, vpri),
-        crossesBarrier: !!d.isolation && d.isolation.class !== 'none',
-      })),
-    ],
-  }, { currentDensity: density, ...opts.core });
-  const leakageTargets = d.secondaries.map((w) => {
+  // The core: the one the stage design was made with (its losses are those the evaluation
+  // uses), unless other core-design options are asked for here.
+  const own = d.magneticCore && !opts.core && opts.currentDensity === undefined;
+  const core = opts.withCore === false ? null
+    : own ? structuredClone(d.magneticCore!)
+    : designMagneticCore(coupledMagneticDemand(d), { currentDensity: density, ...opts.core });
+  const tol = magneticTolerance(d);
+  const tight = withMagneticCorner(d, 1, tol.leakageLow);
+  const leakageTargets = d.secondaries.map((w, i) => {
     const n = Math.abs(w.turns) / d.primaryTurns;
-    return { nodeId: w.nodeId, maxLeakage: (n * n * d.inductance * (1 - w.coupling ** 2)) / w.coupling ** 2, minCoupling: w.coupling };
+    const maxLeakage = (n * n * d.inductance * (1 - w.coupling ** 2)) / w.coupling ** 2;
+    return { nodeId: w.nodeId, maxLeakage, minCoupling: w.coupling, minLeakage: maxLeakage * tol.leakageLow, maxCoupling: tight.secondaries[i]!.coupling };
   });
   // The construction's estimated leakage, referred to each secondary (× n²), must not exceed
   // what the stage design assumed, or the secondaries sag below the computed windows.
@@ -136,7 +131,7 @@ export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentD
   return {
     kind: 'coupled',
     core,
-    inductance: d.inductance, inductanceTolerance: 0.2, switchingFrequency: d.fsw,
+    inductance: d.inductance, inductanceTolerance: tol.inductance, switchingFrequency: d.fsw,
     saturationCurrent: d.isat, saturationMargin: d.isat / peak[0]! - 1,
     leakageTargets,
     windings,

@@ -100,7 +100,7 @@ describe('stage design with the part library', () => {
       expect(reg[0]!.thetaSource).toBe('library');
       // One package: controller + high-side + low-side losses on one θJA (JEDEC JESD51-2 θJA, Tj = Ta + P·θJA).
       const lb = ev.lossBreakdown;
-      const p = lb['hs-conduction']! + lb['hs-switching']! + lb['ls-conduction']! + lb['dead-time']! + lb['output-capacitance']! + lb['gate-drive']! + lb.quiescent!;
+      const p = lb['hs-conduction']! + lb['hs-switching']! + lb['reverse-recovery']! + lb['ls-conduction']! + lb['dead-time']! + lb['output-capacitance']! + lb['gate-drive']! + lb.quiescent!;
       expect(reg[0]!.power).toBeCloseTo(p, 12);
       expect(reg[0]!.tj).toBeCloseTo(50 + p * d.thetaJA.controller, 9);
     }

@@ -21,14 +21,35 @@ export interface CapacitorChoice {
   effective: number;
   /** Working voltage / rated voltage. */
   stress: number;
+  /** Capacitance the bank must keep at its working voltage (F), when the designer said. */
+  needEffective?: number;
   /** Largest RMS ripple current the bank carries (A), when the designer computed it. */
   rmsCurrent?: number;
+  /**
+   * Ripple-current rating of one part (A) when known: the library row's, or for a ceramic row
+   * without one the generic rating of its case size (part-choice.ts).
+   */
+  rippleRating?: number;
   /** Kind of part the bank is made of (absent: ceramic). */
   partKind?: 'ceramic' | 'polymer' | 'aluminium';
 }
 
-export function ceramicRetained(working: number, rated: number): number {
-  return Math.max(0.2, 1 - GENERIC_DEFAULTS.ceramicBiasLoss * (working / rated));
+/**
+ * Capacitance a class-II ceramic keeps at its working DC voltage (share of nominal). Without a
+ * case size: the generic 1 − 0.6·V/Vrated. With one (a library row's package), a generic
+ * curve by case and rated voltage, from memory: the share kept at the rated voltage is about
+ * 0402 0.2, 0603 0.25, 0805 0.35, 1206 0.45, 1210 0.55, 1812 0.6 (small cases have the
+ * thinnest layers for a given value and lose most), and the loss rises fast at first,
+ * 1 − (1 − r₁)·(V/Vrated)^0.7. Class-I dielectrics (C0G/NP0) keep their capacitance.
+ */
+export const CERAMIC_KEPT_AT_RATED: Record<string, number> = { '0402': 0.2, '0603': 0.25, '0805': 0.35, '1206': 0.45, '1210': 0.55, '1812': 0.6 };
+
+export function ceramicRetained(working: number, rated: number, kase?: string, dielectric?: string): number {
+  if (dielectric && /^(C0G|NP0|COG)$/i.test(dielectric)) return 1;
+  const r1 = kase ? CERAMIC_KEPT_AT_RATED[kase] : undefined;
+  if (r1 === undefined) return Math.max(0.2, 1 - GENERIC_DEFAULTS.ceramicBiasLoss * (working / rated));
+  const x = Math.min(1, Math.max(0, Math.abs(working) / rated));
+  return Math.max(0.15, 1 - (1 - r1) * x ** 0.7);
 }
 
 /**
@@ -52,7 +73,7 @@ export function chooseCeramic(role: string, needEffective: number, working: numb
     count = Math.ceil(needNominal / value - 1e-9);
   }
   return {
-    role, value, count, ratedVoltage: rated, workingVoltage: w, dielectric: 'ceramic',
+    role, value, count, ratedVoltage: rated, workingVoltage: w, dielectric: 'ceramic', needEffective,
     esr: GENERIC_DEFAULTS.ceramicEsr / count,
     effective: value * count * keep,
     stress: w / rated,
@@ -81,6 +102,22 @@ export function thermalFlags(parts: DissipatingPart[], tjMax: number): StageFlag
 
 /** Deterministic PRNG for the seeded Monte Carlo (the project's one generator). */
 export { seededRandom as mulberry32 } from '../random.ts';
+
+/**
+ * Warn for every capacitor bank whose RMS ripple current at this point passes its parts'
+ * rating × count (banks without a known rating are not checked).
+ */
+export function bankRippleFlags(banks: { bank: CapacitorChoice; rms: number }[]): StageFlag[] {
+  const out: StageFlag[] = [];
+  for (const { bank, rms } of banks) {
+    const r = bank.rippleRating;
+    if (!(r !== undefined && r > 0) || !(rms > r * bank.count * (1 + 1e-9))) continue;
+    out.push(flag('capacitor-ripple-over-rating', 'warning',
+      `${bank.role} capacitor bank carries ${r3(rms)} A rms, above its rating ${bank.count} × ${r3(r)} A = ${r3(r * bank.count)} A`,
+      { role: bank.role, rms: r3(rms), rating: r3(r), count: bank.count }));
+  }
+  return out;
+}
 
 /** Warn for every output whose ripple passes its limit. */
 export function rippleFlags(outputs: { nodeId: string; ripplePP: number }[], specs: { rippleLimit: number }[]): StageFlag[] {

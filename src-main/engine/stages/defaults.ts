@@ -16,6 +16,8 @@ export interface SwitchParams {
   /** Voltage rise and fall times of the switch node. */
   tr: number;
   tf: number;
+  /** Body-diode reverse-recovery charge (C); absent: GENERIC_DEFAULTS.qrrPerAmp × the current. */
+  qrr?: number;
 }
 
 /** A diode as Shockley's equation with series resistance: Vf = n·Vt·ln(1 + I/Is) + Rs·I. */
@@ -64,6 +66,12 @@ export const GENERIC_DEFAULTS = {
   rdsHotFactor: 1.4,
   highSide: { rdsOn: 0.06, qg: 4e-9, coss: 120e-12, tr: 8e-9, tf: 8e-9 } satisfies SwitchParams,
   lowSide: { rdsOn: 0.035, qg: 6e-9, coss: 150e-12, tr: 8e-9, tf: 8e-9 } satisfies SwitchParams,
+  /**
+   * Body-diode stored charge per ampere it carries when the high side turns on, for the
+   * reverse-recovery loss Qrr·Vin·fsw (from memory: small trench switches store a few nC per
+   * ampere at the usual 20–50 ns dead times; 4 nC/A gives the ≈ 20 nC of a 5 A part).
+   */
+  qrrPerAmp: 4e-9,
   /** A silicon body diode (≈ 0.8 V at 1 A). */
   bodyDiode: { is: 5e-14, n: 1.0, rs: 0.02, vfSpread: 0.1 } satisfies DiodeModel,
   /** A small Schottky rectifier (≈ 0.4 V at 1 A). */
@@ -90,6 +98,14 @@ export const GENERIC_DEFAULTS = {
   rippleTarget: 0.35,
   /** Coupling factor of a small multi-winding magnetic with interleaved windings. */
   coupling: 0.99,
+  /**
+   * Tolerances of a custom magnetic that the windows sweep and its specification sheet states
+   * (one number each): Lp ±20 % (from memory: a gapped ferrite is usually held to ±10–20 %),
+   * and each secondary's leakage between leakageLow × and 1 × the design's value, i.e. the
+   * coupling between the design's k and the k that halves the leakage (from memory: leakage
+   * varies by up to a factor of two between builds of the same winding instructions).
+   */
+  magneticTolerance: { inductance: 0.2, leakageLow: 0.5 },
   /** Saturation-current margin over the peak current. */
   saturationMargin: 0.3,
   /** Ceramic capacitor ESR per part. */
@@ -118,6 +134,15 @@ export const GENERIC_DEFAULTS = {
     accuracy: 0.015,
     /** Ripple rejection at a few hundred kHz (dB), and the headroom below which it fades. */
     psrrDb: 40,
+    /**
+     * Two-region PSRR against frequency and load (from memory, a generic LDO): the stated
+     * psrrDb holds up to psrrCornerHz, above it the loop's gain runs out and the rejection
+     * falls 20 dB per decade to a floor of psrrFloorDb (the output capacitor against the pass
+     * device's capacitance); at the rated current it is psrrLoadDb lower (linear in the load).
+     */
+    psrrCornerHz: 100e3,
+    psrrFloorDb: 20,
+    psrrLoadDb: 6,
     psrrKnee: 0.5,
     /** Headroom margin kept above dropout (V). */
     headroomMargin: 0.1,

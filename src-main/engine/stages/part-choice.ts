@@ -130,12 +130,13 @@ function controllerFrom(r: LibraryRow, generic: string[]): { params: ControllerP
 }
 
 function switchFrom(r: LibraryRow, fallback: SwitchParams, generic: string[]): SwitchParams {
-  const pick = (key: keyof SwitchParams): number => {
+  const pick = (key: 'qg' | 'coss' | 'tr' | 'tf'): number => {
     if (has(r, key)) return num(r, key);
     generic.push(key);
     return fallback[key];
   };
-  return { rdsOn: num(r, 'rdsOn'), qg: pick('qg'), coss: pick('coss'), tr: pick('tr'), tf: pick('tf') };
+  // A row may state its body diode's recovery charge; without it the per-ampere generic applies.
+  return { rdsOn: num(r, 'rdsOn'), qg: pick('qg'), coss: pick('coss'), tr: pick('tr'), tf: pick('tf'), ...(has(r, 'qrr') ? { qrr: num(r, 'qrr') } : {}) };
 }
 
 /**
@@ -230,10 +231,35 @@ export function chooseLibraryInductance(lib: readonly LibraryRow[], target: numb
   return { inductance: target, pick: miss! };
 }
 
+/**
+ * Generic RMS ripple rating of one class-II ceramic by case size, where the row states none:
+ * the current that warms a part by about 10–20 K at a few hundred kHz [from memory; common
+ * practice puts small MLCCs at 1–4 A]. Unknown case: no rating (not checked).
+ */
+const CERAMIC_CASE_RIPPLE: Record<string, number> = { '0402': 1, '0603': 1.5, '0805': 2, '1206': 3, '1210': 4, '1812': 5 };
+
+function rowPackage(r: LibraryRow): string | undefined {
+  const v = (r.params as Record<string, unknown>).package;
+  return typeof v === 'string' ? v : undefined;
+}
+function rowDielectric(r: LibraryRow): string | undefined {
+  const v = (r.params as Record<string, unknown>).dielectric;
+  return typeof v === 'string' ? v : undefined;
+}
+
+/** A row's ripple rating per part and whether it came from the generic case-size table. */
+function rippleRatingOf(row: LibraryRow): { rating: number; generic: boolean } | null {
+  if (has(row, 'iRipple') && num(row, 'iRipple') > 0) return { rating: num(row, 'iRipple'), generic: false };
+  if (row.partClass !== 'cap-ceramic') return null;
+  const caseRating = CERAMIC_CASE_RIPPLE[rowPackage(row) ?? ''];
+  return caseRating ? { rating: caseRating, generic: true } : null;
+}
+
 /** Parts needed so the bank's ripple rating covers its RMS current (1 when either is unknown). */
 function rippleCount(row: LibraryRow, rms: number | undefined): number {
-  if (!(rms !== undefined && rms > 0) || !has(row, 'iRipple') || !(num(row, 'iRipple') > 0)) return 1;
-  return Math.ceil(rms / num(row, 'iRipple') - 1e-9);
+  const r = rippleRatingOf(row);
+  if (!(rms !== undefined && rms > 0) || !r) return 1;
+  return Math.ceil(rms / r.rating - 1e-9);
 }
 
 /**
@@ -244,8 +270,21 @@ function rippleCount(row: LibraryRow, rms: number | undefined): number {
  * becomes the row's ESR over the count (when the row states one).
  */
 export function chooseCeramicRow(lib: readonly LibraryRow[], c: CapacitorChoice, electrolyticDerating = 0.8): { ref: StagePartRef; bank: CapacitorChoice; cost: number } | null {
-  const row = cheapestOf(lib, 'cap-ceramic', (r) => num(r, 'vRated') >= c.ratedVoltage - 1e-9 && num(r, 'cMin') <= c.value * (1 + 1e-9) && num(r, 'cMax') >= c.value * (1 - 1e-9)
-    && (!has(r, 'iRipple') || rippleCount(r, c.rmsCurrent) <= c.count));
+  // Ceramic rows offering the part value at the rating: the bank grows to as many parts as its
+  // ripple current needs (rating per part × count ≥ RMS current), the cheapest bank wins.
+  let row: LibraryRow | null = null;
+  let rowCount = c.count;
+  for (const r of lib) {
+    if (r.partClass !== 'cap-ceramic' || !(num(r, 'vRated') >= c.ratedVoltage - 1e-9 && num(r, 'cMin') <= c.value * (1 + 1e-9) && num(r, 'cMax') >= c.value * (1 - 1e-9))) continue;
+    // The row's own DC-bias curve (case size, dielectric) may keep less than the generic one:
+    // then more parts, so the bank still holds what the designer needed.
+    const keep = ceramicRetained(c.workingVoltage, num(r, 'vRated'), rowPackage(r), rowDielectric(r));
+    const forC = c.needEffective !== undefined ? Math.ceil(c.needEffective / (c.value * keep) - 1e-9) : c.count;
+    const count = Math.max(c.count, forC, rippleCount(r, c.rmsCurrent));
+    const cost = r.cost * count;
+    const bestCost = row ? row.cost * rowCount : Infinity;
+    if (cost < bestCost || (cost === bestCost && row && r.id < row.id)) { row = r; rowCount = count; }
+  }
   if (!row) {
     // Electrolytic banks: value per part within the row's range, count from capacitance and ripple.
     let best: { row: LibraryRow; count: number; value: number; cost: number } | null = null;
@@ -265,21 +304,24 @@ export function chooseCeramicRow(lib: readonly LibraryRow[], c: CapacitorChoice,
     const kind = r.partClass === 'cap-polymer' ? 'polymer' : 'aluminium';
     return {
       ref: { role: c.role, libraryId: r.id, used: { value: best.value, count: best.count, vRated: num(r, 'vRated'), esr: num(r, 'esr'), iRipple: has(r, 'iRipple') ? num(r, 'iRipple') : NaN }, generic: has(r, 'iRipple') ? [] : ['iRipple'] },
-      bank: { ...c, value: best.value, count: best.count, ratedVoltage: num(r, 'vRated'), esr, effective: best.value * best.count, stress: c.workingVoltage / num(r, 'vRated'), partKind: kind },
+      bank: { ...c, value: best.value, count: best.count, ratedVoltage: num(r, 'vRated'), esr, effective: best.value * best.count, stress: c.workingVoltage / num(r, 'vRated'), partKind: kind, ...(has(r, 'iRipple') ? { rippleRating: num(r, 'iRipple') } : {}) },
       cost: best.cost,
     };
   }
   const generic: string[] = [];
-  let esr = c.esr;
-  if (has(row, 'esr')) esr = num(row, 'esr') / c.count;
+  const count = rowCount;
+  let esr = c.esr * c.count / count;
+  if (has(row, 'esr')) esr = num(row, 'esr') / count;
   else generic.push('esr');
   // The part's own rating sets its DC-bias loss and stress.
   const rated = num(row, 'vRated');
-  const effective = c.value * c.count * ceramicRetained(c.workingVoltage, rated);
+  const effective = c.value * count * ceramicRetained(c.workingVoltage, rated, rowPackage(row), rowDielectric(row));
+  const rr = rippleRatingOf(row);
+  if (rr?.generic) generic.push('iRipple');
   return {
-    ref: { role: c.role, libraryId: row.id, used: { value: c.value, vRated: rated, esr: esr * c.count }, generic },
-    bank: { ...c, esr, ratedVoltage: rated, effective, stress: c.workingVoltage / rated },
-    cost: row.cost * c.count,
+    ref: { role: c.role, libraryId: row.id, used: { value: c.value, vRated: rated, esr: esr * count, ...(count !== c.count ? { count } : {}), ...(rr ? { iRipple: rr.rating } : {}) }, generic },
+    bank: { ...c, count, esr, ratedVoltage: rated, effective, stress: c.workingVoltage / rated, ...(rr ? { rippleRating: rr.rating } : {}) },
+    cost: row.cost * count,
   };
 }
 

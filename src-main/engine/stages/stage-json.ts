@@ -116,6 +116,16 @@ export function parseSpec(v: unknown, path = 'spec'): StageSpec {
     return x as number[][];
   }, path);
   if (kss !== undefined) spec.secondaryCoupling = kss;
+  const mt = optional(o, 'magneticTolerance', (x, p) => {
+    const r = obj(x, p);
+    for (const key of Object.keys(r)) if (key !== 'inductance' && key !== 'leakageLow') fail(`${p}.${key}`, 'not a tolerance field (inductance, leakageLow)');
+    const ind = r.inductance ?? 0.2;
+    const low = r.leakageLow ?? 0.5;
+    if (typeof ind !== 'number' || !(ind >= 0 && ind < 0.5)) fail(`${p}.inductance`, 'a share of Lp from 0 to below 0.5');
+    if (typeof low !== 'number' || !(low > 0 && low <= 1)) fail(`${p}.leakageLow`, 'a share of the leakage above 0, at most 1');
+    return { inductance: ind as number, leakageLow: low as number };
+  }, path);
+  if (mt !== undefined) spec.magneticTolerance = mt;
   if (o.loadSwitch !== undefined) {
     const ls = obj(o.loadSwitch, `${path}.loadSwitch`);
     const out: NonNullable<StageSpec['loadSwitch']> = {};

@@ -52,6 +52,11 @@ export interface StageSpec {
   rectifier?: DiodeModel;
   /** Coupled-winding stages: coupling between secondaries [i][j] (absent: k·k, no shared leakage). */
   secondaryCoupling?: number[][];
+  /**
+   * Coupled-winding stages: the magnetic's tolerances the windows sweep and its specification
+   * sheet states: Lp ± inductance, leakage between leakageLow × and 1 × the design value.
+   */
+  magneticTolerance?: { inductance: number; leakageLow: number };
   /** Coupled-winding stages: the barrier the windings cross, carried onto the magnetic's spec. */
   isolation?: { class: IsolationClass; workingVoltage: Volts } | null;
   /**

@@ -7,14 +7,18 @@
  *   rectifier drop (1 ∓ spread) for coupled windings, LDO accuracy ± (outputs rise with the
  *   setpoint and fall with the drop, so "setpoint low, drop high" and "setpoint high, drop
  *   low" bound every output);
+ * × for a coupled-winding stage, the magnetic's own tolerances as its specification sheet
+ *   states them: Lp at 1 ∓ its tolerance, each with the leakage at both ends of its range,
+ *   and the nominal magnetic (cwbuck/index.ts coupledMagneticCorners);
  * and each output's value at a corner is its DC voltage ∓ half its peak-to-peak ripple.
- * An optional seeded Monte Carlo draws every quantity uniformly inside its range.
+ * An optional seeded Monte Carlo draws every quantity uniformly inside its range (the
+ * magnetic's Lp and leakage too).
  */
 import type { Amps, Celsius, Volts } from '../units.ts';
 import type { OutputSpec, OutputWindow } from './types.ts';
 import type { DividerChoice } from '../eseries.ts';
 import { buckAtDuty, buckPoint, evaluateBuck, type BuckDesign } from './buck/index.ts';
-import { coupledOutputs, type CoupledBuckDesign } from './cwbuck/index.ts';
+import { coupledMagneticCorners, coupledOutputs, magneticTolerance, withMagneticCorner, type CoupledBuckDesign } from './cwbuck/index.ts';
 import { ldoPoint, type LdoDesign } from './ldo/index.ts';
 import { boostWindowAt, type BoostDesign } from './boost/index.ts';
 import { invertingWindowAt, type InvertingDesign } from './inverting/index.ts';
@@ -31,6 +35,11 @@ export interface WindowCorners {
 }
 
 export interface WindowOptions {
+  /**
+   * Coupled-winding stages: 'extremes' (default) evaluates the magnetic's tolerance corners
+   * at the operating corners of each output's nominal extremes; 'full' at every corner.
+   */
+  magneticSweep?: 'extremes' | 'full';
   monteCarlo?: { runs: number; seed: number };
   /** Ambient for the evaluations (does not move the voltages; default 25 °C). */
   ambient?: Celsius;
@@ -131,8 +140,14 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
   const hi = new Array<number>(n).fill(-Infinity);
   const loAt = new Array<string>(n).fill('');
   const hiAt = new Array<string>(n).fill('');
-  const tolCases: { x: Draw; label: string }[] = [];
+  // The operating corner (input, loads, tolerance case) of each output's extreme, for the
+  // magnetic's corners below.
+  type At = { vin: number; mask: number; iout: number[]; tc: { x: Draw; label: string; design: WindowDesign } };
+  const loPt = new Array<At | null>(n).fill(null);
+  const hiPt = new Array<At | null>(n).fill(null);
+  const tolCases: { x: Draw; label: string; design: WindowDesign }[] = [];
   const hasVf = d.kind === 'cwbuck';
+  const magnetic = d.kind === 'cwbuck' ? coupledMagneticCorners(d) : null;
   // Every output rises with the setpoint and falls with the rectifier drop, so two cases
   // bound them all: setpoint low with the drop high, and setpoint high with the drop low.
   for (const s of [-1, 1]) {
@@ -141,10 +156,14 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
     const label = `${d.kind === 'ldo' ? 'accuracy' : 'reference and divider'} ${s < 0 ? 'low' : 'high'}${hasVf ? `, rectifier drop ${f < 0 ? 'low' : 'high'}` : ''}`;
     // A load switch has no setpoint: its output is the input less the drop, one case.
     if (d.kind === 'load-switch' || d.kind === 'iso-module') {
-      if (s > 0) tolCases.push({ x, label: d.kind === 'load-switch' ? 'input less the hot switch drop' : 'ratio and load-regulation line' });
+      if (s > 0) tolCases.push({ x, design: d, label: d.kind === 'load-switch' ? 'input less the hot switch drop' : 'ratio and load-regulation line' });
       continue;
     }
-    tolCases.push({ x, label });
+    if (d.kind === 'cwbuck' && opts.magneticSweep === 'full') {
+      for (const m of magnetic!) tolCases.push({ x, design: m.design, label: m.design === d ? label : `${label}, ${m.label}` });
+      continue;
+    }
+    tolCases.push({ x, design: d, label });
   }
   // An output whose smallest and largest currents are equal, or an input voltage given twice,
   // repeats corners already evaluated: they cannot set a new (strict) extreme, so skip them.
@@ -157,7 +176,7 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
       if (mask & fixed) continue;
       const iout = corners.iout.map((c, i) => (mask & (1 << i) ? c.max : c.min) as number);
       for (const tc of tolCases) {
-        const vals = outputsAt(d, vin, iout, tc.x);
+        const vals = outputsAt(tc.design, vin, iout, tc.x);
         // The corner's label is built only when it sets a new extreme.
         let where: string | null = null;
         for (let i = 0; i < vals.length; i++) {
@@ -165,6 +184,30 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
           const low = v.lo < lo[i]!, high = v.hi > hi[i]!;
           if (!low && !high) continue;
           where ??= `Vin ${r3(vin)} V, loads ${cornerLoads(iout.length, mask)}, ${tc.label}`;
+          if (low) { lo[i] = v.lo; loAt[i] = where; loPt[i] = { vin, mask, iout, tc }; }
+          if (high) { hi[i] = v.hi; hiAt[i] = where; hiPt[i] = { vin, mask, iout, tc }; }
+        }
+      }
+    }
+  }
+  if (d.kind === 'cwbuck' && opts.magneticSweep !== 'full' && magnetic!.length > 1) {
+    // The magnetic's corners at the operating corners where each output reached its nominal
+    // extremes (the magnetic moves an output by a small fraction; where it peaks is where
+    // the load, input and setpoint put it). Checked against the full sweep, every magnetic
+    // corner at every operating corner, in test/engine/stages/cwbuck-magnetic-tolerance.test.ts.
+    const seen = new Set<At>();
+    for (const pt of [...loPt, ...hiPt]) {
+      if (!pt || seen.has(pt)) continue;
+      seen.add(pt);
+      for (const m of magnetic!) {
+        if (m.design === d) continue;
+        const vals = outputsAt(m.design, pt.vin, pt.iout, pt.tc.x);
+        let where: string | null = null;
+        for (let i = 0; i < vals.length; i++) {
+          const v = vals[i]!;
+          const low = v.lo < lo[i]!, high = v.hi > hi[i]!;
+          if (!low && !high) continue;
+          where ??= `Vin ${r3(pt.vin)} V, loads ${cornerLoads(pt.iout.length, pt.mask)}, ${pt.tc.label}, ${m.label}`;
           if (low) { lo[i] = v.lo; loAt[i] = where; }
           if (high) { hi[i] = v.hi; hiAt[i] = where; }
         }
@@ -182,7 +225,13 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
       const vin = vmin + (vmax - vmin) * rnd();
       const iout = corners.iout.map((c) => c.min + (c.max - c.min) * rnd());
       const x: Draw = { vref: u(), rTop: u(), rBottom: u(), vf: hasVf ? u() : 0, accuracy: u() };
-      outputsAt(d, vin, iout, x).forEach((v, i) => {
+      // A coupled-winding stage also draws its magnetic inside the tolerances its sheet states.
+      let dd: WindowDesign = d;
+      if (d.kind === 'cwbuck') {
+        const t = magneticTolerance(d);
+        dd = withMagneticCorner(d, 1 + t.inductance * u(), t.leakageLow + (1 - t.leakageLow) * rnd());
+      }
+      outputsAt(dd, vin, iout, x).forEach((v, i) => {
         mc!.min[i] = Math.min(mc!.min[i]!, v.lo);
         mc!.max[i] = Math.max(mc!.max[i]!, v.hi);
       });

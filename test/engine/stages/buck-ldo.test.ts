@@ -22,13 +22,26 @@ function buck(): BuckDesign {
 function ideal(d: BuckDesign): BuckDesign {
   return {
     ...d, dcr: 0 as BuckDesign['dcr'], coreLossFraction: 0,
-    highSide: { rdsOn: 0, qg: 0, coss: 0, tr: 0, tf: 0 }, lowSide: { rdsOn: 0, qg: 0, coss: 0, tr: 0, tf: 0 },
+    highSide: { rdsOn: 0, qg: 0, coss: 0, tr: 0, tf: 0 }, lowSide: { rdsOn: 0, qg: 0, coss: 0, tr: 0, tf: 0, qrr: 0 },
     controller: { ...d.controller, iq: 0, deadTime: 0 },
     cout: { ...d.cout, esr: 0 }, cin: { ...d.cin, esr: 0 },
   };
 }
 
 describe('synchronous buck: textbook closed forms (Erickson & Maksimović, Fundamentals of Power Electronics)', () => {
+  it('body-diode reverse recovery: Qrr·Vin·fsw while the valley current is positive, none when it is negative', () => {
+    const d = buck();
+    // 20 nC at 48 V and 300 kHz ≈ 0.29 W (issue 13's figure, from memory; Qrr·Vin·fsw, common practice)
+    const d48 = { ...d, fsw: 300e3 as BuckDesign['fsw'], lowSide: { ...d.lowSide, qrr: 20e-9 } };
+    expect(evaluateStage(d48, op(48, [2])).lossBreakdown['reverse-recovery']).toBeCloseTo(20e-9 * 48 * 300e3, 12);
+    // generic: 4 nC per ampere of valley current (from memory)
+    const p = buckPoint(d, 12, 2);
+    expect(p.ivalley).toBeGreaterThan(0);
+    expect(evaluateStage(d, op(12, [2])).lossBreakdown['reverse-recovery']).toBeCloseTo(4e-9 * p.ivalley * 12 * d.fsw, 12);
+    // at no load the valley is negative (forced PWM): the diode is off at that edge
+    expect(buckPoint(d, 12, 0).ivalley).toBeLessThan(0);
+    expect(evaluateStage(d, op(12, [0])).lossBreakdown['reverse-recovery']).toBe(0);
+  });
   it('ideal converter: D = Vout/Vin, ΔIL = (Vin − Vout)·D/(L·fsw), ΔV = ΔIL/(8·fsw·C), η = 1', () => {
     const d = ideal(buck());
     const vout = d.divider.vout;
@@ -172,9 +185,28 @@ describe('LDO (common practice; Tj per JEDEC JESD51-2 θJA)', () => {
     expect(d.package.thetaJA).toBe(90);
     expect(ev.parts[0]!.tj).toBeCloseTo(40 + (1.7 * 0.3 + 5 * 50e-6) * 90, 9);
   });
+  it('PSRR falls with frequency and load; a post-regulated ripple above the rail\'s limit is flagged with numbers', () => {
+    const d = ldo();
+    // lower rejection at higher ripple frequency and at higher load (two-region model, from memory)
+    const at = (f: number, i: number) => evaluateStage({ ...d, rippleFrequency: f }, op(5.3, [i])).outputs[0]!.ripplePP;
+    expect(at(1e6, 0.1)).toBeGreaterThan(at(400e3, 0.1));
+    expect(at(400e3, 0.1)).toBeGreaterThan(at(50e3, 0.1));
+    expect(at(50e3, 0.1)).toBeCloseTo(at(100e3, 0.1), 15); // flat below the corner
+    expect(at(400e3, 0.3)).toBeGreaterThan(at(400e3, 0.1));
+    // 2 MHz: 40 − 26 = 14 dB → the 20 dB floor, less the load term
+    expect(at(2e6, 0.001)).toBeCloseTo(0.05 * 10 ** (-(20 - 6 * 0.001 / (d.ratedCurrent as number)) / 20), 12);
+    // 0.05 V in at the floor is ≈ 5 mV out; a 2 mV rail limit is flagged with both numbers
+    const tight = { ...d, rippleFrequency: 2e6, outputs: [{ ...d.outputs[0]!, rippleLimit: 0.002 as Volts }] };
+    const f = evaluateStage(tight, op(5.3, [0.1])).flags.find((x) => x.code === 'ripple-over-limit');
+    expect(f?.data?.limit).toBe(0.002);
+    expect(f?.data?.ripple as number).toBeGreaterThan(0.002);
+  });
   it('ripple out = ripple in × 10^(−PSRR/20), fading near dropout', () => {
     const d = ldo();
-    expect(evaluateStage(d, op(5.3, [0.3])).outputs[0]!.ripplePP).toBeCloseTo(0.05 * 10 ** (-40 / 20), 12); // common practice
+    // PSRR two-region model (from memory): 40 dB to 100 kHz, −20 dB/decade above (to a 20 dB
+    // floor), 6 dB less at the rated current: at 400 kHz and 0.3 A of the rated current
+    const psrr = Math.max(20, 40 - 20 * Math.log10(400e3 / 100e3)) - 6 * (0.3 / (d.ratedCurrent as number));
+    expect(evaluateStage(d, op(5.3, [0.3])).outputs[0]!.ripplePP).toBeCloseTo(0.05 * 10 ** (-psrr / 20), 12); // ripple out = ripple in × 10^(−PSRR/20), common practice
     // at the low input the headroom is inside the knee, so less rejection
     expect(evaluateStage(d, op(4.0, [0.3])).outputs[0]!.ripplePP).toBeGreaterThan(0.05 / 100);
   });

@@ -156,6 +156,11 @@ export function evaluateBuck(d: BuckDesign, op: OperatingPoint): StageEvaluation
     'hs-switching': 0.5 * vin * io * (d.highSide.tr + d.highSide.tf) * fsw,
     'output-capacitance': 0.5 * (d.highSide.coss + d.lowSide.coss) * vin * vin * fsw,
     'dead-time': vfb * (Math.abs(p.ipk) + Math.abs(p.ivalley)) * td * fsw,
+    // The low side's body diode still conducts the valley current when the high side turns
+    // on; its stored charge is swept out from Vin: Qrr·Vin·fsw [common practice; e.g.
+    // Erickson & Maksimović ch. 4, diode recovery in switching loss]. A negative valley
+    // (forced PWM at light load) leaves the diode off at that edge: no recovery.
+    'reverse-recovery': p.ivalley > 0 ? (d.lowSide.qrr ?? GENERIC_DEFAULTS.qrrPerAmp * p.ivalley) * vin * fsw : 0,
     'gate-drive': (d.highSide.qg + d.lowSide.qg) * d.controller.vDrive * fsw,
     'inductor-copper': irms * irms * d.dcr,
     'inductor-core': d.coreLossFraction * 0.5 * d.inductance * ripple * ripple * fsw,
@@ -171,7 +176,7 @@ export function evaluateBuck(d: BuckDesign, op: OperatingPoint): StageEvaluation
   const ta = op.ambient as number;
   const parts = [
     ...switchingParts(d,
-      loss['hs-conduction']! + loss['hs-switching']! + loss['output-capacitance']! / 2,
+      loss['hs-conduction']! + loss['hs-switching']! + loss['reverse-recovery']! + loss['output-capacitance']! / 2,
       loss['ls-conduction']! + loss['dead-time']! + loss['output-capacitance']! / 2,
       loss['gate-drive']! + loss.quiescent!, ta),
     part('inductor', loss['inductor-copper']! + loss['inductor-core']!, d.thetaJA.inductor, ta),

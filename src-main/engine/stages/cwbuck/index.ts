@@ -25,9 +25,10 @@ import type { IsolationClass } from '../../model.ts';
 import type { LibraryRow } from '../../library.ts';
 import { bestDivider, nearest } from '../../eseries.ts';
 import { GENERIC_DEFAULTS, VT, diodeVf, type ControllerParams, type DiodeModel } from '../defaults.ts';
-import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
+import { bankRippleFlags, chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
 import { feasibility, specErrors, switchingFlags, switchingParts, thetaSourceOf, type SwitchingDesignBase } from '../buck/index.ts';
 import { chooseCeramicRow, chooseRectifier, chooseSwitcher, diodeFromRow, type StagePartRef } from '../part-choice.ts';
+import { coreLossAt, designMagneticCore, temperatureRise, windingCopperLoss, type CoreDesign, type MagneticDemand } from '../../core-design.ts';
 
 // Module-local bindings for the innermost loops (saves a lookup through the module namespace
 // on every call when the sources run through a CommonJS transform).
@@ -72,6 +73,63 @@ export interface CoupledBuckDesign extends SwitchingDesignBase {
    * Secondaries wound together (bifilar) couple tighter than k_i·k_j and share leakage.
    */
   secondaryCoupling?: number[][];
+  /**
+   * Tolerances of the magnetic the windows sweep and the specification sheet states: Lp ±
+   * inductance, leakage between leakageLow × and 1 × the design value (absent: the generic
+   * defaults, GENERIC_DEFAULTS.magneticTolerance).
+   */
+  magneticTolerance?: { inductance: number; leakageLow: number };
+  /**
+   * The custom magnetic designed on a core of the table (core-design.ts). When present the
+   * evaluation takes its core loss (Steinmetz at the point's flux swing) and its windings'
+   * resistance and Dowell AC factor from it, and the winding resistances above are its DC
+   * resistances; the magnetic specification sheet prints this same design.
+   */
+  magneticCore?: CoreDesign;
+}
+
+/** The magnetic's tolerances (the windows sweep them; the specification sheet states them). */
+export function magneticTolerance(d: CoupledBuckDesign): { inductance: number; leakageLow: number } {
+  return d.magneticTolerance ?? { ...GENERIC_DEFAULTS.magneticTolerance };
+}
+
+/**
+ * The design with its magnetic at one corner of its tolerances: Lp × lpFactor and every
+ * leakage (each secondary's own, Llk = n²·Lp·(1 − k²)/k², and the shared Lm_ij of wound-
+ * together secondaries) × leakFactor. Leakage is set by the winding geometry, not the gap,
+ * so it is held while Lp moves: (1 − k'²)/k'² = leakFactor·(1 − k²)/k² / lpFactor.
+ */
+export function withMagneticCorner(d: CoupledBuckDesign, lpFactor: number, leakFactor: number): CoupledBuckDesign {
+  const kOf = (k: number) => 1 / Math.sqrt(1 + (leakFactor * (1 - k * k)) / (k * k) / lpFactor);
+  const secondaries = d.secondaries.map((w) => ({ ...w, coupling: kOf(w.coupling) }));
+  const out: CoupledBuckDesign = { ...d, inductance: (d.inductance * lpFactor) as Henries, secondaries };
+  const mutual = mutualLeakage(d);
+  if (d.secondaryCoupling && mutual) {
+    const ls = secondaries.map((w) => ((w.turns / d.primaryTurns) ** 2 * out.inductance) / (w.coupling * w.coupling));
+    out.secondaryCoupling = secondaries.map((wi, i) => secondaries.map((wj, j) =>
+      i === j ? 1 : wi.coupling * wj.coupling + (leakFactor * mutual[i]![j]!) / Math.sqrt(ls[i]! * ls[j]!)));
+  }
+  return out;
+}
+
+/**
+ * The magnetic corners the windows add: nominal, and Lp at 1 ∓ its tolerance with the
+ * leakage at each end of its range (the output is not monotonic in the leakage: the drop at
+ * load grows with it, the charge the ring delivers at light load too).
+ */
+export function coupledMagneticCorners(d: CoupledBuckDesign): { design: CoupledBuckDesign; label: string }[] {
+  const t = magneticTolerance(d);
+  const out = [{ design: d, label: 'magnetic nominal' }];
+  if (!(t.inductance > 0) && !(t.leakageLow < 1)) return out;
+  const lps = t.inductance > 0 ? [1 - t.inductance, 1 + t.inductance] : [1];
+  const leaks = t.leakageLow < 1 ? [t.leakageLow, 1] : [1];
+  for (const g of lps) {
+    for (const f of leaks) {
+      if (g === 1 && f === 1) continue;
+      out.push({ design: withMagneticCorner(d, g, f), label: `Lp ${g === 1 ? 'nominal' : `${g < 1 ? '−' : '+'}${r3(Math.abs(g - 1) * 100)} %`}, leakage ${r3(f * 100)} %` });
+    }
+  }
+  return out;
 }
 
 export interface CoupledEvalOptions {
@@ -495,14 +553,95 @@ export function primaryRipple(p: CoupledPoint, ipri: number, cap: CapacitorChoic
 }
 
 /** RMS and peak current of every winding (primary first) at one operating point. */
-export function windingCurrents(d: CoupledBuckDesign, vin: number, iout: number[]): { rms: number; peak: number }[] {
-  const p = coupledPoint(d, vin, iout);
+export function windingCurrents(d: CoupledBuckDesign, vin: number, iout: number[], at?: CoupledPoint): { rms: number; peak: number }[] {
+  const p = at ?? coupledPoint(d, vin, iout);
   const { msOn, msOff } = primaryMeanSquares(p);
   const primaryRms = Math.sqrt(msOn * p.duty + msOff * p.toff * d.fsw);
   return [
     { rms: primaryRms, peak: Math.max(p.impk, Math.abs(p.iend)) },
     ...p.sec.map((s) => ({ rms: s.irms, peak: Math.max(s.ipk, s.i0) })),
   ];
+}
+
+/**
+ * RMS ripple current of each capacitor bank at one point. A capacitor carries what its
+ * source delivers less the DC it passes on, so its RMS is that of the AC part,
+ * √(Irms² − Iavg²) [Erickson & Maksimović, capacitor charge balance; common practice]:
+ * an output bank the rectified winding's pulsed current less the load and preload (the
+ * primary's bank the primary-winding current less the primary load), the input bank the
+ * high-side current less the input's average.
+ */
+export function coupledBankRms(d: CoupledBuckDesign, p: CoupledPoint, ipri: number): { cin: number; cout: number; secondaries: number[] } {
+  const { msOn, msOff } = primaryMeanSquares(p);
+  const hsSq = msOn * p.duty;
+  const priSq = hsSq + msOff * p.toff * d.fsw;
+  return {
+    cin: Math.sqrt(Math.max(0, hsSq - (p.im * p.duty) ** 2)),
+    cout: Math.sqrt(Math.max(0, priSq - ipri * ipri)),
+    secondaries: p.sec.map((s) => Math.sqrt(Math.max(0, s.irms * s.irms - s.isec * s.isec))),
+  };
+}
+
+/** Current density of the custom magnetic's windings [common practice: 4–6 A/mm², natural cooling]. */
+export const WINDING_CURRENT_DENSITY = 5;
+
+/**
+ * What the custom magnetic must carry: Lp, the flux's peak and swing at Vin max with every
+ * output at full load, and per winding the largest RMS and peak over Vin min/max × (all
+ * outputs at full load | primary at its minimum) for the wire; the losses are stated at the
+ * one point Vin max, all outputs at full load (where the flux swing is largest), with that
+ * point's RMS and average currents, so the stage evaluation there reads the same numbers.
+ */
+export function coupledMagneticDemand(d: CoupledBuckDesign): MagneticDemand {
+  const full = d.outputs.map((o) => o.currentMax as number);
+  const lightPri = [d.outputs[0]!.currentMin as number, ...full.slice(1)];
+  const worst = coupledPoint(d, d.vinMax, full);
+  const atWorst = windingCurrents(d, d.vinMax, full, worst);
+  const points = [windingCurrents(d, d.vinMin, full), windingCurrents(d, d.vinMin, lightPri), atWorst, windingCurrents(d, d.vinMax, lightPri)];
+  const rms = points[0]!.map((_, i) => Math.max(...points.map((p) => p[i]!.rms)));
+  const peak = points[0]!.map((_, i) => Math.max(...points.map((p) => p[i]!.peak)));
+  const vpri = d.divider.vout;
+  const swing = Math.max(d.vinMax - vpri, vpri);
+  const crosses = !!d.isolation && d.isolation.class !== 'none';
+  return {
+    inductance: d.inductance, peakCurrent: Math.max(peak[0]!, worst.impk), rippleCurrent: worst.dim, fsw: d.fsw,
+    isolation: d.isolation?.class ?? 'none',
+    windings: [
+      { name: 'P', designTurns: d.primaryTurns, rms: rms[0]!, average: full[0]!, peak: peak[0]!, voltage: swing, crossesBarrier: false,
+        lossRms: atWorst[0]!.rms, lossAverage: full[0]! },
+      ...d.secondaries.map((w, i) => ({
+        name: `S${i + 1}`, designTurns: w.turns, rms: rms[i + 1]!, average: full[i + 1]!, peak: peak[i + 1]!,
+        voltage: (Math.abs(w.turns) / d.primaryTurns) * swing, crossesBarrier: crosses,
+        lossRms: atWorst[i + 1]!.rms, lossAverage: worst.sec[i]!.isec,
+      })),
+    ],
+  };
+}
+
+/**
+ * Magnetic losses at one operating point. With the designed core: Steinmetz core loss at the
+ * point's flux swing ΔB = Lp·ΔIm/(Np·Ae) (core-design.ts coreLossAt, coefficients from the
+ * core table), copper loss per winding Rdc·(Iavg² + F_R·(Irms² − Iavg²)) with the Dowell
+ * factor F_R of the designed winding [Erickson ch. 13]. Without it (a design made before the
+ * core was designed): the labelled κ·½·L·ΔI²·fsw and the plain I²R of the winding resistances.
+ */
+function magneticLosses(d: CoupledBuckDesign, p: CoupledPoint, ipri: number, primaryMs: number): { core: number; primary: number; secondary: number } {
+  const c = d.magneticCore;
+  if (!c) {
+    return {
+      core: d.coreLossFraction * 0.5 * d.inductance * p.dim * p.dim * d.fsw,
+      primary: primaryMs * (d.primaryResistance as number),
+      secondary: p.sec.reduce((a, s, i) => a + s.irms * s.irms * (d.secondaries[i]!.resistance as number), 0),
+    };
+  }
+  const np = d.primaryTurns * c.turnsMultiplier;
+  const swing = (d.inductance * p.dim) / (np * c.core.ae);
+  const w = c.windings;
+  return {
+    core: coreLossAt(c, d.fsw, swing),
+    primary: windingCopperLoss(w[0]!.rdc, w[0]!.fr, Math.sqrt(primaryMs), ipri),
+    secondary: p.sec.reduce((a, s, i) => a + windingCopperLoss(w[i + 1]!.rdc, w[i + 1]!.fr, s.irms, s.isec), 0),
+  };
 }
 
 /**
@@ -554,7 +693,8 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
   const td = d.controller.deadTime;
   const vfb = diodeVf(d.bodyDiode, Math.max(Math.abs(p.impk), Math.abs(p.iend)));
   const hsRmsSq = msOn * p.duty;
-  const icinRms = Math.sqrt(Math.max(0, hsRmsSq - (p.im * p.duty) ** 2));
+  const mag = magneticLosses(d, p, ipri, hsRmsSq + msOff * offShare);
+  const bankRms = coupledBankRms(d, p, ipri);
   const loss: Record<string, number> = {
     'hs-conduction': hsRmsSq * rhs,
     'ls-conduction': msOff * rls * Math.max(0, 1 - p.duty - 2 * td * fsw),
@@ -563,13 +703,14 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
     'output-capacitance': 0.5 * (d.highSide.coss + d.lowSide.coss) * vin * vin * fsw,
     'dead-time': vfb * (Math.abs(p.impk) + Math.abs(p.iend)) * td * fsw,
     'gate-drive': (d.highSide.qg + d.lowSide.qg) * d.controller.vDrive * fsw,
-    'primary-copper': (hsRmsSq + msOff * offShare) * rp,
-    'secondary-copper': p.sec.reduce((a, s, i) => a + s.irms * s.irms * (d.secondaries[i]!.resistance as number), 0),
+    'primary-copper': mag.primary,
+    'secondary-copper': mag.secondary,
     rectifiers: p.sec.reduce((a, s) => a + s.pRect, 0),
-    'magnetic-core': d.coreLossFraction * 0.5 * d.inductance * p.dim * p.dim * fsw,
-    'output-capacitor-esr': (p.dim * p.dim / 12) * d.cout.esr
-      + p.sec.reduce((a, s, i) => a + Math.max(0, s.irms * s.irms - s.isec * s.isec) * d.secondaries[i]!.cout.esr, 0),
-    'input-capacitor-esr': icinRms * icinRms * d.cin.esr,
+    'magnetic-core': mag.core,
+    // Each bank's RMS ripple current (coupledBankRms) through its ESR.
+    'output-capacitor-esr': bankRms.cout ** 2 * d.cout.esr
+      + bankRms.secondaries.reduce((a, x, i) => a + x * x * d.secondaries[i]!.cout.esr, 0),
+    'input-capacitor-esr': bankRms.cin ** 2 * d.cin.esr,
     // An RC snubber across a rectifier charges and discharges its capacitor through its
     // resistor at both edges: Cs·Vr²·fsw with Vr = n·Von + Vsec [common practice].
     snubber: snubberLoss(d, p),
@@ -592,12 +733,16 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
     }),
   ];
   const ta = op.ambient as number;
+  // The designed magnetic's hot spot from McLyman's surface rise at this loss (not linear in
+  // the loss, so expressed as the equivalent K/W at this point); else the generic K/W.
+  const magPower = loss['primary-copper']! + loss['secondary-copper']! + loss['magnetic-core']!;
+  const magTheta = d.magneticCore && magPower > 0 ? temperatureRise(magPower, d.magneticCore.core.surface) / magPower : d.thetaJA.inductor;
   const parts = [
     ...switchingParts(d,
       loss['hs-conduction']! + loss['hs-switching']! + loss['output-capacitance']! / 2,
       loss['ls-conduction']! + loss['dead-time']! + loss['output-capacitance']! / 2,
       loss['gate-drive']! + loss.quiescent!, ta),
-    part('coupled magnetic', loss['primary-copper']! + loss['secondary-copper']! + loss['magnetic-core']!, d.thetaJA.inductor, ta),
+    part('coupled magnetic', magPower, magTheta, ta),
     ...p.sec.map((s, i) => part(`rectifier D${i + 1}`, s.pRect, d.secondaries[i]!.thetaJA, ta, thetaSourceOf(d))),
   ];
   const flags: StageFlag[] = [...switchingFlags(d, vin, required, p.impk, p.iend), ...thermalFlags(parts, d.tjMax), ...rippleFlags(outputs, d.outputs)];
@@ -607,6 +752,10 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
       { duty: r3(p.duty), limit: d.dutyWarn, vin }));
   }
   flags.push(...regionFlags(d, p));
+  flags.push(...bankRippleFlags([
+    { bank: d.cin, rms: bankRms.cin }, { bank: d.cout, rms: bankRms.cout },
+    ...d.secondaries.map((w, i) => ({ bank: w.cout, rms: bankRms.secondaries[i]! })),
+  ]));
   if (pout > d.powerLimit) {
     flags.push(flag('power-above-range', 'warning', `output power ${r3(pout)} W is above the ${d.powerLimit} W a coupled-winding buck suits`, { pout: r3(pout), limit: d.powerLimit }));
   }
@@ -871,6 +1020,10 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
   }
   const rectBad = diodeErrors(rect);
   if (rectBad) return { ok: false, flags: [flag('bad-input', 'error', `rectifier.${rectBad}`, { field: `rectifier.${rectBad.split(':')[0]}` })] };
+  const mt = spec.magneticTolerance;
+  if (mt !== undefined && !(mt && mt.inductance >= 0 && mt.inductance < 0.5 && mt.leakageLow > 0 && mt.leakageLow <= 1)) {
+    return { ok: false, flags: [flag('bad-input', 'error', 'magneticTolerance: inductance must be 0 to below 0.5 and leakageLow above 0, at most 1', { field: 'magneticTolerance' })] };
+  }
   const nSecs = spec.outputs.length - 1;
   const kss = spec.secondaryCoupling;
   if (kss !== undefined) {
@@ -950,6 +1103,7 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     dutyWarn: GENERIC_DEFAULTS.coupledDutyWarn as Ratio,
     isolation: spec.isolation ?? null,
     ...(kss ? { secondaryCoupling: kss.map((row) => [...row]) } : {}),
+    ...(spec.magneticTolerance ? { magneticTolerance: { ...spec.magneticTolerance } } : {}),
   });
   // Turns: the smallest Np (from 3, common practice for a defined leakage and flux) whose
   // integer secondaries keep every secondary's band (secondaries light at Vin max, at full
@@ -1100,6 +1254,22 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     design.isat = Math.max(design.isat as number, Math.max(pk.impk, Math.abs(pk.iend)) * (1 + GENERIC_DEFAULTS.saturationMargin)) as Amps;
   }
 
+  // The custom magnetic on a core of the table: its windings' DC resistance replaces the
+  // generic estimate (the currents move a little with it, so the core is designed again
+  // until the wire, and so the resistance, stays put; twice is usually enough).
+  for (let pass = 0; pass < 3; pass++) {
+    const core = designMagneticCore(coupledMagneticDemand(design), { currentDensity: WINDING_CURRENT_DENSITY });
+    const same = design.magneticCore && core.windings.every((w, i) => w.rdc === design.magneticCore!.windings[i]!.rdc);
+    design.magneticCore = core;
+    design.primaryResistance = core.windings[0]!.rdc as Ohms;
+    design.secondaries.forEach((w, i) => { w.resistance = core.windings[i + 1]!.rdc as Ohms; });
+    if (same) break;
+  }
+  {
+    const c = design.magneticCore!;
+    reasons.push(`magnetic: ${c.core.name}, ${c.material.name}, turns × ${c.turnsMultiplier} = ${c.windings.map((w) => Math.abs(w.turns)).join(':')}, peak flux ${r3(c.peakFlux * 1e3)} mT (limit ${r3(c.fluxLimit * 1e3)} mT); at Vin ${r3(spec.vinMax)} V and full load core loss ${r3(c.coreLoss * 1e3)} mW (Steinmetz, coefficients from memory), copper ${r3(c.copperLoss * 1e3)} mW (DC resistance with the Dowell AC factor); winding resistances are the designed windings'`);
+  }
+
   // Second pass on the output capacitors with the full ripple model: where an output uses
   // more than half its ripple limit at Vin min or max (full load), enlarge its bank.
   const fullLoad = spec.outputs.map((o) => o.currentMax);
@@ -1113,6 +1283,14 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
       if (i === 0) design.cout = grown;
       else design.secondaries[i - 1]!.cout = grown;
     });
+  }
+  // Every bank's RMS ripple current, the largest at Vin min and max with every output at full
+  // load: the library part count below covers it with the parts' ripple rating.
+  {
+    const at = [spec.vinMin, spec.vinMax].map((vin) => coupledBankRms(design, coupledPoint(design, vin, fullLoad as number[]), pri.currentMax as number));
+    design.cin = { ...design.cin, rmsCurrent: Math.max(...at.map((a) => a.cin)) };
+    design.cout = { ...design.cout, rmsCurrent: Math.max(...at.map((a) => a.cout)) };
+    design.secondaries.forEach((w, i) => { w.cout = { ...w.cout, rmsCurrent: Math.max(...at.map((a) => a.secondaries[i]!)) }; });
   }
   if (lib) {
     // Capacitor banks as library rows (ESR, rating and ripple current of the part).
@@ -1129,6 +1307,10 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     }
     design.parts = refs;
   }
+  design.secondaries.forEach((w) => {
+    const c = w.cout;
+    reasons.push(`${w.nodeId}: output capacitor ${c.count} × ${r3(c.value * 1e6)} µF ${c.ratedVoltage} V ${c.partKind ?? 'ceramic'}; RMS ripple current up to ${r3(c.rmsCurrent ?? 0)} A (√(Irect,rms² − Iload²) of the rectified winding's pulses)${c.rippleRating ? ` against ${c.count} × ${r3(c.rippleRating)} A` : ''}`);
+  });
   reasons.push(`turns ${chosen.np}:${chosen.ns.join(':')} (primary:secondaries, sign = winding sense) centre the secondaries' bands (light load at Vin max to full load at Vin min) at ${chosen.err.map((e) => `${r3(e * 100)} %`).join(', ')} of target`);
   reasons.push(`coupling k = ${k} (leakage ${design.secondaries.map((w) => `${r3(((w.turns / chosen!.np) ** 2 * Lp * (1 - k * k)) / (k * k) * 1e9)} nH`).join(', ')} seen from the secondaries)`);
   design.secondaries.forEach((w, i) => {
@@ -1159,5 +1341,10 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     return { ...a, flags: [...a.flags, ...b.flags] };
   });
   if (flags.some((f) => f.severity === 'error')) return { ok: false, flags };
+  const mc = design.magneticCore!;
+  if (!mc.ok) {
+    flags.push(flag('magnetic-core-open', 'warning', `the custom magnetic does not close on any core of the table (best attempt ${mc.core.name}: ${mc.problems.join('; ')}); its losses are those of that attempt`,
+      { core: mc.core.name, problems: mc.problems.length }));
+  }
   return { ok: true, design, reasons, flags };
 }

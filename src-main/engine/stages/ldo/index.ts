@@ -42,6 +42,18 @@ export interface LdoDesign {
   parts?: StagePartRef[];
 }
 
+/**
+ * Ripple rejection (dB) at a ripple frequency f and a load share of the rated current: the
+ * stated figure up to the corner, then −20 dB/decade down to the floor, less the load term
+ * (two-region model from memory, stages/defaults.ts ldo.psrr*). Never above the stated figure.
+ */
+export function ldoPsrrAt(psrrDb: number, f: number, loadShare: number): number {
+  const L = GENERIC_DEFAULTS.ldo;
+  const fall = f > L.psrrCornerHz ? 20 * Math.log10(f / L.psrrCornerHz) : 0;
+  const byFreq = Math.max(Math.min(L.psrrFloorDb, psrrDb), psrrDb - fall);
+  return Math.max(0, byFreq - L.psrrLoadDb * Math.min(1, Math.max(0, loadShare)));
+}
+
 export function ldoDropout(d: LdoDesign, i: number): number {
   return d.dropoutFloor + (d.dropoutAtRated * Math.abs(i)) / d.ratedCurrent;
 }
@@ -53,7 +65,7 @@ export function ldoPoint(d: LdoDesign, vinMag: number, i: number, setpoint = Mat
   const headroom = trough - setpoint - vdo;
   const vout = Math.min(setpoint, trough - vdo);
   const fade = Math.max(0, Math.min(1, headroom / d.psrrKnee));
-  const psrr = d.psrrDb * fade;
+  const psrr = ldoPsrrAt(d.psrrDb, d.rippleFrequency, Math.abs(i) / d.ratedCurrent) * fade;
   const ripple = d.rippleFrequency > 0 ? d.vinRipple * 10 ** (-psrr / 20) : 0;
   return { trough, vdo, headroom, vout: Math.max(0, vout), psrr, ripple };
 }
