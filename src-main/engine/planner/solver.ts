@@ -271,7 +271,10 @@ export class PlanSolver {
     if (sourceOnly.length) {
       const o: SearchOutcome = { best: null, explored: 0, leaves: 0, complete: false, leafFailures: new Map() };
       const it = branchAndBound(f, sourceOnly, scorer, seed, o);
-      for (let k = 0; k < SEED_SEARCH_NODES && !it.next().done; k++) { /* bounded */ }
+      // Bounded in nodes and in time: half of this objective's share, never past the deadline
+      // (with the real engine a node can cost milliseconds).
+      const until = Math.min(this.deadline, this.now() + share / 2);
+      for (let k = 0; k < SEED_SEARCH_NODES && ((k & 7) !== 0 || this.now() < until) && !it.next().done; k++) { /* bounded */ }
       if (o.best && (!seed || o.best.score < seed.score)) {
         seed = { blocks: o.best.blocks, score: o.best.score, sel: o.best.sel };
         this.trace.push(`objective ${obj}: a tree fed only from the sources scores ${o.best.score.toFixed(4)} (${o.explored} nodes); it seeds the search`);
