@@ -12,6 +12,8 @@ import { randomRequirements } from '../../src-main/engine/planner/instances.ts';
 import { MAX_RAILS } from '../../src-main/engine/planner/search.ts';
 import { MAX_PLANNED_RAILS, groupRails } from '../../src-main/engine/rails.ts';
 import { validateRequirements } from '../../src-main/engine/validate.ts';
+import { firstOrderEvaluator } from './helpers/first-order-evaluator.ts';
+import { checkPlan } from './helpers/check-plan.ts';
 
 const BUDGET_MS = 3000;
 /** Fixed slack: plan assembly after the cut and scheduling noise on 2 shared cores (common practice for timing tests). */
@@ -33,6 +35,23 @@ describe('planner at 60 rails with the real engine', () => {
     expect(r.best).toBeNull();
     expect(r.infeasible.some((i) => i.constraint === 'size' && i.text.includes(`${MAX_PLANNED_RAILS} rails`))).toBe(true);
   });
+
+  it('searches rail sets past 32 rails (the second word of the masks): every rail fed once', () => {
+    // Closed-form stages (test helper), so the search itself, not the engine, is exercised.
+    let planned = 0;
+    for (let seed = 1; seed <= 6 && planned < 2; seed++) {
+      const req = randomRequirements({ rails: 48, seed, maxSecondaries: 1 });
+      const r = new PlanSolver(req, { evaluator: firstOrderEvaluator, budgetMs: 4000, singleObjective: true }).solve();
+      expect(r.rails).toHaveLength(48);
+      if (!r.best) continue;
+      planned++;
+      expect(r.stats.explored).toBeGreaterThan(0);
+      const outs = r.best.stages.flatMap((s) => s.outputs.filter((o) => o.nodeId.startsWith('rail:')).map((o) => o.nodeId));
+      for (const rail of r.rails) expect(outs.filter((x) => x === rail.id)).toHaveLength(1);
+      expect(checkPlan(req, r, r.best, firstOrderEvaluator)).toEqual([]);
+    }
+    expect(planned).toBeGreaterThan(0);
+  }, 60_000);
 
   it('plans a seeded 60-rail project within a 3 s budget and labels it honestly', () => {
     const req = randomRequirements({ rails: 60, seed: 1 });
