@@ -17,6 +17,8 @@ export interface Metric {
   unit: string;
   /** Returns the samples (e.g. milliseconds per run). */
   sample(): Promise<number[]>;
+  /** Further figures of the last sample, printed on the same JSON line. */
+  details?(): Record<string, number | boolean | string>;
 }
 
 export function summarise(name: string, unit: string, xs: number[]): MetricLine {

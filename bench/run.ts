@@ -12,7 +12,7 @@ for (const f of readdirSync(dir).filter((n) => n.endsWith('.ts')).sort()) {
     if (filter && !m.name.includes(filter)) continue;
     try {
       const xs = await m.sample();
-      console.log(JSON.stringify(summarise(m.name, m.unit, xs)));
+      console.log(JSON.stringify({ ...summarise(m.name, m.unit, xs), ...(m.details?.() ?? {}) }));
     } catch (e) {
       console.log(JSON.stringify({ metric: m.name, unit: m.unit, error: String((e as Error).message ?? e) }));
     }

@@ -2,16 +2,17 @@
  * Planner benchmarks. Instances come from the seeded generator (engine/planner/instances.ts).
  *
  * Two cost surfaces:
- * - `plan_ms_rails_*`, `oracle_*`, `planner_vs_oracle_*`, `gap_pct_*`, `milp_*` use the
- *   first-order evaluator of the planner tests (closed-form stages), so they measure the
- *   planner itself: candidate generation bookkeeping and the search.
+ * - `closed_form_*`, `oracle_*`, `planner_vs_oracle_*`, `milp_*` use the first-order
+ *   evaluator of the planner tests (closed-form stages, which users never get), so they
+ *   measure the planner itself: candidate generation bookkeeping and the search. The
+ *   headline real-engine figures at 12/24/60 rails are in planner-engine.ts.
  * - `plan_ms_demo_engine` and `plan_ms_rails_6_engine` plan with the real stage engine, where
  *   the engine's designs and worst-case windows dominate the time.
  *
- * plan_ms_rails_N (N ≤ 12): whole exact solve of the balanced objective (to the proof, or to
+ * closed_form_plan_ms_rails_N (N ≤ 12): whole exact solve of the balanced objective (to the proof, or to
  * the exact-mode cap of 60 s), seeds 1–5.
- * plan_ms_rails_16/24: time at which the returned best was found within a 10 s budget;
- * plan_first_feasible_ms_rails_24: time to the first complete feasible tree.
+ * closed_form_plan_ms_rails_16/24: time at which the returned best was found within a 10 s budget;
+ * closed_form_first_feasible_ms_rails_24: time to the first complete feasible tree.
  */
 import type { Metric } from '../harness.ts';
 import { PlanSolver } from '../../src-main/engine/planner/solver.ts';
@@ -38,7 +39,7 @@ function feasibleSeeds(rails: number, count: number, maxSecondaries = 3): number
 
 function exactMs(rails: number): Metric {
   return {
-    name: `plan_ms_rails_${rails}`, unit: 'ms',
+    name: `closed_form_plan_ms_rails_${rails}`, unit: 'ms',
     async sample() {
       // Every seed counts, proved or not (an unproved run stops at the exact-mode cap).
       const xs: number[] = [];
@@ -66,7 +67,7 @@ function anytime(rails: number) {
 
 function anytimeMs(rails: number, which: 'best' | 'first'): Metric {
   return {
-    name: which === 'best' ? `plan_ms_rails_${rails}` : `plan_first_feasible_ms_rails_${rails}`, unit: 'ms',
+    name: which === 'best' ? `closed_form_plan_ms_rails_${rails}` : `closed_form_first_feasible_ms_rails_${rails}`, unit: 'ms',
     async sample() {
       const xs: number[] = [];
       for (const st of anytime(rails)) {
@@ -117,7 +118,7 @@ export const metrics: Metric[] = [
     async sample() { const t = times9(); return t.oracle.map((o, i) => o / Math.max(t.planner[i]!, 1e-3)); },
   },
   {
-    name: 'gap_pct_rails_24', unit: '%',
+    name: 'closed_form_gap_pct_rails_24', unit: '%',
     async sample() {
       const xs: number[] = [];
       for (const seed of feasibleSeeds(24, 1, 2)) {

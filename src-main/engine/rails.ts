@@ -28,6 +28,12 @@ export function voltageLabel(v: number): string {
   return `${sign}${whole}V${String(frac).padStart(3, '0').replace(/0+$/, '')}`;
 }
 
+/**
+ * Most rails a project may have: `validate` refuses more (naming the count), and the planner
+ * (planner/search.ts MAX_RAILS) plans up to exactly this many, so the two never disagree.
+ */
+export const MAX_PLANNED_RAILS = 60;
+
 export function groupRails(req: Requirements): Rail[] {
   const groups = new Map<string, Load[]>();
   for (const l of req.loads) {

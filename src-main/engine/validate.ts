@@ -5,6 +5,7 @@
  * Pure; the store, the importer, the CLI and the window all call it.
  */
 import { ISOLATION_CLASSES, NOISE_CLASSES, STAGE_KINDS, type BatterySpec, type Requirements, type Source } from './model.ts';
+import { groupRails, MAX_PLANNED_RAILS } from './rails.ts';
 import { CHEMISTRY_PRESETS, BATTERY_CHEMISTRIES, packFullVoltage } from './battery.ts';
 
 /** Problems of a battery source: [field path, message]. */
@@ -252,6 +253,12 @@ export function validateRequirements(req: Requirements): Problem[] {
     add('preferences.budgetMs', 'planner time budget must be between 10 ms and 1 h');
   }
   checkPhysicalRange(req, add);
+  // Rails are loads grouped by voltage, domain, noise class and rail key (rails.ts).
+  if (Array.isArray(req.loads) && req.loads.length > MAX_PLANNED_RAILS) {
+    let rails = 0;
+    try { rails = groupRails(req).length; } catch { rails = 0; }
+    if (rails > MAX_PLANNED_RAILS) add('loads', `the loads make ${rails} rails; the planner plans up to ${MAX_PLANNED_RAILS} (join rails with a shared rail key, or plan part of the tree at a time)`);
+  }
   return out;
 }
 

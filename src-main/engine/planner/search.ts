@@ -19,10 +19,16 @@
 import type { BlockFactory } from './candidates.ts';
 import { evaluateSelection, type Scorer, type SelectionEval } from './score.ts';
 import type { Block } from './types.ts';
+import { MAX_PLANNED_RAILS } from '../rails.ts';
 
 export const DP_MAX_RAILS = 16;
-/** Sets are 32-bit masks: the search handles up to this many rails. */
-export const MAX_RAILS = 30;
+/**
+ * Sets of rails are two 32-bit words (rails 0–31 in `lo`, 32–63 in `hi`): the search handles
+ * up to this many rails, the same limit `validate` states (rails.ts), so every project it
+ * accepts is planned.
+ */
+export const MAX_RAILS = MAX_PLANNED_RAILS;
+if (MAX_RAILS > 64) throw new Error('rail sets are two 32-bit words: at most 64 rails');
 const EPS = 1e-9;
 
 export interface SearchOutcome {
@@ -35,7 +41,9 @@ export interface SearchOutcome {
 }
 
 interface Frame {
+  /** Rails still to feed: bits 0–31 and 32–63. */
   rem: number;
+  remHi: number;
   partial: number;
   /** `i` is the block's position in the list this search was given. */
   options: { block: Block; i: number; bound: number }[];
@@ -52,12 +60,18 @@ export function* branchAndBound(
   floors?: readonly number[],
 ): Generator<void, SearchOutcome> {
   const n = f.ctx.rails.length;
-  const full = n === 32 ? 0xffffffff : ((1 << n) >>> 0) - 1;
+  if (n > MAX_RAILS) throw new RangeError(`the search handles up to ${MAX_RAILS} rails (got ${n})`);
+  const word = (k: number) => (k >= 32 ? 0xffffffff : ((1 << k) >>> 0) - 1);
+  const full = word(Math.min(n, 32));
+  const fullHi = n > 32 ? word(n - 32) : 0;
   // Bounding scores: the block's own score plus its coupling floor.
   const score = blocks.map((b, i) => scorer.score(b.base) + (floors?.[i] ?? 0));
   const floorOf = new Map<Block, number>();
   if (floors) blocks.forEach((b, i) => floorOf.set(b, floors[i] ?? 0));
-  const mask = blocks.map((b) => b.covers.reduce((m, r) => (m | (1 << r)) >>> 0, 0));
+  const mask = blocks.map((b) => b.covers.reduce((m, r) => (r < 32 ? (m | (1 << r)) >>> 0 : m), 0));
+  const maskHi = blocks.map((b) => b.covers.reduce((m, r) => (r >= 32 ? (m | (1 << (r - 32))) >>> 0 : m), 0));
+  const fits = (i: number, lo: number, hi: number) => (mask[i]! & lo) >>> 0 === mask[i]! && (maskHi[i]! & hi) >>> 0 === maskHi[i]!;
+  const isOpen = (rail: number, lo: number, hi: number) => (rail < 32 ? (lo & (1 << rail)) !== 0 : (hi & (1 << (rail - 32))) !== 0);
   const byRail: number[][] = Array.from({ length: n }, () => []);
   blocks.forEach((b, i) => { for (const r of b.covers) byRail[r]!.push(i); });
   // Cheapest share first, then by key for determinism.
@@ -67,6 +81,7 @@ export function* branchAndBound(
   const dp = useDp ? new Float64Array(1 << n).fill(NaN) : null;
   if (dp) dp[0] = 0;
   const lowBit = (m: number) => 31 - Math.clz32(m & -m);
+  const lowRail = (lo: number, hi: number) => (lo ? lowBit(lo) : 32 + lowBit(hi));
   // Exact additive optimum of a remaining set (iterative memoised DP over subsets).
   const dpValue = (rem0: number): number => {
     if (!dp) return 0;
@@ -91,30 +106,31 @@ export function* branchAndBound(
     }
     return dp[rem0]!;
   };
-  const shareBound = (rem: number): number => {
+  const shareBound = (rem: number, remHi: number): number => {
     let s = 0;
     for (let m = rem; m; m &= m - 1) s += minShare[lowBit(m)]!;
+    for (let m = remHi; m; m &= m - 1) s += minShare[32 + lowBit(m)]!;
     return s;
   };
-  const bound = (rem: number) => (useDp ? dpValue(rem) : shareBound(rem));
+  // The DP runs only up to DP_MAX_RAILS (< 32) rails, where the high word is always 0.
+  const bound = (rem: number, remHi: number) => (useDp ? dpValue(rem) : shareBound(rem, remHi));
 
   let incumbent = seed ? seed.score : Infinity;
   const leafFailures = out.leafFailures;
   const chosen: Block[] = [];
-  const expand = (rem: number, partial: number): Frame => {
-    const r = lowBit(rem);
+  const expand = (rem: number, remHi: number, partial: number): Frame => {
+    const r = lowRail(rem, remHi);
     const options: Frame['options'] = [];
     for (const i of byRail[r]!) {
-      const m = mask[i]!;
-      if ((m & rem) >>> 0 !== m) continue;
-      const b = partial + score[i]! + bound((rem & ~m) >>> 0);
+      if (!fits(i, rem, remHi)) continue;
+      const b = partial + score[i]! + bound((rem & ~mask[i]!) >>> 0, (remHi & ~maskHi[i]!) >>> 0);
       if (b < incumbent - EPS) options.push({ block: blocks[i]!, i, bound: b });
     }
     options.sort((a, b) => a.bound - b.bound || (a.block.key < b.block.key ? -1 : 1));
-    return { rem, partial, options, next: 0 };
+    return { rem, remHi, partial, options, next: 0 };
   };
-  if (full === 0 || bound(full) === Infinity) { out.complete = true; return out; }
-  const stack: Frame[] = [expand(full, 0)];
+  if ((full === 0 && fullHi === 0) || bound(full, fullHi) === Infinity) { out.complete = true; return out; }
+  const stack: Frame[] = [expand(full, fullHi, 0)];
   while (stack.length) {
     const top = stack[stack.length - 1]!;
     if (top.next >= top.options.length) {
@@ -126,12 +142,14 @@ export function* branchAndBound(
     if (opt.bound >= incumbent - EPS) { top.next = top.options.length; continue; }
     out.explored++;
     const rem = (top.rem & ~mask[opt.i]!) >>> 0;
+    const remHi = (top.remHi & ~maskHi[opt.i]!) >>> 0;
+    const done = rem === 0 && remHi === 0;
     // Exact score of the chosen blocks with the load they put on each other so far (a lower
     // bound of their final score: loads only grow as more blocks are chosen).
     chosen.push(opt.block);
-    const ev = evaluateSelection(f, chosen, { partial: rem !== 0 });
+    const ev = evaluateSelection(f, chosen, { partial: !done });
     if (!ev.ok) {
-      if (rem === 0) out.leaves++;
+      if (done) out.leaves++;
       if (ev.failure) {
         const k = ev.failure.constraint;
         const cur = leafFailures.get(k);
@@ -145,17 +163,17 @@ export function* branchAndBound(
     for (const e of ev.evals) exact += scorer.score(e);
     const scoreOnly = exact;
     // Chosen blocks whose feeding rail is still open: their floor is not in `exact` yet.
-    if (floors && rem !== 0) {
-      for (const b of chosen) if (b.shape.input.kind === 'rail' && (rem & (1 << b.shape.input.rail)) !== 0) exact += floorOf.get(b) ?? 0;
+    if (floors && !done) {
+      for (const b of chosen) if (b.shape.input.kind === 'rail' && isOpen(b.shape.input.rail, rem, remHi)) exact += floorOf.get(b) ?? 0;
     }
-    if (rem === 0) {
+    if (done) {
       out.leaves++;
       if (scoreOnly < incumbent - EPS) { incumbent = scoreOnly; out.best = { blocks: [...chosen], sel: ev, score: scoreOnly }; }
       chosen.pop();
-    } else if (exact + bound(rem) >= incumbent - EPS) {
+    } else if (exact + bound(rem, remHi) >= incumbent - EPS) {
       chosen.pop();
     } else {
-      stack.push(expand(rem, exact));
+      stack.push(expand(rem, remHi, exact));
     }
     yield;
   }
@@ -163,7 +181,7 @@ export function* branchAndBound(
   return out;
 }
 
-/** Bitmask helpers shared with tests. */
+/** Bitmask helpers shared with tests (rails 0–31; the search keeps rails 32–63 in a second word). */
 export function railMask(covers: readonly number[]): number {
   return covers.reduce((m, r) => (m | (1 << r)) >>> 0, 0);
 }

@@ -60,6 +60,8 @@ export const EXACT_SEARCH_CAP_MS = 60_000;
 
 /** Share of the budget candidate design may use before the search starts with what it has. */
 export const DESIGN_SHARE = 0.6;
+/** Share up to which design goes on while some rail has no feasible feed yet. */
+export const DESIGN_LATE_SHARE = 0.9;
 
 /** Node cap of the source-only seeding search. */
 const SEED_SEARCH_NODES = 20_000;
@@ -115,6 +117,25 @@ export class PlanSolver {
    */
   private get designDeadline(): number { return this.t0 + DESIGN_SHARE * Math.min(this.budgetMs, EXACT_SEARCH_CAP_MS); }
 
+  /**
+   * When candidate design stops: at the design share once every rail has a feasible feed (the
+   * search then has a tree to find); while some rail has none, a search could not complete a
+   * tree, so design goes on to DESIGN_LATE_SHARE of the budget.
+   */
+  private designCutoff(): number {
+    if (this.now() <= this.designDeadline) return this.designDeadline;
+    const n = this.rails.length;
+    if (this.coveredCount < n) {
+      for (let i = this.coveredSeen; i < this.blocks.length; i++) for (const r of this.blocks[i]!.covers) if (!this.covered[r]) { this.covered[r] = 1; this.coveredCount++; }
+      this.coveredSeen = this.blocks.length;
+    }
+    return this.coveredCount < n ? this.t0 + DESIGN_LATE_SHARE * Math.min(this.budgetMs, EXACT_SEARCH_CAP_MS) : this.designDeadline;
+  }
+  private cutShare = DESIGN_SHARE;
+  private covered = new Uint8Array(64);
+  private coveredCount = 0;
+  private coveredSeen = 0;
+
   cancel(): void { this.cancelled = true; }
 
   get done(): boolean { return this.result !== null; }
@@ -126,12 +147,13 @@ export class PlanSolver {
       if (this.cancelled) { this.finish(); return true; }
       if (!this.advance()) return true;
       // A candidate design can take tens of milliseconds: look at the clock after each one.
-      if (this.progress.phase === 'candidates' && this.now() > this.designDeadline) break;
+      if (this.progress.phase === 'candidates' && this.now() > this.designCutoff()) break;
     }
-    if (this.progress.phase === 'candidates' && this.gen && this.now() > this.designDeadline) {
+    if (this.progress.phase === 'candidates' && this.gen && this.now() > this.designCutoff()) {
       // Out of time while designing candidates: search with the blocks designed so far.
       this.allComplete = false;
-      this.trace.push(`${Math.round(DESIGN_SHARE * 100)} % of the ${this.budgetMs} ms budget used while designing candidates; searching the ${this.genState?.designed ?? 0} of ${this.space?.candidates ?? 0} designed so far`);
+      this.cutShare = this.coveredCount < this.rails.length ? DESIGN_LATE_SHARE : DESIGN_SHARE;
+      this.trace.push(`${Math.round(this.cutShare * 100)} % of the ${this.budgetMs} ms budget used while designing candidates; searching the ${this.genState?.designed ?? 0} of ${this.space?.candidates ?? 0} designed so far`);
       this.gen = null;
       this.candidatesCut = true;
       this.startSearches();
@@ -271,7 +293,10 @@ export class PlanSolver {
     if (sourceOnly.length) {
       const o: SearchOutcome = { best: null, explored: 0, leaves: 0, complete: false, leafFailures: new Map() };
       const it = branchAndBound(f, sourceOnly, scorer, seed, o);
-      for (let k = 0; k < SEED_SEARCH_NODES && !it.next().done; k++) { /* bounded */ }
+      // Bounded in nodes and in time: half of this objective's share, never past the deadline
+      // (with the real engine a node can cost milliseconds).
+      const until = Math.min(this.deadline, this.now() + share / 2);
+      for (let k = 0; k < SEED_SEARCH_NODES && ((k & 7) !== 0 || this.now() < until) && !it.next().done; k++) { /* bounded */ }
       if (o.best && (!seed || o.best.score < seed.score)) {
         seed = { blocks: o.best.blocks, score: o.best.score, sel: o.best.sel };
         this.trace.push(`objective ${obj}: a tree fed only from the sources scores ${o.best.score.toFixed(4)} (${o.explored} nodes); it seeds the search`);
@@ -384,7 +409,7 @@ export class PlanSolver {
       if (this.candidatesCut) {
         infeasible.push({
           railId: this.rails[0]?.id ?? '', constraint: 'budget', shortfall: 0, unit: '',
-          text: `the design share (${Math.round(DESIGN_SHARE * 100)} %) of the time budget (${this.budgetMs} ms) ran out after ${this.genState?.designed ?? 0} of ${this.space?.candidates ?? 0} candidate feeds (${this.factory.evaluations} stage designs); the reasons below cover only those`,
+          text: `the design share (${Math.round(this.cutShare * 100)} %) of the time budget (${this.budgetMs} ms) ran out after ${this.genState?.designed ?? 0} of ${this.space?.candidates ?? 0} candidate feeds (${this.factory.evaluations} stage designs); the reasons below cover only those`,
           remedies: ['raise the time budget (--budget-ms)'],
         });
       }
