@@ -10,6 +10,7 @@
 import type { PartLibraryRow } from './model.ts';
 import { magneticSpec } from './magnetics.ts';
 import { checkText } from './text-rules.ts';
+import { formatUnit } from './notation.ts';
 import type { CoupledBuckDesign } from './stages/index.ts';
 import { rowTopology } from './stages/part-choice.ts';
 import { boostParts, type BoostDesign } from './stages/boost/index.ts';
@@ -442,16 +443,10 @@ export interface PickOptions {
 
 const DEFAULT_PICK: PickOptions = { powerDerating: 0.5, electrolyticDerating: 0.8 };
 
+/** A part value or rating: the one quantity formatter (engine/notation.ts); not finite: "NaN Ω". */
 function eng(value: number, unit: string, digits = 3): string {
-  const prefixes: Array<[number, string]> = [[1e6, 'M'], [1e3, 'k'], [1, ''], [1e-3, 'm'], [1e-6, 'µ'], [1e-9, 'n'], [1e-12, 'p']];
-  if (!(Math.abs(value) > 0) || !Number.isFinite(value)) return `${value} ${unit}`;
-  for (const [s, p] of prefixes) {
-    if (Math.abs(value) >= s * 0.9995) {
-      const x = value / s;
-      return `${Number.parseFloat(x.toPrecision(digits))} ${p}${unit}`;
-    }
-  }
-  return `${Number.parseFloat(value.toPrecision(digits))} ${unit}`;
+  if (!Number.isFinite(value)) return `${value} ${unit}`;
+  return formatUnit(value, unit, digits);
 }
 
 interface CapLike { role: string; value: number; count: number; ratedVoltage: number; workingVoltage: number; rmsCurrent?: number }
