@@ -7,7 +7,7 @@
  * number. The default rows (db/default-library.csv) carry invented cost estimates.
  */
 
-import type { PartLibraryRow } from './model.ts';
+import { isolationRank, type PartLibraryRow } from './model.ts';
 import { magneticSpec } from './magnetics.ts';
 import { checkText } from './text-rules.ts';
 import { formatUnit } from './notation.ts';
@@ -505,8 +505,6 @@ function pickDivider(lib: LibraryRow[], stageId: string, d: DividerLike, o: Pick
   ];
 }
 
-const ISOLATION_RANK: Record<string, number> = { none: -1, functional: 0, basic: 1, reinforced: 2 };
-
 interface PartRefLike { role: string; libraryId: string }
 
 /**
@@ -654,8 +652,8 @@ export function partsForStage(stageId: string, design: unknown, library: Library
     picks.push(...(switcherFromRefs(library, stageId, d.parts) ?? pickSwitcher(library, stageId, d.vinMax ?? 0, peak, true, isat)));
     const pTotal = (d.outputs ?? []).reduce((a, q) => a + Math.abs(q.voltage) * q.currentMax, 0);
     const isoOf = [d.isolation, o.isolation].filter((x): x is { class: string; workingVoltage: number } => !!x && x.class !== 'none')
-      .sort((a, b) => (ISOLATION_RANK[b.class] ?? -1) - (ISOLATION_RANK[a.class] ?? -1) || b.workingVoltage - a.workingVoltage)[0] ?? null;
-    const needIso = ISOLATION_RANK[isoOf?.class ?? 'none'] ?? -1;
+      .sort((a, b) => isolationRank(b.class) - isolationRank(a.class) || b.workingVoltage - a.workingVoltage)[0] ?? null;
+    const needIso = isolationRank(isoOf?.class);
     const windings = 1 + secs.length;
     const mag = cheapest(library, 'magnetic-custom', (r) =>
       numParam(r, 'maxWindings') >= windings && numParam(r, 'pMax') >= pTotal && numParam(r, 'isolation') >= needIso);
@@ -758,7 +756,7 @@ export function priceStagesFromLibrary(library: LibraryRow[], stages: readonly {
   let parts = 0;
   for (const st of stages) {
     const iso = (st.barriers ?? []).map((b) => ({ class: b.isolation, workingVoltage: b.workingVoltage }))
-      .sort((a, b) => (ISOLATION_RANK[b.class] ?? -1) - (ISOLATION_RANK[a.class] ?? -1) || b.workingVoltage - a.workingVoltage)[0] ?? null;
+      .sort((a, b) => isolationRank(b.class) - isolationRank(a.class) || b.workingVoltage - a.workingVoltage)[0] ?? null;
     for (const p of partsForStage(st.localId, st.design, library, { ...opts, isolation: iso })) {
       cost += p.unitCost * p.quantity;
       parts += p.quantity;
