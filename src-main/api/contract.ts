@@ -6,9 +6,16 @@
  * same contract travels over Electron IPC, the child-process backend pipe and HTTP.
  * Every request answers with an `ApiResult`: either `{ ok: true, value }` or
  * `{ ok: false, error: { field?, message } }`; handlers never throw across the contract.
+ * The pure formatting functions and table definitions the window shares with main are in
+ * window-shared.ts, which this contract owns; the window imports no other src-main module
+ * (test/boundaries.test.ts).
  */
 import type { Id, Rail, Requirements } from '../engine/model.ts';
 import type { Plan, PlanResult } from '../engine/plan-types.ts';
+
+/** Types the window reads through the contract (it imports nothing else from src-main but window-shared.ts). */
+export type { Requirements } from '../engine/model.ts';
+export type { QuantityKind } from '../engine/units.ts';
 
 export interface ApiError {
   /** Dotted path of the offending argument or cell, e.g. `loads.L3.voltage`. */

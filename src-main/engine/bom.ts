@@ -6,7 +6,7 @@
  * Custom magnetics are never merged (each has its own specification sheet).
  */
 import type { Plan } from './plan-types.ts';
-import type { Requirements } from './model.ts';
+import { isolationRank, type Requirements } from './model.ts';
 import { partsForStage, type LibraryRow, type PartClass, type PartPick } from './library.ts';
 
 export interface BomItem extends PartPick {
@@ -77,8 +77,7 @@ export function buildBom(req: Requirements, plan: Plan, library: LibraryRow[]): 
   const counters: Record<string, number> = {};
   const items: BomItem[] = [];
   for (const st of plan.stages) {
-    const rank = { functional: 0, basic: 1, reinforced: 2 } as const;
-    const barrier = [...st.barriers].sort((a, b) => rank[b.isolation] - rank[a.isolation] || b.workingVoltage - a.workingVoltage)[0];
+    const barrier = [...st.barriers].sort((a, b) => isolationRank(b.isolation) - isolationRank(a.isolation) || b.workingVoltage - a.workingVoltage)[0];
     const picks = partsForStage(st.id, st.design, library, {
       powerDerating: req.limits.powerDerating, electrolyticDerating: req.limits.electrolyticDerating,
       isolation: barrier ? { class: barrier.isolation, workingVoltage: barrier.workingVoltage } : null,

@@ -4,7 +4,7 @@
  * standard and edition they come from; check them against the edition that applies.
  * This module certifies nothing.
  */
-import type { IsolationClass } from './model.ts';
+import { isolationRank, type IsolationClass } from './model.ts';
 
 export const ISOLATION_CAUTIONS: readonly string[] = [
   'Mains and isolation barriers can kill: this tool records and estimates, it certifies nothing.',
@@ -65,8 +65,7 @@ export function checkBarrier(input: { capacitance: number; voltageRms: number; f
   };
 }
 
-/** Order of the classes, to pick the strictest barrier on a path. */
+/** The strictest of two barriers on a path (isolationRank, engine/model.ts). */
 export function strictest(a: IsolationClass, b: IsolationClass): IsolationClass {
-  const order: IsolationClass[] = ['none', 'functional', 'basic', 'reinforced'];
-  return order.indexOf(a) >= order.indexOf(b) ? a : b;
+  return isolationRank(a) >= isolationRank(b) ? a : b;
 }

@@ -6,29 +6,18 @@
  */
 import type { Id, IsolationClass, Rail, Requirements, StageKind } from './model.ts';
 import type { Plan } from './plan-types.ts';
+import { formatUnit } from './notation.ts';
 
 // ---------------------------------------------------------------------------------------
 // Number formatting for labels (engineering notation at the edge of the engine)
 
-const PREFIXES: Array<[number, string]> = [
-  [1e9, 'G'], [1e6, 'M'], [1e3, 'k'], [1, ''], [1e-3, 'm'], [1e-6, 'µ'], [1e-9, 'n'], [1e-12, 'p'],
-];
-
-/** `fmtQty(0.0123, 'A')` → "12.3 mA"; three significant digits by default. */
+/**
+ * `fmtQty(0.0123, 'A')` → "12.3 mA"; three significant digits by default. The one quantity
+ * formatter (`formatUnit`, engine/notation.ts) with a unit symbol; not finite: "— A".
+ */
 export function fmtQty(value: number, unit: string, digits = 3): string {
   if (!Number.isFinite(value)) return `— ${unit}`.trim();
-  if (value === 0) return `0 ${unit}`.trim();
-  const a = Math.abs(value);
-  let [scale, prefix] = PREFIXES[PREFIXES.length - 1]!;
-  for (const [s, p] of PREFIXES) {
-    if (a >= s * 0.9995) { scale = s; prefix = p; break; }
-  }
-  const x = value / scale;
-  const ax = Math.abs(x);
-  const decimals = Math.max(0, digits - (ax >= 100 ? 3 : ax >= 10 ? 2 : 1));
-  let text = x.toFixed(decimals);
-  if (text.includes('.')) text = text.replace(/0+$/, '').replace(/\.$/, '');
-  return `${text} ${prefix}${unit}`.trim();
+  return formatUnit(value, unit, digits);
 }
 
 /** Percentage with one decimal: 0.9123 → "91.2 %". */

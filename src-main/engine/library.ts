@@ -7,9 +7,10 @@
  * number. The default rows (db/default-library.csv) carry invented cost estimates.
  */
 
-import type { PartLibraryRow } from './model.ts';
+import { isolationRank, type PartLibraryRow } from './model.ts';
 import { magneticSpec } from './magnetics.ts';
 import { checkText } from './text-rules.ts';
+import { formatUnit } from './notation.ts';
 import type { CoupledBuckDesign } from './stages/index.ts';
 import { rowTopology } from './stages/part-choice.ts';
 import { boostParts, type BoostDesign } from './stages/boost/index.ts';
@@ -442,16 +443,10 @@ export interface PickOptions {
 
 const DEFAULT_PICK: PickOptions = { powerDerating: 0.5, electrolyticDerating: 0.8 };
 
+/** A part value or rating: the one quantity formatter (engine/notation.ts); not finite: "NaN Ω". */
 function eng(value: number, unit: string, digits = 3): string {
-  const prefixes: Array<[number, string]> = [[1e6, 'M'], [1e3, 'k'], [1, ''], [1e-3, 'm'], [1e-6, 'µ'], [1e-9, 'n'], [1e-12, 'p']];
-  if (!(Math.abs(value) > 0) || !Number.isFinite(value)) return `${value} ${unit}`;
-  for (const [s, p] of prefixes) {
-    if (Math.abs(value) >= s * 0.9995) {
-      const x = value / s;
-      return `${Number.parseFloat(x.toPrecision(digits))} ${p}${unit}`;
-    }
-  }
-  return `${Number.parseFloat(value.toPrecision(digits))} ${unit}`;
+  if (!Number.isFinite(value)) return `${value} ${unit}`;
+  return formatUnit(value, unit, digits);
 }
 
 interface CapLike { role: string; value: number; count: number; ratedVoltage: number; workingVoltage: number; rmsCurrent?: number }
@@ -509,8 +504,6 @@ function pickDivider(lib: LibraryRow[], stageId: string, d: DividerLike, o: Pick
     pickResistor(lib, stageId, 'feedback bottom', d.rBottom, i * i * d.rBottom, o, 1, d.tolerance ?? 0.01),
   ];
 }
-
-const ISOLATION_RANK: Record<string, number> = { none: -1, functional: 0, basic: 1, reinforced: 2 };
 
 interface PartRefLike { role: string; libraryId: string }
 
@@ -659,8 +652,8 @@ export function partsForStage(stageId: string, design: unknown, library: Library
     picks.push(...(switcherFromRefs(library, stageId, d.parts) ?? pickSwitcher(library, stageId, d.vinMax ?? 0, peak, true, isat)));
     const pTotal = (d.outputs ?? []).reduce((a, q) => a + Math.abs(q.voltage) * q.currentMax, 0);
     const isoOf = [d.isolation, o.isolation].filter((x): x is { class: string; workingVoltage: number } => !!x && x.class !== 'none')
-      .sort((a, b) => (ISOLATION_RANK[b.class] ?? -1) - (ISOLATION_RANK[a.class] ?? -1) || b.workingVoltage - a.workingVoltage)[0] ?? null;
-    const needIso = ISOLATION_RANK[isoOf?.class ?? 'none'] ?? -1;
+      .sort((a, b) => isolationRank(b.class) - isolationRank(a.class) || b.workingVoltage - a.workingVoltage)[0] ?? null;
+    const needIso = isolationRank(isoOf?.class);
     const windings = 1 + secs.length;
     const mag = cheapest(library, 'magnetic-custom', (r) =>
       numParam(r, 'maxWindings') >= windings && numParam(r, 'pMax') >= pTotal && numParam(r, 'isolation') >= needIso);
@@ -763,7 +756,7 @@ export function priceStagesFromLibrary(library: LibraryRow[], stages: readonly {
   let parts = 0;
   for (const st of stages) {
     const iso = (st.barriers ?? []).map((b) => ({ class: b.isolation, workingVoltage: b.workingVoltage }))
-      .sort((a, b) => (ISOLATION_RANK[b.class] ?? -1) - (ISOLATION_RANK[a.class] ?? -1) || b.workingVoltage - a.workingVoltage)[0] ?? null;
+      .sort((a, b) => isolationRank(b.class) - isolationRank(a.class) || b.workingVoltage - a.workingVoltage)[0] ?? null;
     for (const p of partsForStage(st.localId, st.design, library, { ...opts, isolation: iso })) {
       cost += p.unitCost * p.quantity;
       parts += p.quantity;

@@ -9,6 +9,15 @@ export type Id = string;
 /** How a domain's ground relates to the input source. `none` = galvanically connected. */
 export type IsolationClass = 'none' | 'functional' | 'basic' | 'reinforced';
 export const ISOLATION_CLASSES: readonly IsolationClass[] = ['none', 'functional', 'basic', 'reinforced'];
+/**
+ * The one ranking of isolation classes, weakest first: none −1, functional 0, basic 1,
+ * reinforced 2 (the part library's numeric `isolation` parameter uses the same 0–2). Text
+ * that names no class ranks as none.
+ */
+export function isolationRank(c: string | null | undefined): number {
+  const i = ISOLATION_CLASSES.indexOf(c as IsolationClass);
+  return i <= 0 ? -1 : i - 1;
+}
 
 /**
  * Noise class of a load: how much switching residue it tolerates beyond its ripple limit.

@@ -242,16 +242,29 @@ export function engineering(value: number, sig = 3): { mantissa: string; prefix:
 }
 
 /**
+ * The one quantity formatter: a value in base SI units with an SI prefix and a unit symbol,
+ * rounded to `sigDigits` significant digits: (0.0123, 'A') → "12.3 mA", (4.7e-6, 'F') →
+ * "4.7 µF", (400e3, 'Hz') → "400 kHz"; an empty unit leaves the bare number and prefix.
+ * `formatQuantity` (by quantity kind), the drawing's and exports' `fmtQty` (engine/layout.ts)
+ * and the BOM's values and ratings (engine/library.ts) all print through it.
+ * Not finite: "—" (NaN), "∞", "−∞".
+ */
+export function formatUnit(value: number, unit: string, sigDigits = 3): string {
+  if (!Number.isFinite(value)) return Number.isNaN(value) ? '—' : value > 0 ? '∞' : '−∞';
+  const { mantissa, prefix } = engineering(value, sigDigits);
+  return `${mantissa} ${prefix}${unit}`.trimEnd();
+}
+
+/**
  * Format an SI value with an SI prefix and the kind's unit: 3.3 → "3.3 V", 0.25 → "250 mA",
  * 4.7e-6 → "4.7 µF". Temperatures take no prefix ("85 °C"); ratios print as percent.
  */
 export function formatQuantity(value: number, kind: QuantityKind, sigDigits = 3): string {
-  if (!Number.isFinite(value)) return Number.isNaN(value) ? '—' : value > 0 ? '∞' : '−∞';
+  if (!Number.isFinite(value)) return formatUnit(value, '', sigDigits);
   const unit = UNIT_SYMBOL[kind];
   if (kind === 'ratio') return `${engineeringPlain(value * 100, sigDigits)} %`;
   if (NO_PREFIX.has(kind)) return `${engineeringPlain(value, sigDigits)} ${unit}`;
-  const { mantissa, prefix } = engineering(value, sigDigits);
-  return `${mantissa} ${prefix}${unit}`;
+  return formatUnit(value, unit, sigDigits);
 }
 
 /** A number to `sig` significant digits without exponent or prefix (for °C and %). */

@@ -1,6 +1,6 @@
-/** Display formatting at the window's edge (engineering notation from the engine's notation module). */
-import { formatQuantity, formatTolerance } from '../../src-main/engine/notation.ts';
-import type { QuantityKind } from '../../src-main/engine/units.ts';
+/** Display formatting at the window's edge (engineering notation from the engine's notation module, through the contract's window-shared.ts). */
+import { formatQuantity, formatTolerance } from '../../src-main/api/window-shared.ts';
+import type { QuantityKind } from '../../src-main/api/contract.ts';
 
 export const q = (v: number | null | undefined, kind: QuantityKind, sig = 3): string =>
   v === null || v === undefined || !Number.isFinite(v) ? '—' : formatQuantity(v, kind, sig);

@@ -4,9 +4,9 @@
  * quantity it is, so the window prints it in engineering notation with its unit. A key not
  * listed falls back to its own words split apart ("someField" → "some field"), never code.
  */
-import type { QuantityKind } from '../../src-main/engine/units.ts';
+import type { QuantityKind } from '../../src-main/api/contract.ts';
 import { q, pct, num } from './fmt.ts';
-import { CLASS_PARAMS, type PartClass } from '../../src-main/engine/library.ts';
+import { CLASS_PARAMS, type PartClass } from '../../src-main/api/window-shared.ts';
 
 type Unit = QuantityKind | 'ratio' | 'dB' | 'K/W' | 'turns' | 'factor' | 'plain';
 

@@ -9,8 +9,9 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import {
-  formatQuantity, formatShorthand, formatTolerance, parseQuantity, parseTolerance,
+  formatQuantity, formatShorthand, formatTolerance, formatUnit, parseQuantity, parseTolerance,
 } from '../../src-main/engine/notation.ts';
+import { fmtQty } from '../../src-main/engine/layout.ts';
 import type { QuantityKind } from '../../src-main/engine/units.ts';
 
 const close = (a: number, b: number) => Math.abs(a - b) <= 1e-12 * Math.max(1, Math.abs(b));
@@ -218,5 +219,24 @@ describe('formatQuantity', () => {
       const r = parseQuantity(formatShorthand(v, 'resistance'), 'resistance', 'x');
       return r.ok && close(r.value, v);
     }));
+  });
+});
+
+describe('formatUnit: the one quantity formatter', () => {
+  // Expected texts: SI prefixes (SI Brochure) at three significant digits, written by hand.
+  for (const [v, u, want] of [
+    [0.0123, 'A', '12.3 mA'], [4.7e-6, 'F', '4.7 µF'], [400e3, 'Hz', '400 kHz'], [-12, 'V', '-12 V'],
+    [0.9996, 'W', '1 W'], [999.6e3, 'Ω', '1 MΩ'], [0, 'A', '0 A'], [2.2e-3, '', '2.2 m'],
+  ] as [number, string, string][]) {
+    it(`${v} ${u} → ${want}`, () => expect(formatUnit(v, u)).toBe(want));
+  }
+  it('prints nothing that is not finite as a number', () => {
+    expect([formatUnit(NaN, 'V'), formatUnit(Infinity, 'V'), formatUnit(-Infinity, 'V')]).toEqual(['—', '∞', '−∞']);
+  });
+  it('the drawing and exports print a quantity exactly as the window does', () => {
+    // Values on a decimal tie (0.01525 W) once printed differently by two formatters.
+    fc.assert(fc.property(fc.double({ min: 1e-12, max: 1e9, noNaN: true }), fc.constantFrom(3, 4), (v, sig) =>
+      fmtQty(v, 'W', sig) === formatQuantity(v, 'power', sig) && fmtQty(-v, 'A', sig) === formatQuantity(-v, 'current', sig)));
+    expect(fmtQty(0.01525, 'W')).toBe(formatQuantity(0.01525, 'power'));
   });
 });

@@ -18,7 +18,7 @@
  *   the engine, and Tj ≤ tjMax − tjMargin.
  */
 import type { Amps, Celsius, Hertz, Ratio, Volts } from '../units.ts';
-import { DEFAULT_MAX_RECTIFIER_VOLTAGE, DEFAULT_MAX_TURNS_RATIO, type Domain, type Id, type Rail, type Requirements, type Source, type StageKind } from '../model.ts';
+import { DEFAULT_MAX_RECTIFIER_VOLTAGE, DEFAULT_MAX_TURNS_RATIO, isolationRank, type Domain, type Id, type Rail, type Requirements, type Source, type StageKind } from '../model.ts';
 import type { Barrier, InternalNode, PlanOutput, Reason } from '../plan-types.ts';
 import type { OutputSpec, OutputWindow, StageEvaluation, StageSpec } from '../stages/types.ts';
 import { addParts, countParts, emptyParts } from './cost-model.ts';
@@ -459,12 +459,11 @@ export class BlockFactory {
   }
 
   private strongestIsolation(rails: number[]): { class: Domain['isolation']; workingVoltage: Volts } | null {
-    const rank = { none: 0, functional: 1, basic: 2, reinforced: 3 } as const;
     let best: { class: Domain['isolation']; workingVoltage: Volts } | null = null;
     for (const s of rails) {
       const d = this.domainOf(s);
       if (!d || d.isolation === 'none') continue;
-      if (!best || rank[d.isolation] > rank[best.class] || (rank[d.isolation] === rank[best.class] && d.workingVoltage > best.workingVoltage)) {
+      if (!best || isolationRank(d.isolation) > isolationRank(best.class) || (d.isolation === best.class && d.workingVoltage > best.workingVoltage)) {
         best = { class: d.isolation, workingVoltage: d.workingVoltage };
       }
     }

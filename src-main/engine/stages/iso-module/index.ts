@@ -15,15 +15,15 @@
  */
 import type { Amps, Celsius, Ratio, Volts, Watts } from '../../units.ts';
 import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
-import type { IsolationClass } from '../../model.ts';
+import { ISOLATION_CLASSES, isolationRank, type IsolationClass } from '../../model.ts';
 import { nearest } from '../../eseries.ts';
 import { flag, part, r3, rippleFlags, thermalFlags } from '../common.ts';
 import { specErrors } from '../buck/index.ts';
 import { costNote, numParam, pickResistorPart, strParam, type LibraryRow, type PartPick, type PickOptions } from '../../library.ts';
 import type { StagePartRef } from '../part-choice.ts';
 
-export const ISO_RANK: Record<string, number> = { none: -1, functional: 0, basic: 1, reinforced: 2 };
-const RANK_NAME = ['functional', 'basic', 'reinforced'] as const;
+/** A library row's numeric isolation (0–2, isolationRank in engine/model.ts) back to its class. */
+const RANK_NAME = ISOLATION_CLASSES.slice(1) as readonly Exclude<IsolationClass, 'none'>[];
 
 /** Invented generic modules (from memory, round numbers), used when no library is given. */
 export const GENERIC_ISO_MODULES: LibraryRow[] = [
@@ -129,7 +129,7 @@ export function designIsoModule(spec: StageSpec): Result {
   const v = Math.abs(o.voltage as number);
   const band = { lo: v * (1 - o.tolerance), hi: v * (1 + o.tolerance) };
   const iso = spec.isolation ?? null;
-  const needRank = ISO_RANK[iso?.class ?? 'none'] ?? -1;
+  const needRank = isolationRank(iso?.class);
   const needWv = iso && iso.class !== 'none' ? (iso.workingVoltage as number) : 0;
   const rows = (spec.library ? spec.library.filter((r) => r.partClass === 'iso-module') : GENERIC_ISO_MODULES)
     .slice().sort((a, b) => a.cost - b.cost || (a.id < b.id ? -1 : 1));
@@ -140,7 +140,7 @@ export function designIsoModule(spec: StageSpec): Result {
     const lo = m.vinNom * (1 - INPUT_RANGE_SHARE), hi = m.vinNom * (1 + INPUT_RANGE_SHARE);
     if (spec.vinMin < lo - 1e-9 || spec.vinMax > hi + 1e-9) { misses.push(`${r.id}: input ${r3(lo)}…${r3(hi)} V`); continue; }
     if ((o.currentMax as number) > iRated + 1e-12) { misses.push(`${r.id}: ${r3(iRated * 1e3)} mA rated`); continue; }
-    if (ISO_RANK[m.isolation]! < needRank || m.workingVoltage < needWv) { misses.push(`${r.id}: ${m.isolation} ${m.workingVoltage} V barrier`); continue; }
+    if (isolationRank(m.isolation) < needRank || m.workingVoltage < needWv) { misses.push(`${r.id}: ${m.isolation} ${m.workingVoltage} V barrier`); continue; }
     // Minimum load: a preload resistor (E24, the next value down) makes up the difference.
     const need = m.minLoad * iRated - (o.currentMin as number);
     let preload: IsoModuleDesign['preload'] = null;
@@ -153,7 +153,7 @@ export function designIsoModule(spec: StageSpec): Result {
     const design: IsoModuleDesign = {
       kind: 'iso-module', vinMin: spec.vinMin, vinNom: spec.vinNom, vinMax: spec.vinMax, outputs: [{ ...o }], module: m, iRated,
       isolation: iso ? { class: iso.class, workingVoltage: iso.workingVoltage as number } : null, preload, tjMax: spec.tjMax,
-      ...(spec.library ? { parts: [{ role: 'isolated module', libraryId: r.id, used: { ...m, isolation: ISO_RANK[m.isolation]! } as unknown as Record<string, number>, generic: [] }] } : {}),
+      ...(spec.library ? { parts: [{ role: 'isolated module', libraryId: r.id, used: { ...m, isolation: isolationRank(m.isolation) } as unknown as Record<string, number>, generic: [] }] } : {}),
     };
     // Window over Vin min/max × load min/max (unregulated: the input's spread passes through).
     const w = isoWindow(design, [spec.vinMin, spec.vinMax], o.currentMin as number, o.currentMax as number);
@@ -193,7 +193,7 @@ export function isoModuleWindowAt(d: IsoModuleDesign, vin: number, io: number): 
 export function isoModuleParts(stageId: string, d: IsoModuleDesign, library: LibraryRow[], opts: Partial<PickOptions> = {}): PartPick[] {
   const ref = d.parts?.find((p) => p.role === 'isolated module');
   const row = ref ? library.find((r) => r.id === ref.libraryId) : library.filter((r) => r.partClass === 'iso-module')
-    .find((r) => Math.abs(numParam(r, 'ratio') - d.module.ratio) < 1e-9 && numParam(r, 'vinNom') === d.module.vinNom && numParam(r, 'pRated') >= d.module.pRated && numParam(r, 'isolation') >= ISO_RANK[d.module.isolation]! && numParam(r, 'workingVoltage') >= d.module.workingVoltage);
+    .find((r) => Math.abs(numParam(r, 'ratio') - d.module.ratio) < 1e-9 && numParam(r, 'vinNom') === d.module.vinNom && numParam(r, 'pRated') >= d.module.pRated && numParam(r, 'isolation') >= isolationRank(d.module.isolation) && numParam(r, 'workingVoltage') >= d.module.workingVoltage);
   const rating = `${r3(d.module.pRated)} W, ${d.module.isolation} ${r3(d.module.workingVoltage)} V`;
   const picks: PartPick[] = [row
     ? { stageId, role: 'isolated module', prefix: 'U', partClass: 'iso-module', libraryId: row.id, description: row.name, value: `${r3(d.module.vinNom)} V → ${r3(d.module.vinNom * d.module.ratio)} V`, rating, package: strParam(row, 'package'), quantity: 1, unitCost: row.cost, costNote: costNote(row), manufacturer: strParam(row, 'manufacturer'), partNumber: strParam(row, 'partNumber') }

@@ -1,0 +1,85 @@
+// The folder boundaries as checks (ARCHITECTURE.md, "Boundaries"; DEVELOPERS.md):
+// 1. the window (src-renderer) imports from src-main only the contract: api/contract.ts and
+//    the pure module it owns, api/window-shared.ts;
+// 2. the engine (src-main/engine) imports nothing outside its own folder: no other top-level
+//    folder of src-main (api, store, export, host, cli, worker, cli.ts), no src-renderer, no
+//    db/ or test/ file. Its package imports (no node:, electron, sqlite, svelte, exceljs,
+//    pdfkit) are checked by test/engine/purity.test.ts with the same scanner.
+// Every import form counts: `import … from`, `export … from`, `import '…'`, `import('…')`.
+import { describe, expect, it } from 'vitest';
+import { join, relative, sep } from 'node:path';
+import { hasComputedImport, importSpecifiers, readSource, resolveSpecifier, sourceFiles } from './helpers/import-scan.ts';
+
+const ROOT = join(import.meta.dirname, '..');
+const MAIN = join(ROOT, 'src-main');
+const ENGINE = join(MAIN, 'engine');
+const RENDERER = join(ROOT, 'src-renderer');
+/** The only src-main modules the window may import. */
+const WINDOW_ALLOWED = ['api/contract.ts', 'api/window-shared.ts'].map((p) => join(MAIN, p));
+
+const inside = (path: string, dir: string): boolean => path === dir || path.startsWith(dir + sep);
+const rel = (p: string): string => relative(ROOT, p).split(sep).join('/');
+
+/** For each file: the resolved targets of its relative imports that `bad` rejects. */
+function violations(files: string[], bad: (target: string) => boolean): Record<string, string[]> {
+  const out: Record<string, string[]> = {};
+  for (const f of files) {
+    const targets = importSpecifiers(readSource(f))
+      .filter((s) => s.startsWith('.'))
+      .map((s) => resolveSpecifier(f, s))
+      .filter(bad)
+      .map(rel);
+    if (targets.length > 0) out[rel(f)] = targets;
+  }
+  return out;
+}
+
+describe('import scanner (the checks below rely on it)', () => {
+  it('reads every import form, across line breaks', () => {
+    const src = [
+      "import type { A } from '../x/a.ts';",
+      "import {\n  b,\n  type C,\n} from \"../x/b.ts\";",
+      "export { d } from '../x/d.ts';",
+      "export * from '../x/e.ts';",
+      "import '../x/f.css';",
+      "const g = await import('../x/g.ts');",
+      "import h from 'svelte';",
+      "const s = 'not an import from here';",
+    ].join('\n');
+    expect(importSpecifiers(src)).toEqual(['../x/a.ts', '../x/b.ts', '../x/d.ts', '../x/e.ts', '../x/f.css', '../x/g.ts', 'svelte']);
+  });
+  it('flags a dynamic import with a computed name', () => {
+    expect(hasComputedImport('await import(name)')).toBe(true);
+    expect(hasComputedImport("await import('./a.ts')")).toBe(false);
+  });
+});
+
+describe('the window imports only the contract', () => {
+  const files = sourceFiles(RENDERER);
+  it('has window sources to check', () => {
+    expect(files.some((f) => f.endsWith('.svelte'))).toBe(true);
+    expect(files.some((f) => f.endsWith('.ts'))).toBe(true);
+  });
+  it('reaches src-main only through api/contract.ts and api/window-shared.ts', () => {
+    expect(violations(files, (t) => inside(t, MAIN) && !WINDOW_ALLOWED.includes(t))).toEqual({});
+  });
+  it('does import the contract (the check above sees the window\'s imports)', () => {
+    expect(Object.keys(violations(files, (t) => WINDOW_ALLOWED.includes(t))).length).toBeGreaterThan(3);
+  });
+  it('names every dynamically imported module literally', () => {
+    expect(files.filter((f) => hasComputedImport(readSource(f))).map(rel)).toEqual([]);
+  });
+});
+
+describe('the engine imports nothing outside itself', () => {
+  const files = sourceFiles(ENGINE);
+  it('has engine sources to check', () => {
+    expect(files.length).toBeGreaterThan(10);
+  });
+  it('imports no other folder of src-main, no src-renderer, nothing else of the repository', () => {
+    expect(violations(files, (t) => !inside(t, ENGINE))).toEqual({});
+  });
+  it('names every dynamically imported module literally', () => {
+    expect(files.filter((f) => hasComputedImport(readSource(f))).map(rel)).toEqual([]);
+  });
+});
