@@ -15,6 +15,7 @@ import { designIsoModule, evaluateIsoModule, type IsoModuleDesign } from './iso-
 import { stageWindows as windows, type WindowCorners, type WindowOptions } from './windows.ts';
 import type { OutputWindow } from './types.ts';
 import { flag } from './common.ts';
+import { kindModuleOf } from './registry.ts';
 
 export type { BuckDesign } from './buck/index.ts';
 export type { CoupledBuckDesign, SecondaryWinding, CoupledEvalOptions } from './cwbuck/index.ts';
@@ -40,18 +41,9 @@ export class StageInputError extends RangeError {}
 export function designStage(spec: StageSpec): DesignResult {
   if (!spec || typeof spec !== 'object') return { ok: false, flags: [flag('bad-input', 'error', 'spec: an object is required')] };
   try {
-    switch (spec.kind) {
-      case 'buck': return designBuck(spec);
-      case 'cwbuck': return designCoupledBuck(spec);
-      case 'ldo': return designLdo(spec);
-      case 'boost': return designBoost(spec);
-      case 'inverting': return designInverting(spec);
-      case 'buck-boost-4s': return designFourSwitch(spec);
-      case 'load-switch': return designLoadSwitch(spec);
-      case 'iso-module': return designIsoModule(spec);
-      default:
-        return { ok: false, flags: [flag('unsupported-kind', 'error', `kind: "${String(spec.kind)}" has no stage model (buck, cwbuck, ldo, boost, inverting, buck-boost-4s, load-switch, iso-module)`, { field: 'kind' })] };
-    }
+    const m = kindModuleOf(spec.kind);
+    if (m) return m.design(spec) as DesignResult;
+    return { ok: false, flags: [flag('unsupported-kind', 'error', `kind: "${String(spec.kind)}" has no stage model (buck, cwbuck, ldo, boost, inverting, buck-boost-4s, load-switch, iso-module)`, { field: 'kind' })] };
   } catch (e) {
     return { ok: false, flags: [flag('bad-input', 'error', `spec: ${(e as Error).message}`)] };
   }
@@ -72,17 +64,9 @@ function checkOp(design: StageDesign, op: OperatingPoint): void {
 
 export function evaluateStage(design: StageDesign, op: OperatingPoint, opts?: CoupledEvalOptions): StageEvaluation {
   checkOp(design, op);
-  switch (design.kind) {
-    case 'buck': return evaluateBuck(design, op);
-    case 'cwbuck': return evaluateCoupledBuck(design, op, opts);
-    case 'ldo': return evaluateLdo(design, op);
-    case 'boost': return evaluateBoost(design, op);
-    case 'inverting': return evaluateInverting(design, op);
-    case 'buck-boost-4s': return evaluateFourSwitch(design, op);
-    case 'load-switch': return evaluateLoadSwitch(design, op);
-    case 'iso-module': return evaluateIsoModule(design, op);
-    default: throw new StageInputError(`kind: "${String((design as { kind: unknown }).kind)}" has no stage model`);
-  }
+  const m = kindModuleOf(design.kind);
+  if (!m) throw new StageInputError(`kind: "${String((design as { kind: unknown }).kind)}" has no stage model`);
+  return m.evaluate(design, op, opts);
 }
 
 export function stageWindows(design: StageDesign, corners: WindowCorners, opts?: WindowOptions): OutputWindow[] {

@@ -1,0 +1,47 @@
+/**
+ * The stage kinds, registered in one list. Each kind module provides its designer and its
+ * evaluator; stages/index.ts dispatches through this table. (Issue 14 part 1: the window
+ * corners, BOM parts, netlist writer, drawing label and docs are still dispatched in
+ * windows.ts, library.ts, export/ and the CLI.)
+ */
+import type { StageModelKind } from '../model.ts';
+import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from './types.ts';
+import { designBuck, evaluateBuck, type BuckDesign } from './buck/index.ts';
+import { designCoupledBuck, evaluateCoupledBuck, type CoupledBuckDesign, type CoupledEvalOptions } from './cwbuck/index.ts';
+import { designLdo, evaluateLdo, type LdoDesign } from './ldo/index.ts';
+import { designBoost, evaluateBoost, type BoostDesign } from './boost/index.ts';
+import { designInverting, evaluateInverting, type InvertingDesign } from './inverting/index.ts';
+import { designFourSwitch, evaluateFourSwitch, type FourSwitchDesign } from './buck-boost-4s/index.ts';
+import { designLoadSwitch, evaluateLoadSwitch, type LoadSwitchDesign } from './load-switch/index.ts';
+import { designIsoModule, evaluateIsoModule, type IsoModuleDesign } from './iso-module/index.ts';
+
+export type KindDesignResult<D> =
+  | { ok: true; design: D; reasons: string[]; flags: StageFlag[] }
+  | { ok: false; flags: StageFlag[] };
+
+/** What every stage kind provides from its folder. */
+export interface StageKindModule<D extends { kind: StageModelKind }> {
+  kind: D['kind'];
+  design(spec: StageSpec): KindDesignResult<D>;
+  evaluate(design: D, op: OperatingPoint, opts?: CoupledEvalOptions): StageEvaluation;
+}
+
+function kindModule<D extends { kind: StageModelKind }>(m: StageKindModule<D>): StageKindModule<D> { return m; }
+
+export const STAGE_KINDS = {
+  'buck': kindModule<BuckDesign>({ kind: 'buck', design: designBuck, evaluate: (d, op) => evaluateBuck(d, op) }),
+  'cwbuck': kindModule<CoupledBuckDesign>({ kind: 'cwbuck', design: designCoupledBuck, evaluate: (d, op, o) => evaluateCoupledBuck(d, op, o) }),
+  'ldo': kindModule<LdoDesign>({ kind: 'ldo', design: designLdo, evaluate: (d, op) => evaluateLdo(d, op) }),
+  'boost': kindModule<BoostDesign>({ kind: 'boost', design: designBoost, evaluate: (d, op) => evaluateBoost(d, op) }),
+  'inverting': kindModule<InvertingDesign>({ kind: 'inverting', design: designInverting, evaluate: (d, op) => evaluateInverting(d, op) }),
+  'buck-boost-4s': kindModule<FourSwitchDesign>({ kind: 'buck-boost-4s', design: designFourSwitch, evaluate: (d, op) => evaluateFourSwitch(d, op) }),
+  'load-switch': kindModule<LoadSwitchDesign>({ kind: 'load-switch', design: designLoadSwitch, evaluate: (d, op) => evaluateLoadSwitch(d, op) }),
+  'iso-module': kindModule<IsoModuleDesign>({ kind: 'iso-module', design: designIsoModule, evaluate: (d, op) => evaluateIsoModule(d, op) }),
+} satisfies { [K in StageModelKind]: StageKindModule<{ kind: K }> & { kind: K } };
+
+/** The registered module of a kind, or undefined for a kind with no stage model. */
+export function kindModuleOf(kind: unknown): StageKindModule<{ kind: StageModelKind }> | undefined {
+  return typeof kind === 'string' && Object.prototype.hasOwnProperty.call(STAGE_KINDS, kind)
+    ? (STAGE_KINDS as Record<string, StageKindModule<any>>)[kind] // eslint-disable-line @typescript-eslint/no-explicit-any
+    : undefined;
+}

@@ -1,0 +1,26 @@
+// Every declared stage kind (engine/model.ts STAGE_MODEL_KINDS) is registered with a designer
+// and an evaluator (stages/registry.ts); an unknown kind is refused by name. Common practice.
+import { describe, expect, it } from 'vitest';
+import { STAGE_MODEL_KINDS } from '../../src-main/engine/model.ts';
+import { STAGE_KINDS, kindModuleOf } from '../../src-main/engine/stages/registry.ts';
+import { designStage } from '../../src-main/engine/stages/index.ts';
+
+describe('stage kind registry', () => {
+  for (const kind of STAGE_MODEL_KINDS) {
+    it(`${kind} provides every part of the interface`, () => {
+      const m = kindModuleOf(kind);
+      expect(m, kind).toBeDefined();
+      expect(m!.kind).toBe(kind);
+      expect(typeof m!.design).toBe('function');
+      expect(typeof m!.evaluate).toBe('function');
+    });
+  }
+  it('registers no kind that is not declared', () => {
+    expect(Object.keys(STAGE_KINDS).sort()).toEqual([...STAGE_MODEL_KINDS].sort());
+  });
+  it('refuses an unknown kind naming the field', () => {
+    const r = designStage({ kind: 'flyback' } as never);
+    expect(r.ok).toBe(false);
+    expect(r.flags[0]!.code).toBe('unsupported-kind');
+  });
+});
