@@ -983,7 +983,8 @@ export function busVoltageFor(vinMin: number): number {
 export function* generateBlocks(
   f: BlockFactory, opts: GenerationOptions,
   /** Filled as generation goes, so a caller that stops early keeps what was designed. */
-  into: { blocks: Block[]; misses: Map<number, Miss[]>; designed?: number } = { blocks: [], misses: new Map() },
+  /** `uncoveredOnly`, set by the caller mid-way, skips every shape that serves no rail still without a feasible feed. */
+  into: { blocks: Block[]; misses: Map<number, Miss[]>; designed?: number; uncoveredOnly?: boolean } = { blocks: [], misses: new Map() },
 ): Generator<void, { blocks: Block[]; misses: Map<number, Miss[]> }> {
   const blocks = into.blocks;
   const misses = into.misses;
@@ -997,15 +998,23 @@ export function* generateBlocks(
     }
   };
   into.designed = 0;
+  // Rails with a feasible feed so far.
+  const covered = new Set<number>();
+  for (const b of blocks) for (const r of b.covers) covered.add(r);
+  const servesUncovered = (s: BlockShape) => BlockFactory.covers(s).some((r) => !covered.has(r));
+  /** In the caller's rescue mode, shapes that serve only covered rails are passed over. */
+  const skip = (s: BlockShape) => into.uncoveredOnly === true && !servesUncovered(s);
   const add = (shape: BlockShape): boolean => {
     const res = f.evaluate(shape);
     into.designed = (into.designed ?? 0) + 1;
     if (!res.ok) { noteMiss(shape, res.rejections); return false; }
-    blocks.push({ index: blocks.length, key: BlockFactory.shapeKey(shape), shape, covers: BlockFactory.covers(shape), base: res.eval, score: 0 });
+    const covers = BlockFactory.covers(shape);
+    blocks.push({ index: blocks.length, key: BlockFactory.shapeKey(shape), shape, covers, base: res.eval, score: 0 });
+    for (const r of covers) covered.add(r);
     return true;
   };
   const { singles, coupled } = enumerateShapes(f, opts);
-  for (const s of singles) { add(s); yield; }
+  for (const s of singles) { if (skip(s)) continue; add(s); yield; }
   // Every winding set from 1 to maxSecondaries secondaries on every primary. No set is
   // skipped: a set whose subsets all miss can still be feasible (a ±12 V pair on a 5 V primary
   // where each winding alone misses its window), so no subset rule is sound for the engine
@@ -1022,14 +1031,8 @@ export function* generateBlocks(
   // pairs and triples that serve a rail still without a feed go before the rest, so that a
   // budget cut leaves a tree whenever one is reachable. This only orders the work: every set
   // is still designed when the budget allows.
-  const covered = new Set<number>();
-  for (const b of blocks) for (const r of b.covers) covered.add(r);
-  const design = (s: BlockShape) => {
-    designed.add(key(s));
-    if (add(s)) { feasible.add(key(s)); for (const r of BlockFactory.covers(s)) covered.add(r); }
-  };
-  const servesUncovered = (s: BlockShape) => BlockFactory.covers(s).some((r) => !covered.has(r));
-  for (const s of coupled(1)) { design(s); yield; }
+  const design = (s: BlockShape) => { designed.add(key(s)); if (add(s)) feasible.add(key(s)); };
+  for (const s of coupled(1)) { if (skip(s)) continue; design(s); yield; }
   for (let size = 2; size <= Math.min(3, opts.maxSecondaries); size++) {
     for (const s of coupled(size)) {
       if (designed.has(key(s)) || !servesUncovered(s)) continue;
@@ -1039,14 +1042,14 @@ export function* generateBlocks(
   }
   for (let size = 2; size <= opts.maxSecondaries; size++) {
     for (const s of coupled(size)) {
-      if (s.kind !== 'cwbuck' || designed.has(key(s)) || !promising(s)) continue;
+      if (s.kind !== 'cwbuck' || designed.has(key(s)) || skip(s) || !promising(s)) continue;
       design(s);
       yield;
     }
   }
   for (let size = 2; size <= opts.maxSecondaries; size++) {
     for (const s of coupled(size)) {
-      if (designed.has(key(s))) continue;
+      if (designed.has(key(s)) || skip(s)) continue;
       design(s);
       yield;
     }

@@ -129,6 +129,8 @@ export class PlanSolver {
       for (let i = this.coveredSeen; i < this.blocks.length; i++) for (const r of this.blocks[i]!.covers) if (!this.covered[r]) { this.covered[r] = 1; this.coveredCount++; }
       this.coveredSeen = this.blocks.length;
     }
+    // Past the design share with a rail unserved: design only the shapes that serve such a rail.
+    if (this.coveredCount < n && this.genState) this.genState.uncoveredOnly = true;
     return this.coveredCount < n ? this.t0 + DESIGN_LATE_SHARE * Math.min(this.budgetMs, EXACT_SEARCH_CAP_MS) : this.designDeadline;
   }
   private cutShare = DESIGN_SHARE;
@@ -183,6 +185,8 @@ export class PlanSolver {
       case 'candidates': {
         const r = this.gen!.next();
         if (r.done) {
+          // Shapes passed over in the late phase were never designed: the space was cut.
+          if (this.genState?.uncoveredOnly) { this.allComplete = false; this.candidatesCut = true; }
           this.blocks = r.value.blocks;
           this.misses = r.value.misses;
           this.gen = null;
@@ -309,7 +313,7 @@ export class PlanSolver {
   }
 
   private space: PlanSpace | null = null;
-  private genState: { blocks: Block[]; misses: Map<number, Miss[]>; designed?: number } | null = null;
+  private genState: { blocks: Block[]; misses: Map<number, Miss[]>; designed?: number; uncoveredOnly?: boolean } | null = null;
   private pendingSeed: Seed | null = null;
   private seenBest: SearchOutcome['best'] = null;
   private candidatesCut = false;
