@@ -12,7 +12,7 @@
 import type { Id } from './model.ts';
 import type { Plan } from './plan-types.ts';
 import { designOutputOrder, type Rollup, type StageModels, STAGE_MODELS, VIN_CASES } from './rollup.ts';
-import type { Amps, Volts } from './units.ts';
+import type { Amps, Celsius, Volts } from './units.ts';
 
 export interface CurvePoint {
   /** Load fraction of the stage's largest load (load sweep) or 1 (Vin sweep). */
@@ -78,7 +78,7 @@ export function stageCurves(plan: Plan, rollup: Rollup, stageId: Id, ambient: nu
 
   // Operating point: the mode where the stage delivers most power, nominal input.
   let best: { modeId: Id; modeName: string; fig: Rollup['modes'][number]['cases']['nom']['stages'][number]; mode: Rollup['modes'][number] } | null = null;
-  const ioutMax = ids.map(() => 0);
+  const ioutMax: number[] = ids.map(() => 0);
   for (const m of rollup.modes) {
     for (const c of VIN_CASES) {
       const f = m.cases[c].stages.find((x) => x.stageId === stageId);
@@ -95,12 +95,12 @@ export function stageCurves(plan: Plan, rollup: Rollup, stageId: Id, ambient: nu
   const b = vinOf('max');
   const vinRange = { min: Math.min(a, b, vNom), nom: vNom, max: Math.max(a, b, vNom) };
   const opIout = currents(best.fig);
-  if (ioutMax.every((i) => i === 0)) ioutMax.forEach((_, k) => { ioutMax[k] = opIout[k] ?? 0; });
+  if (!ioutMax.some((i) => i > 0)) ioutMax.forEach((_, k) => { ioutMax[k] = opIout[k] ?? 0; });
 
   const skipped: string[] = [];
   const point = (vin: number, iout: number[], fraction: number): CurvePoint | null => {
     try {
-      const ev = models.evaluate(st.design, { vin: vin as Volts, iout: iout as Amps[], ambient });
+      const ev = models.evaluate(st.design, { vin: vin as Volts, iout: iout as Amps[], ambient: ambient as Celsius });
       if (!Number.isFinite(ev.pin) || !Number.isFinite(ev.loss)) { skipped.push(`Vin ${vin} V, load ${(fraction * 100).toFixed(0)} %: non-finite power`); return null; }
       return { fraction, vin, iout: iout.reduce((s, x) => s + x, 0), pin: ev.pin, pout: ev.pout, loss: ev.loss, efficiency: ev.efficiency };
     } catch (e) {
