@@ -1,7 +1,7 @@
 /**
  * Line plots as SVG text (pure: no DOM). Axes with "nice" ticks in engineering notation and
- * units, a legend, colours from the window's CSS variables (--fg, --muted, --line, --panel and
- * --plot-1…--plot-4, with fallbacks so a saved file reads on its own). Every piece of user
+ * units, a legend, colours from the window's CSS variables (--ink, --ink-soft, --line-soft, --panel,
+ * --accent, --plot-2…--plot-4, with fallbacks so a saved file reads on its own). Every piece of user
  * text (stage and rail names, series labels) is XML-escaped.
  */
 import { formatQuantity } from '../../src-main/engine/notation.ts';
@@ -58,7 +58,7 @@ export function tickText(v: number, kind: QuantityKind | 'percent'): string {
   return formatQuantity(v, kind, 3);
 }
 
-const COLOURS = ['var(--plot-1, #2f6fd0)', 'var(--plot-2, #d0722f)', 'var(--plot-3, #2f9d5a)', 'var(--plot-4, #9b4fc0)'];
+const COLOURS = ['var(--accent, #0f5f59)', 'var(--plot-2, #d0722f)', 'var(--plot-3, #2f6fd0)', 'var(--plot-4, #9b4fc0)'];
 
 export function plotSvg(spec: PlotSpec): string {
   const W = spec.width ?? 340;
@@ -79,18 +79,18 @@ export function plotSvg(spec: PlotSpec): string {
   out.push(`<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" font-family="system-ui, sans-serif" font-size="10" role="img" aria-label="${xmlEscape(spec.title)}">`);
   out.push(`<title>${xmlEscape(spec.title)}</title>`);
   out.push(`<rect x="0" y="0" width="${W}" height="${H}" fill="var(--panel, #ffffff)"/>`);
-  out.push(`<text x="${m.l}" y="13" font-size="11" font-weight="600" fill="var(--fg, #1b1f24)">${xmlEscape(spec.title)}</text>`);
+  out.push(`<text x="${m.l}" y="13" font-size="11" font-weight="600" fill="var(--ink, #1f2933)">${xmlEscape(spec.title)}</text>`);
   out.push('<g class="grid">');
-  for (const t of xt) out.push(`<line x1="${f(X(t))}" y1="${m.t}" x2="${f(X(t))}" y2="${m.t + ph}" stroke="var(--line, #d5d9de)" stroke-width="0.5"/>`);
-  for (const t of yt) out.push(`<line x1="${m.l}" y1="${f(Y(t))}" x2="${m.l + pw}" y2="${f(Y(t))}" stroke="var(--line, #d5d9de)" stroke-width="0.5"/>`);
+  for (const t of xt) out.push(`<line x1="${f(X(t))}" y1="${m.t}" x2="${f(X(t))}" y2="${m.t + ph}" stroke="var(--line-soft, #e4e7eb)" stroke-width="0.5"/>`);
+  for (const t of yt) out.push(`<line x1="${m.l}" y1="${f(Y(t))}" x2="${m.l + pw}" y2="${f(Y(t))}" stroke="var(--line-soft, #e4e7eb)" stroke-width="0.5"/>`);
   out.push('</g>');
-  out.push(`<rect x="${m.l}" y="${m.t}" width="${pw}" height="${ph}" fill="none" stroke="var(--muted, #69727d)" stroke-width="0.8"/>`);
-  out.push('<g class="ticks" fill="var(--fg, #1b1f24)">');
+  out.push(`<rect x="${m.l}" y="${m.t}" width="${pw}" height="${ph}" fill="none" stroke="var(--ink-soft, #616e7c)" stroke-width="0.8"/>`);
+  out.push('<g class="ticks" fill="var(--ink, #1f2933)">');
   for (const t of xt) out.push(`<text x="${f(X(t))}" y="${m.t + ph + 12}" text-anchor="middle">${xmlEscape(tickText(t, spec.xKind))}</text>`);
   for (const t of yt) out.push(`<text x="${m.l - 4}" y="${f(Y(t) + 3)}" text-anchor="end">${xmlEscape(tickText(t, spec.yKind))}</text>`);
   out.push('</g>');
-  out.push(`<text x="${m.l + pw / 2}" y="${m.t + ph + 25}" text-anchor="middle" fill="var(--muted, #69727d)">${xmlEscape(spec.xLabel)}</text>`);
-  out.push(`<text transform="translate(11 ${m.t + ph / 2}) rotate(-90)" text-anchor="middle" fill="var(--muted, #69727d)">${xmlEscape(spec.yLabel)}</text>`);
+  out.push(`<text x="${m.l + pw / 2}" y="${m.t + ph + 25}" text-anchor="middle" fill="var(--ink-soft, #616e7c)">${xmlEscape(spec.xLabel)}</text>`);
+  out.push(`<text transform="translate(11 ${m.t + ph / 2}) rotate(-90)" text-anchor="middle" fill="var(--ink-soft, #616e7c)">${xmlEscape(spec.yLabel)}</text>`);
   series.forEach((s, k) => {
     const c = COLOURS[k % COLOURS.length]!;
     out.push(`<g class="series" data-series="${k}">`);
@@ -103,10 +103,10 @@ export function plotSvg(spec: PlotSpec): string {
       const d = s.points.map((p, i) => `${i ? 'L' : 'M'}${f(X(p.x))} ${f(Y(p.y))}`).join(' ');
       out.push(`<path d="${d}" fill="none" stroke="${c}" stroke-width="1.6"/>`);
     }
-    if (s.mark) out.push(`<circle class="mark" cx="${f(X(s.mark.x))}" cy="${f(Y(s.mark.y))}" r="4" fill="none" stroke="var(--fg, #1b1f24)" stroke-width="1.2"/>`);
+    if (s.mark) out.push(`<circle class="mark" cx="${f(X(s.mark.x))}" cy="${f(Y(s.mark.y))}" r="4" fill="none" stroke="var(--ink, #1f2933)" stroke-width="1.2"/>`);
     out.push('</g>');
     const ly = m.t + ph + 38 + 14 * k;
-    out.push(`<g class="legend"><line x1="${m.l}" y1="${ly - 3}" x2="${m.l + 16}" y2="${ly - 3}" stroke="${c}" stroke-width="2"/><text x="${m.l + 20}" y="${ly}" fill="var(--fg, #1b1f24)">${xmlEscape(s.label)}</text></g>`);
+    out.push(`<g class="legend"><line x1="${m.l}" y1="${ly - 3}" x2="${m.l + 16}" y2="${ly - 3}" stroke="${c}" stroke-width="2"/><text x="${m.l + 20}" y="${ly}" fill="var(--ink, #1f2933)">${xmlEscape(s.label)}</text></g>`);
   });
   out.push('</svg>');
   return out.join('');
