@@ -65,7 +65,7 @@ export function plotSvg(spec: PlotSpec): string {
   const H = spec.height ?? 230;
   const series = spec.series.filter((s) => s.points.length > 0);
   const legendRows = series.length;
-  const m = { l: 52, r: 10, t: 22, b: 34 + 14 * legendRows };
+  const m = { l: 62, r: 12, t: 22, b: 34 + 14 * legendRows };
   const xs = series.flatMap((s) => s.points.map((p) => p.x)).filter(Number.isFinite);
   const ys = series.flatMap((s) => s.points.map((p) => p.y)).filter(Number.isFinite);
   const xt = niceTicks(xs.length ? Math.min(...xs) : 0, xs.length ? Math.max(...xs) : 1);
@@ -90,7 +90,7 @@ export function plotSvg(spec: PlotSpec): string {
   for (const t of yt) out.push(`<text x="${m.l - 4}" y="${f(Y(t) + 3)}" text-anchor="end">${xmlEscape(tickText(t, spec.yKind))}</text>`);
   out.push('</g>');
   out.push(`<text x="${m.l + pw / 2}" y="${m.t + ph + 25}" text-anchor="middle" fill="var(--ink-soft, #616e7c)">${xmlEscape(spec.xLabel)}</text>`);
-  out.push(`<text transform="translate(11 ${m.t + ph / 2}) rotate(-90)" text-anchor="middle" fill="var(--ink-soft, #616e7c)">${xmlEscape(spec.yLabel)}</text>`);
+  out.push(`<text transform="translate(10 ${m.t + ph / 2}) rotate(-90)" text-anchor="middle" fill="var(--ink-soft, #616e7c)">${xmlEscape(spec.yLabel)}</text>`);
   series.forEach((s, k) => {
     const c = COLOURS[k % COLOURS.length]!;
     out.push(`<g class="series" data-series="${k}">`);
