@@ -65,7 +65,7 @@ export function plotSvg(spec: PlotSpec): string {
   const H = spec.height ?? 230;
   const series = spec.series.filter((s) => s.points.length > 0);
   const legendRows = series.length;
-  const m = { l: 62, r: 12, t: 22, b: 34 + 14 * legendRows };
+  const m = { l: 62, r: 22, t: 22, b: 34 + 14 * legendRows };
   const xs = series.flatMap((s) => s.points.map((p) => p.x)).filter(Number.isFinite);
   const ys = series.flatMap((s) => s.points.map((p) => p.y)).filter(Number.isFinite);
   const xt = niceTicks(xs.length ? Math.min(...xs) : 0, xs.length ? Math.max(...xs) : 1);
