@@ -68,7 +68,7 @@ export function plotSvg(spec: PlotSpec): string {
   const m = { l: 62, r: 22, t: 22, b: 34 + 14 * legendRows };
   const xs = series.flatMap((s) => s.points.map((p) => p.x)).filter(Number.isFinite);
   const ys = series.flatMap((s) => s.points.map((p) => p.y)).filter(Number.isFinite);
-  const xt = niceTicks(xs.length ? Math.min(...xs) : 0, xs.length ? Math.max(...xs) : 1);
+  const xt = niceTicks(xs.length ? Math.min(...xs) : 0, xs.length ? Math.max(...xs) : 1, W < 420 ? 4 : 6);
   const yt = niceTicks(ys.length ? Math.min(...ys) : 0, ys.length ? Math.max(...ys) : 1);
   const x0 = xt[0]!, x1 = xt[xt.length - 1]!, y0 = yt[0]!, y1 = yt[yt.length - 1]!;
   const pw = W - m.l - m.r, ph = H - m.t - m.b;
