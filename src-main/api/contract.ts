@@ -366,6 +366,21 @@ export interface LoadImportFile {
   preview: LoadImportPreview;
 }
 
+/** One point of a stage curve (engine/curves.ts). */
+export interface CurvePointView { fraction: number; vin: number; iout: number; pin: number; pout: number; loss: number; efficiency: number }
+export interface CurveSeriesView { label: string; vin: number; points: CurvePointView[] }
+/** Stage curves of the shown plan; the operating point is the roll-up's (as in Budget). */
+export interface StageCurvesView {
+  stageId: Id;
+  stageName: string;
+  operating: { modeId: Id; modeName: string; vin: number; iout: number[]; loss: number; efficiency: number };
+  ioutMax: number[];
+  vinRange: { min: number; nom: number; max: number };
+  load: CurveSeriesView[];
+  input: CurveSeriesView;
+  skipped: string[];
+}
+
 export interface Requests {
   'project.snapshot': (args: Record<string, never>) => Snapshot;
   'project.new': (args: { discard?: boolean }) => Snapshot;
@@ -407,6 +422,12 @@ export interface Requests {
   'isolation.limits': (args: Record<string, never>) => LeakageLimitView[];
   /** Y-capacitor leakage across a barrier, I = 2π·f·C·V, against the chosen limit. */
   'isolation.check': (args: { capacitance: string; voltageRms: string; frequency: string; limitId: string }) => BarrierCheckView;
+
+  /**
+   * Efficiency and loss of one stage of the shown plan, swept with the stage engine over load
+   * (at Vin min/nom/max) and over Vin (at the roll-up's nominal operating point).
+   */
+  'plot.stageCurves': (args: { stageId: Id }) => StageCurvesView;
 
   /** An existing file at `path` is replaced only with `overwrite: true` (else code `exists`). */
   /** Read a load list (CSV or XLSX bytes as base64) and preview it under a guessed column mapping; changes nothing. */

@@ -13,6 +13,7 @@ import { exportHandlers } from './export.ts';
 import { fileHandlers } from './files.ts';
 import { isolationHandlers } from './isolation.ts';
 import { importHandlers } from './imports.ts';
+import { plotHandlers } from './plot.ts';
 
 export const HANDLERS = {
   ...projectHandlers,
@@ -23,6 +24,7 @@ export const HANDLERS = {
   ...exportHandlers,
   ...isolationHandlers,
   ...importHandlers,
+  ...plotHandlers,
 } satisfies HandlerTable;
 
 export interface Api {
