@@ -4,8 +4,8 @@
  * --accent, --plot-2…--plot-4, with fallbacks so a saved file reads on its own). Every piece of user
  * text (stage and rail names, series labels) is XML-escaped.
  */
-import { formatQuantity } from '../../src-main/engine/notation.ts';
-import type { QuantityKind } from '../../src-main/engine/units.ts';
+import { formatQuantity } from '../../src-main/api/window-shared.ts';
+import type { QuantityKind } from '../../src-main/api/contract.ts';
 
 export interface PlotSeries {
   label: string;
