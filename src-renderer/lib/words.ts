@@ -40,6 +40,7 @@ const FIELDS: Record<string, [string, Unit]> = {
   inductor: ['inductor', 'plain'], highSide: ['high-side switch', 'plain'], lowSide: ['low-side switch', 'plain'], controller: ['controller', 'plain'],
   // Boost, inverting and four-switch buck-boost
   dcr: ['inductor DC resistance', 'resistance'], rhpZero: ['right-half-plane zero (Vin min, full load)', 'frequency'],
+  fMin: ['lowest frequency of the loss fit', 'frequency'], fMax: ['highest frequency of the loss fit', 'frequency'],
   crossoverLimit: ['loop crossover limit (RHP zero / 5)', 'frequency'], transitionBand: ['transition band (both legs switch)', 'voltage'],
   // Load switch
   ron: ['on-resistance at 25 °C', 'resistance'], ronTempCoeff: ['on-resistance temperature coefficient (per K)', 'plain'],
@@ -127,6 +128,7 @@ const LOSSES: Record<string, string> = {
   'ls-conduction': 'low-side switch conduction',
   'hs-switching': 'high-side switching transitions',
   'output-capacitance': 'switch output capacitance (Coss) charge',
+  'reverse-recovery': 'body diode reverse recovery',
   'dead-time': 'body diode in dead time',
   'gate-drive': 'gate drive',
   'primary-copper': 'primary winding copper',

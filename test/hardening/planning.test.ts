@@ -30,6 +30,9 @@ const KNOWN_SLOW_LIST: string[] = [];
 
 /** A load in plain numbers (SI); branded types are applied when the project is built. */
 type LoadSpec = { voltage: number; tolerance?: number; rippleLimit?: number; current?: Record<string, number>; domainId?: string; railKey?: string; noiseClass?: Load['noiseClass'] };
+/** Only step-down kinds allowed: a project with every rail above the input then has no tree (a boost or four-switch stage would serve it). */
+const stepDownOnly = (r: Requirements) => { r.preferences.allowedKinds = ['buck', 'cwbuck', 'ldo']; };
+
 function project(name: string, loads: LoadSpec[], tweak?: (r: Requirements) => void): Requirements {
   const r = newRequirements();
   r.meta.name = name;
@@ -50,8 +53,8 @@ const range = (n: number) => Array.from({ length: n }, (_, i) => i);
 function instances(): { name: string; req: Requirements; expectInfeasible?: boolean }[] {
   const out: { name: string; req: Requirements; expectInfeasible?: boolean }[] = [];
   // Every rail above the 11–13 V input: no step-down stage can make any of them.
-  out.push({ name: '30 rails, all above the input', req: project('all above input', range(30).map((i) => ({ voltage: 14 + i, railKey: `r${i}` }))), expectInfeasible: true });
-  out.push({ name: '40 rails, all above the input', req: project('forty above input', range(40).map((i) => ({ voltage: 14 + i, railKey: `r${i}` }))), expectInfeasible: true });
+  out.push({ name: '30 rails, all above the input', req: project('all above input', range(30).map((i) => ({ voltage: 14 + i, railKey: `r${i}` })), stepDownOnly), expectInfeasible: true });
+  out.push({ name: '40 rails, all above the input', req: project('forty above input', range(40).map((i) => ({ voltage: 14 + i, railKey: `r${i}` })), stepDownOnly), expectInfeasible: true });
   // Contradictory tolerances: one rail key holds loads of 3.3 V ±0.01 % and 3.3 V ±10 %
   // with ripple limits far below what any stage gives.
   out.push({
