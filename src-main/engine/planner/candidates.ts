@@ -857,6 +857,15 @@ export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { sin
   /** Every shape with `size` secondaries on each primary, one at a time (no list in memory). */
   const coupled = function* (size: number): Generator<BlockShape> {
     if (size > opts.maxSecondaries || size < 1) return;
+    if (size === 1) {
+      // One secondary: rail by rail, every primary for it (internal buses first: a bus feeds
+      // no rail of its own, so its stage never competes with another for a primary). A budget
+      // cut then leaves each rail several primaries to choose from, which an exact cover of
+      // the rails needs when several isolated rails each want a stage of their own.
+      const order = [...primaries.filter((p) => p.primary === null), ...primaries.filter((p) => p.primary !== null)];
+      for (let j = 0; j < n; j++) for (const p of order) if (j !== p.primary) yield cw(p, [j]);
+      return;
+    }
     for (const p of primaries) {
       const cand: number[] = [];
       for (let j = 0; j < n; j++) if (j !== p.primary) cand.push(j);

@@ -185,3 +185,39 @@ export function* branchAndBound(
 export function railMask(covers: readonly number[]): number {
   return covers.reduce((m, r) => (m | (1 << r)) >>> 0, 0);
 }
+
+/**
+ * Whether some set of the blocks feeds every one of `n` rails exactly once (the cover alone:
+ * no scores, no coupling). Depth first on the lowest open rail, remembering the open sets
+ * already shown to have no cover. `nodeCap` bounds the work: past it the answer is `null`
+ * (unknown), which a caller treats as "maybe".
+ */
+export function exactCoverExists(n: number, covers: readonly (readonly number[])[], nodeCap = 50_000): boolean | null {
+  if (n === 0) return true;
+  if (n > MAX_RAILS) throw new RangeError(`the search handles up to ${MAX_RAILS} rails (got ${n})`);
+  const lo = covers.map((c) => c.reduce((m, r) => (r < 32 ? (m | (1 << r)) >>> 0 : m), 0));
+  const hi = covers.map((c) => c.reduce((m, r) => (r >= 32 ? (m | (1 << (r - 32))) >>> 0 : m), 0));
+  const byRail: number[][] = Array.from({ length: n }, () => []);
+  covers.forEach((c, i) => { for (const r of c) if (r >= 0 && r < n) byRail[r]!.push(i); });
+  const word = (k: number) => (k >= 32 ? 0xffffffff : ((1 << k) >>> 0) - 1);
+  const dead = new Set<string>();
+  let nodes = 0;
+  let capped = false;
+  const lowBit = (m: number) => 31 - Math.clz32(m & -m);
+  const go = (rem: number, remHi: number): boolean => {
+    if (rem === 0 && remHi === 0) return true;
+    const k = `${rem}:${remHi}`;
+    if (dead.has(k)) return false;
+    if (++nodes > nodeCap) { capped = true; return false; }
+    const r = rem ? lowBit(rem) : 32 + lowBit(remHi);
+    for (const i of byRail[r]!) {
+      if ((lo[i]! & rem) >>> 0 !== lo[i]! || (hi[i]! & remHi) >>> 0 !== hi[i]!) continue;
+      if (go((rem & ~lo[i]!) >>> 0, (remHi & ~hi[i]!) >>> 0)) return true;
+      if (capped) return false;
+    }
+    dead.add(k);
+    return false;
+  };
+  const found = go(word(Math.min(n, 32)), n > 32 ? word(n - 32) : 0);
+  return found ? true : capped ? null : false;
+}

@@ -19,7 +19,7 @@ import { BlockFactory, generateBlocks, spaceSize, type GenerationOptions, type M
 import { inventedCostModel } from './cost-model.ts';
 import { generationOptions, railHasFeed } from './remedies.ts';
 import { makeScorer, OBJECTIVES, type Objective, type Scorer, type SelectionEval } from './score.ts';
-import { branchAndBound, MAX_RAILS, type SearchOutcome } from './search.ts';
+import { branchAndBound, exactCoverExists, MAX_RAILS, type SearchOutcome } from './search.ts';
 import type { Block, CostModel, StageEvaluator } from './types.ts';
 
 export interface PlannerOptions {
@@ -118,9 +118,12 @@ export class PlanSolver {
   private get designDeadline(): number { return this.t0 + DESIGN_SHARE * Math.min(this.budgetMs, EXACT_SEARCH_CAP_MS); }
 
   /**
-   * When candidate design stops: at the design share once every rail has a feasible feed (the
-   * search then has a tree to find); while some rail has none, a search could not complete a
-   * tree, so design goes on to DESIGN_LATE_SHARE of the budget.
+   * When candidate design stops: at the design share once the blocks designed so far can form a
+   * tree (every rail fed exactly once); until then a search could not complete a tree, so design
+   * goes on to DESIGN_LATE_SHARE of the budget. While some rail has no feasible feed at all, only
+   * the shapes that serve such a rail are designed; once every rail has one but no exact cover
+   * exists yet (a rail served only by a winding set that overlaps every other way to feed its
+   * neighbours), every shape is designed in the usual order.
    */
   private designCutoff(): number {
     if (this.now() <= this.designDeadline) return this.designDeadline;
@@ -129,10 +132,21 @@ export class PlanSolver {
       for (let i = this.coveredSeen; i < this.blocks.length; i++) for (const r of this.blocks[i]!.covers) if (!this.covered[r]) { this.covered[r] = 1; this.coveredCount++; }
       this.coveredSeen = this.blocks.length;
     }
-    // Past the design share with a rail unserved: design only the shapes that serve such a rail.
-    if (this.coveredCount < n && this.genState) this.genState.uncoveredOnly = true;
-    return this.coveredCount < n ? this.t0 + DESIGN_LATE_SHARE * Math.min(this.budgetMs, EXACT_SEARCH_CAP_MS) : this.designDeadline;
+    if (this.genState) this.genState.uncoveredOnly = this.coveredCount < n;
+    return this.treeReachable() ? this.designDeadline : this.t0 + DESIGN_LATE_SHARE * Math.min(this.budgetMs, EXACT_SEARCH_CAP_MS);
   }
+  /** Whether the blocks designed so far hold an exact cover of the rails (re-checked only when blocks were added). */
+  private treeReachable(): boolean {
+    if (this.coveredCount < this.rails.length) return false;
+    if (this.reachableAt !== this.blocks.length) {
+      this.reachableAt = this.blocks.length;
+      // An unknown answer (node cap) counts as reachable: the search then decides.
+      this.reachable = exactCoverExists(this.rails.length, this.blocks.map((b) => b.covers)) !== false;
+    }
+    return this.reachable;
+  }
+  private reachableAt = -1;
+  private reachable = false;
   private cutShare = DESIGN_SHARE;
   private covered = new Uint8Array(64);
   private coveredCount = 0;
@@ -154,7 +168,7 @@ export class PlanSolver {
     if (this.progress.phase === 'candidates' && this.gen && this.now() > this.designCutoff()) {
       // Out of time while designing candidates: search with the blocks designed so far.
       this.allComplete = false;
-      this.cutShare = this.coveredCount < this.rails.length ? DESIGN_LATE_SHARE : DESIGN_SHARE;
+      this.cutShare = this.treeReachable() ? DESIGN_SHARE : DESIGN_LATE_SHARE;
       this.trace.push(`${Math.round(this.cutShare * 100)} % of the ${this.budgetMs} ms budget used while designing candidates; searching the ${this.genState?.designed ?? 0} of ${this.space?.candidates ?? 0} designed so far`);
       this.gen = null;
       this.candidatesCut = true;
