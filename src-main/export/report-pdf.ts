@@ -229,7 +229,7 @@ export async function reportToPdf(input: ReportInput): Promise<Uint8Array> {
   table(doc, [
     { header: 'Stage', width: 95 }, { header: 'Part', width: 90 }, { header: 'Power', width: 50, align: 'right' }, { header: 'θJA K/W', width: 42, align: 'right' },
     { header: 'θJA from', width: 88 }, { header: 'Tj', width: 45, align: 'right' }, { header: 'Margin', width: 42, align: 'right' }, { header: 'Where', width: W - 452 },
-  ], rollup.thermal.map((t) => [t.stageName, t.role, q(t.power, 'W'), t.thetaJA.toFixed(0), t.thetaSource === 'library' ? 'library' : 'default, from memory',
+  ], rollup.thermal.map((t) => [t.stageName, t.role, q(t.power, 'W'), t.thetaJA.toFixed(0), t.thetaSource === 'library' ? 'library' : t.thetaSource === 'core-surface' ? 'core surface, computed' : 'default, from memory',
     `${t.tj.toFixed(1)} °C`, `${t.margin.toFixed(1)} K`, `${t.modeName}, Vin ${t.vinCase}`]), { size: 7.5 });
 
   // 6 Windows

@@ -13,6 +13,7 @@ import { plan } from '../../src-main/engine/planner/solver.ts';
 import { engineEvaluator } from '../../src-main/engine/planner/evaluator.ts';
 import { randomRequirements } from '../../src-main/engine/planner/instances.ts';
 import { buildBom } from '../../src-main/engine/bom.ts';
+import { temperatureRise } from '../../src-main/engine/core-design.ts';
 import type { Amps, Celsius, Hertz, Ratio, Volts } from '../../src-main/engine/units.ts';
 
 const lib: LibraryRow[] = (() => {
@@ -165,7 +166,17 @@ describe('property: over random plans, every BOM line is the part the evaluation
         const ev = evaluateStage(d, { vin: req.sources[0]!.vNom, iout: d.outputs.map((o) => o.currentMax), ambient: req.limits.ambient });
         if ((d as { integrated?: boolean }).integrated) expect(ev.parts.some((p) => p.role === 'high-side switch')).toBe(false);
         expect(ev.parts.filter((p) => p.role !== 'inductor' && p.role !== 'coupled magnetic').every((p) => p.thetaSource === 'library')).toBe(true);
-        if (d.kind === 'cwbuck') cwSeen++;
+        if (d.kind === 'cwbuck') {
+          cwSeen++;
+          // A designed magnetic's θ is its hot-spot rise from the core's surface at this loss
+          // (McLyman's surface-rise formula, core-design.ts), labelled as computed, not as a default.
+          const cw = d as { magneticCore?: { core: { surface: number } } };
+          const mag = ev.parts.find((p) => p.role === 'coupled magnetic')!;
+          if (cw.magneticCore && mag.power > 0) {
+            expect(mag.thetaSource).toBe('core-surface');
+            expect(mag.thetaJA * mag.power).toBeCloseTo(temperatureRise(mag.power, cw.magneticCore.core.surface), 9);
+          }
+        }
         stagesSeen++;
       }
       const bom = buildBom(req, best, lib);

@@ -91,8 +91,11 @@ export interface DissipatingPart {
   role: string;
   power: Watts;
   thetaJA: KelvinPerWatt;
-  /** Where θJA came from: part library data, or a default from memory. */
-  thetaSource: 'library' | 'default-from-memory';
+  /**
+   * Where θJA came from: part library data, a default from memory, or (a designed magnetic)
+   * the hot-spot rise computed from its core's surface at this loss.
+   */
+  thetaSource: 'library' | 'default-from-memory' | 'core-surface';
   /** Junction (or hot-spot) temperature at the given ambient. */
   tj: Celsius;
 }

@@ -742,7 +742,7 @@ export function evaluateCoupledBuck(d: CoupledBuckDesign, op: OperatingPoint, op
       loss['hs-conduction']! + loss['hs-switching']! + loss['output-capacitance']! / 2,
       loss['ls-conduction']! + loss['dead-time']! + loss['output-capacitance']! / 2,
       loss['gate-drive']! + loss.quiescent!, ta),
-    part('coupled magnetic', magPower, magTheta, ta),
+    part('coupled magnetic', magPower, magTheta, ta, d.magneticCore && magPower > 0 ? 'core-surface' : 'default-from-memory'),
     ...p.sec.map((s, i) => part(`rectifier D${i + 1}`, s.pRect, d.secondaries[i]!.thetaJA, ta, thetaSourceOf(d))),
   ];
   const flags: StageFlag[] = [...switchingFlags(d, vin, required, p.impk, p.iend), ...thermalFlags(parts, d.tjMax), ...rippleFlags(outputs, d.outputs)];
