@@ -5,7 +5,7 @@
  * and working voltage of the barrier the windings cross (from the domain), with cautions.
  */
 import type { BuckDesign } from './stages/buck/index.ts';
-import { coupledMagneticDemand, magneticTolerance, windingCurrents, withMagneticCorner, type CoupledBuckDesign } from './stages/cwbuck/index.ts';
+import { coupledMagneticDemand, leakageProblems, magneticTolerance, windingCurrents, withMagneticCorner, type CoupledBuckDesign } from './stages/cwbuck/index.ts';
 import { designMagneticCore, type CoreDesign, type MagneticDesignOptions } from './core-design.ts';
 import { buckPoint } from './stages/buck/index.ts';
 import { awgDiameterMm, copperOhmsPerMetre, wireFor } from './awg.ts';
@@ -117,16 +117,15 @@ export function magneticSpec(d: BuckDesign | CoupledBuckDesign, opts: { currentD
     return { nodeId: w.nodeId, maxLeakage, minCoupling: w.coupling, minLeakage: maxLeakage * tol.leakageLow, maxCoupling: tight.secondaries[i]!.coupling };
   });
   // The construction's estimated leakage, referred to each secondary (× n²), must not exceed
-  // what the stage design assumed, or the secondaries sag below the computed windows.
-  core?.leakage.forEach((l, i) => {
-    const w = d.secondaries[i]!;
-    const n = Math.abs(w.turns) / d.primaryTurns;
-    const atSec = l * n * n;
-    if (atSec > leakageTargets[i]!.maxLeakage) {
-      core.problems.push(`estimated leakage of S${i + 1} (${(atSec * 1e9).toFixed(0)} nH at the secondary) exceeds the ${(leakageTargets[i]!.maxLeakage * 1e9).toFixed(0)} nH the design assumed: interleave or wind bifilar`);
+  // what the stage design assumed, or the secondaries sag below the computed windows (the
+  // stage's own core already carries this check).
+  if (core) {
+    for (const text of leakageProblems(d, core)) {
+      if (core.problems.includes(text)) continue;
+      core.problems.push(text);
       core.ok = false;
     }
-  });
+  }
   if (core && !core.ok) cautions.push(`The core design did not close: ${core.problems.join('; ')}.`);
   return {
     kind: 'coupled',

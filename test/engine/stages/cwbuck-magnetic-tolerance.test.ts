@@ -115,3 +115,32 @@ describe('stage loss breakdown from the designed core', () => {
     }
   });
 });
+
+describe('the stage and its specification sheet agree on whether the core design closes', () => {
+  // A tightly specified magnetic (coupling 0.995) with high-ratio secondaries on a 5 V primary:
+  // the layered construction's estimated leakage can exceed what the design assumed.
+  const tight = (coupling: number) => ({ kind: 'cwbuck', vinMin: 9, vinNom: 24, vinMax: 36, fsw: 400e3, ambient: 60, tjMax: 125, ceramicDerating: 0.6, coupling,
+    outputs: [o('p5', 5, 0.02, 0.4, 0.03, 0.05), o('t18', 18.6, 0.01, 0.06, 0.1), o('t14', -14.5, 0.01, 0.05, 0.1), o('t10', 10, 0.02, 0.2, 0.1)] } as unknown as StageSpec);
+  it('flags the stage whenever the sheet finds the construction leakier than the windows assumed', () => {
+    let open = 0;
+    for (const k of [0.97, 0.985, 0.99, 0.995, 0.998]) {
+      const r = designStage(tight(k));
+      if (!r.ok || r.design.kind !== 'cwbuck') continue;
+      const d = r.design;
+      const sheet = magneticSpec(d);
+      const flagged = r.flags.some((f) => f.code === 'magnetic-core-open');
+      expect(flagged, `coupling ${k}: ${sheet.core?.problems.join('; ')}`).toBe(sheet.core?.ok === false);
+      expect(d.magneticCore!.ok).toBe(sheet.core!.ok);
+      // The leakage check itself: estimate × n² against n²·Lp·(1 − k²)/k² (coupled-inductor model, from memory).
+      d.magneticCore!.leakage.forEach((l, i) => {
+        const w = d.secondaries[i]!;
+        const n = Math.abs(w.turns) / d.primaryTurns;
+        const over = l * n * n > (n * n * d.inductance * (1 - w.coupling ** 2)) / w.coupling ** 2;
+        expect(d.magneticCore!.problems.some((p) => p.startsWith(`estimated leakage of S${i + 1} `))).toBe(over);
+      });
+      if (!sheet.core!.ok) open++;
+    }
+    // The tightest couplings leave the estimate above the assumption: the case this guards.
+    expect(open).toBeGreaterThan(0);
+  });
+});

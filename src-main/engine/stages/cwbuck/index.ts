@@ -99,6 +99,24 @@ export function magneticTolerance(d: CoupledBuckDesign): { inductance: number; l
  * together secondaries) × leakFactor. Leakage is set by the winding geometry, not the gap,
  * so it is held while Lp moves: (1 − k'²)/k'² = leakFactor·(1 − k²)/k² / lpFactor.
  */
+/**
+ * Where a core design's estimated leakage, referred to each secondary (× n²), exceeds the
+ * leakage the stage design assumed (coupling k: Llk = n²·Lp·(1 − k²)/k²): the secondaries would
+ * sag below the computed windows. One text per such winding.
+ */
+export function leakageProblems(d: CoupledBuckDesign, core: { leakage: readonly number[] }): string[] {
+  const out: string[] = [];
+  core.leakage.forEach((l, i) => {
+    const w = d.secondaries[i];
+    if (!w) return;
+    const n = Math.abs(w.turns) / d.primaryTurns;
+    const atSec = l * n * n;
+    const max = (n * n * d.inductance * (1 - w.coupling ** 2)) / w.coupling ** 2;
+    if (atSec > max) out.push(`estimated leakage of S${i + 1} (${(atSec * 1e9).toFixed(0)} nH at the secondary) exceeds the ${(max * 1e9).toFixed(0)} nH the design assumed: interleave or wind bifilar`);
+  });
+  return out;
+}
+
 export function withMagneticCorner(d: CoupledBuckDesign, lpFactor: number, leakFactor: number): CoupledBuckDesign {
   const kOf = (k: number) => 1 / Math.sqrt(1 + (leakFactor * (1 - k * k)) / (k * k) / lpFactor);
   const secondaries = d.secondaries.map((w) => ({ ...w, coupling: kOf(w.coupling) }));
@@ -1264,6 +1282,12 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     design.primaryResistance = core.windings[0]!.rdc as Ohms;
     design.secondaries.forEach((w, i) => { w.resistance = core.windings[i + 1]!.rdc as Ohms; });
     if (same) break;
+  }
+  // The construction's estimated leakage must not exceed what the windows assumed (the spec
+  // sheet states that range as a requirement): else the core design is open, and flagged below.
+  for (const text of leakageProblems(design, design.magneticCore!)) {
+    design.magneticCore!.problems.push(text);
+    design.magneticCore!.ok = false;
   }
   {
     const c = design.magneticCore!;
