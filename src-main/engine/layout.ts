@@ -138,9 +138,10 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
     if (fig) lines.push(`in ${fmtQty(fig.iin, 'A')} · ${fmtQty(fig.pin, 'W')}`);
     edges.push({ id: `e:${st.inputNodeId}>${st.id}`, from: st.inputNodeId, to: st.id, label: '', crossesBarrier: false });
     // Turns as the stage design chose them (they may refine what the plan recorded).
-    const dz = st.design as { primaryTurns?: unknown; secondaries?: Array<{ nodeId?: unknown; turns?: unknown }>; outputs?: Array<{ nodeId?: unknown }> } | null;
+    // The typeof checks also hold for a saved design that is incomplete (plan-types.ts).
+    const dz = st.design;
     const designTurns = new Map<Id, number>();
-    if (dz && typeof dz.primaryTurns === 'number' && Array.isArray(dz.outputs) && typeof dz.outputs[0]?.nodeId === 'string') {
+    if (dz?.kind === 'cwbuck' && typeof dz.primaryTurns === 'number' && Array.isArray(dz.outputs) && typeof dz.outputs[0]?.nodeId === 'string') {
       designTurns.set(dz.outputs[0].nodeId, dz.primaryTurns);
       for (const w of dz.secondaries ?? []) if (typeof w.nodeId === 'string' && typeof w.turns === 'number') designTurns.set(w.nodeId, w.turns);
     }

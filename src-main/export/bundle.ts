@@ -9,7 +9,7 @@ import { figuresForMode, heaviestMode, rollupPlan, RollupError, type Rollup } fr
 import { buildBom, type Bom } from '../engine/bom.ts';
 import { buildTreeView, layoutTree, fmtQty, type ElkLike, type LaidOutTree } from '../engine/layout.ts';
 import type { LibraryRow } from '../engine/library.ts';
-import type { CoupledBuckDesign, BuckDesign, StageDesign } from '../engine/stages/index.ts';
+import type { StageDesign } from '../engine/stages/index.ts';
 import type { Amps, Volts } from '../engine/units.ts';
 import { bomToCsv, bomToXlsx } from './bom-files.ts';
 import { treeToSvg } from './tree-svg.ts';
@@ -78,16 +78,21 @@ export function exportTreePdf(b: ExportBundle): Promise<Uint8Array> {
 export function exportMagneticSpecs(b: ExportBundle): Array<{ file: string; text: string; ref: string; stageId: string; saturation: number }> {
   const out: Array<{ file: string; text: string; ref: string; stageId: string; saturation: number }> = [];
   for (const st of b.plan.stages) {
-    const d = st.design as StageDesign | null;
+    const d = st.design;
     if (!d || d.kind !== 'cwbuck') continue;
     const item = b.bom.items.find((i) => i.stageId === st.id && i.partClass === 'magnetic-custom');
     const ref = item?.refs[0] ?? 'T?';
     const file = item?.specRef ?? `magnetic-${st.id}.md`;
-    const m = magneticSpecMarkdown(b.req, st, d as CoupledBuckDesign, ref, b.names);
+    const m = magneticSpecMarkdown(b.req, st, d, ref, b.names);
     out.push({ file, ref, stageId: st.id, text: m.text, saturation: m.saturation });
   }
   return out;
 }
+
+/** The kinds a SPICE netlist is written for: the switching stages. */
+const NETLIST_KINDS = ['buck', 'cwbuck', 'boost', 'inverting', 'buck-boost-4s'] as const;
+type NetlistDesign = Extract<StageDesign, { kind: (typeof NETLIST_KINDS)[number] }>;
+const hasNetlist = (d: StageDesign): d is NetlistDesign => NETLIST_KINDS.some((k) => k === d.kind);
 
 /**
  * SPICE netlists of every switching stage, at the heaviest mode and nominal input (the
@@ -99,20 +104,20 @@ export function exportNetlists(b: ExportBundle): { files: Array<{ file: string; 
   const files: Array<{ file: string; text: string; stageId: string }> = [];
   const skipped: string[] = [];
   for (const st of b.plan.stages) {
-    const d = st.design as StageDesign | null;
+    const d = st.design;
     // Switching kinds have a netlist; an LDO, a load switch and an isolated module do not.
-    if (!d || !(['buck', 'cwbuck', 'boost', 'inverting', 'buck-boost-4s'] as const).includes(d.kind as 'buck')) continue;
+    if (!d || !hasNetlist(d)) continue;
     const f = mode?.cases.nom.stages.find((x) => x.stageId === st.id);
     if (!f) { skipped.push(`${st.id}: no operating point`); continue; }
     const iout = d.outputs.map((o) => (f.outputs.find((x) => x.nodeId === o.nodeId)?.i ?? 0) as Amps);
     const op = { vin: f.vin as Volts, iout, ambient: b.req.limits.ambient };
     const file = `${st.id.replace(/[^A-Za-z0-9._-]+/g, '_')}.cir`;
     try {
-      const text = d.kind === 'buck' ? buckNetlist(d as BuckDesign, op)
+      const text = d.kind === 'buck' ? buckNetlist(d, op)
         : d.kind === 'boost' ? boostNetlist(d, op)
         : d.kind === 'inverting' ? invertingNetlist(d, op)
         : d.kind === 'buck-boost-4s' ? fourSwitchNetlist(d, op)
-        : coupledBuckNetlist(d as CoupledBuckDesign, op);
+        : coupledBuckNetlist(d, op);
       // Names come from the project file, which anyone may have written: one comment line.
       const title = spiceComment(`Stage ${st.name} (${st.id}) of project "${b.req.meta.name}", mode "${mode!.modeName}", Vin ${fmtQty(f.vin, 'V')}`);
       files.push({ file, text: `${title}\n${text}`, stageId: st.id });
@@ -125,13 +130,15 @@ export function exportNetlists(b: ExportBundle): { files: Array<{ file: string; 
 
 export function exportReportPdf(b: ExportBundle): Promise<Uint8Array> {
   const specs = exportMagneticSpecs(b);
-  const magnetics = specs.map((s) => {
+  const magnetics = specs.flatMap((s) => {
     const st = b.plan.stages.find((x) => x.id === s.stageId)!;
-    const d = st.design as CoupledBuckDesign;
-    return {
+    const d = st.design;
+    // Every sheet is of a coupled-winding stage (exportMagneticSpecs): this only narrows.
+    if (d?.kind !== 'cwbuck') return [];
+    return [{
       ref: s.ref, stageId: s.stageId, stageName: st.name, specRef: s.file,
       summary: `Lp ${fmtQty(d.inductance, 'H')}, turns ${[d.primaryTurns, ...d.secondaries.map((w) => w.turns)].join(' : ')}, saturation ≥ ${fmtQty(s.saturation, 'A')}${d.isolation && d.isolation.class !== 'none' ? `, ${d.isolation.class} isolation at ${fmtQty(d.isolation.workingVoltage, 'V')} working` : st.barriers[0] ? `, ${st.barriers[0].isolation} isolation at ${fmtQty(st.barriers[0].workingVoltage, 'V')} working` : ''}`,
-    };
+    }];
   });
   return reportToPdf({ req: b.req, result: b.result, plan: b.plan, rollup: b.rollup, bom: b.bom, tree: b.tree, magnetics, replanned: b.replanned });
 }

@@ -65,7 +65,7 @@ function checkOp(design: StageDesign, op: OperatingPoint): void {
 export function evaluateStage(design: StageDesign, op: OperatingPoint, opts?: CoupledEvalOptions): StageEvaluation {
   checkOp(design, op);
   const m = kindModuleOf(design.kind);
-  if (!m) throw new StageInputError(`kind: "${String((design as { kind: unknown }).kind)}" has no stage model`);
+  if (!m) throw new StageInputError(`kind: "${String(design.kind)}" has no stage model`);
   return m.evaluate(design, op, opts);
 }
 
