@@ -1,9 +1,11 @@
 // Every declared stage kind (engine/model.ts STAGE_MODEL_KINDS) is registered with a designer
 // and an evaluator (stages/registry.ts); an unknown kind is refused by name. Common practice.
-import { describe, expect, it } from 'vitest';
-import { STAGE_MODEL_KINDS } from '../../src-main/engine/model.ts';
+import { describe, expect, expectTypeOf, it } from 'vitest';
+import { STAGE_MODEL_KINDS, type StageKind } from '../../src-main/engine/model.ts';
 import { STAGE_KINDS, kindModuleOf } from '../../src-main/engine/stages/registry.ts';
-import { designStage } from '../../src-main/engine/stages/index.ts';
+import { designStage, type StageDesign } from '../../src-main/engine/stages/index.ts';
+import type { PlanStage } from '../../src-main/engine/plan-types.ts';
+import type { StageDesign as ContractStageDesign } from '../../src-main/api/contract.ts';
 
 describe('stage kind registry', () => {
   for (const kind of STAGE_MODEL_KINDS) {
@@ -17,6 +19,13 @@ describe('stage kind registry', () => {
   }
   it('registers no kind that is not declared', () => {
     expect(Object.keys(STAGE_KINDS).sort()).toEqual([...STAGE_MODEL_KINDS].sort());
+  });
+  // Type-level: these lines fail `tsc --noEmit` (not the test run) when a declared kind has no
+  // design in the StageDesign union, or a plan stage's design loses its type.
+  it('types every kind\'s design in the union a plan stage carries', () => {
+    expectTypeOf<StageDesign['kind']>().toEqualTypeOf<StageKind>();
+    expectTypeOf<PlanStage['design']>().toEqualTypeOf<StageDesign | null>();
+    expectTypeOf<ContractStageDesign>().toEqualTypeOf<StageDesign>();
   });
   it('refuses an unknown kind naming the field', () => {
     const r = designStage({ kind: 'flyback' } as never);
