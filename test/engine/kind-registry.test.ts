@@ -15,8 +15,13 @@ describe('stage kind registry', () => {
       expect(m!.kind).toBe(kind);
       expect(typeof m!.design).toBe('function');
       expect(typeof m!.evaluate).toBe('function');
+      expect(m!.label, kind).toMatch(/^\S.*\S$/);
     });
   }
+  it('gives every kind a label of its own (the drawing tells the kinds apart by it)', () => {
+    const labels = STAGE_MODEL_KINDS.map((k) => kindModuleOf(k)!.label);
+    expect(new Set(labels).size).toBe(labels.length);
+  });
   it('registers no kind that is not declared', () => {
     expect(Object.keys(STAGE_KINDS).sort()).toEqual([...STAGE_MODEL_KINDS].sort());
   });
