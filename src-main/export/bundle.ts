@@ -9,17 +9,14 @@ import { figuresForMode, heaviestMode, rollupPlan, RollupError, type Rollup } fr
 import { buildBom, type Bom } from '../engine/bom.ts';
 import { buildTreeView, layoutTree, fmtQty, type ElkLike, type LaidOutTree } from '../engine/layout.ts';
 import type { LibraryRow } from '../engine/library.ts';
-import type { StageDesign } from '../engine/stages/index.ts';
+import { hasStageNetlist, stageNetlist } from '../engine/stages/index.ts';
 import type { Amps, Volts } from '../engine/units.ts';
 import { bomToCsv, bomToXlsx } from './bom-files.ts';
 import { treeToSvg } from './tree-svg.ts';
 import { treeToPdf } from './tree-pdf.ts';
 import { reportToPdf, type PlannedProject } from './report-pdf.ts';
 import { magneticSpecMarkdown } from './magnetic-spec.ts';
-import { buckNetlist, coupledBuckNetlist, spiceComment } from './spice.ts';
-import { boostNetlist } from '../engine/stages/boost/index.ts';
-import { invertingNetlist } from '../engine/stages/inverting/index.ts';
-import { fourSwitchNetlist } from '../engine/stages/buck-boost-4s/index.ts';
+import { spiceComment } from './spice.ts';
 
 export interface ExportBundle extends PlannedProject {
   names: Map<string, string>;
@@ -89,11 +86,6 @@ export function exportMagneticSpecs(b: ExportBundle): Array<{ file: string; text
   return out;
 }
 
-/** The kinds a SPICE netlist is written for: the switching stages. */
-const NETLIST_KINDS = ['buck', 'cwbuck', 'boost', 'inverting', 'buck-boost-4s'] as const;
-type NetlistDesign = Extract<StageDesign, { kind: (typeof NETLIST_KINDS)[number] }>;
-const hasNetlist = (d: StageDesign): d is NetlistDesign => NETLIST_KINDS.some((k) => k === d.kind);
-
 /**
  * SPICE netlists of every switching stage, at the heaviest mode and nominal input (the
  * operating point of the roll-up). Stages the netlist writer cannot express are listed in
@@ -105,19 +97,17 @@ export function exportNetlists(b: ExportBundle): { files: Array<{ file: string; 
   const skipped: string[] = [];
   for (const st of b.plan.stages) {
     const d = st.design;
-    // Switching kinds have a netlist; an LDO, a load switch and an isolated module do not.
-    if (!d || !hasNetlist(d)) continue;
+    // Switching kinds have a netlist writer (their `netlist` in stages/registry.ts); an LDO,
+    // a load switch and an isolated module do not.
+    if (!d || !hasStageNetlist(d.kind)) continue;
     const f = mode?.cases.nom.stages.find((x) => x.stageId === st.id);
     if (!f) { skipped.push(`${st.id}: no operating point`); continue; }
     const iout = d.outputs.map((o) => (f.outputs.find((x) => x.nodeId === o.nodeId)?.i ?? 0) as Amps);
     const op = { vin: f.vin as Volts, iout, ambient: b.req.limits.ambient };
     const file = `${st.id.replace(/[^A-Za-z0-9._-]+/g, '_')}.cir`;
     try {
-      const text = d.kind === 'buck' ? buckNetlist(d, op)
-        : d.kind === 'boost' ? boostNetlist(d, op)
-        : d.kind === 'inverting' ? invertingNetlist(d, op)
-        : d.kind === 'buck-boost-4s' ? fourSwitchNetlist(d, op)
-        : coupledBuckNetlist(d, op);
+      const text = stageNetlist(d, op);
+      if (text === null) { skipped.push(`${st.id}: its kind has no netlist writer`); continue; }
       // Names come from the project file, which anyone may have written: one comment line.
       const title = spiceComment(`Stage ${st.name} (${st.id}) of project "${b.req.meta.name}", mode "${mode!.modeName}", Vin ${fmtQty(f.vin, 'V')}`);
       files.push({ file, text: `${title}\n${text}`, stageId: st.id });

@@ -22,6 +22,14 @@ describe('stage kind registry', () => {
     const labels = STAGE_MODEL_KINDS.map((k) => kindModuleOf(k)!.label);
     expect(new Set(labels).size).toBe(labels.length);
   });
+  // The kinds that switch at a frequency (common practice: an LDO, a load switch and a
+  // bought isolated module have no switching circuit to simulate).
+  const SWITCHING = ['buck', 'cwbuck', 'boost', 'inverting', 'buck-boost-4s'] as const;
+  it('gives every switching kind a netlist writer, and no other kind one', () => {
+    for (const k of STAGE_MODEL_KINDS) {
+      expect(typeof kindModuleOf(k)!.netlist, k).toBe((SWITCHING as readonly string[]).includes(k) ? 'function' : 'undefined');
+    }
+  });
   it('registers no kind that is not declared', () => {
     expect(Object.keys(STAGE_KINDS).sort()).toEqual([...STAGE_MODEL_KINDS].sort());
   });

@@ -69,6 +69,17 @@ export function evaluateStage(design: StageDesign, op: OperatingPoint, opts?: Co
   return m.evaluate(design, op, opts);
 }
 
+/** Whether a kind has a netlist writer (the switching kinds). */
+export function hasStageNetlist(kind: unknown): boolean {
+  return kindModuleOf(kind)?.netlist !== undefined;
+}
+
+/** The open-loop SPICE netlist of a design at one operating point, or null for a kind without one. */
+export function stageNetlist(design: StageDesign, op: OperatingPoint): string | null {
+  const m = kindModuleOf(design.kind);
+  return m?.netlist ? m.netlist(design, op) : null;
+}
+
 export function stageWindows(design: StageDesign, corners: WindowCorners, opts?: WindowOptions): OutputWindow[] {
   try {
     return windows(design, corners, opts);
