@@ -16,6 +16,7 @@ import type { Plan, PlanResult } from '../engine/plan-types.ts';
 /** Types the window reads through the contract (it imports nothing else from src-main but window-shared.ts). */
 export type { Requirements } from '../engine/model.ts';
 export type { QuantityKind } from '../engine/units.ts';
+export type { StageDesign } from '../engine/stages/index.ts';
 
 export interface ApiError {
   /** Dotted path of the offending argument or cell, e.g. `loads.L3.voltage`. */

@@ -7,7 +7,7 @@ import type { Plan } from '../engine/plan-types.ts';
 import type { TreeFigures } from '../engine/layout.ts';
 import { groupRails } from '../engine/rails.ts';
 import { figuresForMode, rollupPlan, type Rollup, type StageModels } from '../engine/rollup.ts';
-import { evaluateStage, stageWindows, type StageDesign } from '../engine/stages/index.ts';
+import { evaluateStage, stageWindows } from '../engine/stages/index.ts';
 import type { BomView, RollupView, StageFigures } from './contract.ts';
 import type { PartLibraryRow } from '../engine/model.ts';
 import { describeProblem, fromStoreRows, type LibraryRow } from '../engine/library.ts';
@@ -15,8 +15,8 @@ import { buildBom, compactRefs } from '../engine/bom.ts';
 import type { Session } from './session.ts';
 
 export const ENGINE_MODELS: StageModels = {
-  evaluate: (design, op) => evaluateStage(design as StageDesign, op),
-  windows: (design, corners) => stageWindows(design as StageDesign, corners),
+  evaluate: (design, op) => evaluateStage(design, op),
+  windows: (design, corners) => stageWindows(design, corners),
 };
 
 export interface ComputedRollup {

@@ -6,13 +6,9 @@
  */
 import { readFileSync, statSync } from 'node:fs';
 import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
-import { designStage, evaluateStage, stageWindows, StageInputError, type StageDesign } from '../engine/stages/index.ts';
+import { designStage, evaluateStage, stageNetlist, stageWindows, StageInputError, type StageDesign } from '../engine/stages/index.ts';
 import { parseStageFile, StageFileError, type StageFile } from '../engine/stages/stage-json.ts';
 import { magneticSpec } from '../engine/magnetics.ts';
-import { buckNetlist, coupledBuckNetlist } from '../export/spice.ts';
-import { boostNetlist } from '../engine/stages/boost/index.ts';
-import { invertingNetlist } from '../engine/stages/inverting/index.ts';
-import { fourSwitchNetlist } from '../engine/stages/buck-boost-4s/index.ts';
 import type { OperatingPoint } from '../engine/stages/types.ts';
 import type { Amps, Celsius, Volts } from '../engine/units.ts';
 
@@ -119,11 +115,8 @@ const netlist: CliCommand = {
     const op = defaultOp(design, file);
     try {
       evaluateStage(design, op); // validates the operating point
-      if (design.kind === 'buck') io.out(buckNetlist(design, op).trimEnd());
-      else if (design.kind === 'cwbuck') io.out(coupledBuckNetlist(design, op).trimEnd());
-      else if (design.kind === 'boost') io.out(boostNetlist(design, op).trimEnd());
-      else if (design.kind === 'inverting') io.out(invertingNetlist(design, op).trimEnd());
-      else if (design.kind === 'buck-boost-4s') io.out(fourSwitchNetlist(design, op).trimEnd());
+      const text = stageNetlist(design, op);
+      if (text !== null) io.out(text.trimEnd());
       else throw new CliError(`${design.kind === 'ldo' ? 'an LDO does not switch' : design.kind === 'load-switch' ? 'a load switch does not switch at a frequency' : 'an isolated module is a bought part'}: there is no netlist to write`);
       return 0;
     } catch (e) {

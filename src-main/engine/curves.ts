@@ -89,6 +89,8 @@ export function stageCurves(plan: Plan, rollup: Rollup, stageId: Id, ambient: nu
     if (f && (!best || f.pout > best.fig.pout)) best = { modeId: m.modeId, modeName: m.modeName, fig: f, mode: m };
   }
   if (!best) throw new CurveError(`stageId: stage "${stageId}" has no figures in the roll-up`);
+  const design = st.design;
+  if (!design) throw new CurveError(`stageId: stage "${stageId}" carries no design`);
   const vinOf = (c: 'min' | 'max') => best!.mode.cases[c].stages.find((x) => x.stageId === stageId)?.vin ?? best!.fig.vin;
   const vNom = best.fig.vin;
   const a = vinOf('min');
@@ -100,7 +102,7 @@ export function stageCurves(plan: Plan, rollup: Rollup, stageId: Id, ambient: nu
   const skipped: string[] = [];
   const point = (vin: number, iout: number[], fraction: number): CurvePoint | null => {
     try {
-      const ev = models.evaluate(st.design, { vin: vin as Volts, iout: iout as Amps[], ambient: ambient as Celsius });
+      const ev = models.evaluate(design, { vin: vin as Volts, iout: iout as Amps[], ambient: ambient as Celsius });
       if (!Number.isFinite(ev.pin) || !Number.isFinite(ev.loss)) { skipped.push(`Vin ${vin} V, load ${(fraction * 100).toFixed(0)} %: non-finite power`); return null; }
       return { fraction, vin, iout: iout.reduce((s, x) => s + x, 0), pin: ev.pin, pout: ev.pout, loss: ev.loss, efficiency: ev.efficiency };
     } catch (e) {

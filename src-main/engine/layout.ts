@@ -7,6 +7,7 @@
 import type { Id, IsolationClass, Rail, Requirements, StageKind } from './model.ts';
 import type { Plan } from './plan-types.ts';
 import { formatUnit } from './notation.ts';
+import { kindModuleOf } from './stages/registry.ts';
 
 // ---------------------------------------------------------------------------------------
 // Number formatting for labels (engineering notation at the edge of the engine)
@@ -30,17 +31,11 @@ export function pctText(r: number): string {
   return String(Number.parseFloat((r * 100).toPrecision(3)));
 }
 
-/** Readable names for the stage kinds (our own words; trade terms only). */
-export const STAGE_KIND_LABEL: Record<StageKind, string> = {
-  buck: 'synchronous buck',
-  cwbuck: 'coupled-winding buck',
-  ldo: 'LDO',
-  boost: 'synchronous boost',
-  inverting: 'inverting buck-boost',
-  'buck-boost-4s': 'four-switch buck-boost',
-  'iso-module': 'isolated module',
-  'load-switch': 'load switch',
-};
+/** A stage kind's name in the drawing and the report: its `label` in stages/registry.ts. */
+export function stageKindLabel(kind: StageKind): string {
+  // A kind no module registers (a saved plan written by hand) is shown by its own word.
+  return kindModuleOf(kind)?.label ?? String(kind);
+}
 
 // ---------------------------------------------------------------------------------------
 // The tree view: what is drawn, independent of where
@@ -129,18 +124,19 @@ export function buildTreeView(req: Requirements, rails: Rail[], plan: Plan, figu
       }
     }
     const fig = f?.stages[st.id];
-    const lines = [STAGE_KIND_LABEL[st.kind]];
+    const lines = [stageKindLabel(st.kind)];
     if (fig) lines.push(`η ${fmtPct(fig.efficiency)} · loss ${fmtQty(fig.loss, 'W')}`);
-    const key = fig ? `η ${fmtPct(fig.efficiency)}` : STAGE_KIND_LABEL[st.kind];
+    const key = fig ? `η ${fmtPct(fig.efficiency)}` : stageKindLabel(st.kind);
     nodes.push({ id: st.id, kind: 'stage', title: st.name, name: st.name, key, lines, groupId: group, stageKind: st.kind });
     if (group !== null) domainOf.set(st.id, group);
     // The input current and power are the stage's own lines (edge labels crowd the drawing).
     if (fig) lines.push(`in ${fmtQty(fig.iin, 'A')} · ${fmtQty(fig.pin, 'W')}`);
     edges.push({ id: `e:${st.inputNodeId}>${st.id}`, from: st.inputNodeId, to: st.id, label: '', crossesBarrier: false });
     // Turns as the stage design chose them (they may refine what the plan recorded).
-    const dz = st.design as { primaryTurns?: unknown; secondaries?: Array<{ nodeId?: unknown; turns?: unknown }>; outputs?: Array<{ nodeId?: unknown }> } | null;
+    // The typeof checks also hold for a saved design that is incomplete (plan-types.ts).
+    const dz = st.design;
     const designTurns = new Map<Id, number>();
-    if (dz && typeof dz.primaryTurns === 'number' && Array.isArray(dz.outputs) && typeof dz.outputs[0]?.nodeId === 'string') {
+    if (dz?.kind === 'cwbuck' && typeof dz.primaryTurns === 'number' && Array.isArray(dz.outputs) && typeof dz.outputs[0]?.nodeId === 'string') {
       designTurns.set(dz.outputs[0].nodeId, dz.primaryTurns);
       for (const w of dz.secondaries ?? []) if (typeof w.nodeId === 'string' && typeof w.turns === 'number') designTurns.set(w.nodeId, w.turns);
     }

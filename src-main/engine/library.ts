@@ -11,13 +11,14 @@ import { isolationRank, type PartLibraryRow } from './model.ts';
 import { magneticSpec } from './magnetics.ts';
 import { checkText } from './text-rules.ts';
 import { formatUnit } from './notation.ts';
-import type { CoupledBuckDesign } from './stages/index.ts';
+import type { StageDesign } from './stages/index.ts';
+import type { SwitchingDesignBase } from './stages/buck/index.ts';
 import { rowTopology } from './stages/part-choice.ts';
-import { boostParts, type BoostDesign } from './stages/boost/index.ts';
-import { invertingParts, type InvertingDesign } from './stages/inverting/index.ts';
-import { fourSwitchParts, type FourSwitchDesign } from './stages/buck-boost-4s/index.ts';
-import { loadSwitchParts, type LoadSwitchDesign } from './stages/load-switch/index.ts';
-import { isoModuleParts, type IsoModuleDesign } from './stages/iso-module/index.ts';
+import { boostParts } from './stages/boost/index.ts';
+import { invertingParts } from './stages/inverting/index.ts';
+import { fourSwitchParts } from './stages/buck-boost-4s/index.ts';
+import { loadSwitchParts } from './stages/load-switch/index.ts';
+import { isoModuleParts } from './stages/iso-module/index.ts';
 import type { CostModel, PartCounts } from './planner/types.ts';
 import { INVENTED_UNIT_COST, TYPICAL_BUCK_PARTS } from './planner/cost-model.ts';
 
@@ -577,34 +578,16 @@ function pickSwitcher(lib: LibraryRow[], stageId: string, vinMax: number, iNeed:
   return options[0]!;
 }
 
-interface AnyDesign {
-  kind?: string;
-  vinMax?: number;
-  outputs?: Array<{ nodeId: string; voltage: number; currentMax: number }>;
-  inductance?: number;
-  isat?: number;
-  cin?: CapLike;
-  cout?: CapLike;
-  divider?: DividerLike;
-  secondaries?: Array<{ nodeId: string; turns: number; rectifierReverseVoltage: number; cout: CapLike; preload: { resistance: number; current: number } | null; snubber?: { r: number; c: number } }>;
-  fsw?: number;
-  primaryTurns?: number;
-  isolation?: { class: string; workingVoltage: number } | null;
-  ratedCurrent?: number;
-  package?: { name: string; thetaJA: number };
-  parts?: PartRefLike[];
-}
-
 
 /**
  * The parts of a single-inductor switching stage (buck, boost…): regulator or controller and
  * switch pair (the design's own library choice, else the cheapest fit for `vRating` and
  * `iNeed` made for `topology`), the inductor, the capacitors and the feedback divider.
  */
-export function inductorStageParts(stageId: string, design: unknown, library: LibraryRow[], opts: Partial<PickOptions>, need: { vRating: number; iNeed: number; topology?: string }): PartPick[] {
+export function inductorStageParts(stageId: string, d: SwitchingDesignBase, library: LibraryRow[], opts: Partial<PickOptions>, need: { vRating: number; iNeed: number; topology?: string }): PartPick[] {
   const o = { ...DEFAULT_PICK, ...opts };
-  const d = (design ?? {}) as AnyDesign;
   const picks: PartPick[] = [];
+  // The `?.` and `??` below also hold for a saved design that is incomplete (plan-types.ts).
   const out0 = d.outputs?.[0];
   if (!out0) return [missing(stageId, 'stage', 'U', 'controller', '', '', 1, 'the stage carries no design')];
   const iMax = need.iNeed;
@@ -627,25 +610,28 @@ export function inductorStageParts(stageId: string, design: unknown, library: Li
  * The concrete parts a stage design implies, chosen from the library (cheapest row that
  * fits). A part no row fits is still listed, with `problem` set and no cost.
  */
-export function partsForStage(stageId: string, design: unknown, library: LibraryRow[], opts: Partial<PickOptions> = {}): PartPick[] {
+export function partsForStage(stageId: string, design: StageDesign | null, library: LibraryRow[], opts: Partial<PickOptions> = {}): PartPick[] {
   const o = { ...DEFAULT_PICK, ...opts };
-  const d = (design ?? {}) as AnyDesign;
   const picks: PartPick[] = [];
-  const out0 = d.outputs?.[0];
-  if (!out0) return [missing(stageId, 'stage', 'U', 'controller', '', '', 1, 'the stage carries no design')];
-  if (d.kind === 'buck') return inductorStageParts(stageId, design, library, opts, { vRating: d.vinMax ?? 0, iNeed: out0.currentMax });
-  if (d.kind === 'boost') return boostParts(stageId, design as BoostDesign, library, opts);
-  if (d.kind === 'inverting') return invertingParts(stageId, design as InvertingDesign, library, opts);
-  if (d.kind === 'buck-boost-4s') return fourSwitchParts(stageId, design as FourSwitchDesign, library, opts);
-  if (d.kind === 'load-switch') return loadSwitchParts(stageId, design as LoadSwitchDesign, library);
-  if (d.kind === 'iso-module') return isoModuleParts(stageId, design as IsoModuleDesign, library, opts);
+  // A stage without a design, or a saved design without its outputs (plan-types.ts); the
+  // `?.` and `??` below also hold for a saved design that is incomplete.
+  const out0 = design?.outputs?.[0];
+  if (!design || !out0) return [missing(stageId, 'stage', 'U', 'controller', '', '', 1, 'the stage carries no design')];
+  const d = design;
+  const kind: string = d.kind;
+  if (d.kind === 'buck') return inductorStageParts(stageId, d, library, opts, { vRating: d.vinMax ?? 0, iNeed: out0.currentMax });
+  if (d.kind === 'boost') return boostParts(stageId, d, library, opts);
+  if (d.kind === 'inverting') return invertingParts(stageId, d, library, opts);
+  if (d.kind === 'buck-boost-4s') return fourSwitchParts(stageId, d, library, opts);
+  if (d.kind === 'load-switch') return loadSwitchParts(stageId, d, library);
+  if (d.kind === 'iso-module') return isoModuleParts(stageId, d, library, opts);
   if (d.kind === 'cwbuck') {
     const secs = d.secondaries ?? [];
     // Worst primary peak over the input range and load patterns (engine/magnetics.ts); the
     // magnetic saturates no lower than that plus the usual 30 % margin.
     let peak = (d.isat ?? out0.currentMax) / 1.3;
     try {
-      const spec = magneticSpec(design as CoupledBuckDesign, { withCore: false });
+      const spec = magneticSpec(d, { withCore: false });
       peak = Math.max(peak, ...spec.windings.filter((w) => w.role === 'primary').map((w) => w.peakCurrent));
     } catch { /* an incomplete design: keep the design's own figure */ }
     const isat = Math.max(d.isat ?? 0, peak * 1.3);
@@ -711,7 +697,7 @@ export function partsForStage(stageId: string, design: unknown, library: Library
     if (d.cout) picks.push(capFromRefs(library, stageId, d.parts, d.cout, o));
     return picks;
   }
-  return [missing(stageId, `stage of kind ${String(d.kind)}`, 'U', 'controller', '', '', 1, `no part mapping for stage kind ${String(d.kind)}`)];
+  return [missing(stageId, `stage of kind ${kind}`, 'U', 'controller', '', '', 1, `no part mapping for stage kind ${kind}`)];
 }
 
 // ---------------------------------------------------------------------------------------
@@ -751,7 +737,7 @@ export function libraryUnitCosts(library: LibraryRow[]): Record<keyof PartCounts
  * Cost and part count of some stages from the parts partsForStage lists for their designs:
  * the numbers the BOM shows for the same stages (barriers are in the magnetic's row).
  */
-export function priceStagesFromLibrary(library: LibraryRow[], stages: readonly { localId: string; design: unknown; barriers?: readonly { isolation: string; workingVoltage: number }[] }[], opts: Partial<PickOptions> = {}): { cost: number; parts: number } {
+export function priceStagesFromLibrary(library: LibraryRow[], stages: readonly { localId: string; design: StageDesign | null; barriers?: readonly { isolation: string; workingVoltage: number }[] }[], opts: Partial<PickOptions> = {}): { cost: number; parts: number } {
   let cost = 0;
   let parts = 0;
   for (const st of stages) {

@@ -4,6 +4,7 @@
  */
 import type { Id, Rail, StageKind } from './model.ts';
 import type { Volts, Watts } from './units.ts';
+import type { StageDesign } from './stages/index.ts';
 
 /** A node of the tree that is not a requirement rail: a winding tap or an intermediate bus. */
 export interface InternalNode {
@@ -41,10 +42,16 @@ export interface PlanStage {
   outputs: PlanOutput[];
   barriers: Barrier[];
   /**
-   * The stage design the engine evaluated (kind-specific; see engine/stages). Kept so the
-   * roll-up, BOM and netlist exports recompute from exactly what the planner chose.
+   * The stage design the engine evaluated: one of the registered kinds' designs
+   * (engine/stages/registry.ts), told apart by `design.kind`, which equals the stage's
+   * `kind`. Kept so the roll-up, BOM and netlist exports recompute from exactly what the
+   * planner chose. The planner always sets one; null is a stage without a design (a tree
+   * drawn by hand): the drawing shows it, the roll-up refuses it by name and the BOM lists
+   * it as carrying no design. A plan read back from a file is checked only in outline when
+   * it is stored (store/json-format.ts), so readers of a saved plan keep their guards
+   * against a design that is incomplete.
    */
-  design: unknown;
+  design: StageDesign | null;
 }
 
 /** A decision and why, for a reviewer. `data` carries the numbers the sentence quotes. */

@@ -23,14 +23,14 @@ import { batteryRuntime, type BatteryRuntime } from './battery.ts';
 
 /** The stage models the roll-up calls (the real engine satisfies it). */
 export interface StageModels {
-  evaluate(design: unknown, op: OperatingPoint): StageEvaluation;
-  windows(design: unknown, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }): OutputWindow[];
+  evaluate(design: StageDesign, op: OperatingPoint): StageEvaluation;
+  windows(design: StageDesign, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }): OutputWindow[];
 }
 
 /** The real stage engine as the roll-up's models. */
 export const STAGE_MODELS: StageModels = {
-  evaluate: (design, op) => evaluateStage(design as StageDesign, op),
-  windows: (design, corners) => stageWindows(design as StageDesign, corners),
+  evaluate: (design, op) => evaluateStage(design, op),
+  windows: (design, corners) => stageWindows(design, corners),
 };
 
 export type VinCase = 'min' | 'nom' | 'max';
@@ -155,7 +155,7 @@ export class RollupError extends Error {}
 // clearRollupCache after changing one in place).
 let cache = new WeakMap<object, Map<string, StageEvaluation>>();
 
-function evaluateCached(models: StageModels, design: unknown, op: OperatingPoint): StageEvaluation {
+function evaluateCached(models: StageModels, design: StageDesign, op: OperatingPoint): StageEvaluation {
   if (design === null || typeof design !== 'object') return models.evaluate(design, op);
   let m = cache.get(design);
   if (!m) { m = new Map(); cache.set(design, m); }
@@ -177,7 +177,7 @@ export function clearRollupCache(): void {
   windowCache = new WeakMap();
 }
 
-function windowsCached(models: StageModels, design: unknown, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }): OutputWindow[] {
+function windowsCached(models: StageModels, design: StageDesign, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }): OutputWindow[] {
   if (design === null || typeof design !== 'object') return models.windows(design, corners);
   let m = windowCache.get(design);
   if (!m) { m = new Map(); windowCache.set(design, m); }
@@ -191,12 +191,22 @@ function windowsCached(models: StageModels, design: unknown, corners: { vin: Vol
   return w;
 }
 
-/** Node ids in the order the design lists its outputs (falls back to the plan's order). */
+/**
+ * Node ids in the order the design lists its outputs (falls back to the plan's order, also
+ * for a saved plan whose design lacks its outputs).
+ */
 export function designOutputOrder(st: PlanStage): Id[] {
-  const d = st.design as { outputs?: Array<{ nodeId?: unknown }> } | null;
+  // Widened (no cast): what a design read back from a file may turn out to be.
+  const d: { outputs?: ReadonlyArray<{ nodeId?: unknown } | null> } | null | undefined = st.design;
   const ids = Array.isArray(d?.outputs) ? d!.outputs.map((o) => o?.nodeId) : [];
   if (ids.length === st.outputs.length && ids.every((x): x is Id => typeof x === 'string')) return ids;
   return st.outputs.map((o) => o.nodeId);
+}
+
+/** The stage's design; a stage without one is refused by name. */
+function designOf(st: PlanStage): StageDesign {
+  if (st.design === null || st.design === undefined) throw new RollupError(`stage ${st.id} (${st.name}) carries no design to evaluate`);
+  return st.design;
 }
 
 /** Stages ordered so every stage comes after the stage that feeds its input node. */
@@ -250,11 +260,12 @@ function evaluateCase(ctx: Context, modeId: Id, vinCase: VinCase): CaseRollup {
       const iout = ids.map((id) => Math.abs(loadCurrent(id)) + (iinAt.get(id) ?? 0)) as Amps[];
       const vin = v.get(st.inputNodeId);
       if (vin === undefined) throw new RollupError(`stage ${st.id}: its input node ${st.inputNodeId} is neither a source, a rail nor an internal node of the plan`);
+      const design = designOf(st);
       let ev: StageEvaluation;
       try {
         // The mode matters to a load switch (off in some modes); other kinds ignore it.
-        const mode = (st.design as { kind?: unknown } | null)?.kind === 'load-switch' ? { mode: modeId } : {};
-        ev = evaluateCached(models, st.design, { vin: vin as Volts, iout, ambient: req.limits.ambient, ...mode });
+        const mode = design.kind === 'load-switch' ? { mode: modeId } : {};
+        ev = evaluateCached(models, design, { vin: vin as Volts, iout, ambient: req.limits.ambient, ...mode });
       } catch (e) {
         throw new RollupError(`stage ${st.id} (${st.name}): ${(e as Error).message}`);
       }
@@ -314,7 +325,7 @@ function evaluateCase(ctx: Context, modeId: Id, vinCase: VinCase): CaseRollup {
 export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models: StageModels = STAGE_MODELS): Rollup {
   const order = topoOrder(plan);
   for (const st of order) {
-    if (st.design === null || st.design === undefined) throw new RollupError(`stage ${st.id} (${st.name}) carries no design to evaluate`);
+    designOf(st);
   }
   const nominal = new Map<Id, number>();
   for (const r of rails) nominal.set(r.id, r.voltage);
@@ -427,9 +438,10 @@ function computeWindows(ctx: Context, modes: ModeRollup[]): RailWindowRow[] {
       }
       return { min: (Number.isFinite(lo) ? lo : 0) as Amps, max: hi as Amps };
     });
+    const design = designOf(st);
     let ws: OutputWindow[];
     try {
-      ws = windowsCached(ctx.models, st.design, { vin, iout });
+      ws = windowsCached(ctx.models, design, { vin, iout });
     } catch (e) {
       throw new RollupError(`stage ${st.id} (${st.name}) windows: ${(e as Error).message}`);
     }

@@ -9,17 +9,14 @@ import { figuresForMode, heaviestMode, rollupPlan, RollupError, type Rollup } fr
 import { buildBom, type Bom } from '../engine/bom.ts';
 import { buildTreeView, layoutTree, fmtQty, type ElkLike, type LaidOutTree } from '../engine/layout.ts';
 import type { LibraryRow } from '../engine/library.ts';
-import type { CoupledBuckDesign, BuckDesign, StageDesign } from '../engine/stages/index.ts';
+import { hasStageNetlist, stageNetlist } from '../engine/stages/index.ts';
 import type { Amps, Volts } from '../engine/units.ts';
 import { bomToCsv, bomToXlsx } from './bom-files.ts';
 import { treeToSvg } from './tree-svg.ts';
 import { treeToPdf } from './tree-pdf.ts';
 import { reportToPdf, type PlannedProject } from './report-pdf.ts';
 import { magneticSpecMarkdown } from './magnetic-spec.ts';
-import { buckNetlist, coupledBuckNetlist, spiceComment } from './spice.ts';
-import { boostNetlist } from '../engine/stages/boost/index.ts';
-import { invertingNetlist } from '../engine/stages/inverting/index.ts';
-import { fourSwitchNetlist } from '../engine/stages/buck-boost-4s/index.ts';
+import { spiceComment } from './spice.ts';
 
 export interface ExportBundle extends PlannedProject {
   names: Map<string, string>;
@@ -78,12 +75,12 @@ export function exportTreePdf(b: ExportBundle): Promise<Uint8Array> {
 export function exportMagneticSpecs(b: ExportBundle): Array<{ file: string; text: string; ref: string; stageId: string; saturation: number }> {
   const out: Array<{ file: string; text: string; ref: string; stageId: string; saturation: number }> = [];
   for (const st of b.plan.stages) {
-    const d = st.design as StageDesign | null;
+    const d = st.design;
     if (!d || d.kind !== 'cwbuck') continue;
     const item = b.bom.items.find((i) => i.stageId === st.id && i.partClass === 'magnetic-custom');
     const ref = item?.refs[0] ?? 'T?';
     const file = item?.specRef ?? `magnetic-${st.id}.md`;
-    const m = magneticSpecMarkdown(b.req, st, d as CoupledBuckDesign, ref, b.names);
+    const m = magneticSpecMarkdown(b.req, st, d, ref, b.names);
     out.push({ file, ref, stageId: st.id, text: m.text, saturation: m.saturation });
   }
   return out;
@@ -99,20 +96,18 @@ export function exportNetlists(b: ExportBundle): { files: Array<{ file: string; 
   const files: Array<{ file: string; text: string; stageId: string }> = [];
   const skipped: string[] = [];
   for (const st of b.plan.stages) {
-    const d = st.design as StageDesign | null;
-    // Switching kinds have a netlist; an LDO, a load switch and an isolated module do not.
-    if (!d || !(['buck', 'cwbuck', 'boost', 'inverting', 'buck-boost-4s'] as const).includes(d.kind as 'buck')) continue;
+    const d = st.design;
+    // Switching kinds have a netlist writer (their `netlist` in stages/registry.ts); an LDO,
+    // a load switch and an isolated module do not.
+    if (!d || !hasStageNetlist(d.kind)) continue;
     const f = mode?.cases.nom.stages.find((x) => x.stageId === st.id);
     if (!f) { skipped.push(`${st.id}: no operating point`); continue; }
     const iout = d.outputs.map((o) => (f.outputs.find((x) => x.nodeId === o.nodeId)?.i ?? 0) as Amps);
     const op = { vin: f.vin as Volts, iout, ambient: b.req.limits.ambient };
     const file = `${st.id.replace(/[^A-Za-z0-9._-]+/g, '_')}.cir`;
     try {
-      const text = d.kind === 'buck' ? buckNetlist(d as BuckDesign, op)
-        : d.kind === 'boost' ? boostNetlist(d, op)
-        : d.kind === 'inverting' ? invertingNetlist(d, op)
-        : d.kind === 'buck-boost-4s' ? fourSwitchNetlist(d, op)
-        : coupledBuckNetlist(d as CoupledBuckDesign, op);
+      const text = stageNetlist(d, op);
+      if (text === null) { skipped.push(`${st.id}: its kind has no netlist writer`); continue; }
       // Names come from the project file, which anyone may have written: one comment line.
       const title = spiceComment(`Stage ${st.name} (${st.id}) of project "${b.req.meta.name}", mode "${mode!.modeName}", Vin ${fmtQty(f.vin, 'V')}`);
       files.push({ file, text: `${title}\n${text}`, stageId: st.id });
@@ -125,13 +120,15 @@ export function exportNetlists(b: ExportBundle): { files: Array<{ file: string; 
 
 export function exportReportPdf(b: ExportBundle): Promise<Uint8Array> {
   const specs = exportMagneticSpecs(b);
-  const magnetics = specs.map((s) => {
+  const magnetics = specs.flatMap((s) => {
     const st = b.plan.stages.find((x) => x.id === s.stageId)!;
-    const d = st.design as CoupledBuckDesign;
-    return {
+    const d = st.design;
+    // Every sheet is of a coupled-winding stage (exportMagneticSpecs): this only narrows.
+    if (d?.kind !== 'cwbuck') return [];
+    return [{
       ref: s.ref, stageId: s.stageId, stageName: st.name, specRef: s.file,
       summary: `Lp ${fmtQty(d.inductance, 'H')}, turns ${[d.primaryTurns, ...d.secondaries.map((w) => w.turns)].join(' : ')}, saturation ≥ ${fmtQty(s.saturation, 'A')}${d.isolation && d.isolation.class !== 'none' ? `, ${d.isolation.class} isolation at ${fmtQty(d.isolation.workingVoltage, 'V')} working` : st.barriers[0] ? `, ${st.barriers[0].isolation} isolation at ${fmtQty(st.barriers[0].workingVoltage, 'V')} working` : ''}`,
-    };
+    }];
   });
   return reportToPdf({ req: b.req, result: b.result, plan: b.plan, rollup: b.rollup, bom: b.bom, tree: b.tree, magnetics, replanned: b.replanned });
 }

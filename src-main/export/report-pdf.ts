@@ -10,7 +10,7 @@ import { VIN_CASES } from '../engine/rollup.ts';
 import { runtimeText } from '../engine/battery.ts';
 import type { Bom } from '../engine/bom.ts';
 import { compactRefs } from '../engine/bom.ts';
-import { fmtPct, fmtQty, STAGE_KIND_LABEL, textWidth, type LaidOutTree } from '../engine/layout.ts';
+import { fmtPct, fmtQty, stageKindLabel, textWidth, type LaidOutTree } from '../engine/layout.ts';
 import { buildScene, SAFETY_LINE, type Prim, type Scene } from './tree-scene.ts';
 import { drawScene, newDoc, pdfText, table, type Doc } from './pdf-kit.ts';
 
@@ -178,7 +178,7 @@ export async function reportToPdf(input: ReportInput): Promise<Uint8Array> {
   doc.addPage({ size: 'A4', layout: 'portrait', margin: 42 });
   heading(doc, REPORT_SECTIONS[2]);
   table(doc, [{ header: 'Stage', width: 110 }, { header: 'Kind', width: 100 }, { header: 'Input', width: 100 }, { header: 'Outputs', width: W - 310 }],
-    plan.stages.map((s) => [s.name, STAGE_KIND_LABEL[s.kind], railName.get(s.inputNodeId) ?? s.inputNodeId,
+    plan.stages.map((s) => [s.name, stageKindLabel(s.kind), railName.get(s.inputNodeId) ?? s.inputNodeId,
       s.outputs.map((o) => `${railName.get(o.nodeId) ?? o.nodeId}${o.role !== 'output' ? ` (${o.role}${o.turns !== undefined ? `, ${o.turns} T` : ''})` : ''}`).join('; ')]));
   if (plan.reasons.length === 0) para(doc, 'The plan carries no reasons.');
   for (const r of plan.reasons) para(doc, `• ${r.text}`, { size: 8.5 });

@@ -88,6 +88,8 @@ export function turnsText(t: number): string {
 /**
  * A stage design as rows of [name in words, value with unit]. `nodeName` turns node ids into
  * rail names. The path reads as groups: "Secondary winding 1 › output capacitor › capacitance".
+ * It walks whatever fields the design has (a field a kind adds later still gets a row), so it
+ * takes any value; the window passes a plan stage's `design` (the contract's StageDesign).
  */
 export function designRows(design: unknown, nodeName: (id: string) => string): [string, string][] {
   const out: [string, string][] = [];

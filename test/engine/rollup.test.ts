@@ -149,7 +149,7 @@ describe('roll-up cache', () => {
     const pr = designedHandPlan(req);
     let calls = 0;
     const models = {
-      evaluate: (d: unknown, op: Parameters<typeof STAGE_MODELS.evaluate>[1]) => { calls++; return STAGE_MODELS.evaluate(d, op); },
+      evaluate: (d: Parameters<typeof STAGE_MODELS.evaluate>[0], op: Parameters<typeof STAGE_MODELS.evaluate>[1]) => { calls++; return STAGE_MODELS.evaluate(d, op); },
       windows: STAGE_MODELS.windows,
     };
     const a = rollupPlan(req, pr.rails, pr.best!, models);

@@ -32,7 +32,7 @@ export function designedHandPlan(req: Requirements): PlanResult {
   const [buck, cw, ldo] = stages as [typeof stages[0], typeof stages[0], typeof stages[0]];
   const ro = (id: string) => { const r = rail(id); return out(id, r.voltage, r.tolerance, minI(id), railPeakCurrent(r), r.rippleLimit); };
   const ldoOut = ro(ldo.outputs[0]!.nodeId);
-  const designs: Record<string, unknown> = {
+  const designs: Record<string, StageDesign> = {
     [buck.id]: must({ kind: 'buck', ...base, outputs: [ro(buck.outputs[0]!.nodeId)] }),
     [cw.id]: (() => {
       // The tap only feeds the LDO: its band widens step by step if the designer finds no turns.

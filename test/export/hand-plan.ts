@@ -8,6 +8,7 @@
 import type { Requirements, Rail } from '../../src-main/engine/model.ts';
 import { DEFAULT_LIMITS, DEFAULT_PREFERENCES } from '../../src-main/engine/model.ts';
 import type { Plan, PlanResult } from '../../src-main/engine/plan-types.ts';
+import type { StageDesign } from '../../src-main/engine/stages/index.ts';
 import { groupRails } from '../../src-main/engine/rails.ts';
 import type { Amps, Ratio, Volts } from '../../src-main/engine/units.ts';
 
@@ -46,7 +47,7 @@ export function railId(rails: Rail[], domainId: string, volts: number): string {
 }
 
 /** The hand-made tree: buck 24→3.3; coupled-winding 24→5 primary, ±12 and a 6.5 V tap; LDO tap→5 quiet. */
-export function handPlan(req: Requirements, designs: Record<string, unknown> = {}): PlanResult {
+export function handPlan(req: Requirements, designs: Record<string, StageDesign> = {}): PlanResult {
   const rails = groupRails(req);
   const r33 = railId(rails, 'main', 3.3);
   const r5 = railId(rails, 'main', 5);

@@ -94,7 +94,7 @@ function commonChecks(get: () => Planned, gaps: Gaps = {}): void {
     for (const st of p.plan.stages.filter((s) => s.kind === 'ldo')) {
       const d = st.design as { vinMin: number; vinMax: number; outputs: { voltage: number; currentMax: number }[] };
       const vin = Math.max(Math.abs(d.vinMin), Math.abs(d.vinMax));
-      const e = p.ev.evaluate(st.design, { vin: (Math.sign(d.outputs[0]!.voltage) * vin) as Volts, iout: [d.outputs[0]!.currentMax as Amps], ambient: p.req.limits.ambient });
+      const e = p.ev.evaluate(st.design!, { vin: (Math.sign(d.outputs[0]!.voltage) * vin) as Volts, iout: [d.outputs[0]!.currentMax as Amps], ambient: p.req.limits.ambient });
       expect(e.loss, st.name).toBeLessThanOrEqual(LDO_MAX_W);
     }
   });
@@ -124,7 +124,7 @@ function commonChecks(get: () => Planned, gaps: Gaps = {}): void {
     for (const st of p.plan.stages.filter((s) => s.kind === 'buck' || s.kind === 'cwbuck')) {
       const d = st.design as { vinMin: number; vinMax: number; fsw: number; controller: { minOnTime: number; maxDuty: number }; outputs: { currentMax: number }[] };
       for (const vin of [d.vinMin, d.vinMax]) {
-        const e = p.ev.evaluate(st.design, { vin: vin as Volts, iout: d.outputs.map((o) => o.currentMax) as Amps[], ambient: p.req.limits.ambient });
+        const e = p.ev.evaluate(st.design!, { vin: vin as Volts, iout: d.outputs.map((o) => o.currentMax) as Amps[], ambient: p.req.limits.ambient });
         // On-time = D/fsw [Erickson & Maksimović, ch. 2].
         expect(e.duty! / d.fsw, `${st.name} at ${vin} V`).toBeGreaterThanOrEqual(d.controller.minOnTime);
         expect(e.duty!, `${st.name} at ${vin} V`).toBeLessThanOrEqual(d.controller.maxDuty);

@@ -21,6 +21,7 @@ import type { Amps, Celsius, Hertz, Ratio, Volts } from '../units.ts';
 import { DEFAULT_MAX_RECTIFIER_VOLTAGE, DEFAULT_MAX_TURNS_RATIO, isolationRank, type Domain, type Id, type Rail, type Requirements, type Source, type StageKind } from '../model.ts';
 import type { Barrier, InternalNode, PlanOutput, Reason } from '../plan-types.ts';
 import type { OutputSpec, OutputWindow, StageEvaluation, StageSpec } from '../stages/types.ts';
+import type { StageDesign } from '../stages/index.ts';
 import { addParts, countParts, emptyParts } from './cost-model.ts';
 import { formatQuantity } from '../notation.ts';
 import { GENERIC_DEFAULTS } from '../stages/defaults.ts';
@@ -58,7 +59,7 @@ export interface GenerationOptions {
   allowed: ReadonlySet<StageKind>;
 }
 
-interface StageRun { ok: true; design: unknown; perMode: StageEvaluation[]; atMin: StageEvaluation; windows: OutputWindow[]; modeCurrents: number[][] }
+interface StageRun { ok: true; design: StageDesign; perMode: StageEvaluation[]; atMin: StageEvaluation; windows: OutputWindow[]; modeCurrents: number[][] }
 
 /** A rejected candidate and why, kept per rail for reasons and infeasibility reports. */
 export interface Miss { shape: BlockShape; rejection: Rejection }
@@ -229,7 +230,7 @@ export class BlockFactory {
    */
   /** Tap choice (index into TAP_VARIANTS, −1 = direct) each secondary needed on a primary. */
   private readonly tapHints = new Map<string, number>();
-  private readonly stageCache = new Map<string, { ok: true; design: unknown; atMin: StageEvaluation; windows: OutputWindow[] } | { ok: false; rejections: Rejection[] }>();
+  private readonly stageCache = new Map<string, { ok: true; design: StageDesign; atMin: StageEvaluation; windows: OutputWindow[] } | { ok: false; rejections: Rejection[] }>();
 
   /**
    * Design and check one stage. The design is made for the outputs' current range rounded
@@ -282,7 +283,7 @@ export class BlockFactory {
   }
 
   private modeLosses(
-    spec: StageSpec, heavy: { design: unknown; atMin: StageEvaluation; windows: OutputWindow[] }, modeCurrents: number[][], railOf: (i: number) => number | undefined,
+    spec: StageSpec, heavy: { design: StageDesign; atMin: StageEvaluation; windows: OutputWindow[] }, modeCurrents: number[][], railOf: (i: number) => number | undefined,
   ): StageRun | { ok: false; rejections: Rejection[] } {
     const ambient = this.req.limits.ambient as Celsius;
     const rej: Rejection[] = [];
@@ -301,7 +302,7 @@ export class BlockFactory {
   /** The expensive part: design, the two full-load corners, the windows. */
   private designAndCheck(
     spec: StageSpec, railOf: (i: number) => number | undefined, mirror: number,
-  ): { ok: true; design: unknown; atMin: StageEvaluation; windows: OutputWindow[] } | { ok: false; rejections: Rejection[] } {
+  ): { ok: true; design: StageDesign; atMin: StageEvaluation; windows: OutputWindow[] } | { ok: false; rejections: Rejection[] } {
     const d = this.evaluator.design(spec);
     if (!d.ok) {
       return {
@@ -427,8 +428,7 @@ export class BlockFactory {
         return `${r.name} (${fmtV(a)}) from ${inputName} (${range}): boost, because the rail's lowest ${fmtV(band.min)} is above the input's highest ${fmtV(vin.max)} ` +
           `(a buck or an LDO cannot step up); duty ${pct(run.atMin.duty)} at Vin min ${fmtV(vin.min)}, ${tail}`;
       case 'buck-boost-4s': {
-        const d = run.design as { transitionBand?: [number, number] };
-        const tb = d?.transitionBand;
+        const tb = run.design.kind === 'buck-boost-4s' ? run.design.transitionBand : undefined;
         return `${fmtV(a)} from a ${range} input (${inputName} to ${r.name}): four-switch buck-boost, because a buck cannot reach ${fmtV(a)} below ` +
           `${fmtV(buckReach)} input (${+(BUCK_MAX_DUTY * 100).toFixed(0)} % largest duty) and the input falls to ${fmtV(vin.min)}, ` +
           `while a boost cannot step down to it from the input's highest ${fmtV(vin.max)}` +
@@ -438,8 +438,7 @@ export class BlockFactory {
         return `${r.name} (${fmtV(r.voltage)}) is a negative rail without isolation: inverting buck-boost from ${inputName} (${range}), ` +
           `duty ${pct(run.atMin.duty)} at Vin min ${fmtV(vin.min)}; ${tail}`;
       case 'iso-module': {
-        const d = run.design as { module?: { pRated: number; ratio: number; isolation: string; workingVoltage: number }; iRated?: number };
-        const m = d?.module;
+        const m = run.design.kind === 'iso-module' ? run.design.module : undefined;
         const dom = this.domainOf(this.ctx.rails.indexOf(r));
         return `${r.name} is a small isolated load (${fmtA(Math.max(...Object.values(r.current), 0))} peak, ${fmtW(a * Math.max(...Object.values(r.current), 0))}): ` +
           `a fixed-ratio isolated module from ${inputName} (${range})` +
@@ -472,7 +471,7 @@ export class BlockFactory {
 
   /** Tap + LDO for one secondary: pick the lowest tap voltage whose LDO is feasible. */
   private designTap(rail: number, currents: number[], variant: { tolerance: number; headroom: number }): {
-    ok: true; tapV: number; spec: StageSpec; design: unknown; perMode: StageEvaluation[]; modeCurrents: number[][]; window: OutputWindow; tapOutput: OutputSpec; iinPerMode: number[];
+    ok: true; tapV: number; spec: StageSpec; design: StageDesign; perMode: StageEvaluation[]; modeCurrents: number[][]; window: OutputWindow; tapOutput: OutputSpec; iinPerMode: number[];
   } | { ok: false; rejections: Rejection[] } {
     const r = this.ctx.rails[rail]!;
     const a = Math.abs(r.voltage);
@@ -601,10 +600,9 @@ export class BlockFactory {
    * Engineering limits on a coupled-winding design (design limits, defaults from common
    * practice): the turns ratio |Ns/Np| of every secondary and its rectifier's reverse voltage.
    */
-  private windingStress(design: unknown, shape: BlockShape & { kind: 'cwbuck' }, railOf: (i: number) => number | undefined): Rejection | null {
-    const d = design as { primaryTurns?: number; vinMax?: number; outputs?: { voltage: number }[]; secondaries?: { nodeId: string; turns: number; rectifierReverseVoltage: number }[] };
-    if (typeof d?.primaryTurns !== 'number' || !Array.isArray(d.secondaries)) return null;
-    const vpri = Math.abs(d.outputs?.[0]?.voltage ?? 0);
+  private windingStress(d: StageDesign, shape: BlockShape & { kind: 'cwbuck' }, railOf: (i: number) => number | undefined): Rejection | null {
+    if (d.kind !== 'cwbuck') return null;
+    const vpri = Math.abs(d.outputs[0]?.voltage ?? 0);
     const maxRatio = this.req.limits.maxTurnsRatio ?? DEFAULT_MAX_TURNS_RATIO;
     const maxVr = this.req.limits.maxRectifierVoltage ?? DEFAULT_MAX_RECTIFIER_VOLTAGE;
     for (let k = 0; k < d.secondaries.length; k++) {
@@ -621,8 +619,8 @@ export class BlockFactory {
       // The limit is on the winding's steady reverse voltage n·(Vin,max − Vpri) + |Vout|, the
       // stress the secondary circuit is built for; the turn-on spike above it is met by the
       // chosen rectifier's rating (or a snubber) in the stage design.
-      const vout = Math.abs(d.outputs?.[k + 1]?.voltage ?? 0);
-      const steady = typeof d.vinMax === 'number' ? ratio * (d.vinMax - vpri) + vout : w.rectifierReverseVoltage;
+      const vout = Math.abs(d.outputs[k + 1]?.voltage ?? 0);
+      const steady = ratio * (d.vinMax - vpri) + vout;
       if (steady > maxVr * (1 + 1e-9)) {
         return {
           constraint: 'rectifier-voltage', shortfall: steady - maxVr, unit: 'V', rail,
@@ -636,8 +634,8 @@ export class BlockFactory {
   private assembleCoupled(
     shape: BlockShape & { kind: 'cwbuck' }, src: Source, vin: { min: number; nom: number; max: number },
     spec: StageSpec,
-    run: { design: unknown; perMode: StageEvaluation[]; atMin: StageEvaluation; windows: OutputWindow[]; modeCurrents: number[][] },
-    taps: Map<number, { tapV: number; spec: StageSpec; design: unknown; perMode: StageEvaluation[]; modeCurrents: number[][]; window: OutputWindow; iinPerMode: number[] }>,
+    run: { design: StageDesign; perMode: StageEvaluation[]; atMin: StageEvaluation; windows: OutputWindow[]; modeCurrents: number[][] },
+    taps: Map<number, { tapV: number; spec: StageSpec; design: StageDesign; perMode: StageEvaluation[]; modeCurrents: number[][]; window: OutputWindow; iinPerMode: number[] }>,
     directMiss: Map<number, Rejection>, primaryName: string,
   ): BlockEval {
     const rails = this.ctx.rails;
@@ -767,19 +765,8 @@ function numberFrom(data?: Record<string, number | string>): number {
 }
 
 /** Turns per output from a coupled-winding design, when the design exposes them. */
-function turnsOf(design: unknown): number[] {
-  const d = design as { turns?: unknown; windings?: { turns?: unknown }[]; np?: unknown; ns?: unknown; primaryTurns?: unknown; secondaries?: { turns?: unknown }[] };
-  if (typeof d?.primaryTurns === 'number' && Array.isArray(d.secondaries)) {
-    const t = d.secondaries.map((w) => w?.turns);
-    if (t.every((x) => typeof x === 'number')) return [d.primaryTurns, ...(t as number[])];
-  }
-  if (Array.isArray(d?.turns) && d.turns.every((t) => typeof t === 'number')) return d.turns as number[];
-  if (Array.isArray(d?.windings)) {
-    const t = d.windings.map((w) => w?.turns);
-    if (t.every((x) => typeof x === 'number')) return t as number[];
-  }
-  if (typeof d?.np === 'number' && Array.isArray(d.ns)) return [d.np, ...(d.ns as number[])];
-  return [];
+function turnsOf(d: StageDesign): number[] {
+  return d.kind === 'cwbuck' ? [d.primaryTurns, ...d.secondaries.map((w) => w.turns)] : [];
 }
 
 /** Parts implied by a stage's topology (controller, switches, magnetic, rectifiers, caps, resistors). */

@@ -7,7 +7,7 @@
  * remembers them per design object. The planner never changes a design or an evaluation
  * after it is made.
  */
-import { designStage, evaluateStage, stageWindows, type StageDesign } from '../stages/index.ts';
+import { designStage, evaluateStage, stageWindows } from '../stages/index.ts';
 import type { StageEvaluation } from '../stages/types.ts';
 import type { StageEvaluator } from './types.ts';
 import type { LibraryRow } from '../library.ts';
@@ -30,17 +30,17 @@ export function engineEvaluator(opts: { library?: readonly LibraryRow[]; margins
       return r.ok ? { ok: true, design: r.design } : { ok: false, flags: r.flags };
     },
     evaluate(design, op) {
-      if (typeof design !== 'object' || design === null || !Array.isArray(op?.iout)) return evaluateStage(design as StageDesign, op);
+      if (typeof design !== 'object' || design === null || !Array.isArray(op?.iout)) return evaluateStage(design, op);
       let seen = evaluations.get(design);
       if (!seen) { seen = new Map(); evaluations.set(design, seen); }
       // Numbers print exactly (shortest round-trip form), so equal keys mean equal inputs.
       const key = `${op.vin}|${op.ambient}|${op.iout.join(',')}${op.mode !== undefined ? `|${op.mode}` : ''}`;
       const hit = seen.get(key);
       if (hit) return hit;
-      const ev = evaluateStage(design as StageDesign, op);
+      const ev = evaluateStage(design, op);
       seen.set(key, ev);
       return ev;
     },
-    windows: (design, corners) => stageWindows(design as StageDesign, corners),
+    windows: (design, corners) => stageWindows(design, corners),
   };
 }

@@ -9,16 +9,19 @@ import type { Amps, Volts } from '../units.ts';
 import type { Id, Rail, StageKind } from '../model.ts';
 import type { OperatingPoint, OutputWindow, StageEvaluation, StageFlag, StageSpec } from '../stages/types.ts';
 import type { Barrier, InternalNode, PlanOutput, Reason } from '../plan-types.ts';
+import type { StageDesign } from '../stages/index.ts';
 
 /**
  * What the planner needs from the stage models. The stage engine (engine/stages) is plugged
  * in through `engineEvaluator()` in evaluator.ts; tests may pass another implementation of
- * the same three calls.
+ * the same three calls. The planner hands each design back to the evaluator that made it
+ * and reads a design's own fields only after narrowing on `design.kind` (the coupled-winding
+ * turns, the four-switch transition band, the isolated module's rating).
  */
 export interface StageEvaluator {
-  design(spec: StageSpec): { ok: true; design: unknown } | { ok: false; flags: StageFlag[] };
-  evaluate(design: unknown, op: OperatingPoint): StageEvaluation;
-  windows(design: unknown, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }): OutputWindow[];
+  design(spec: StageSpec): { ok: true; design: StageDesign } | { ok: false; flags: StageFlag[] };
+  evaluate(design: StageDesign, op: OperatingPoint): StageEvaluation;
+  windows(design: StageDesign, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }): OutputWindow[];
 }
 
 /** Counts of parts a block implies, by category; the cost model prices them. */
@@ -84,7 +87,7 @@ export interface BlockStage {
   inputNode: 'input' | string;
   outputs: PlanOutput[];
   barriers: Barrier[];
-  design: unknown;
+  design: StageDesign;
   spec: StageSpec;
   /** Output currents per mode (A) and this stage's loss per mode (W), at Vin nominal. */
   modeCurrents?: number[][];

@@ -65,8 +65,19 @@ function checkOp(design: StageDesign, op: OperatingPoint): void {
 export function evaluateStage(design: StageDesign, op: OperatingPoint, opts?: CoupledEvalOptions): StageEvaluation {
   checkOp(design, op);
   const m = kindModuleOf(design.kind);
-  if (!m) throw new StageInputError(`kind: "${String((design as { kind: unknown }).kind)}" has no stage model`);
+  if (!m) throw new StageInputError(`kind: "${String(design.kind)}" has no stage model`);
   return m.evaluate(design, op, opts);
+}
+
+/** Whether a kind has a netlist writer (the switching kinds). */
+export function hasStageNetlist(kind: unknown): boolean {
+  return kindModuleOf(kind)?.netlist !== undefined;
+}
+
+/** The open-loop SPICE netlist of a design at one operating point, or null for a kind without one. */
+export function stageNetlist(design: StageDesign, op: OperatingPoint): string | null {
+  const m = kindModuleOf(design.kind);
+  return m?.netlist ? m.netlist(design, op) : null;
 }
 
 export function stageWindows(design: StageDesign, corners: WindowCorners, opts?: WindowOptions): OutputWindow[] {

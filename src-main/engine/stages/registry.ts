@@ -1,17 +1,20 @@
 /**
- * The stage kinds, registered in one list. Each kind module provides its designer and its
- * evaluator; stages/index.ts dispatches through this table. (Issue 14 part 1: the window
- * corners, BOM parts, netlist writer, drawing label and docs are still dispatched in
- * windows.ts, library.ts, export/ and the CLI.)
+ * The stage kinds, registered in one list. Each kind module provides its designer, its
+ * evaluator, its label in the drawing and, if it switches, its netlist writer; stages/index.ts,
+ * layout.ts, the netlist export and the CLI dispatch through this table. (Issue 14 part 1:
+ * the window corners, BOM parts and docs are still dispatched in windows.ts, library.ts and
+ * the docs.)
  */
 import type { StageModelKind } from '../model.ts';
 import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from './types.ts';
 import { designBuck, evaluateBuck, type BuckDesign } from './buck/index.ts';
+import { buckNetlist } from './buck/netlist.ts';
 import { designCoupledBuck, evaluateCoupledBuck, type CoupledBuckDesign, type CoupledEvalOptions } from './cwbuck/index.ts';
+import { coupledBuckNetlist } from './cwbuck/netlist.ts';
 import { designLdo, evaluateLdo, type LdoDesign } from './ldo/index.ts';
-import { designBoost, evaluateBoost, type BoostDesign } from './boost/index.ts';
-import { designInverting, evaluateInverting, type InvertingDesign } from './inverting/index.ts';
-import { designFourSwitch, evaluateFourSwitch, type FourSwitchDesign } from './buck-boost-4s/index.ts';
+import { boostNetlist, designBoost, evaluateBoost, type BoostDesign } from './boost/index.ts';
+import { designInverting, evaluateInverting, invertingNetlist, type InvertingDesign } from './inverting/index.ts';
+import { designFourSwitch, evaluateFourSwitch, fourSwitchNetlist, type FourSwitchDesign } from './buck-boost-4s/index.ts';
 import { designLoadSwitch, evaluateLoadSwitch, type LoadSwitchDesign } from './load-switch/index.ts';
 import { designIsoModule, evaluateIsoModule, type IsoModuleDesign } from './iso-module/index.ts';
 
@@ -22,21 +25,25 @@ export type KindDesignResult<D> =
 /** What every stage kind provides from its folder. */
 export interface StageKindModule<D extends { kind: StageModelKind }> {
   kind: D['kind'];
+  /** What the kind is called in the tree drawing and the report (lower case, a trade term). */
+  label: string;
   design(spec: StageSpec): KindDesignResult<D>;
   evaluate(design: D, op: OperatingPoint, opts?: CoupledEvalOptions): StageEvaluation;
+  /** The open-loop SPICE netlist at one operating point, for a kind that switches (absent: none). */
+  netlist?(design: D, op: OperatingPoint): string;
 }
 
 function kindModule<D extends { kind: StageModelKind }>(m: StageKindModule<D>): StageKindModule<D> { return m; }
 
 export const STAGE_KINDS = {
-  'buck': kindModule<BuckDesign>({ kind: 'buck', design: designBuck, evaluate: (d, op) => evaluateBuck(d, op) }),
-  'cwbuck': kindModule<CoupledBuckDesign>({ kind: 'cwbuck', design: designCoupledBuck, evaluate: (d, op, o) => evaluateCoupledBuck(d, op, o) }),
-  'ldo': kindModule<LdoDesign>({ kind: 'ldo', design: designLdo, evaluate: (d, op) => evaluateLdo(d, op) }),
-  'boost': kindModule<BoostDesign>({ kind: 'boost', design: designBoost, evaluate: (d, op) => evaluateBoost(d, op) }),
-  'inverting': kindModule<InvertingDesign>({ kind: 'inverting', design: designInverting, evaluate: (d, op) => evaluateInverting(d, op) }),
-  'buck-boost-4s': kindModule<FourSwitchDesign>({ kind: 'buck-boost-4s', design: designFourSwitch, evaluate: (d, op) => evaluateFourSwitch(d, op) }),
-  'load-switch': kindModule<LoadSwitchDesign>({ kind: 'load-switch', design: designLoadSwitch, evaluate: (d, op) => evaluateLoadSwitch(d, op) }),
-  'iso-module': kindModule<IsoModuleDesign>({ kind: 'iso-module', design: designIsoModule, evaluate: (d, op) => evaluateIsoModule(d, op) }),
+  'buck': kindModule<BuckDesign>({ kind: 'buck', label: 'synchronous buck', design: designBuck, evaluate: (d, op) => evaluateBuck(d, op), netlist: (d, op) => buckNetlist(d, op) }),
+  'cwbuck': kindModule<CoupledBuckDesign>({ kind: 'cwbuck', label: 'coupled-winding buck', design: designCoupledBuck, evaluate: (d, op, o) => evaluateCoupledBuck(d, op, o), netlist: (d, op) => coupledBuckNetlist(d, op) }),
+  'ldo': kindModule<LdoDesign>({ kind: 'ldo', label: 'LDO', design: designLdo, evaluate: (d, op) => evaluateLdo(d, op) }),
+  'boost': kindModule<BoostDesign>({ kind: 'boost', label: 'synchronous boost', design: designBoost, evaluate: (d, op) => evaluateBoost(d, op), netlist: (d, op) => boostNetlist(d, op) }),
+  'inverting': kindModule<InvertingDesign>({ kind: 'inverting', label: 'inverting buck-boost', design: designInverting, evaluate: (d, op) => evaluateInverting(d, op), netlist: (d, op) => invertingNetlist(d, op) }),
+  'buck-boost-4s': kindModule<FourSwitchDesign>({ kind: 'buck-boost-4s', label: 'four-switch buck-boost', design: designFourSwitch, evaluate: (d, op) => evaluateFourSwitch(d, op), netlist: (d, op) => fourSwitchNetlist(d, op) }),
+  'load-switch': kindModule<LoadSwitchDesign>({ kind: 'load-switch', label: 'load switch', design: designLoadSwitch, evaluate: (d, op) => evaluateLoadSwitch(d, op) }),
+  'iso-module': kindModule<IsoModuleDesign>({ kind: 'iso-module', label: 'isolated module', design: designIsoModule, evaluate: (d, op) => evaluateIsoModule(d, op) }),
 } satisfies { [K in StageModelKind]: StageKindModule<{ kind: K }> & { kind: K } };
 
 /** The registered module of a kind, or undefined for a kind with no stage model. */

@@ -62,9 +62,11 @@ export function checkPlan(req: Requirements, result: PlanResult, plan: Plan, ev:
   // Re-evaluate every stage's design at its corners.
   const tjLimit = req.limits.tjMax - req.limits.tjMargin;
   for (const st of plan.stages) {
-    const outs = designOutputs(st.design);
-    const vin = designVin(st.design);
-    const w = ev.windows(st.design, { vin: [vin.min, vin.nom, vin.max] as Volts[], iout: outs.map((o) => ({ min: o.currentMin, max: o.currentMax })) });
+    const design = st.design;
+    if (!design) { problems.push(`${st.id}: no design`); continue; }
+    const outs = designOutputs(design);
+    const vin = designVin(design);
+    const w = ev.windows(design, { vin: [vin.min, vin.nom, vin.max] as Volts[], iout: outs.map((o) => ({ min: o.currentMin, max: o.currentMax })) });
     outs.forEach((o, i) => {
       const win = w[i]!;
       const rail = rails.get(o.nodeId);
@@ -75,7 +77,7 @@ export function checkPlan(req: Requirements, result: PlanResult, plan: Plan, ev:
       if (lo < a - 1e-9 || hi > b + 1e-9) problems.push(`${st.id} output ${o.nodeId}: window ${lo}…${hi} outside ${a}…${b}`);
     });
     for (const v of [vin.min, vin.max]) {
-      const e = ev.evaluate(st.design, { vin: v as Volts, iout: outs.map((o) => o.currentMax) as Amps[], ambient: req.limits.ambient });
+      const e = ev.evaluate(design, { vin: v as Volts, iout: outs.map((o) => o.currentMax) as Amps[], ambient: req.limits.ambient });
       for (const p of e.parts) if (p.tj > tjLimit + 1e-6) problems.push(`${st.id} ${p.role}: Tj ${p.tj} above ${tjLimit}`);
       if (e.flags.some((f) => f.severity === 'error')) problems.push(`${st.id}: engine error flag ${e.flags.find((f) => f.severity === 'error')!.code}`);
     }
