@@ -5,13 +5,14 @@
  * the format. The row schema itself is the engine's (engine/library.ts).
  */
 import type { PartLibraryRow } from '../engine/model.ts';
-import { describeProblem, fromStoreRows, rowsToTable, tableToRows, toStoreRows } from '../engine/library.ts';
+import { describeProblem, fromStoreRows, rowsToTable, tableToRows } from '../engine/library.ts';
 import { writeCsv } from '../export/csv.ts';
 
 /** CSV cells (already split) as stored library rows, or every problem by row and column. */
 export function libraryFromTable(table: string[][]): { ok: true; rows: PartLibraryRow[] } | { ok: false; problems: string[] } {
   const r = tableToRows(table);
-  return r.ok ? { ok: true, rows: toStoreRows(r.rows) } : { ok: false, problems: r.problems.map(describeProblem) };
+  // Checked rows are stored rows as they are (tableToRows builds fresh objects).
+  return r.ok ? { ok: true, rows: r.rows } : { ok: false, problems: r.problems.map(describeProblem) };
 }
 
 /** Stored library rows as CSV text. */
