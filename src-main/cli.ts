@@ -4,7 +4,7 @@
  */
 import { CliError, type CliCommand, type CliIo } from './cli/command.ts';
 import { commandModules } from './cli/index.ts';
-import { showText } from './engine/text-rules.ts';
+import { showText } from './api/cli-shared.ts';
 
 export function allCommands(): CliCommand[] {
   return commandModules.flat();
@@ -23,7 +23,7 @@ function mainHelp(cmds: CliCommand[]): string {
 
 /**
  * Everything the CLI prints passes here: control, bidi and other characters a name may not
- * hold are shown as `\u{1B}` (engine/text-rules.ts), so text from a project file cannot
+ * hold are shown as `\u{1B}` (engine/text-rules.ts through api/cli-shared.ts), so text from a project file cannot
  * clear the screen, retitle the terminal or reorder a line. The program's own line breaks
  * and tabs stay.
  */

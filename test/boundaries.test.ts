@@ -4,7 +4,10 @@
 // 2. the engine (src-main/engine) imports nothing outside its own folder: no other top-level
 //    folder of src-main (api, store, export, host, cli, worker, cli.ts), no src-renderer, no
 //    db/ or test/ file. Its package imports (no node:, electron, sqlite, svelte, exceljs,
-//    pdfkit) are checked by test/engine/purity.test.ts with the same scanner.
+//    pdfkit) are checked by test/engine/purity.test.ts with the same scanner;
+// 3. the CLI (src-main/cli.ts and src-main/cli/) imports nothing of the engine: it reaches
+//    it only through src-main/api, the handlers and shared modules the window's requests use
+//    (api/cli-shared.ts re-exports the text rules and types it prints with).
 // Every import form counts: `import … from`, `export … from`, `import '…'`, `import('…')`.
 import { describe, expect, it } from 'vitest';
 import { join, relative, sep } from 'node:path';
@@ -14,6 +17,9 @@ const ROOT = join(import.meta.dirname, '..');
 const MAIN = join(ROOT, 'src-main');
 const ENGINE = join(MAIN, 'engine');
 const RENDERER = join(ROOT, 'src-renderer');
+const CLI_DIR = join(MAIN, 'cli');
+const CLI_ENTRY = join(MAIN, 'cli.ts');
+const API = join(MAIN, 'api');
 /** The only src-main modules the window may import. */
 const WINDOW_ALLOWED = ['api/contract.ts', 'api/window-shared.ts'].map((p) => join(MAIN, p));
 
@@ -78,6 +84,22 @@ describe('the engine imports nothing outside itself', () => {
   });
   it('imports no other folder of src-main, no src-renderer, nothing else of the repository', () => {
     expect(violations(files, (t) => !inside(t, ENGINE))).toEqual({});
+  });
+  it('names every dynamically imported module literally', () => {
+    expect(files.filter((f) => hasComputedImport(readSource(f))).map(rel)).toEqual([]);
+  });
+});
+
+describe('the CLI reaches the engine only through src-main/api', () => {
+  const files = [CLI_ENTRY, ...sourceFiles(CLI_DIR)];
+  it('has CLI sources to check', () => {
+    expect(files.length).toBeGreaterThan(5);
+  });
+  it('imports nothing from src-main/engine', () => {
+    expect(violations(files, (t) => inside(t, ENGINE))).toEqual({});
+  });
+  it('does import src-main/api (the check above sees the CLI\'s imports)', () => {
+    expect(Object.keys(violations(files, (t) => inside(t, API))).length).toBeGreaterThan(3);
   });
   it('names every dynamically imported module literally', () => {
     expect(files.filter((f) => hasComputedImport(readSource(f))).map(rel)).toEqual([]);

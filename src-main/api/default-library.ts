@@ -6,7 +6,7 @@ import { existsSync, readFileSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { PartLibraryRow } from '../engine/model.ts';
-import { describeProblem, tableToRows, toStoreRows } from '../engine/library.ts';
+import { libraryFromTable } from './library-csv.ts';
 import { readCsv } from '../export/csv.ts';
 
 let cached: PartLibraryRow[] | null = null;
@@ -19,9 +19,9 @@ export function defaultLibraryPath(): string {
 
 export function defaultLibrary(): PartLibraryRow[] {
   if (!cached) {
-    const r = tableToRows(readCsv(readFileSync(defaultLibraryPath(), 'utf8')));
-    if (!r.ok) throw new Error(`the default part library is damaged: ${r.problems.slice(0, 3).map(describeProblem).join('; ')}`);
-    cached = toStoreRows(r.rows);
+    const r = libraryFromTable(readCsv(readFileSync(defaultLibraryPath(), 'utf8')));
+    if (!r.ok) throw new Error(`the default part library is damaged: ${r.problems.slice(0, 3).join('; ')}`);
+    cached = r.rows;
   }
   return structuredClone(cached);
 }

@@ -15,7 +15,7 @@ import { ApiFailure, handler } from './registry.ts';
 import type { Session } from './session.ts';
 import type { ExportFile, ExportKind } from './contract.ts';
 import { libraryRows } from './figures.ts';
-import { validateRequirements } from '../engine/validate.ts';
+import { planningProblems } from './plan-job.ts';
 import type { PartLibraryRow } from '../engine/model.ts';
 
 const kinds = z.enum(['bom-csv', 'bom-xlsx', 'tree-svg', 'tree-pdf', 'report', 'json', 'spice', 'magnetics']);
@@ -46,7 +46,7 @@ async function render(s: Session, kind: ExportKind, stageId: string | undefined)
   const r = s.planResult;
   if (!r) throw new ApiFailure(`${kind}: there is no plan to export yet (press Plan first)`, 'kind');
   // The same gate as planning: no drawing, BOM or report of requirements the planner refuses.
-  const problems = validateRequirements(s.requirements);
+  const problems = planningProblems(s.requirements);
   if (problems.length) {
     const p = problems[0]!;
     throw new ApiFailure(`${kind}: the requirements have problems; fix them before exporting: ${p.path}: ${p.message}${problems.length > 1 ? ` (and ${problems.length - 1} more)` : ''}`, p.path);

@@ -9,7 +9,7 @@ import { groupRails } from '../engine/rails.ts';
 import { figuresForMode, rollupPlan, type Rollup, type StageModels } from '../engine/rollup.ts';
 import { evaluateStage, stageWindows } from '../engine/stages/index.ts';
 import type { BomView, RollupView, StageFigures } from './contract.ts';
-import type { PartLibraryRow } from '../engine/model.ts';
+import type { PartLibraryRow, Requirements } from '../engine/model.ts';
 import { describeProblem, fromStoreRows, type LibraryRow } from '../engine/library.ts';
 import { buildBom, compactRefs } from '../engine/bom.ts';
 import type { Session } from './session.ts';
@@ -79,15 +79,26 @@ export function toRollupView(s: Session, r: Rollup): RollupView {
   };
 }
 
+/** The roll-up of one plan with the stage engine (window figures, CLI runtime lines). */
+export function rollupOf(req: Requirements, plan: Plan): Rollup {
+  return rollupPlan(req, groupRails(req), plan, ENGINE_MODELS);
+}
+
 export function computeRollup(s: Session, plan: Plan): ComputedRollup {
-  const raw = rollupPlan(s.requirements, groupRails(s.requirements), plan, ENGINE_MODELS);
+  const raw = rollupOf(s.requirements, plan);
   return { raw, view: toRollupView(s, raw) };
+}
+
+/** Stored library rows as the typed rows the planner and the BOM use, or every problem described. */
+export function typedLibrary(rows: PartLibraryRow[]): { ok: true; rows: LibraryRow[] } | { ok: false; problems: string[] } {
+  const r = fromStoreRows(rows);
+  return r.ok ? { ok: true, rows: r.rows } : { ok: false, problems: r.problems.map(describeProblem) };
 }
 
 export function libraryRows(s: Session): LibraryRow[] {
   const rows = Array.isArray(s.library) ? (s.library as PartLibraryRow[]) : [];
-  const r = fromStoreRows(rows);
-  if (!r.ok) throw new Error(`the part library has problems: ${r.problems.slice(0, 3).map(describeProblem).join('; ')}`);
+  const r = typedLibrary(rows);
+  if (!r.ok) throw new Error(`the part library has problems: ${r.problems.slice(0, 3).join('; ')}`);
   return r.rows;
 }
 

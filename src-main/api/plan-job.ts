@@ -4,17 +4,42 @@
  */
 import { randomUUID } from 'node:crypto';
 import type { PlanResult } from '../engine/plan-types.ts';
-import { validateRequirements } from '../engine/validate.ts';
-import { runPlanInWorker } from '../worker/run-plan.ts';
+import type { Requirements } from '../engine/model.ts';
+import type { PlanProgress } from '../engine/planner/solver.ts';
+import { validateRequirements, type Problem } from '../engine/validate.ts';
+import { runPlanInWorker, type WorkerPlanOptions } from '../worker/run-plan.ts';
 import type { PlanJob } from './contract.ts';
 import { ApiFailure } from './registry.ts';
 import { clone, type Session } from './session.ts';
 import { libraryRows } from './figures.ts';
 import type { LibraryRow } from '../engine/library.ts';
 
+/**
+ * The gate before planning and exporting (window and CLI): the requirements' problems;
+ * none means the planner accepts them.
+ */
+export function planningProblems(req: Requirements): Problem[] {
+  return validateRequirements(req);
+}
+
+/**
+ * Plan in the shared planning worker with the project's typed part library (left out when
+ * empty: the planner's own estimates). The window's job and the CLI's plan and export use it.
+ */
+export function planWithLibrary(
+  req: Requirements,
+  library: LibraryRow[],
+  options: Omit<WorkerPlanOptions, 'library'> = {},
+  onProgress?: (p: PlanProgress) => void,
+  signal?: AbortSignal,
+  onTrace?: (lines: string[]) => void,
+): Promise<PlanResult> {
+  return runPlanInWorker(req, { ...options, ...(library.length ? { library } : {}) }, onProgress, signal, onTrace);
+}
+
 export function startPlanJob(s: Session): PlanJob {
   if (s.planJob) throw new ApiFailure('the planner is already running: wait for it or cancel it');
-  const problems = validateRequirements(s.requirements);
+  const problems = planningProblems(s.requirements);
   if (problems.length) {
     const p = problems[0]!;
     throw new ApiFailure(`cannot plan yet: ${p.path}: ${p.message}${problems.length > 1 ? ` (and ${problems.length - 1} more)` : ''}`, p.path);
@@ -40,7 +65,7 @@ export function startPlanJob(s: Session): PlanJob {
   // The project's parts design and price the stages, so the tree, its losses and the BOM agree.
   let library: LibraryRow[];
   try { library = libraryRows(s); } catch (e) { throw new ApiFailure(`cannot plan yet: ${(e as Error).message}`, 'library'); }
-  runPlanInWorker(req, { budgetMs: req.preferences.budgetMs, ...(library.length ? { library } : {}) }, onProgress, abort.signal).then(
+  planWithLibrary(req, library, { budgetMs: req.preferences.budgetMs }, onProgress, abort.signal).then(
     (result: PlanResult) => s.serialise(() => {
       // A job replaced by opening another project is dropped.
       if (s.planJob?.jobId !== jobId) return;

@@ -7,36 +7,21 @@ import { openStore, projectLibrary } from './open-project.ts';
 import { readFileSync } from 'node:fs';
 import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
 import { PROJECT_EXTENSION, ProjectStore, StoreError } from '../store/project-store.ts';
-import type { PlanResult } from '../engine/plan-types.ts';
-import type { PartLibraryRow } from '../engine/model.ts';
-import { describeProblem, fromStoreRows, libraryCostModel, rowsToTable, tableToRows, toStoreRows, type LibraryRow } from '../engine/library.ts';
-import { plan as planProject } from '../engine/planner/solver.ts';
-import { engineEvaluator } from '../engine/planner/evaluator.ts';
-import { readCsv, writeCsv, CsvError } from '../export/csv.ts';
+import type { ElkLike, PlanResult } from '../api/cli-shared.ts';
+import { RollupError } from '../api/cli-shared.ts';
+import { readCsv, CsvError } from '../export/csv.ts';
 import { prepareExport, ExportError } from '../export/bundle.ts';
 import { checkTargets, existsMessage, writeAll, writeFiles, TargetError, TargetExists, type ExportTargets } from '../export/write-all.ts';
 import { existsSync } from 'node:fs';
 import { defaultLibrary } from '../api/default-library.ts';
-import { RollupError } from '../engine/rollup.ts';
-import { validateRequirements } from '../engine/validate.ts';
-import type { ElkLike } from '../engine/layout.ts';
+import { libraryCsv, libraryFromTable } from '../api/library-csv.ts';
+import { planningProblems, planWithLibrary } from '../api/plan-job.ts';
 
 const CAUTION =
   'Caution: mains and isolation barriers can kill; creepage, clearance and touch current follow the applicable ' +
   'safety standard and local codes; a qualified engineer and the test lab decide. The tool certifies nothing; ' +
   'costs are estimates (invented in the default library).';
 
-
-function libraryCsv(rows: PartLibraryRow[]): string {
-  const typed = fromStoreRows(rows);
-  if (typed.ok) return writeCsv(rowsToTable(typed.rows));
-  // Rows the library schema does not accept are still exported, parameter by parameter.
-  return writeCsv([
-    ['id', 'class', 'name', 'cost_estimate', 'cost_note', 'params'],
-    ...rows.map((r) => [r.id, r.partClass, r.name, r.cost, typeof r.params.costNote === 'string' ? r.params.costNote : '',
-      Object.entries(r.params).filter(([k]) => k !== 'costNote').map(([k, v]) => `${k}=${String(v)}`).join('; ')]),
-  ]);
-}
 
 async function elk(): Promise<ElkLike> {
   const mod = await import('elkjs/lib/elk.bundled.js');
@@ -87,7 +72,7 @@ const exportCmd: CliCommand = {
     try {
       const req = store.getRequirements();
       // The same gate as `plan`: no drawing, BOM or report of requirements it refuses.
-      const problems = Object.keys(targets).length ? validateRequirements(req) : [];
+      const problems = Object.keys(targets).length ? planningProblems(req) : [];
       if (problems.length) {
         io.err('the requirements have problems; fix them before exporting (nothing was written):');
         for (const p of problems) io.err(`  ${p.path}: ${p.message}`);
@@ -110,7 +95,7 @@ const exportCmd: CliCommand = {
       } else {
         io.err(saved ? (saved.stale ? 'the saved plan is stale (the requirements changed since); planning again for this export' : 'the saved plan has no feasible tree; planning again for this export')
           : 'the project has no saved plan; planning it for this export');
-        result = planProject(req, { evaluator: engineEvaluator({ library, electrolyticDerating: req.limits.electrolyticDerating, margins: { controllerInput: req.limits.inputRatingMargin ?? 0.1 } }), costModel: libraryCostModel(library, { powerDerating: req.limits.powerDerating, electrolyticDerating: req.limits.electrolyticDerating }) });
+        result = await planWithLibrary(req, library);
         replanned = true;
       }
       const modeFlag = flags.mode as string | undefined;
@@ -184,13 +169,13 @@ const libraryCmd: CliCommand = {
         if (e instanceof CsvError) throw new CliError(`--import ${imp}: ${e.message}; the project is unchanged`);
         throw e;
       }
-      const r = tableToRows(table);
+      const r = libraryFromTable(table);
       if (!r.ok) {
-        for (const p of r.problems.slice(0, 50)) io.err(`  ${describeProblem(p)}`);
+        for (const p of r.problems.slice(0, 50)) io.err(`  ${p}`);
         throw new CliError(`--import ${imp}: ${r.problems.length} problem(s); the project is unchanged`);
       }
       try {
-        store.setLibrary(toStoreRows(r.rows));
+        store.setLibrary(r.rows);
         store.save();
       } catch (e) {
         if (e instanceof StoreError) throw new CliError(e.message);

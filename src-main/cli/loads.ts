@@ -5,12 +5,11 @@
 import { readFileSync, statSync } from 'node:fs';
 import { CliError, parseFlags, type CliCommand } from './command.ts';
 import { openStore } from './open-project.ts';
-import { showText } from '../engine/text-rules.ts';
+import { showText, type Requirements } from '../api/cli-shared.ts';
 import { IMPORT_MAX_BYTES, applyImport, columnLetter, describeBad, guessMapping, previewImport } from '../api/load-import.ts';
 import { ApiFailure } from '../api/registry.ts';
 import { SaveRefused, StoreError } from '../store/project-store.ts';
 import type { LoadImportMapping } from '../api/contract.ts';
-import type { Requirements } from '../engine/model.ts';
 
 /** Field names accepted in --map, besides the target keys themselves. */
 const ALIASES: Record<string, string> = {

@@ -1,7 +1,8 @@
 /** Opening a project file for a CLI command: a missing path or a refused file is one line. */
 import { OpenError, ProjectStore } from '../store/project-store.ts';
 import { CliError, type CliIo } from './command.ts';
-import { describeProblem, fromStoreRows, type LibraryRow } from '../engine/library.ts';
+import type { TypedLibraryRow } from '../api/cli-shared.ts';
+import { typedLibrary } from '../api/figures.ts';
 import { defaultLibrary } from '../api/default-library.ts';
 
 export function openStore(path: string | undefined): ProjectStore {
@@ -15,12 +16,12 @@ export function openStore(path: string | undefined): ProjectStore {
 }
 
 /** The project's library as typed rows; the default library when the project has none. */
-export function projectLibrary(store: ProjectStore, io: CliIo): LibraryRow[] {
+export function projectLibrary(store: ProjectStore, io: CliIo): TypedLibraryRow[] {
   const stored = store.getLibrary();
   const rows = stored.length ? stored : defaultLibrary();
   if (!stored.length) io.err('note: the project has no part library yet; using the default library (invented cost estimates)');
-  const r = fromStoreRows(rows);
-  if (!r.ok) throw new CliError(`the project's part library has problems: ${r.problems.slice(0, 5).map(describeProblem).join('; ')}`);
+  const r = typedLibrary(rows);
+  if (!r.ok) throw new CliError(`the project's part library has problems: ${r.problems.slice(0, 5).join('; ')}`);
   return r.rows;
 }
 

@@ -5,18 +5,12 @@
  */
 import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
 import { OpenError, ProjectStore, SaveRefused, StoreError } from '../store/project-store.ts';
-import { validateRequirements } from '../engine/validate.ts';
-import { formatQuantity } from '../engine/notation.ts';
-import { DEFAULT_WINDOW_MARGIN, type Requirements } from '../engine/model.ts';
-import type { Plan, PlanResult } from '../engine/plan-types.ts';
-import type { Objective } from '../engine/planner/score.ts';
-import { runPlanInWorker } from '../worker/run-plan.ts';
+import { formatQuantity } from '../api/window-shared.ts';
+import { DEFAULT_WINDOW_MARGIN, runtimeText, showText, type Objective, type Plan, type PlanResult, type Requirements } from '../api/cli-shared.ts';
+import { planningProblems, planWithLibrary } from '../api/plan-job.ts';
+import { rollupOf } from '../api/figures.ts';
 import { projectLibrary } from './open-project.ts';
 import { safeJsonText } from '../store/json-format.ts';
-import { rollupPlan } from '../engine/rollup.ts';
-import { groupRails } from '../engine/rails.ts';
-import { runtimeText } from '../engine/battery.ts';
-import { showText } from '../engine/text-rules.ts';
 
 const OBJECTIVES: Objective[] = ['loss', 'cost', 'parts', 'balanced'];
 
@@ -82,7 +76,7 @@ export function renderPlan(req: Requirements, result: PlanResult, plan: Plan): s
 export function runtimeLines(req: Requirements, plan: Plan): string[] {
   if (!req.sources.some((s) => s.battery)) return [];
   try {
-    const r = rollupPlan(req, groupRails(req), plan);
+    const r = rollupOf(req, plan);
     return r.batteries.map((b) => showText(`Battery runtime (roll-up, at nominal input) — ${runtimeText(b, req.sources.find((s) => s.id === b.sourceId)?.name ?? b.sourceId)}.`));
   } catch (e) {
     return [`Battery runtime: the roll-up failed (${(e as Error).message})`];
@@ -138,7 +132,7 @@ export const planCommands: CliCommand[] = [{
     }
     try {
       const req = store.getRequirements();
-      const problems = validateRequirements(req);
+      const problems = planningProblems(req);
       if (problems.length) {
         io.err('the requirements have problems; fix them before planning (nothing was changed):');
         for (const p of problems) io.err(`  ${p.path}: ${p.message}`);
@@ -149,9 +143,10 @@ export const planCommands: CliCommand[] = [{
       // The project's part library designs and prices the stages (the default library when
       // the project has none), as in the window: the BOM then lists the analysed parts.
       const library = projectLibrary(store, io);
-      const result = await runPlanInWorker(
+      const result = await planWithLibrary(
         req,
-        { objective: objective as Objective, ...(budgetMs !== undefined ? { budgetMs } : {}), library },
+        library,
+        { objective: objective as Objective, ...(budgetMs !== undefined ? { budgetMs } : {}) },
         verbose ? (p) => { const line = `[${p.phase}] ${p.message}: ${p.candidates} stage designs, ${p.explored} nodes${p.incumbent !== undefined ? `, incumbent ${p.incumbent.toFixed(4)}` : ''}`; if (line !== last) io.err(line); last = line; } : undefined,
         undefined,
         verbose ? (lines) => { for (const l of lines) io.err(`trace: ${l}`); } : undefined,

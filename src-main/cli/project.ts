@@ -5,15 +5,12 @@
 import { openStore } from './open-project.ts';
 import { existsSync, readFileSync, statSync } from 'node:fs';
 import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
-import { groupRails, railPeakCurrent } from '../engine/rails.ts';
-import { formatQuantity, formatTolerance } from '../engine/notation.ts';
-import { validateRequirements, type Problem } from '../engine/validate.ts';
-import type { Requirements } from '../engine/model.ts';
-import { CHEMISTRY_PRESETS, batteryRuntime, usableEnergy } from '../engine/battery.ts';
+import { formatQuantity, formatTolerance } from '../api/window-shared.ts';
+import { CHEMISTRY_PRESETS, batteryRuntime, checkText, groupRails, railPeakCurrent, showText, usableEnergy, type Problem, type Requirements } from '../api/cli-shared.ts';
+import { planningProblems } from '../api/plan-job.ts';
 import { exportProjectJson, importProjectJson } from '../store/json-format.ts';
 import { PROJECT_EXTENSION, ProjectStore, StoreError, hasProjectExtension, writeFileAtomic } from '../store/project-store.ts';
 import { demoDocument } from '../store/demo.ts';
-import { checkText, showText } from '../engine/text-rules.ts';
 import { runtimeLines } from './plan.ts';
 
 const ISOLATION_CAUTION =
@@ -161,7 +158,7 @@ const validate: CliCommand = {
     const { positional } = parseFlags(args, {});
     if (positional.length > 1) throw new CliError('too many arguments (see --help)', 2);
     const req = loadRequirements(positional[0], io);
-    const problems = validateRequirements(req);
+    const problems = planningProblems(req);
     if (problems.length === 0) {
       io.out(`${positional[0]}: no problems (${req.loads.length} loads, ${groupRails(req).length} rails)`);
       return 0;
@@ -258,7 +255,7 @@ function lpad(s: string, n: number): string {
 /** The requirements as text: sources, domains, modes, rails with loads and currents. */
 export function summaryText(req: Requirements): string[] {
   const q = formatQuantity;
-  // Names from the file are shown escaped, each on its line (engine/text-rules.ts).
+  // Names from the file are shown escaped, each on its line (engine/text-rules.ts via api/cli-shared.ts).
   const nm = (x: string) => showText(String(x));
   const lines: string[] = [];
   lines.push(`${nm(req.meta.name)} (revision ${req.meta.revision})`);
@@ -306,7 +303,7 @@ export function summaryText(req: Requirements): string[] {
   } else if (batteries.length > 1) {
     lines.push('Battery runtime: several battery sources; the plan\'s roll-up gives each one\'s runtime');
   }
-  const problems = validateRequirements(req);
+  const problems = planningProblems(req);
   if (problems.length) lines.push(`${problems.length} problem(s): run railwright validate for the list`);
   if (req.domains.some((d) => d.isolation !== 'none')) lines.push('', ISOLATION_CAUTION);
   return lines;

@@ -6,11 +6,8 @@
  */
 import { readFileSync, statSync } from 'node:fs';
 import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts';
-import { designStage, evaluateStage, stageNetlist, stageWindows, StageInputError, type StageDesign } from '../engine/stages/index.ts';
-import { parseStageFile, StageFileError, type StageFile } from '../engine/stages/stage-json.ts';
-import { magneticSpec } from '../engine/magnetics.ts';
-import type { OperatingPoint } from '../engine/stages/types.ts';
-import type { Amps, Celsius, Volts } from '../engine/units.ts';
+import { readStageJson, stageNetlist, stageReport, type StageFile, type StageNotDesigned } from '../api/stage.ts';
+import { ApiFailure } from '../api/registry.ts';
 
 const MAX_BYTES = 4 << 20;
 
@@ -31,30 +28,27 @@ function readStageFile(path: string | undefined): StageFile {
     throw new CliError(`${path}: not valid JSON (${(e as Error).message})`);
   }
   try {
-    return parseStageFile(json);
+    return readStageJson(json);
   } catch (e) {
-    if (e instanceof StageFileError) throw new CliError(`${path}: ${e.message}`);
+    if (e instanceof ApiFailure) throw new CliError(`${path}: ${e.message}`);
     throw e;
   }
 }
 
-/** The design to work on: the file's own design, or one designed from its spec. */
-function resolve(file: StageFile, io: CliIo): { design: StageDesign; reasons: string[]; flags: unknown[] } | null {
-  if (file.design) return { design: file.design, reasons: [], flags: [] };
-  const r = designStage(file.spec!);
-  if (!r.ok) {
-    io.out(JSON.stringify({ ok: false, flags: r.flags }, null, 2));
-    return null;
-  }
-  return { design: r.design, reasons: r.reasons, flags: r.flags };
+/** A spec the engine could not design: print its flags as JSON (exit code 1). */
+function notDesigned(r: StageNotDesigned, io: CliIo): number {
+  io.out(JSON.stringify({ ok: false, flags: r.flags }, null, 2));
+  return 1;
 }
 
-function defaultOp(design: StageDesign, file: StageFile): OperatingPoint {
-  return file.operatingPoint ?? {
-    vin: design.vinNom,
-    iout: design.outputs.map((o) => o.currentMax),
-    ambient: (file.spec?.ambient ?? 25) as Celsius,
-  };
+/** An engine call through the api: its one-line refusal becomes the CLI's. */
+function stageCall<T>(fn: () => T): T {
+  try {
+    return fn();
+  } catch (e) {
+    if (e instanceof ApiFailure) throw new CliError(e.message);
+    throw e;
+  }
 }
 
 const stage: CliCommand = {
@@ -74,25 +68,10 @@ const stage: CliCommand = {
   async run(args, io) {
     const { flags, positional } = parseFlags(args, { compact: 'boolean' });
     const file = readStageFile(positional[0]);
-    const r = resolve(file, io);
-    if (!r) return 1;
-    const { design } = r;
-    const op = defaultOp(design, file);
-    const corners = file.corners ?? {
-      vin: [design.vinMin, design.vinNom, design.vinMax] as Volts[],
-      iout: design.outputs.map((o) => ({ min: o.currentMin as Amps, max: o.currentMax as Amps })),
-    };
-    try {
-      const evaluation = evaluateStage(design, op);
-      const windows = stageWindows(design, corners, file.monteCarlo ? { monteCarlo: file.monteCarlo } : undefined);
-      const magnetic = design.kind === 'buck' || design.kind === 'cwbuck' ? magneticSpec(design) : null;
-      const result = { ok: true, kind: design.kind, design, reasons: r.reasons, designFlags: r.flags, operatingPoint: op, evaluation, windows, magnetic };
-      io.out(flags.compact ? JSON.stringify(result) : JSON.stringify(result, null, 2));
-      return 0;
-    } catch (e) {
-      if (e instanceof StageInputError || e instanceof RangeError) throw new CliError(e.message);
-      throw e;
-    }
+    const result = stageCall(() => stageReport(file));
+    if (!result.ok) return notDesigned(result, io);
+    io.out(flags.compact ? JSON.stringify(result) : JSON.stringify(result, null, 2));
+    return 0;
   },
 };
 
@@ -109,20 +88,10 @@ const netlist: CliCommand = {
   async run(args, io) {
     const { positional } = parseFlags(args, {});
     const file = readStageFile(positional[0]);
-    const r = resolve(file, io);
-    if (!r) return 1;
-    const { design } = r;
-    const op = defaultOp(design, file);
-    try {
-      evaluateStage(design, op); // validates the operating point
-      const text = stageNetlist(design, op);
-      if (text !== null) io.out(text.trimEnd());
-      else throw new CliError(`${design.kind === 'ldo' ? 'an LDO does not switch' : design.kind === 'load-switch' ? 'a load switch does not switch at a frequency' : 'an isolated module is a bought part'}: there is no netlist to write`);
-      return 0;
-    } catch (e) {
-      if (e instanceof StageInputError || e instanceof RangeError) throw new CliError(e.message);
-      throw e;
-    }
+    const r = stageCall(() => stageNetlist(file));
+    if (!r.ok) return notDesigned(r, io);
+    io.out(r.text.trimEnd());
+    return 0;
   },
 };
 

@@ -400,9 +400,8 @@ export function fromStoreRows(rows: PartLibraryRow[]): { ok: true; rows: Library
   return problems.length ? { ok: false, problems } : { ok: true, rows: out };
 }
 
-export function toStoreRows(rows: LibraryRow[]): PartLibraryRow[] {
-  return rows.map((r) => ({ id: r.id, partClass: r.partClass, name: r.name, cost: r.cost, params: { ...r.params } }));
-}
+// A checked row is already a stored row (same fields; `partClass` and `params` only narrower),
+// so no conversion back exists: only fromStoreRows, the check when rows come from a file.
 
 // ---------------------------------------------------------------------------------------
 // Stage design → concrete parts
