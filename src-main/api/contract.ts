@@ -269,7 +269,28 @@ export interface CellEdit {
 }
 
 export type ExportKind =
-  | 'bom-csv' | 'bom-xlsx' | 'tree-svg' | 'tree-pdf' | 'report' | 'json' | 'spice' | 'magnetics';
+  | 'bom-csv' | 'bom-xlsx' | 'tree-svg' | 'tree-pdf' | 'report' | 'json' | 'spice' | 'magnetics' | 'plot-svg';
+
+/**
+ * A plot of the shown tree (api/plots.ts): efficiency and loss of one stage versus its load
+ * or its input voltage, of the system versus source voltage (every mode), each rail's window
+ * against its band, the loss-versus-cost scatter of the alternatives.
+ */
+export type PlotSpec =
+  | { kind: 'stage-load'; stageId: Id }
+  | { kind: 'stage-vin'; stageId: Id }
+  | { kind: 'system-vin'; sourceId?: Id }
+  | { kind: 'rail-windows' }
+  | { kind: 'alternatives' };
+
+/** One plot as an SVG document (the same document "Save SVG" writes). */
+export interface PlotView {
+  spec: PlotSpec;
+  title: string;
+  svg: string;
+  /** Names of the series drawn (curves, modes, points). */
+  series: string[];
+}
 
 export interface ExportFile {
   fileName: string;
@@ -345,7 +366,10 @@ export interface Requests {
   'isolation.check': (args: { capacitance: string; voltageRms: string; frequency: string; limitId: string }) => BarrierCheckView;
 
   /** An existing file at `path` is replaced only with `overwrite: true` (else code `exists`). */
-  'export.file': (args: { kind: ExportKind; path?: string; stageId?: Id; overwrite?: boolean }) => ExportFile;
+  'export.file': (args: { kind: ExportKind; path?: string; stageId?: Id; overwrite?: boolean; plot?: PlotSpec }) => ExportFile;
+
+  /** One plot of the shown tree as SVG. */
+  'plots.get': (args: { plot: PlotSpec }) => PlotView;
 }
 
 export type RequestName = keyof Requests;

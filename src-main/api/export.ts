@@ -16,9 +16,11 @@ import type { Session } from './session.ts';
 import type { ExportFile, ExportKind } from './contract.ts';
 import { libraryRows } from './figures.ts';
 import { validateRequirements } from '../engine/validate.ts';
+import { plotSpecSchema, plotView } from './plots.ts';
+import type { PlotSpec } from './contract.ts';
 import type { PartLibraryRow } from '../engine/model.ts';
 
-const kinds = z.enum(['bom-csv', 'bom-xlsx', 'tree-svg', 'tree-pdf', 'report', 'json', 'spice', 'magnetics']);
+const kinds = z.enum(['bom-csv', 'bom-xlsx', 'tree-svg', 'tree-pdf', 'report', 'json', 'spice', 'magnetics', 'plot-svg']);
 
 const META: Record<ExportKind, { ext: string; mime: string; suffix: string }> = {
   'bom-csv': { ext: '.csv', mime: 'text/csv', suffix: '-bom' },
@@ -29,6 +31,7 @@ const META: Record<ExportKind, { ext: string; mime: string; suffix: string }> = 
   json: { ext: '.json', mime: 'application/json', suffix: '' },
   spice: { ext: '.cir', mime: 'text/plain', suffix: '-netlists' },
   magnetics: { ext: '.md', mime: 'text/markdown', suffix: '-magnetics' },
+  'plot-svg': { ext: '.svg', mime: 'image/svg+xml', suffix: '-plot' },
 };
 
 let elk: InstanceType<typeof ELK> | null = null;
@@ -37,7 +40,7 @@ function baseName(s: Session): string {
   return (s.requirements.meta.name || 'project').replace(/[^\w.-]+/g, '-').replace(/^-+|-+$/g, '') || 'project';
 }
 
-async function render(s: Session, kind: ExportKind, stageId: string | undefined): Promise<Uint8Array> {
+async function render(s: Session, kind: ExportKind, stageId: string | undefined, plot?: PlotSpec): Promise<Uint8Array> {
   const enc = (t: string) => new TextEncoder().encode(t);
   if (kind === 'json') {
     const plan = s.planResult ? { revision: s.planResult.revision, computedAt: new Date().toISOString(), result: s.planResult } : undefined;
@@ -50,6 +53,10 @@ async function render(s: Session, kind: ExportKind, stageId: string | undefined)
   if (problems.length) {
     const p = problems[0]!;
     throw new ApiFailure(`${kind}: the requirements have problems; fix them before exporting: ${p.path}: ${p.message}${problems.length > 1 ? ` (and ${problems.length - 1} more)` : ''}`, p.path);
+  }
+  if (kind === 'plot-svg') {
+    if (!plot) throw new ApiFailure('plot-svg: say which plot to save (plot)', 'plot');
+    return enc(`<?xml version="1.0" encoding="UTF-8"?>\n${plotView(s, plot).svg}\n`);
   }
   const selected = r.alternatives.find((p) => p.id === s.selectedId) ?? r.best;
   elk ??= new ELK();
@@ -87,14 +94,14 @@ function exists(target: string): ApiFailure {
 
 export const exportHandlers = {
   'export.file': handler('export.file', z.object({
-    kind: kinds, path: z.string().min(1).max(1024).optional(), stageId: z.string().max(200).optional(), overwrite: z.boolean().optional(),
+    kind: kinds, path: z.string().min(1).max(1024).optional(), stageId: z.string().max(200).optional(), overwrite: z.boolean().optional(), plot: plotSpecSchema.optional(),
   }).strict(),
     async (s: Session, a): Promise<ExportFile> => {
       const meta = META[a.kind];
       const target = a.path !== undefined ? s.pathPolicy(a.path, 'export', meta.ext) : null;
       const replace = a.overwrite === true;
       if (target && !replace && existsSync(target)) throw exists(target);
-      const bytes = await render(s, a.kind, a.stageId);
+      const bytes = await render(s, a.kind, a.stageId, a.plot);
       if (target) {
         try {
           // Without the confirmation the file is only created, never replaced, even if
@@ -107,7 +114,8 @@ export const exportHandlers = {
       }
       return {
         // One stage's netlist is named after its stage, so several downloads never collide.
-        fileName: a.kind === 'spice' && a.stageId ? `${baseName(s)}-${a.stageId.replace(/[^\w.-]+/g, '-')}${meta.ext}` : `${baseName(s)}${meta.suffix}${meta.ext}`,
+        fileName: a.kind === 'plot-svg' && a.plot ? `${baseName(s)}-plot-${[a.plot.kind, 'stageId' in a.plot ? a.plot.stageId : ''].filter(Boolean).join('-').replace(/[^\w.-]+/g, '-')}${meta.ext}`
+          : a.kind === 'spice' && a.stageId ? `${baseName(s)}-${a.stageId.replace(/[^\w.-]+/g, '-')}${meta.ext}` : `${baseName(s)}${meta.suffix}${meta.ext}`,
         mime: meta.mime,
         base64: target ? '' : Buffer.from(bytes).toString('base64'),
         writtenTo: target,

@@ -12,6 +12,7 @@ import { planHandlers } from './plan.ts';
 import { exportHandlers } from './export.ts';
 import { fileHandlers } from './files.ts';
 import { isolationHandlers } from './isolation.ts';
+import { plotHandlers } from './plots.ts';
 
 export const HANDLERS = {
   ...projectHandlers,
@@ -21,6 +22,7 @@ export const HANDLERS = {
   ...libraryHandlers,
   ...exportHandlers,
   ...isolationHandlers,
+  ...plotHandlers,
 } satisfies HandlerTable;
 
 export interface Api {
