@@ -104,15 +104,15 @@ export function buildPlot(s: Session, spec: PlotSpec): { scene: PlotScene; serie
   const st = plan.stages.find((x) => x.id === spec.stageId);
   if (!st) throw new ApiFailure(`stageId: no stage "${spec.stageId}" in the shown tree`, 'stageId');
   const ids = designOutputOrder(st);
-  const ref = stageReference(rolled.raw, st.id, ids);
-  if (!ref) throw new ApiFailure(`stageId: the roll-up has no figures for stage "${st.id}"`, 'stageId');
   const rails = groupRails(req);
+  const ref = stageReference(rolled.raw, plan, rails, st.id, ids);
+  if (!ref) throw new ApiFailure(`stageId: the roll-up has no figures for stage "${st.id}"`, 'stageId');
   const nodeName = (id: string) => rails.find((r) => r.id === id)?.name ?? plan.internalNodes.find((n) => n.id === id)?.name ?? id;
   const many = ids.length > 1;
   const nomFig = rolled.raw.modes.find((m) => m.modeId === ref.modeId)!;
   if (spec.kind === 'stage-load') {
     const cases = (['min', 'nom', 'max'] as const);
-    const sweeps = stageLoadSweep(st.design, { iout: ref.iout, vin: cases.map((c) => ref.vin[c]), ambient: req.limits.ambient, mode: ref.modeId }, undefined, ENGINE_MODELS);
+    const sweeps = stageLoadSweep(st.design, { iout: cases.map((c) => ref.ioutByCase[c]), vin: cases.map((c) => ref.vin[c]), ambient: req.limits.ambient }, undefined, ENGINE_MODELS);
     const series = sweeps.map((sw, k) => ({
       name: `${CASE_NAME[cases[k]!]} (input ${formatQuantity(sw.vin, 'voltage')})`,
       points: sw.points.map((p) => ({ x: p.iout[0]!, y: [p.efficiency, p.loss] })),
@@ -137,7 +137,7 @@ export function buildPlot(s: Session, spec: PlotSpec): { scene: PlotScene; serie
   const vs = [ref.vin.min, ref.vin.nom, ref.vin.max];
   const lo = Math.min(...vs, Number.isFinite(d.vinMin) ? d.vinMin! : Infinity);
   const hi = Math.max(...vs, Number.isFinite(d.vinMax) ? d.vinMax! : -Infinity);
-  const pts = stageVinSweep(st.design, { iout: ref.iout, vinMin: lo, vinMax: hi, include: vs, ambient: req.limits.ambient, mode: ref.modeId }, 21, ENGINE_MODELS);
+  const pts = stageVinSweep(st.design, { iout: ref.iout, vinMin: lo, vinMax: hi, include: vs, ambient: req.limits.ambient }, 21, ENGINE_MODELS);
   const name = `load of mode "${modeName(ref.modeId)}"`;
   const markers = (['min', 'nom', 'max'] as const).map((c) => {
     const f = nomFig.cases[c].stages.find((x) => x.stageId === st.id)!;

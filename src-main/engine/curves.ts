@@ -34,8 +34,10 @@ export interface StageReference {
   stageId: Id;
   /** The mode in which the stage delivers the most power at V nom: its 100 % load. */
   modeId: Id;
-  /** Output currents of that mode (design order). */
+  /** Output currents of that mode at V nom (design order). */
   iout: number[];
+  /** The same at each input case (upstream stages draw a little differently). */
+  ioutByCase: Record<VinCase, number[]>;
   /** Output node ids (design order). */
   nodeIds: Id[];
   /** The stage's input voltage with the source at V min, nom and max in that mode. */
@@ -53,7 +55,7 @@ export interface SystemPoint {
 /** `n` load fractions evenly from `from` to 1 (default 20 points, 5 % to 100 %). */
 export function loadFractions(n = 20, from = 0.05): number[] {
   if (!(n >= 2)) return [1];
-  return Array.from({ length: n }, (_, k) => from + ((1 - from) * k) / (n - 1));
+  return Array.from({ length: n }, (_, k) => (k === n - 1 ? 1 : from + ((1 - from) * k) / (n - 1)));
 }
 
 /** Evenly spaced values over [lo, hi] with `extra` merged in, sorted, repeats removed. */
@@ -67,8 +69,12 @@ export function sweepAxis(lo: number, hi: number, n: number, extra: number[] = [
   return out;
 }
 
-/** The reference operating point of a stage from the plan's roll-up. */
-export function stageReference(r: Rollup, stageId: Id, designOutputs: Id[]): StageReference | null {
+/**
+ * The reference operating point of a stage from the plan's roll-up: the output currents the
+ * roll-up gave the stage (each node's load current plus the input currents of the stages it
+ * feeds, summed in the roll-up's own order), per input case.
+ */
+export function stageReference(r: Rollup, plan: Plan, rails: Rail[], stageId: Id, designOutputs: Id[]): StageReference | null {
   let best: { modeId: Id; pout: number } | null = null;
   for (const m of r.modes) {
     const f = m.cases.nom.stages.find((s) => s.stageId === stageId);
@@ -76,11 +82,21 @@ export function stageReference(r: Rollup, stageId: Id, designOutputs: Id[]): Sta
   }
   if (!best) return null;
   const m = r.modes.find((x) => x.modeId === best!.modeId)!;
+  const inputOf = new Map(plan.stages.map((s) => [s.id, s.inputNodeId]));
+  const railById = new Map(rails.map((x) => [x.id, x]));
+  const currents = (c: VinCase) => {
+    const iinAt = new Map<Id, number>();
+    const st = m.cases[c].stages;
+    for (let k = st.length - 1; k >= 0; k--) {
+      const node = inputOf.get(st[k]!.stageId)!;
+      iinAt.set(node, (iinAt.get(node) ?? 0) + Math.abs(st[k]!.iin));
+    }
+    return designOutputs.map((id) => Math.abs(railById.get(id)?.current[m.modeId] ?? 0) + (iinAt.get(id) ?? 0));
+  };
   const at = (c: VinCase) => m.cases[c].stages.find((s) => s.stageId === stageId)!;
-  const nom = at('nom');
-  const iout = designOutputs.map((id) => nom.outputs.find((o) => o.nodeId === id)?.i ?? 0);
-  const vin = { min: at('min').vin, nom: nom.vin, max: at('max').vin };
-  return { stageId, modeId: m.modeId, iout, nodeIds: designOutputs, vin };
+  const byCase = { min: currents('min'), nom: currents('nom'), max: currents('max') };
+  const vin = { min: at('min').vin, nom: at('nom').vin, max: at('max').vin };
+  return { stageId, modeId: m.modeId, iout: byCase.nom, ioutByCase: byCase, nodeIds: designOutputs, vin };
 }
 
 function point(models: StageModels, design: unknown, op: OperatingPoint, fraction: number): StagePoint {
@@ -91,13 +107,15 @@ function point(models: StageModels, design: unknown, op: OperatingPoint, fractio
 /** Efficiency and loss versus load at each of the given input voltages. */
 export function stageLoadSweep(
   design: unknown,
-  ref: { iout: number[]; vin: number[]; ambient: number; mode?: Id },
+  ref: { iout: number[] | number[][]; vin: number[]; ambient: number; mode?: Id },
   fractions: number[] = loadFractions(),
   models: StageModels = STAGE_MODELS,
 ): { vin: number; points: StagePoint[] }[] {
-  return ref.vin.map((vin) => ({
+  /** One load for every input voltage, or one per input voltage. */
+  const loadAt = (k: number): number[] => (Array.isArray(ref.iout[0]) ? (ref.iout as number[][])[k]! : (ref.iout as number[]));
+  return ref.vin.map((vin, k) => ({
     vin,
-    points: fractions.map((f) => point(models, design, { vin: vin as Volts, iout: ref.iout.map((i) => (i * f) as Amps), ambient: ref.ambient as Celsius, ...(ref.mode ? { mode: ref.mode } : {}) }, f)),
+    points: fractions.map((f) => point(models, design, { vin: vin as Volts, iout: loadAt(k).map((i) => (f === 1 ? i : i * f) as Amps), ambient: ref.ambient as Celsius, ...(ref.mode ? { mode: ref.mode } : {}) }, f)),
   }));
 }
 
