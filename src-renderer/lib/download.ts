@@ -1,5 +1,5 @@
 /** Export one file: to a path chosen in a native dialog (desktop), or as a browser download. */
-import type { ExportKind } from '../../src-main/api/contract.ts';
+import type { ExportKind, PlotSpec } from '../../src-main/api/contract.ts';
 import { app } from './app.svelte.ts';
 import { bridge } from './bridge.ts';
 
@@ -15,7 +15,7 @@ export async function exportNetlists(): Promise<void> {
   if (done === stages.length) app.info(`Downloaded ${done} netlist${done === 1 ? '' : 's'}, one per switching stage: run each with ngspice -b <file>.`);
 }
 
-export async function exportFile(kind: ExportKind, ext: string, stageId?: string, suffix = ''): Promise<boolean> {
+export async function exportFile(kind: ExportKind, ext: string, stageId?: string, suffix = '', plot?: PlotSpec): Promise<boolean> {
   const name = `${(app.snapshot?.state.name || 'project').replace(/[^\w.-]+/g, '-')}${suffix}${ext}`;
   let path: string | undefined;
   if (bridge.choosePath) {
@@ -25,7 +25,7 @@ export async function exportFile(kind: ExportKind, ext: string, stageId?: string
   }
   // A path comes only from the system dialog, which has already asked before replacing an
   // existing file (`overwrite` carries that confirmation); without a path it is a download.
-  const r = await app.call('export.file', { kind, ...(path ? { path, overwrite: true } : {}), ...(stageId ? { stageId } : {}) });
+  const r = await app.call('export.file', { kind, ...(path ? { path, overwrite: true } : {}), ...(stageId ? { stageId } : {}), ...(plot ? { plot } : {}) });
   if (!r.ok) return false;
   if (r.value.writtenTo) {
     app.info(`Written to ${r.value.writtenTo}`);
