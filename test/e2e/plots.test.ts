@@ -18,8 +18,8 @@ describe.skipIf(tool.skip)('plots in the window', () => {
     w = await startWindow();
     page = w.page;
     await page.goto(w.entryUrl);
-    await page.waitForSelector('[data-testid=tree-svg]', { timeout: 140_000 });
-  }, 150_000);
+    await page.waitForSelector('[data-testid=tree-svg]', { timeout: 280_000 });
+  }, 300_000);
   afterAll(async () => { await w?.close(); });
 
   it('draws each plot with its series', async () => {
