@@ -18,7 +18,19 @@ describe.skipIf(tool.skip)('plots in the window', () => {
     w = await startWindow();
     page = w.page;
     await page.goto(w.entryUrl);
-    await page.waitForSelector('[data-testid=tree-svg]', { timeout: 280_000 });
+    await page.waitForSelector('[data-viewtab=plots]', { timeout: 60_000 });
+    // First run plans the demo; wait until the handlers hold its plan (or plan it here).
+    const until = Date.now() + 270_000;
+    let asked = false;
+    for (;;) {
+      const s = await w.api('project.snapshot', {});
+      if (s.plan?.selected && !s.state.planning) break;
+      if (!s.state.planning && !s.state.planOnOpen && !asked && Date.now() > until - 260_000) { await w.api('plan.start', {}); asked = true; }
+      if (Date.now() > until) { await w.shot('plots-no-plan'); throw new Error('the demo was not planned in time'); }
+      await new Promise((r) => setTimeout(r, 1000));
+    }
+    await page.reload();
+    await page.waitForSelector('[data-viewtab=plots]');
   }, 300_000);
   afterAll(async () => { await w?.close(); });
 
