@@ -311,7 +311,7 @@ function evaluateCase(ctx: Context, modeId: Id, vinCase: VinCase): CaseRollup {
   };
 }
 
-export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models: StageModels = STAGE_MODELS): Rollup {
+function makeContext(req: Requirements, rails: Rail[], plan: Plan, models: StageModels): Context {
   const order = topoOrder(plan);
   for (const st of order) {
     if (st.design === null || st.design === undefined) throw new RollupError(`stage ${st.id} (${st.name}) carries no design to evaluate`);
@@ -319,13 +319,27 @@ export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models:
   const nominal = new Map<Id, number>();
   for (const r of rails) nominal.set(r.id, r.voltage);
   for (const n of plan.internalNodes) nominal.set(n.id, n.voltage);
-  const ctx: Context = {
+  return {
     req, rails, plan, models, order,
     orderIds: new Map(order.map((st) => [st.id, designOutputOrder(st)])),
     railById: new Map(rails.map((r) => [r.id, r])),
     sourceById: new Map(req.sources.map((s) => [s.id, s])),
     nominal,
   };
+}
+
+/**
+ * One mode with the given sources at the given voltages (the others at nominal), by the
+ * same leaves-up evaluation as every case of `rollupPlan` (engine/curves.ts sweeps it).
+ */
+export function rollupCaseAt(req: Requirements, rails: Rail[], plan: Plan, modeId: Id, sourceVolts: Record<Id, number>, models: StageModels = STAGE_MODELS): CaseRollup {
+  const moved: Requirements = { ...req, sources: req.sources.map((s) => (Object.prototype.hasOwnProperty.call(sourceVolts, s.id) ? { ...s, vNom: sourceVolts[s.id]! as Volts } : s)) };
+  return evaluateCase(makeContext(moved, rails, plan, models), modeId, 'nom');
+}
+
+export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models: StageModels = STAGE_MODELS): Rollup {
+  const ctx = makeContext(req, rails, plan, models);
+  const order = ctx.order;
 
   const modes: ModeRollup[] = req.modes.map((m) => ({
     modeId: m.id, modeName: m.name, share: m.share,
