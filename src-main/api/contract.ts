@@ -108,6 +108,8 @@ export interface WindowFigures {
   inside: boolean;
   minCorner: string;
   maxCorner: string;
+  /** The engine evaluated every corner of this window and of the windows feeding it. */
+  proved: boolean;
 }
 
 export interface SystemFigures {

@@ -24,13 +24,14 @@ import { batteryRuntime, type BatteryRuntime } from './battery.ts';
 /** The stage models the roll-up calls (the real engine satisfies it). */
 export interface StageModels {
   evaluate(design: unknown, op: OperatingPoint): StageEvaluation;
-  windows(design: unknown, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }): OutputWindow[];
+  /** `opts.magneticSweep: 'full'` asks for every corner of a coupled-winding stage's magnetic. */
+  windows(design: unknown, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }, opts?: { magneticSweep?: 'full' }): OutputWindow[];
 }
 
 /** The real stage engine as the roll-up's models. */
 export const STAGE_MODELS: StageModels = {
   evaluate: (design, op) => evaluateStage(design as StageDesign, op),
-  windows: (design, corners) => stageWindows(design as StageDesign, corners),
+  windows: (design, corners, opts) => stageWindows(design as StageDesign, corners, opts),
 };
 
 export type VinCase = 'min' | 'nom' | 'max';
@@ -106,6 +107,11 @@ export interface RailWindowRow {
   minCorner: string;
   maxCorner: string;
   stageId: Id;
+  /**
+   * Proved: the stage models evaluated every corner of this window (OutputWindow.exhaustive)
+   * and of every window upstream of it that gave its input corners.
+   */
+  proved: boolean;
 }
 
 export interface WeightedStage {
@@ -177,14 +183,15 @@ export function clearRollupCache(): void {
   windowCache = new WeakMap();
 }
 
-function windowsCached(models: StageModels, design: unknown, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }): OutputWindow[] {
-  if (design === null || typeof design !== 'object') return models.windows(design, corners);
+function windowsCached(models: StageModels, design: unknown, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }, full = false): OutputWindow[] {
+  const run = () => (full ? models.windows(design, corners, { magneticSweep: 'full' }) : models.windows(design, corners));
+  if (design === null || typeof design !== 'object') return run();
   let m = windowCache.get(design);
   if (!m) { m = new Map(); windowCache.set(design, m); }
-  const key = `${corners.vin.join(',')}|${corners.iout.map((i) => `${i.min}:${i.max}`).join(',')}`;
+  const key = `${full ? 'full|' : ''}${corners.vin.join(',')}|${corners.iout.map((i) => `${i.min}:${i.max}`).join(',')}`;
   let w = m.get(key);
   if (!w) {
-    w = models.windows(design, corners);
+    w = run();
     if (m.size > 200) m.clear();
     m.set(key, w);
   }
@@ -420,11 +427,15 @@ export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models:
   };
 }
 
-/** Worst-case windows, top-down: a stage's input corners are its feeding node's window. */
-function computeWindows(ctx: Context, modes: ModeRollup[]): RailWindowRow[] {
+/**
+ * Worst-case windows, top-down: a stage's input corners are its feeding node's window, its
+ * load corners each output's smallest and largest current over `modes` and every input case.
+ * `full`: every magnetic corner of a coupled-winding stage (else at the nominal extremes).
+ */
+function computeWindows(ctx: Context, modes: ModeRollup[], full = false): RailWindowRow[] {
   const { req, order } = ctx;
-  const nodeWindow = new Map<Id, { min: number; nom: number; max: number }>();
-  for (const s of req.sources) nodeWindow.set(s.id, { min: s.vMin, nom: s.vNom, max: s.vMax });
+  const nodeWindow = new Map<Id, { min: number; nom: number; max: number; proved: boolean }>();
+  for (const s of req.sources) nodeWindow.set(s.id, { min: s.vMin, nom: s.vNom, max: s.vMax, proved: true });
   const internal = new Map(ctx.plan.internalNodes.map((n) => [n.id, n]));
   const rows: RailWindowRow[] = [];
   for (const st of order) {
@@ -443,12 +454,13 @@ function computeWindows(ctx: Context, modes: ModeRollup[]): RailWindowRow[] {
     });
     let ws: OutputWindow[];
     try {
-      ws = windowsCached(ctx.models, st.design, { vin, iout });
+      ws = windowsCached(ctx.models, st.design, { vin, iout }, full);
     } catch (e) {
       throw new RollupError(`stage ${st.id} (${st.name}) windows: ${(e as Error).message}`);
     }
     for (const ow of ws) {
-      nodeWindow.set(ow.nodeId, { min: ow.min, nom: ow.target, max: ow.max });
+      const proved = w.proved && ow.exhaustive === true;
+      nodeWindow.set(ow.nodeId, { min: ow.min, nom: ow.target, max: ow.max, proved });
       const rail = ctx.railById.get(ow.nodeId);
       const target = rail ? rail.voltage : ow.target;
       const tol = rail ? rail.tolerance : null;
@@ -461,11 +473,30 @@ function computeWindows(ctx: Context, modes: ModeRollup[]): RailWindowRow[] {
         name: rail?.name ?? internal.get(ow.nodeId)?.name ?? ow.nodeId,
         isRail: !!rail, target, min: ow.min, max: ow.max, allowedMin, allowedMax,
         inside: lo >= Math.min(allowedMin, allowedMax) - 1e-12 && hi <= Math.max(allowedMin, allowedMax) + 1e-12,
-        minCorner: ow.minCorner, maxCorner: ow.maxCorner, stageId: st.id,
+        minCorner: ow.minCorner, maxCorner: ow.maxCorner, stageId: st.id, proved,
       });
     }
   }
   return rows;
+}
+
+export interface ModeWindows {
+  modeId: Id;
+  modeName: string;
+  /** Every node's window with the load corners of this mode only (source at min…max). */
+  rows: RailWindowRow[];
+}
+
+/**
+ * Windows per operating mode: the roll-up's worst-case windows (computeWindows, the rows the
+ * inspector shows over every mode) with each output's load corners taken from one mode's
+ * input cases only, and every magnetic corner of a coupled-winding stage evaluated, so each
+ * row is proved unless a model says otherwise. `rollup` must be `rollupPlan` of the same
+ * requirements and plan (its per-case node currents give the load corners).
+ */
+export function modeWindows(req: Requirements, rails: Rail[], plan: Plan, rollup: Rollup, models: StageModels = STAGE_MODELS): ModeWindows[] {
+  const ctx = makeContext(req, rails, plan, models);
+  return rollup.modes.map((m) => ({ modeId: m.modeId, modeName: m.modeName, rows: computeWindows(ctx, [m], true) }));
 }
 
 /** The mode with the most load power at nominal input (the drawing's default). */
