@@ -19,7 +19,7 @@ const FORBIDDEN: Array<[RegExp, string]> = [
   [/\son[a-z]+\s*=/i, 'an event attribute'],
   [/\bhref\s*=/i, 'a link'],
   [/javascript:/i, 'a script address'],
-  [/url\s*\(/i, 'an external reference'],
+  [/url\s*\(\s*(?!#)/i, 'an external reference (only a reference inside the drawing, url(#…), is allowed)'],
 ];
 
 export function plotSvgFile(svg: string): string {

@@ -55,6 +55,13 @@ export function niceTicks(lo: number, hi: number, target = 5): number[] {
   return ticks;
 }
 
+/** Data that are all ≥ 0 (a cost, a current) get no negative ticks (the axis starts at 0). */
+function nonNegative(ticks: number[], data: number[]): number[] {
+  if (!data.length || Math.min(...data) < 0 || ticks[0]! >= 0) return ticks;
+  const kept = ticks.filter((t) => t >= 0);
+  return kept[0] === 0 ? (kept.length >= 2 ? kept : [0, ticks[ticks.length - 1]!]) : [0, ...kept];
+}
+
 export function tickText(v: number, kind: AxisKind): string {
   if (kind === 'percent') return `${(Math.round(v * 1000) / 10).toString()} %`;
   if (kind === 'number') return String(Number(v.toPrecision(4)));
@@ -72,8 +79,8 @@ export function plotSvg(spec: PlotSpec): string {
   const m = { l: 62, r: 22, t: 22, b: 34 + 14 * legendRows };
   const xs = series.flatMap((s) => s.points.map((p) => p.x)).filter(Number.isFinite);
   const ys = series.flatMap((s) => s.points.map((p) => p.y)).filter(Number.isFinite);
-  const xt = niceTicks(xs.length ? Math.min(...xs) : 0, xs.length ? Math.max(...xs) : 1, W < 420 ? 4 : 6);
-  const yt = niceTicks(ys.length ? Math.min(...ys) : 0, ys.length ? Math.max(...ys) : 1);
+  const xt = nonNegative(niceTicks(xs.length ? Math.min(...xs) : 0, xs.length ? Math.max(...xs) : 1, W < 420 ? 4 : 6), xs);
+  const yt = nonNegative(niceTicks(ys.length ? Math.min(...ys) : 0, ys.length ? Math.max(...ys) : 1), ys);
   const x0 = xt[0]!, x1 = xt[xt.length - 1]!, y0 = yt[0]!, y1 = yt[yt.length - 1]!;
   const pw = W - m.l - m.r, ph = H - m.t - m.b;
   const X = (v: number) => m.l + ((v - x0) / (x1 - x0 || 1)) * pw;
