@@ -118,7 +118,8 @@ export function plotSvg(spec: PlotSpec): string {
     if (s.mark) out.push(`<circle class="mark" cx="${f(X(s.mark.x))}" cy="${f(Y(s.mark.y))}" r="4" fill="none" stroke="var(--ink, #1f2933)" stroke-width="1.2"/>`);
     out.push('</g>');
     const ly = m.t + ph + 38 + 14 * k;
-    out.push(`<g class="legend"><line x1="${m.l}" y1="${ly - 3}" x2="${m.l + 16}" y2="${ly - 3}" stroke="${c}" stroke-width="2"/><text x="${m.l + 20}" y="${ly}" fill="var(--ink, #1f2933)">${xmlEscape(s.label)}</text></g>`);
+    const swatch = spec.scatter ? `<circle cx="${m.l + 8}" cy="${ly - 3}" r="3.2" fill="none" stroke="${c}" stroke-width="1.2"/>` : `<line x1="${m.l}" y1="${ly - 3}" x2="${m.l + 16}" y2="${ly - 3}" stroke="${c}" stroke-width="2"/>`;
+    out.push(`<g class="legend">${swatch}<text x="${m.l + 20}" y="${ly}" fill="var(--ink, #1f2933)">${xmlEscape(s.label)}</text></g>`);
   });
   out.push('</svg>');
   return out.join('');
