@@ -121,5 +121,12 @@ describe('plot requests', () => {
     }
     expect(() => readFileSync(out)).toThrow();
     expect((await refused(a.request('export.file', { kind: 'json', svg }))).field).toBe('svg');
+    // A name that merely reads like markup (escaped by the builder) is saved.
+    const odd = plotSvg({ title: 'onload="x()" url(http://x) javascript:y', xLabel: 'a', yLabel: 'b', xKind: 'voltage', yKind: 'percent',
+      series: [{ label: 'href="z" <script>', points: [{ x: 1, y: 0.5 }, { x: 2, y: 0.6 }] }] });
+    const d = await ok<{ base64: string }>(a.request('export.file', { kind: 'plot-svg', svg: odd, plotName: 'odd' }));
+    const back = Buffer.from(d.base64, 'base64').toString('utf8');
+    expect(XMLValidator.validate(back)).toBe(true);
+    expect(String(new XMLParser().parse(back).svg.title)).toBe('onload="x()" url(http://x) javascript:y');
   });
 });
