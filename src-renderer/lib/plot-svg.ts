@@ -157,7 +157,10 @@ export function windowChartSvg(spec: WindowChartSpec): string {
   const nb = Math.max(1, spec.barLabels.length);
   const barH = 5, gap = 2;
   const rowH = nb * (barH + gap) + 10;
-  const nameW = Math.min(190, 12 + 6.2 * Math.max(6, ...spec.rows.map((r) => Math.min(28, r.name.length + 10))));
+  // Room for the longest label ("name 3.3 V", the name cut at NAME_MAX), ~5.8 px a character at 10 px.
+  const NAME_MAX = 26;
+  const labelLen = (r: WindowRow) => Math.min(NAME_MAX, r.name.length) + 1 + tickText(r.target, 'voltage').length;
+  const nameW = Math.min(14 + 5.8 * (NAME_MAX + 8), 14 + 5.8 * Math.max(8, ...spec.rows.map(labelLen)));
   const legendRows = Math.ceil((spec.barLabels.length + 2) / 2);
   const m = { l: nameW, r: 22, t: 24, b: 36 + 14 * legendRows };
   const ph = Math.max(rowH, rowH * spec.rows.length);
@@ -180,7 +183,7 @@ export function windowChartSvg(spec: WindowChartSpec): string {
   spec.rows.forEach((r, k) => {
     const y = m.t + k * rowH;
     const a = deviation(r.bandMin, r.target), b = deviation(r.bandMax, r.target);
-    const name = r.name.length > 28 ? `${r.name.slice(0, 27)}…` : r.name;
+    const name = r.name.length > NAME_MAX ? `${r.name.slice(0, NAME_MAX - 1)}…` : r.name;
     out.push(`<g class="rail" data-rail="${k}">`);
     if (k % 2) out.push(`<rect x="0" y="${f(y)}" width="${W}" height="${rowH}" fill="var(--head, #f0f3f6)" opacity="0.5"/>`);
     out.push(`<rect class="band" x="${f(X(Math.min(a, b)))}" y="${f(y + 3)}" width="${f(Math.abs(X(b) - X(a)))}" height="${rowH - 6}" fill="var(--accent-soft, #b8dcd8)" opacity="0.55"/>`);
