@@ -109,6 +109,8 @@ export interface WindowFigures {
   inside: boolean;
   minCorner: string;
   maxCorner: string;
+  /** The engine evaluated every corner of this window and of the windows feeding it. */
+  proved: boolean;
 }
 
 export interface SystemFigures {
@@ -292,7 +294,7 @@ export interface CellEdit {
 }
 
 export type ExportKind =
-  | 'bom-csv' | 'bom-xlsx' | 'tree-svg' | 'tree-pdf' | 'report' | 'json' | 'spice' | 'magnetics';
+  | 'bom-csv' | 'bom-xlsx' | 'tree-svg' | 'tree-pdf' | 'report' | 'json' | 'spice' | 'magnetics' | 'plot-svg';
 
 export interface ExportFile {
   fileName: string;
@@ -382,6 +384,32 @@ export interface StageCurvesView {
   skipped: string[];
 }
 
+/** The whole tree versus one source's voltage, per mode (engine/curves.ts systemSourceSweep). */
+export interface SystemSweepView {
+  sourceId: Id;
+  sourceName: string;
+  range: { min: number; nom: number; max: number };
+  /** Sources that feed the tree (the ones the window may sweep). */
+  sources: Array<{ id: Id; name: string }>;
+  modes: Array<{ modeId: Id; modeName: string; points: Array<{ v: number; efficiency: number; sourceCurrent: number; sourcePower: number; loadPower: number; loss: number }> }>;
+  skipped: string[];
+}
+
+/** One window row per rail (rollup.ts): over every mode (as the inspector shows), then per mode. */
+export interface RailWindowLine {
+  nodeId: Id;
+  name: string;
+  target: number;
+  allowedMin: number;
+  allowedMax: number;
+  /** The roll-up's window over every mode and input case (the inspector's figure). */
+  all: { min: number; max: number; inside: boolean; proved: boolean };
+  /** Per operating mode, in the requirements' order (rollup.ts modeWindows). */
+  modes: Array<{ modeId: Id; modeName: string; min: number; max: number; inside: boolean; proved: boolean; minCorner: string; maxCorner: string }>;
+}
+
+export interface ModeWindowsView { modes: Array<{ id: Id; name: string }>; rails: RailWindowLine[] }
+
 export interface Requests {
   'project.snapshot': (args: Record<string, never>) => Snapshot;
   'project.new': (args: { discard?: boolean }) => Snapshot;
@@ -429,6 +457,10 @@ export interface Requests {
    * (at Vin min/nom/max) and over Vin (at the roll-up's nominal operating point).
    */
   'plot.stageCurves': (args: { stageId: Id }) => StageCurvesView;
+  /** The shown tree's system efficiency and source current versus one source's voltage, per mode (the roll-up at each voltage). */
+  'plot.systemSweep': (args: { sourceId?: Id }) => SystemSweepView;
+  /** The shown tree's rail windows per operating mode against each rail's band. */
+  'plot.modeWindows': (args: Record<string, never>) => ModeWindowsView;
 
   /** An existing file at `path` is replaced only with `overwrite: true` (else code `exists`). */
   /** Read a load list (CSV or XLSX bytes as base64) and preview it under a guessed column mapping; changes nothing. */
@@ -446,7 +478,11 @@ export interface Requests {
    */
   'project.openBytes': (args: { fileName: string; base64: string; discard?: boolean }) => Snapshot;
 
-  'export.file': (args: { kind: ExportKind; path?: string; stageId?: Id; overwrite?: boolean }) => ExportFile;
+  /**
+   * `plot-svg`: a plot the window drew (`svg`, from src-renderer/lib/plot-svg.ts), checked and
+   * written as a file of its own; `plotName` names the file (`<project>-<plotName>.svg`).
+   */
+  'export.file': (args: { kind: ExportKind; path?: string; stageId?: Id; overwrite?: boolean; svg?: string; plotName?: string }) => ExportFile;
 }
 
 export type RequestName = keyof Requests;

@@ -17,8 +17,9 @@ import type { ExportFile, ExportKind } from './contract.ts';
 import { libraryRows } from './figures.ts';
 import { planningProblems } from './plan-job.ts';
 import type { PartLibraryRow } from '../engine/model.ts';
+import { PLOT_SVG_MAX, plotSvgFile, PlotFileError } from '../export/plot-file.ts';
 
-const kinds = z.enum(['bom-csv', 'bom-xlsx', 'tree-svg', 'tree-pdf', 'report', 'json', 'spice', 'magnetics']);
+const kinds = z.enum(['bom-csv', 'bom-xlsx', 'tree-svg', 'tree-pdf', 'report', 'json', 'spice', 'magnetics', 'plot-svg']);
 
 const META: Record<ExportKind, { ext: string; mime: string; suffix: string }> = {
   'bom-csv': { ext: '.csv', mime: 'text/csv', suffix: '-bom' },
@@ -29,6 +30,7 @@ const META: Record<ExportKind, { ext: string; mime: string; suffix: string }> = 
   json: { ext: '.json', mime: 'application/json', suffix: '' },
   spice: { ext: '.cir', mime: 'text/plain', suffix: '-netlists' },
   magnetics: { ext: '.md', mime: 'text/markdown', suffix: '-magnetics' },
+  'plot-svg': { ext: '.svg', mime: 'image/svg+xml', suffix: '-plot' },
 };
 
 let elk: InstanceType<typeof ELK> | null = null;
@@ -37,8 +39,16 @@ function baseName(s: Session): string {
   return (s.requirements.meta.name || 'project').replace(/[^\w.-]+/g, '-').replace(/^-+|-+$/g, '') || 'project';
 }
 
-async function render(s: Session, kind: ExportKind, stageId: string | undefined): Promise<Uint8Array> {
+async function render(s: Session, kind: ExportKind, stageId: string | undefined, svg?: string): Promise<Uint8Array> {
   const enc = (t: string) => new TextEncoder().encode(t);
+  if (kind === 'plot-svg') {
+    try {
+      return enc(plotSvgFile(svg ?? ''));
+    } catch (e) {
+      if (e instanceof PlotFileError) throw new ApiFailure(`plot-svg: ${e.message}`, 'svg');
+      throw e;
+    }
+  }
   if (kind === 'json') {
     const plan = s.planResult ? { revision: s.planResult.revision, computedAt: new Date().toISOString(), result: s.planResult } : undefined;
     return enc(exportProjectJson({ requirements: s.requirements, library: (Array.isArray(s.library) ? s.library : []) as PartLibraryRow[], ...(plan ? { plan } : {}) }));
@@ -88,13 +98,15 @@ function exists(target: string): ApiFailure {
 export const exportHandlers = {
   'export.file': handler('export.file', z.object({
     kind: kinds, path: z.string().min(1).max(1024).optional(), stageId: z.string().max(200).optional(), overwrite: z.boolean().optional(),
+    svg: z.string().max(PLOT_SVG_MAX).optional(), plotName: z.string().min(1).max(80).optional(),
   }).strict(),
     async (s: Session, a): Promise<ExportFile> => {
       const meta = META[a.kind];
       const target = a.path !== undefined ? s.pathPolicy(a.path, 'export', meta.ext) : null;
       const replace = a.overwrite === true;
       if (target && !replace && existsSync(target)) throw exists(target);
-      const bytes = await render(s, a.kind, a.stageId);
+      if (a.kind !== 'plot-svg' && (a.svg !== undefined || a.plotName !== undefined)) throw new ApiFailure(`svg: only a plot-svg export takes plot markup (kind is ${a.kind})`, 'svg');
+      const bytes = await render(s, a.kind, a.stageId, a.svg);
       if (target) {
         try {
           // Without the confirmation the file is only created, never replaced, even if
@@ -107,7 +119,8 @@ export const exportHandlers = {
       }
       return {
         // One stage's netlist is named after its stage, so several downloads never collide.
-        fileName: a.kind === 'spice' && a.stageId ? `${baseName(s)}-${a.stageId.replace(/[^\w.-]+/g, '-')}${meta.ext}` : `${baseName(s)}${meta.suffix}${meta.ext}`,
+        fileName: a.kind === 'plot-svg' && a.plotName ? `${baseName(s)}-${a.plotName.replace(/[^\w.-]+/g, '-').replace(/^-+|-+$/g, '') || 'plot'}${meta.ext}`
+          : a.kind === 'spice' && a.stageId ? `${baseName(s)}-${a.stageId.replace(/[^\w.-]+/g, '-')}${meta.ext}` : `${baseName(s)}${meta.suffix}${meta.ext}`,
         mime: meta.mime,
         base64: target ? '' : Buffer.from(bytes).toString('base64'),
         writtenTo: target,

@@ -16,7 +16,7 @@ import type { Session } from './session.ts';
 
 export const ENGINE_MODELS: StageModels = {
   evaluate: (design, op) => evaluateStage(design, op),
-  windows: (design, corners) => stageWindows(design, corners),
+  windows: (design, corners, opts) => stageWindows(design, corners, opts),
 };
 
 export interface ComputedRollup {
@@ -66,7 +66,7 @@ export function toRollupView(s: Session, r: Rollup): RollupView {
     stages,
     windows: r.windows.map((w) => ({
       nodeId: w.nodeId, target: w.target, min: w.min, max: w.max, allowedMin: w.allowedMin, allowedMax: w.allowedMax,
-      inside: w.inside, minCorner: w.minCorner, maxCorner: w.maxCorner,
+      inside: w.inside, minCorner: w.minCorner, maxCorner: w.maxCorner, proved: w.proved,
     })),
     system,
     weightedLoss: r.weighted.loss,

@@ -9,9 +9,9 @@
  * so the curve passes through the number the Budget view shows (one number per quantity).
  * Pure: no IO.
  */
-import type { Id } from './model.ts';
+import type { Id, Rail, Requirements } from './model.ts';
 import type { Plan } from './plan-types.ts';
-import { designOutputOrder, type Rollup, type StageModels, STAGE_MODELS, VIN_CASES } from './rollup.ts';
+import { designOutputOrder, rollupCaseAt, type Rollup, type StageModels, STAGE_MODELS, VIN_CASES } from './rollup.ts';
 import type { Amps, Celsius, Volts } from './units.ts';
 
 export interface CurvePoint {
@@ -135,4 +135,59 @@ export function stageCurves(plan: Plan, rollup: Rollup, stageId: Id, ambient: nu
     operating: { modeId: best.modeId, modeName: best.modeName, vin: vNom, iout: opIout, loss: best.fig.loss, efficiency: best.fig.efficiency },
     ioutMax, vinRange, load, input, skipped,
   };
+}
+
+export interface SystemPoint {
+  /** The swept source's voltage. */
+  v: number;
+  /** Power into the tree from every source, power to the loads, their difference. */
+  sourcePower: number;
+  loadPower: number;
+  loss: number;
+  /** loadPower / sourcePower (the roll-up's system efficiency). */
+  efficiency: number;
+  /** Current drawn from the swept source. */
+  sourceCurrent: number;
+}
+
+export interface SystemSweep {
+  sourceId: Id;
+  sourceName: string;
+  range: { min: number; nom: number; max: number };
+  modes: Array<{ modeId: Id; modeName: string; points: SystemPoint[] }>;
+  /** Points the roll-up refused (the message names mode and voltage); they are left out. */
+  skipped: string[];
+}
+
+/**
+ * The whole tree versus one source's voltage, one series per operating mode: at each
+ * voltage the roll-up's own leaves-up evaluation (rollupCaseAt) with that source there and
+ * any other source at nominal. The axis runs over the source's range and contains its
+ * min, nominal and max exactly, so those points are the roll-up's V min / nom / max cases.
+ */
+export function systemSourceSweep(req: Requirements, rails: Rail[], plan: Plan, sourceId: Id, models: StageModels = STAGE_MODELS, points = 21): SystemSweep {
+  const src = req.sources.find((s) => s.id === sourceId);
+  if (!src) throw new CurveError(`sourceId: no source "${sourceId}" in the requirements`);
+  if (!req.modes.length) throw new CurveError('modes: no operating modes to sweep');
+  const n = Math.max(3, Math.min(200, Math.round(points)));
+  const lo = Math.min(src.vMin, src.vMax), hi = Math.max(src.vMin, src.vMax);
+  const axis = new Set<number>([src.vMin, src.vNom, src.vMax]);
+  for (let k = 0; k < n; k++) axis.add(lo + ((hi - lo) * k) / (n - 1));
+  const vs = [...axis].sort((a, b) => a - b);
+  const skipped: string[] = [];
+  const modes = req.modes.map((m) => ({
+    modeId: m.id, modeName: m.name,
+    points: vs.flatMap((v): SystemPoint[] => {
+      try {
+        const c = rollupCaseAt(req, rails, plan, m.id, { [src.id]: v }, models);
+        const s = c.sources[src.id];
+        if (!s || !Number.isFinite(c.sourcePower) || !Number.isFinite(c.loadPower)) { skipped.push(`mode "${m.name}", ${src.name} at ${v} V: no finite power`); return []; }
+        return [{ v, sourcePower: c.sourcePower, loadPower: c.loadPower, loss: c.loss, efficiency: c.efficiency, sourceCurrent: s.i }];
+      } catch (e) {
+        skipped.push(`mode "${m.name}", ${src.name} at ${v} V: ${(e as Error).message}`);
+        return [];
+      }
+    }),
+  }));
+  return { sourceId: src.id, sourceName: src.name, range: { min: src.vMin, nom: src.vNom, max: src.vMax }, modes, skipped };
 }

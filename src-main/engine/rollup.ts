@@ -24,13 +24,14 @@ import { batteryRuntime, type BatteryRuntime } from './battery.ts';
 /** The stage models the roll-up calls (the real engine satisfies it). */
 export interface StageModels {
   evaluate(design: StageDesign, op: OperatingPoint): StageEvaluation;
-  windows(design: StageDesign, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }): OutputWindow[];
+  /** `opts.magneticSweep: 'full'` asks for every corner of a coupled-winding stage's magnetic. */
+  windows(design: StageDesign, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }, opts?: { magneticSweep?: 'full' }): OutputWindow[];
 }
 
 /** The real stage engine as the roll-up's models. */
 export const STAGE_MODELS: StageModels = {
   evaluate: (design, op) => evaluateStage(design, op),
-  windows: (design, corners) => stageWindows(design, corners),
+  windows: (design, corners, opts) => stageWindows(design, corners, opts),
 };
 
 export type VinCase = 'min' | 'nom' | 'max';
@@ -106,6 +107,11 @@ export interface RailWindowRow {
   minCorner: string;
   maxCorner: string;
   stageId: Id;
+  /**
+   * Proved: the stage models evaluated every corner of this window (OutputWindow.exhaustive)
+   * and of every window upstream of it that gave its input corners.
+   */
+  proved: boolean;
 }
 
 export interface WeightedStage {
@@ -177,14 +183,15 @@ export function clearRollupCache(): void {
   windowCache = new WeakMap();
 }
 
-function windowsCached(models: StageModels, design: StageDesign, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }): OutputWindow[] {
-  if (design === null || typeof design !== 'object') return models.windows(design, corners);
+function windowsCached(models: StageModels, design: StageDesign, corners: { vin: Volts[]; iout: { min: Amps; max: Amps }[] }, full = false): OutputWindow[] {
+  const run = () => (full ? models.windows(design, corners, { magneticSweep: 'full' }) : models.windows(design, corners));
+  if (design === null || typeof design !== 'object') return run();
   let m = windowCache.get(design);
   if (!m) { m = new Map(); windowCache.set(design, m); }
-  const key = `${corners.vin.join(',')}|${corners.iout.map((i) => `${i.min}:${i.max}`).join(',')}`;
+  const key = `${full ? 'full|' : ''}${corners.vin.join(',')}|${corners.iout.map((i) => `${i.min}:${i.max}`).join(',')}`;
   let w = m.get(key);
   if (!w) {
-    w = models.windows(design, corners);
+    w = run();
     if (m.size > 200) m.clear();
     m.set(key, w);
   }
@@ -322,7 +329,7 @@ function evaluateCase(ctx: Context, modeId: Id, vinCase: VinCase): CaseRollup {
   };
 }
 
-export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models: StageModels = STAGE_MODELS): Rollup {
+function makeContext(req: Requirements, rails: Rail[], plan: Plan, models: StageModels): Context {
   const order = topoOrder(plan);
   for (const st of order) {
     designOf(st);
@@ -330,13 +337,27 @@ export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models:
   const nominal = new Map<Id, number>();
   for (const r of rails) nominal.set(r.id, r.voltage);
   for (const n of plan.internalNodes) nominal.set(n.id, n.voltage);
-  const ctx: Context = {
+  return {
     req, rails, plan, models, order,
     orderIds: new Map(order.map((st) => [st.id, designOutputOrder(st)])),
     railById: new Map(rails.map((r) => [r.id, r])),
     sourceById: new Map(req.sources.map((s) => [s.id, s])),
     nominal,
   };
+}
+
+/**
+ * One mode with the given sources at the given voltages (the others at nominal), by the
+ * same leaves-up evaluation as every case of `rollupPlan` (engine/curves.ts sweeps it).
+ */
+export function rollupCaseAt(req: Requirements, rails: Rail[], plan: Plan, modeId: Id, sourceVolts: Record<Id, number>, models: StageModels = STAGE_MODELS): CaseRollup {
+  const moved: Requirements = { ...req, sources: req.sources.map((s) => (Object.prototype.hasOwnProperty.call(sourceVolts, s.id) ? { ...s, vNom: sourceVolts[s.id]! as Volts } : s)) };
+  return evaluateCase(makeContext(moved, rails, plan, models), modeId, 'nom');
+}
+
+export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models: StageModels = STAGE_MODELS): Rollup {
+  const ctx = makeContext(req, rails, plan, models);
+  const order = ctx.order;
 
   const modes: ModeRollup[] = req.modes.map((m) => ({
     modeId: m.id, modeName: m.name, share: m.share,
@@ -417,11 +438,15 @@ export function rollupPlan(req: Requirements, rails: Rail[], plan: Plan, models:
   };
 }
 
-/** Worst-case windows, top-down: a stage's input corners are its feeding node's window. */
-function computeWindows(ctx: Context, modes: ModeRollup[]): RailWindowRow[] {
+/**
+ * Worst-case windows, top-down: a stage's input corners are its feeding node's window, its
+ * load corners each output's smallest and largest current over `modes` and every input case.
+ * `full`: every magnetic corner of a coupled-winding stage (else at the nominal extremes).
+ */
+function computeWindows(ctx: Context, modes: ModeRollup[], full = false): RailWindowRow[] {
   const { req, order } = ctx;
-  const nodeWindow = new Map<Id, { min: number; nom: number; max: number }>();
-  for (const s of req.sources) nodeWindow.set(s.id, { min: s.vMin, nom: s.vNom, max: s.vMax });
+  const nodeWindow = new Map<Id, { min: number; nom: number; max: number; proved: boolean }>();
+  for (const s of req.sources) nodeWindow.set(s.id, { min: s.vMin, nom: s.vNom, max: s.vMax, proved: true });
   const internal = new Map(ctx.plan.internalNodes.map((n) => [n.id, n]));
   const rows: RailWindowRow[] = [];
   for (const st of order) {
@@ -441,12 +466,13 @@ function computeWindows(ctx: Context, modes: ModeRollup[]): RailWindowRow[] {
     const design = designOf(st);
     let ws: OutputWindow[];
     try {
-      ws = windowsCached(ctx.models, design, { vin, iout });
+      ws = windowsCached(ctx.models, design, { vin, iout }, full);
     } catch (e) {
       throw new RollupError(`stage ${st.id} (${st.name}) windows: ${(e as Error).message}`);
     }
     for (const ow of ws) {
-      nodeWindow.set(ow.nodeId, { min: ow.min, nom: ow.target, max: ow.max });
+      const proved = w.proved && ow.exhaustive === true;
+      nodeWindow.set(ow.nodeId, { min: ow.min, nom: ow.target, max: ow.max, proved });
       const rail = ctx.railById.get(ow.nodeId);
       const target = rail ? rail.voltage : ow.target;
       const tol = rail ? rail.tolerance : null;
@@ -459,11 +485,30 @@ function computeWindows(ctx: Context, modes: ModeRollup[]): RailWindowRow[] {
         name: rail?.name ?? internal.get(ow.nodeId)?.name ?? ow.nodeId,
         isRail: !!rail, target, min: ow.min, max: ow.max, allowedMin, allowedMax,
         inside: lo >= Math.min(allowedMin, allowedMax) - 1e-12 && hi <= Math.max(allowedMin, allowedMax) + 1e-12,
-        minCorner: ow.minCorner, maxCorner: ow.maxCorner, stageId: st.id,
+        minCorner: ow.minCorner, maxCorner: ow.maxCorner, stageId: st.id, proved,
       });
     }
   }
   return rows;
+}
+
+export interface ModeWindows {
+  modeId: Id;
+  modeName: string;
+  /** Every node's window with the load corners of this mode only (source at min…max). */
+  rows: RailWindowRow[];
+}
+
+/**
+ * Windows per operating mode: the roll-up's worst-case windows (computeWindows, the rows the
+ * inspector shows over every mode) with each output's load corners taken from one mode's
+ * input cases only, and every magnetic corner of a coupled-winding stage evaluated, so each
+ * row is proved unless a model says otherwise. `rollup` must be `rollupPlan` of the same
+ * requirements and plan (its per-case node currents give the load corners).
+ */
+export function modeWindows(req: Requirements, rails: Rail[], plan: Plan, rollup: Rollup, models: StageModels = STAGE_MODELS): ModeWindows[] {
+  const ctx = makeContext(req, rails, plan, models);
+  return rollup.modes.map((m) => ({ modeId: m.modeId, modeName: m.modeName, rows: computeWindows(ctx, [m], true) }));
 }
 
 /** The mode with the most load power at nominal input (the drawing's default). */

@@ -6,7 +6,7 @@
 import type { ApiError, ApiResult, PlanProgress, RequestArgs, RequestName, RequestValue, Snapshot } from '../../src-main/api/contract.ts';
 import { bridge } from './bridge.ts';
 
-export type ViewName = 'requirements' | 'tree' | 'alternatives' | 'budget' | 'parts' | 'help';
+export type ViewName = 'requirements' | 'tree' | 'alternatives' | 'budget' | 'parts' | 'charts' | 'help';
 export type Selection = { kind: 'stage' | 'rail' | 'source' | 'internal'; id: string } | null;
 
 export interface Prompt {

@@ -15,7 +15,8 @@ export async function exportNetlists(): Promise<void> {
   if (done === stages.length) app.info(`Downloaded ${done} netlist${done === 1 ? '' : 's'}, one per switching stage: run each with ngspice -b <file>.`);
 }
 
-export async function exportFile(kind: ExportKind, ext: string, stageId?: string, suffix = ''): Promise<boolean> {
+/** `plot`: a plot this window drew (lib/plot-svg.ts), for the plot-svg kind. */
+export async function exportFile(kind: ExportKind, ext: string, stageId?: string, suffix = '', plot?: { svg: string; plotName: string }): Promise<boolean> {
   const name = `${(app.snapshot?.state.name || 'project').replace(/[^\w.-]+/g, '-')}${suffix}${ext}`;
   let path: string | undefined;
   if (bridge.choosePath) {
@@ -25,7 +26,7 @@ export async function exportFile(kind: ExportKind, ext: string, stageId?: string
   }
   // A path comes only from the system dialog, which has already asked before replacing an
   // existing file (`overwrite` carries that confirmation); without a path it is a download.
-  const r = await app.call('export.file', { kind, ...(path ? { path, overwrite: true } : {}), ...(stageId ? { stageId } : {}) });
+  const r = await app.call('export.file', { kind, ...(path ? { path, overwrite: true } : {}), ...(stageId ? { stageId } : {}), ...(plot ? { svg: plot.svg, plotName: plot.plotName } : {}) });
   if (!r.ok) return false;
   if (r.value.writtenTo) {
     app.info(`Written to ${r.value.writtenTo}`);

@@ -138,6 +138,11 @@ export interface OutputWindow {
   /** Which corner produced the min and the max, readable. */
   minCorner: string;
   maxCorner: string;
+  /**
+   * True when every corner of the set was evaluated (false: a coupled-winding stage whose
+   * magnetic corners were taken only at each output's nominal extremes, the default sweep).
+   */
+  exhaustive?: boolean;
   /** Seeded Monte Carlo spread, when asked for (uniform draws inside every tolerance). */
   monteCarlo?: { min: Volts; max: Volts; runs: number; seed: number };
 }

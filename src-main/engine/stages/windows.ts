@@ -214,6 +214,9 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
       }
     }
   }
+  // Every corner of the set was evaluated unless the magnetic's corners were taken only at
+  // the nominal extremes.
+  const exhaustive = !(d.kind === 'cwbuck' && opts.magneticSweep !== 'full' && magnetic!.length > 1);
   let mc: { min: number[]; max: number[] } | null = null;
   const runs = opts.monteCarlo ? Math.max(0, Math.min(1e6, Math.floor(opts.monteCarlo.runs))) : 0;
   if (opts.monteCarlo && runs > 0) {
@@ -252,6 +255,7 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
       inside: min >= band.min - 1e-12 && max <= band.max + 1e-12,
       minCorner: neg ? hiAt[i]! : loAt[i]!,
       maxCorner: neg ? loAt[i]! : hiAt[i]!,
+      exhaustive,
     };
     if (mc && opts.monteCarlo) {
       w.monteCarlo = {
