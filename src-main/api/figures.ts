@@ -95,15 +95,41 @@ export function typedLibrary(rows: PartLibraryRow[]): { ok: true; rows: LibraryR
   return r.ok ? { ok: true, rows: r.rows } : { ok: false, problems: r.problems.map(describeProblem) };
 }
 
+/**
+ * Typed rows per stored library (the BOM of every alternative reads them on every edit). A
+ * library is never changed in place (Session.edit), so its typed rows stay valid.
+ */
+const typedRows = new WeakMap<object, ReturnType<typeof typedLibrary>>();
+
 export function libraryRows(s: Session): LibraryRow[] {
   const rows = Array.isArray(s.library) ? (s.library as PartLibraryRow[]) : [];
-  const r = typedLibrary(rows);
+  let r = typedRows.get(rows);
+  if (!r) {
+    r = typedLibrary(rows);
+    typedRows.set(rows, r);
+  }
   if (!r.ok) throw new Error(`the part library has problems: ${r.problems.slice(0, 3).join('; ')}`);
   return r.rows;
 }
 
+/**
+ * The BOM view per plan, with what it was built from: buildBom reads only the plan, the
+ * library rows and the two derating limits, so an edit of a load (which changes none of
+ * them) reuses the BOM of every alternative instead of picking all their parts again.
+ */
+const bomViews = new WeakMap<Plan, { rows: LibraryRow[]; powerDerating: number; electrolyticDerating: number; view: BomView }>();
+
 export function computeBom(s: Session, plan: Plan): BomView {
-  const bom = buildBom(s.requirements, plan, libraryRows(s));
+  const rows = libraryRows(s);
+  const { powerDerating, electrolyticDerating } = s.requirements.limits;
+  const hit = bomViews.get(plan);
+  if (hit && hit.rows === rows && hit.powerDerating === powerDerating && hit.electrolyticDerating === electrolyticDerating) return hit.view;
+  const view = bomView(buildBom(s.requirements, plan, rows));
+  bomViews.set(plan, { rows, powerDerating, electrolyticDerating, view });
+  return view;
+}
+
+function bomView(bom: ReturnType<typeof buildBom>): BomView {
   const lines = bom.lines.map((l) => ({
     group: l.partClass,
     stageId: l.stages[0] ?? null,

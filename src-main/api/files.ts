@@ -25,9 +25,20 @@ function storeOf(s: Session): ProjectStore | null {
   return s.store instanceof ProjectStore ? s.store : null;
 }
 
+/**
+ * Libraries that passed the shape check. A library is never changed in place (an edit of it
+ * returns a copy, see Session.edit), so one that passed stays good and an edit of a load
+ * does not check the whole part list again.
+ */
+const goodLibraries = new WeakSet<object>();
+
 /** Refuse requirements or a library the store would refuse (checked on every edit). */
 export function checkShapes(req: Requirements, library: unknown): void {
-  const p = checkRequirementsShape(req)[0] ?? (Array.isArray(library) ? checkLibraryShape(library)[0] : undefined);
+  let p = checkRequirementsShape(req)[0];
+  if (!p && Array.isArray(library) && !goodLibraries.has(library)) {
+    p = checkLibraryShape(library)[0];
+    if (!p) goodLibraries.add(library);
+  }
   if (p) throw new ApiFailure(`${p.path}: ${p.message}`, p.path);
 }
 

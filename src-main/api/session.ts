@@ -109,16 +109,19 @@ export class Session {
   }
 
   /**
-   * Apply one edit as an undoable step: `mutate` works on copies and may throw (an
-   * ApiFailure); nothing changes unless it returns normally.
+   * Apply one edit as an undoable step: `mutate` works on a copy of the requirements and
+   * may throw (an ApiFailure); nothing changes unless it returns normally. The library is
+   * passed as it is, read only: an edit of the library returns a new one (library.ts copies
+   * before it changes a row), so a requirements edit does not copy the whole part list.
+   * The replaced objects become the undo step as they are: nothing changes them in place
+   * once replaced, and `restore` copies them back.
    */
-  edit(label: string, mutate: (req: Requirements, library: unknown) => { requirements?: Requirements; library?: unknown } | void): void {
+  edit(label: string, mutate: (req: Requirements, library: Readonly<unknown>) => { requirements?: Requirements; library?: unknown } | void): void {
     const req = clone(this.requirements);
-    const lib = clone(this.library);
-    const out = mutate(req, lib) ?? {};
-    const before = this.capture(label);
+    const out = mutate(req, this.library) ?? {};
+    const before: EditSnapshot = { label, requirements: this.requirements, library: this.library, selectedId: this.selectedId };
     this.requirements = out.requirements ?? req;
-    this.library = out.library !== undefined ? out.library : lib;
+    if (out.library !== undefined) this.library = out.library;
     this.requirements.meta.revision = before.requirements.meta.revision + 1;
     this.undoStack.push(before);
     if (this.undoStack.length > UNDO_DEPTH) this.undoStack.shift();

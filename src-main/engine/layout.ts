@@ -365,7 +365,20 @@ export function nodeText(n: LaidOutNode, detail: Detail): TextLine[] {
   return nodeTextLocal(n, detail).map((l) => ({ ...l, x: l.x + n.x, y: l.y + n.y, box: { ...l.box, x: l.box.x + n.x, y: l.box.y + n.y } }));
 }
 
+/** Sizes by the text they come from (the edit path asks for every node's size twice). */
+const sizes = new Map<string, { width: number; height: number }>();
+
 export function nodeSize(n: TreeNode): { width: number; height: number } {
+  const key = `${n.kind}\u0000${n.name}\u0000${n.key}\u0000${n.lines.join('\u0000')}`;
+  const hit = sizes.get(key);
+  if (hit) return { ...hit };
+  const size = measureNode(n);
+  if (sizes.size > 5000) sizes.clear();
+  sizes.set(key, size);
+  return { ...size };
+}
+
+function measureNode(n: TreeNode): { width: number; height: number } {
   let w = 0;
   let h = 0;
   for (const d of ['glance', 'detail'] as const) {
