@@ -116,7 +116,7 @@ export class Session {
    * The replaced objects become the undo step as they are: nothing changes them in place
    * once replaced, and `restore` copies them back.
    */
-  edit(label: string, mutate: (req: Requirements, library: Readonly<unknown>) => { requirements?: Requirements; library?: unknown } | void): void {
+  edit(label: string, mutate: (req: Requirements, library: unknown) => { requirements?: Requirements; library?: unknown } | void): void {
     const req = clone(this.requirements);
     const out = mutate(req, this.library) ?? {};
     const before: EditSnapshot = { label, requirements: this.requirements, library: this.library, selectedId: this.selectedId };
