@@ -48,8 +48,8 @@ export const TABLE_COLUMNS: Record<Exclude<TableName, 'library'>, ColumnDef[]> =
     { key: 'share', label: 'Share of time', kind: { type: 'fraction', min: 0, max: 1 }, width: 110, hint: 'e.g. 70% or 0.7' },
   ],
   loads: [
-    { key: 'name', label: 'Name', kind: { type: 'text' }, width: 150, hint: 'what is powered' },
-    { key: 'domainId', label: 'Domain', kind: { type: 'enum', options: 'domains' }, width: 110, hint: 'ground domain' },
+    { key: 'name', label: 'Name', kind: { type: 'text' }, width: 210, hint: 'what is powered' },
+    { key: 'domainId', label: 'Domain', kind: { type: 'enum', options: 'domains' }, width: 150, hint: 'ground domain' },
     { key: 'voltage', label: 'Voltage', kind: q('voltage', { signed: true, min: -1000, max: 1000 }), width: 80, hint: 'signed, e.g. 3V3 or -12' },
     { key: 'tolerance', label: 'Tolerance', kind: { type: 'tolerance' }, width: 80, hint: 'e.g. ±5%' },
     { key: 'rippleLimit', label: 'Ripple p-p', kind: q('voltage', { min: 0, max: 100 }), width: 80, hint: 'e.g. 30m' },
