@@ -3,6 +3,8 @@
 // - item 8, one number per quantity: the Alternatives view's time-weighted loss, cost and part
 //   count of the shown tree are the numbers the Budget view and the Parts view print, for each
 //   alternative once it is the one shown;
+// - item 8, per-mode tables at V min, nom and max in the Budget view, and a winding tap whose
+//   computed voltage differs from the one in its name says both, named as such;
 // - item 2, the report: Parts › Design report downloads a PDF whose tree pages are landscape
 //   A4 with no text below the report's 6 pt floor (read back with pdfjs-dist, an npm parser);
 // - item 10, the Y-capacitor check: nothing is pre-filled as "V rms" until the user says what
@@ -76,6 +78,34 @@ describe.skipIf(tool.skip)('window: one number per quantity, the report pages, t
       expect(await text('[data-testid=bom-total]')).toBe(cost);
       expect(await text('[data-testid=bom] tr.total')).toContain(`(${parts} parts)`);
     }
+  });
+
+  it('Budget tables at V min, nom and max; a tap whose computed voltage differs from its name says both', { timeout: 90_000 }, async () => {
+    await page.click('[data-viewtab=budget]');
+    await page.waitForSelector('[data-testid=system]');
+    const heads = await page.locator('[data-testid=system] thead th').allTextContents();
+    expect(heads.map((h) => h.trim())).toEqual(['', 'at V min', 'at V nom', 'at V max']);
+    for (const c of ['vmin', 'vnom', 'vmax']) expect(await text(`[data-testid=loss-${c}]`)).toMatch(/\d.*W$/);
+    // The drawing's internal nodes: the planned voltage in the name, and the computed one
+    // beside it when they differ, named as such (one number per quantity, with its basis).
+    const snap = await w.api('project.snapshot', {});
+    const internal = snap.plan!.layout!.nodes.filter((n) => n.kind === 'internal');
+    expect(internal.length).toBeGreaterThan(0);
+    for (const n of internal) {
+      const first = n.sub[0] ?? '';
+      expect(first, n.label).toMatch(/^(winding tap|bus)(: nominal .+ V, computed .+ V| .+ V)$/);
+      const m = /: nominal (.+ V), computed (.+ V)$/.exec(first);
+      if (m) expect(m[1]).not.toBe(m[2]);
+    }
+    expect(internal.some((n) => /computed/.test(n.sub[0] ?? '')), 'the hand plan has a tap whose computed voltage differs').toBe(true);
+    // The drawing shows the same line when a tap is hovered.
+    await page.click('[data-viewtab=tree]');
+    await page.waitForSelector('[data-testid=tree-svg]');
+    const tap = internal.find((n) => /computed/.test(n.sub[0] ?? ''))!;
+    await page.click('button:has-text("Fit")');
+    await page.locator(`[data-node="${tap.id}"]`).hover();
+    await expect.poll(() => page.locator('[data-testid=hover-card]').count()).toBe(1);
+    expect(await text('[data-testid=hover-card]')).toContain(tap.sub[0]!);
   });
 
   it('Parts › Design report: the tree pages are landscape A4 with every text at 6 pt or more', { timeout: 120_000 }, async () => {
