@@ -393,6 +393,11 @@ export interface SystemSweepView {
   sources: Array<{ id: Id; name: string }>;
   modes: Array<{ modeId: Id; modeName: string; points: Array<{ v: number; efficiency: number; sourceCurrent: number; sourcePower: number; loadPower: number; loss: number }> }>;
   skipped: string[];
+  /**
+   * The system versus its load (engine/curves.ts systemLoadSweep): every load of a mode
+   * scaled by the same factor, sources at nominal; factor 1 is the Budget view's V nom case.
+   */
+  load: { modes: Array<{ modeId: Id; modeName: string; points: Array<{ scale: number; efficiency: number; sourcePower: number; loadPower: number; loss: number }> }>; skipped: string[] };
 }
 
 /** One window row per rail (rollup.ts): over every mode (as the inspector shows), then per mode. */

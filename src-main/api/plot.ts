@@ -5,7 +5,7 @@
  * The SVG is drawn in the window (src-renderer/lib/plot-svg.ts).
  */
 import { z } from 'zod';
-import { stageCurves, systemSourceSweep, CurveError } from '../engine/curves.ts';
+import { stageCurves, systemSourceSweep, systemLoadSweep, CurveError } from '../engine/curves.ts';
 import { modeWindows, rollupPlan } from '../engine/rollup.ts';
 import { groupRails } from '../engine/rails.ts';
 import type { Plan } from '../engine/plan-types.ts';
@@ -31,8 +31,9 @@ function systemSweepView(s: Session, sourceId: string | undefined): SystemSweepV
   const src = sourceId === undefined ? feeding[0]! : feeding.find((x) => x.id === sourceId);
   if (!src) throw new ApiFailure(`sourceId: no source "${sourceId}" feeds the shown tree`, 'sourceId');
   try {
-    const sw = systemSourceSweep(req, groupRails(req), plan, src.id, ENGINE_MODELS);
-    return { ...sw, sources: feeding.map((x) => ({ id: x.id, name: x.name })) };
+    const rails = groupRails(req);
+    const sw = systemSourceSweep(req, rails, plan, src.id, ENGINE_MODELS);
+    return { ...sw, sources: feeding.map((x) => ({ id: x.id, name: x.name })), load: systemLoadSweep(req, rails, plan, ENGINE_MODELS) };
   } catch (e) {
     if (e instanceof CurveError) throw new ApiFailure(e.message, 'sourceId');
     throw new ApiFailure(`sourceId: the sweep could not be computed: ${(e as Error).message}`, 'sourceId');

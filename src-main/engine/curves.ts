@@ -191,3 +191,41 @@ export function systemSourceSweep(req: Requirements, rails: Rail[], plan: Plan, 
   }));
   return { sourceId: src.id, sourceName: src.name, range: { min: src.vMin, nom: src.vNom, max: src.vMax }, modes, skipped };
 }
+
+export interface SystemLoadPoint {
+  /** Every load of the mode multiplied by this factor (1 = the mode as specified). */
+  scale: number;
+  sourcePower: number;
+  loadPower: number;
+  loss: number;
+  efficiency: number;
+}
+
+/** Load factors of the system's load sweep: 10 % to 150 % of every load, 1 exactly included. */
+export const LOAD_SCALES: readonly number[] = Array.from({ length: 15 }, (_, k) => (k + 1) / 10);
+
+/**
+ * The whole tree versus its load, one series per operating mode: every load current of the
+ * mode multiplied by the same factor, every source at nominal, each point the roll-up's own
+ * leaves-up evaluation (rollupCaseAt). At factor 1 the point is the roll-up's V nom case of
+ * that mode, the Budget view's figures.
+ */
+export function systemLoadSweep(req: Requirements, rails: Rail[], plan: Plan, models: StageModels = STAGE_MODELS, scales: readonly number[] = LOAD_SCALES): { modes: Array<{ modeId: Id; modeName: string; points: SystemLoadPoint[] }>; skipped: string[] } {
+  if (!req.modes.length) throw new CurveError('modes: no operating modes to sweep');
+  const skipped: string[] = [];
+  const modes = req.modes.map((m) => ({
+    modeId: m.id, modeName: m.name,
+    points: scales.flatMap((k): SystemLoadPoint[] => {
+      const scaled = rails.map((r) => ({ ...r, current: { ...r.current, [m.id]: ((r.current[m.id] ?? 0) * k) as Amps } }));
+      try {
+        const c = rollupCaseAt(req, scaled, plan, m.id, {}, models);
+        if (!Number.isFinite(c.sourcePower) || !Number.isFinite(c.loadPower)) { skipped.push(`mode "${m.name}", loads × ${k}: no finite power`); return []; }
+        return [{ scale: k, sourcePower: c.sourcePower, loadPower: c.loadPower, loss: c.loss, efficiency: c.efficiency }];
+      } catch (e) {
+        skipped.push(`mode "${m.name}", loads × ${k}: ${(e as Error).message}`);
+        return [];
+      }
+    }),
+  }));
+  return { modes, skipped };
+}

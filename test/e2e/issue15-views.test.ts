@@ -5,6 +5,8 @@
 //   alternative once it is the one shown;
 // - item 8, per-mode tables at V min, nom and max in the Budget view, and a winding tap whose
 //   computed voltage differs from the one in its name says both, named as such;
+// - plots: the system's efficiency and loss versus its load (every load of a mode scaled together)
+//   in the Charts view, one line per mode, at factor 1 the roll-up's V nom figures;
 // - item 2, the report: Parts › Design report downloads a PDF whose tree pages are landscape
 //   A4 with no text below the report's 6 pt floor (read back with pdfjs-dist, an npm parser);
 // - item 10, the Y-capacitor check: nothing is pre-filled as "V rms" until the user says what
@@ -106,6 +108,29 @@ describe.skipIf(tool.skip)('window: one number per quantity, the report pages, t
     await page.locator(`[data-node="${tap.id}"]`).hover();
     await expect.poll(() => page.locator('[data-testid=hover-card]').count()).toBe(1);
     expect(await text('[data-testid=hover-card]')).toContain(tap.sub[0]!);
+  });
+
+  it('Charts: the system\'s efficiency and loss versus its load, one line per mode, ringed at the Budget figures', { timeout: 90_000 }, async () => {
+    await page.click('[data-viewtab=charts]');
+    await page.waitForSelector('[data-view=charts]');
+    const modes = demoDocument().requirements.modes;
+    for (const key of ['system-efficiency-load', 'system-loss-load']) {
+      const p = page.locator(`[data-plot=${key}] svg`);
+      await p.waitFor({ timeout: 60_000 });
+      expect(await p.locator('g.series path').count()).toBe(modes.length);
+      expect(await p.locator('g.legend').count()).toBe(modes.length);
+      expect((await p.textContent()) ?? '').toMatch(/\d m?W/);
+    }
+    // The ring on a mode's line at the loads as specified: the roll-up's V nom case, whose
+    // efficiency the Budget view prints; here read back through the same contract.
+    const sw = await w.api('plot.systemSweep', {});
+    const snap = await w.api('project.snapshot', {});
+    for (const m of sw.load.modes) {
+      const at1 = m.points.find((x) => x.scale === 1)!;
+      expect(at1.efficiency).toBe(snap.plan!.rollup!.system.find((x) => x.modeId === m.modeId)!.efficiency.vNom);
+    }
+    await page.locator('[data-plot=system-efficiency-load]').scrollIntoViewIfNeeded();
+    await w.shot('issue15-system-vs-load');
   });
 
   it('Parts › Design report: the tree pages are landscape A4 with every text at 6 pt or more', { timeout: 120_000 }, async () => {

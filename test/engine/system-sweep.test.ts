@@ -1,7 +1,7 @@
-// The system versus source voltage (systemSourceSweep) and the rail windows per operating mode
+// The system versus source voltage (systemSourceSweep), versus its load (systemLoadSweep), and the rail windows per operating mode
 // (modeWindows), on the demo's hand plan (invented scenario), with the real stage engine.
 import { describe, expect, it } from 'vitest';
-import { CurveError, systemSourceSweep } from '../../src-main/engine/curves.ts';
+import { CurveError, LOAD_SCALES, systemLoadSweep, systemSourceSweep } from '../../src-main/engine/curves.ts';
 import { modeWindows, rollupCaseAt, rollupPlan } from '../../src-main/engine/rollup.ts';
 import { demoDocument } from '../../src-main/store/demo.ts';
 import { demoHandPlan } from '../export/demo-plan.ts';
@@ -104,5 +104,39 @@ describe('rail windows per operating mode', () => {
     expect(fedByCw.length).toBeGreaterThan(0);
     for (const w of fedByCw) expect(w.proved).toBe(false);
     for (const w of r.windows) if (!cw.includes(w.stageId) && plan.stages.find((st) => st.id === w.stageId)!.inputNodeId === src.id) expect(w.proved).toBe(true);
+  });
+});
+
+describe('system versus its load', () => {
+  const sw = systemLoadSweep(req, pr.rails, plan);
+
+  it('one series per mode, 10 % to 150 % of every load, the loads as specified among the points', () => {
+    expect(sw.skipped).toEqual([]);
+    expect(sw.modes.map((m) => m.modeId)).toEqual(req.modes.map((m) => m.id));
+    expect(LOAD_SCALES).toContain(1);
+    for (const m of sw.modes) expect(m.points.map((p) => p.scale)).toEqual([...LOAD_SCALES]);
+  });
+
+  it('at factor 1 each point is the roll-up\'s V nom case of its mode (the Budget figures)', () => {
+    for (const m of sw.modes) {
+      const p = m.points.find((x) => x.scale === 1)!;
+      const c = r.modes.find((x) => x.modeId === m.modeId)!.cases.nom;
+      expect(p.sourcePower).toBe(c.sourcePower);
+      expect(p.loadPower).toBe(c.loadPower);
+      expect(p.loss).toBe(c.loss);
+      expect(p.efficiency).toBe(c.efficiency);
+    }
+  });
+
+  it('balances the books at every point and grows the load power with the factor', () => {
+    for (const m of sw.modes) {
+      for (const p of m.points) {
+        // Conservation of energy: power in = power to the loads + losses.
+        expect(Math.abs(p.sourcePower - (p.loadPower + p.loss)) / p.sourcePower).toBeLessThan(1e-9);
+      }
+      // Load power is Σ V·I over the rails: with every I scaled up it rises (the rail
+      // voltages move by at most their tolerance, far less than 10 % steps).
+      for (let k = 1; k < m.points.length; k++) expect(m.points[k]!.loadPower).toBeGreaterThan(m.points[k - 1]!.loadPower);
+    }
   });
 });
