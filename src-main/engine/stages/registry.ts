@@ -7,16 +7,17 @@
  */
 import type { StageModelKind } from '../model.ts';
 import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from './types.ts';
-import { designBuck, evaluateBuck, type BuckDesign } from './buck/index.ts';
+import type { KindWindow } from './window-cases.ts';
+import { buckWindowOutputs, designBuck, dividerWindowCases, evaluateBuck, type BuckDesign } from './buck/index.ts';
 import { buckNetlist } from './buck/netlist.ts';
-import { designCoupledBuck, evaluateCoupledBuck, type CoupledBuckDesign, type CoupledEvalOptions } from './cwbuck/index.ts';
+import { coupledMagneticCorners, coupledWindowCases, coupledWindowOutputs, designCoupledBuck, drawMagnetic, evaluateCoupledBuck, type CoupledBuckDesign, type CoupledEvalOptions } from './cwbuck/index.ts';
 import { coupledBuckNetlist } from './cwbuck/netlist.ts';
-import { designLdo, evaluateLdo, type LdoDesign } from './ldo/index.ts';
-import { boostNetlist, designBoost, evaluateBoost, type BoostDesign } from './boost/index.ts';
-import { designInverting, evaluateInverting, invertingNetlist, type InvertingDesign } from './inverting/index.ts';
-import { designFourSwitch, evaluateFourSwitch, fourSwitchNetlist, type FourSwitchDesign } from './buck-boost-4s/index.ts';
-import { designLoadSwitch, evaluateLoadSwitch, type LoadSwitchDesign } from './load-switch/index.ts';
-import { designIsoModule, evaluateIsoModule, type IsoModuleDesign } from './iso-module/index.ts';
+import { designLdo, evaluateLdo, ldoWindowCases, ldoWindowOutputs, type LdoDesign } from './ldo/index.ts';
+import { boostNetlist, boostWindowOutputs, designBoost, evaluateBoost, type BoostDesign } from './boost/index.ts';
+import { designInverting, evaluateInverting, invertingNetlist, invertingWindowOutputs, type InvertingDesign } from './inverting/index.ts';
+import { designFourSwitch, evaluateFourSwitch, fourSwitchNetlist, fourSwitchWindowOutputs, type FourSwitchDesign } from './buck-boost-4s/index.ts';
+import { designLoadSwitch, evaluateLoadSwitch, loadSwitchWindowCases, loadSwitchWindowOutputs, type LoadSwitchDesign } from './load-switch/index.ts';
+import { designIsoModule, evaluateIsoModule, isoModuleWindowCases, isoModuleWindowOutputs, type IsoModuleDesign } from './iso-module/index.ts';
 
 export type KindDesignResult<D> =
   | { ok: true; design: D; reasons: string[]; flags: StageFlag[] }
@@ -29,6 +30,8 @@ export interface StageKindModule<D extends { kind: StageModelKind }> {
   label: string;
   design(spec: StageSpec): KindDesignResult<D>;
   evaluate(design: D, op: OperatingPoint, opts?: CoupledEvalOptions): StageEvaluation;
+  /** Its part of the worst-case window computation (windows.ts): outputs at a corner, tolerance cases. */
+  window: KindWindow<D>;
   /** The open-loop SPICE netlist at one operating point, for a kind that switches (absent: none). */
   netlist?(design: D, op: OperatingPoint): string;
 }
@@ -36,14 +39,38 @@ export interface StageKindModule<D extends { kind: StageModelKind }> {
 function kindModule<D extends { kind: StageModelKind }>(m: StageKindModule<D>): StageKindModule<D> { return m; }
 
 export const STAGE_KINDS = {
-  'buck': kindModule<BuckDesign>({ kind: 'buck', label: 'synchronous buck', design: designBuck, evaluate: (d, op) => evaluateBuck(d, op), netlist: (d, op) => buckNetlist(d, op) }),
-  'cwbuck': kindModule<CoupledBuckDesign>({ kind: 'cwbuck', label: 'coupled-winding buck', design: designCoupledBuck, evaluate: (d, op, o) => evaluateCoupledBuck(d, op, o), netlist: (d, op) => coupledBuckNetlist(d, op) }),
-  'ldo': kindModule<LdoDesign>({ kind: 'ldo', label: 'LDO', design: designLdo, evaluate: (d, op) => evaluateLdo(d, op) }),
-  'boost': kindModule<BoostDesign>({ kind: 'boost', label: 'synchronous boost', design: designBoost, evaluate: (d, op) => evaluateBoost(d, op), netlist: (d, op) => boostNetlist(d, op) }),
-  'inverting': kindModule<InvertingDesign>({ kind: 'inverting', label: 'inverting buck-boost', design: designInverting, evaluate: (d, op) => evaluateInverting(d, op), netlist: (d, op) => invertingNetlist(d, op) }),
-  'buck-boost-4s': kindModule<FourSwitchDesign>({ kind: 'buck-boost-4s', label: 'four-switch buck-boost', design: designFourSwitch, evaluate: (d, op) => evaluateFourSwitch(d, op), netlist: (d, op) => fourSwitchNetlist(d, op) }),
-  'load-switch': kindModule<LoadSwitchDesign>({ kind: 'load-switch', label: 'load switch', design: designLoadSwitch, evaluate: (d, op) => evaluateLoadSwitch(d, op) }),
-  'iso-module': kindModule<IsoModuleDesign>({ kind: 'iso-module', label: 'isolated module', design: designIsoModule, evaluate: (d, op) => evaluateIsoModule(d, op) }),
+  'buck': kindModule<BuckDesign>({
+    kind: 'buck', label: 'synchronous buck', design: designBuck, evaluate: (d, op) => evaluateBuck(d, op), netlist: (d, op) => buckNetlist(d, op),
+    window: { outputsAt: buckWindowOutputs, cases: () => dividerWindowCases() },
+  }),
+  'cwbuck': kindModule<CoupledBuckDesign>({
+    kind: 'cwbuck', label: 'coupled-winding buck', design: designCoupledBuck, evaluate: (d, op, o) => evaluateCoupledBuck(d, op, o), netlist: (d, op) => coupledBuckNetlist(d, op),
+    window: { outputsAt: coupledWindowOutputs, cases: () => coupledWindowCases(), rectifierDrop: true, magnetic: { corners: coupledMagneticCorners, draw: drawMagnetic } },
+  }),
+  'ldo': kindModule<LdoDesign>({
+    kind: 'ldo', label: 'LDO', design: designLdo, evaluate: (d, op) => evaluateLdo(d, op),
+    window: { outputsAt: ldoWindowOutputs, cases: () => ldoWindowCases() },
+  }),
+  'boost': kindModule<BoostDesign>({
+    kind: 'boost', label: 'synchronous boost', design: designBoost, evaluate: (d, op) => evaluateBoost(d, op), netlist: (d, op) => boostNetlist(d, op),
+    window: { outputsAt: boostWindowOutputs, cases: () => dividerWindowCases() },
+  }),
+  'inverting': kindModule<InvertingDesign>({
+    kind: 'inverting', label: 'inverting buck-boost', design: designInverting, evaluate: (d, op) => evaluateInverting(d, op), netlist: (d, op) => invertingNetlist(d, op),
+    window: { outputsAt: invertingWindowOutputs, cases: () => dividerWindowCases() },
+  }),
+  'buck-boost-4s': kindModule<FourSwitchDesign>({
+    kind: 'buck-boost-4s', label: 'four-switch buck-boost', design: designFourSwitch, evaluate: (d, op) => evaluateFourSwitch(d, op), netlist: (d, op) => fourSwitchNetlist(d, op),
+    window: { outputsAt: fourSwitchWindowOutputs, cases: () => dividerWindowCases() },
+  }),
+  'load-switch': kindModule<LoadSwitchDesign>({
+    kind: 'load-switch', label: 'load switch', design: designLoadSwitch, evaluate: (d, op) => evaluateLoadSwitch(d, op),
+    window: { outputsAt: loadSwitchWindowOutputs, cases: () => loadSwitchWindowCases() },
+  }),
+  'iso-module': kindModule<IsoModuleDesign>({
+    kind: 'iso-module', label: 'isolated module', design: designIsoModule, evaluate: (d, op) => evaluateIsoModule(d, op),
+    window: { outputsAt: isoModuleWindowOutputs, cases: () => isoModuleWindowCases() },
+  }),
 } satisfies { [K in StageModelKind]: StageKindModule<{ kind: K }> & { kind: K } };
 
 /** The registered module of a kind, or undefined for a kind with no stage model. */

@@ -24,6 +24,7 @@ import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitch
 import { feasibility, specErrors, switchingFlags, switchingParts, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
 import { NETLIST_CAUTION, commentText, spiceNumber as f, transientLines } from '../netlist-text.ts';
 import { inductorStageParts, type LibraryRow, type PartPick, type PickOptions } from '../../library.ts';
+import { setpoint, type OutputSpan, type ToleranceDraw } from '../window-cases.ts';
 
 /** Boost controllers stop at a maximum duty of 0.8–0.9 [common practice]: 0.85 by default. */
 export const BOOST_MAX_DUTY = 0.85;
@@ -347,6 +348,14 @@ export function boostWindowAt(d: BoostDesign, vin: number, io: number, setpoint:
   const ev = evaluateBoost(d, { vin: vin as Volts, iout: [io as Amps], ambient: 25 as Celsius });
   const rp = ev.outputs[0]!.ripplePP as number;
   return { lo: point.vout - rp / 2, hi: point.vout + rp / 2 };
+}
+
+/**
+ * The output at one window corner (windows.ts): setpoint from reference and divider; out of
+ * regulation (duty limit, or an input above the setpoint) the output follows the input.
+ */
+export function boostWindowOutputs(d: BoostDesign, vin: number, iout: number[], x: ToleranceDraw): OutputSpan[] {
+  return [boostWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
 }
 
 /** The parts of a boost for the BOM, in the shape of library.ts `partsForStage`. */

@@ -24,6 +24,7 @@ import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitch
 import { feasibility, specErrors, thetaSourceOf, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
 import { NETLIST_CAUTION, commentText, spiceNumber as f, transientLines } from '../netlist-text.ts';
 import { inductorStageParts, type LibraryRow, type PartPick, type PickOptions } from '../../library.ts';
+import { setpoint, type OutputSpan, type ToleranceDraw } from '../window-cases.ts';
 
 /** Largest duty of the input leg before the output leg starts switching [common practice, from memory]. */
 export const INPUT_LEG_MAX_DUTY = 0.9;
@@ -352,6 +353,11 @@ export function fourSwitchWindowAt(d: FourSwitchDesign, vin: number, io: number,
   const ev = evaluateFourSwitch(d, { vin: vin as Volts, iout: [io as Amps], ambient: 25 as Celsius });
   const rp = ev.outputs[0]!.ripplePP as number;
   return { lo: p.vout - rp / 2, hi: p.vout + rp / 2 };
+}
+
+/** The output at one window corner (windows.ts): the setpoint from reference and divider. */
+export function fourSwitchWindowOutputs(d: FourSwitchDesign, vin: number, iout: number[], x: ToleranceDraw): OutputSpan[] {
+  return [fourSwitchWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
 }
 
 /** BOM parts (library.ts `partsForStage` shape); with external switches each of the pair counts twice. */

@@ -13,6 +13,7 @@ import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitch
 import type { LibraryRow } from '../../library.ts';
 // windows.ts imports this module too; each side uses the other only inside functions.
 import { stageWindows } from '../windows.ts';
+import { boundingCases, setpoint, type OutputSpan, type ToleranceCase, type ToleranceDraw } from '../window-cases.ts';
 
 export interface ThermalParams {
   highSide: number;
@@ -136,6 +137,28 @@ export function buckAtDuty(d: BuckDesign, vin: number, io: number, duty: number)
     else lo = mid;
   }
   return buckPoint(d, vin, io, lo);
+}
+
+/**
+ * The output at one window corner (windows.ts): the setpoint from the reference and divider
+ * under the draw; out of regulation (the duty limit) the output follows the maximum duty.
+ */
+export function buckWindowOutputs(d: BuckDesign, vin: number, iout: number[], x: ToleranceDraw): OutputSpan[] {
+  const sp = setpoint(d.divider, d.controller.vrefTolerance, x);
+  const io = iout[0] ?? 0;
+  const ev = evaluateBuck(d, { vin: vin as Volts, iout: [io as Amps], ambient: 25 as Celsius });
+  let v = sp;
+  if (buckPoint(d, vin, io, sp).duty > d.controller.maxDuty) {
+    // Out of regulation: the output follows the maximum duty.
+    v = buckAtDuty(d, vin, io, d.controller.maxDuty).vout;
+  }
+  const rp = ev.outputs[0]!.ripplePP as number;
+  return [{ lo: v - rp / 2, hi: v + rp / 2 }];
+}
+
+/** The tolerance cases of a stage regulated by a reference and a divider (buck, boost, …). */
+export function dividerWindowCases(): ToleranceCase[] {
+  return boundingCases('reference and divider');
 }
 
 export function evaluateBuck(d: BuckDesign, op: OperatingPoint): StageEvaluation {

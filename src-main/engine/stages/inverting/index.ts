@@ -21,6 +21,7 @@ import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitch
 import { feasibility, specErrors, switchingFlags, switchingParts, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
 import { NETLIST_CAUTION, commentText, spiceNumber as f, transientLines } from '../netlist-text.ts';
 import { inductorStageParts, type LibraryRow, type PartPick, type PickOptions } from '../../library.ts';
+import { setpoint, type OutputSpan, type ToleranceDraw } from '../window-cases.ts';
 
 /** Maximum duty of an inverting controller [common practice 0.8–0.9, from memory]. */
 export const INVERTING_MAX_DUTY = 0.85;
@@ -302,6 +303,11 @@ export function invertingWindowAt(d: InvertingDesign, vin: number, io: number, s
   const ev = evaluateInverting(d, { vin: vin as Volts, iout: [io as Amps], ambient: 25 as Celsius });
   const rp = ev.outputs[0]!.ripplePP as number;
   return { lo: p.vout - rp / 2, hi: p.vout + rp / 2 };
+}
+
+/** The output at one window corner (windows.ts), as a magnitude: the setpoint is on |Vout|. */
+export function invertingWindowOutputs(d: InvertingDesign, vin: number, iout: number[], x: ToleranceDraw): OutputSpan[] {
+  return [invertingWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
 }
 
 /** The parts of an inverting stage for the BOM, in the shape of library.ts `partsForStage`. */

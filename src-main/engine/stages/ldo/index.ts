@@ -11,6 +11,7 @@ import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type Capacito
 import { specErrors } from '../buck/index.ts';
 import { DEFAULT_MARGINS, type StagePartRef } from '../part-choice.ts';
 import type { LibraryRow } from '../../library.ts';
+import { boundingCases, type OutputSpan, type ToleranceCase, type ToleranceDraw } from '../window-cases.ts';
 
 export interface LdoDesign {
   kind: 'ldo';
@@ -56,6 +57,18 @@ export function ldoPsrrAt(psrrDb: number, f: number, loadShare: number): number 
 
 export function ldoDropout(d: LdoDesign, i: number): number {
   return d.dropoutFloor + (d.dropoutAtRated * Math.abs(i)) / d.ratedCurrent;
+}
+
+/** The output at one window corner (windows.ts), a magnitude: the setpoint moves by the stated accuracy. */
+export function ldoWindowOutputs(d: LdoDesign, vin: number, iout: number[], x: ToleranceDraw): OutputSpan[] {
+  const set = Math.abs(d.outputs[0]!.voltage) * (1 + d.accuracy * x.accuracy);
+  const p = ldoPoint(d, Math.abs(vin), iout[0] ?? 0, set);
+  return [{ lo: p.vout - p.ripple / 2, hi: p.vout + p.ripple / 2 }];
+}
+
+/** Accuracy low and high bound the output. */
+export function ldoWindowCases(): ToleranceCase[] {
+  return boundingCases('accuracy');
 }
 
 /** Output magnitude, rejection and headroom at an input magnitude and current. */
