@@ -8,16 +8,20 @@
 import type { StageModelKind } from '../model.ts';
 import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from './types.ts';
 import type { KindWindow } from './window-cases.ts';
+import type { LibraryRow, PartPick, PickOptions } from '../library.ts';
+import { buckParts } from './buck/parts.ts';
+import { coupledBuckParts } from './cwbuck/parts.ts';
+import { ldoParts } from './ldo/parts.ts';
 import { buckWindowOutputs, designBuck, dividerWindowCases, evaluateBuck, type BuckDesign } from './buck/index.ts';
 import { buckNetlist } from './buck/netlist.ts';
 import { coupledMagneticCorners, coupledWindowCases, coupledWindowOutputs, designCoupledBuck, drawMagnetic, evaluateCoupledBuck, type CoupledBuckDesign, type CoupledEvalOptions } from './cwbuck/index.ts';
 import { coupledBuckNetlist } from './cwbuck/netlist.ts';
 import { designLdo, evaluateLdo, ldoWindowCases, ldoWindowOutputs, type LdoDesign } from './ldo/index.ts';
-import { boostNetlist, boostWindowOutputs, designBoost, evaluateBoost, type BoostDesign } from './boost/index.ts';
-import { designInverting, evaluateInverting, invertingNetlist, invertingWindowOutputs, type InvertingDesign } from './inverting/index.ts';
-import { designFourSwitch, evaluateFourSwitch, fourSwitchNetlist, fourSwitchWindowOutputs, type FourSwitchDesign } from './buck-boost-4s/index.ts';
-import { designLoadSwitch, evaluateLoadSwitch, loadSwitchWindowCases, loadSwitchWindowOutputs, type LoadSwitchDesign } from './load-switch/index.ts';
-import { designIsoModule, evaluateIsoModule, isoModuleWindowCases, isoModuleWindowOutputs, type IsoModuleDesign } from './iso-module/index.ts';
+import { boostNetlist, boostParts, boostWindowOutputs, designBoost, evaluateBoost, type BoostDesign } from './boost/index.ts';
+import { designInverting, evaluateInverting, invertingNetlist, invertingParts, invertingWindowOutputs, type InvertingDesign } from './inverting/index.ts';
+import { designFourSwitch, evaluateFourSwitch, fourSwitchNetlist, fourSwitchParts, fourSwitchWindowOutputs, type FourSwitchDesign } from './buck-boost-4s/index.ts';
+import { designLoadSwitch, evaluateLoadSwitch, loadSwitchParts, loadSwitchWindowCases, loadSwitchWindowOutputs, type LoadSwitchDesign } from './load-switch/index.ts';
+import { designIsoModule, evaluateIsoModule, isoModuleParts, isoModuleWindowCases, isoModuleWindowOutputs, type IsoModuleDesign } from './iso-module/index.ts';
 
 export type KindDesignResult<D> =
   | { ok: true; design: D; reasons: string[]; flags: StageFlag[] }
@@ -32,6 +36,8 @@ export interface StageKindModule<D extends { kind: StageModelKind }> {
   evaluate(design: D, op: OperatingPoint, opts?: CoupledEvalOptions): StageEvaluation;
   /** Its part of the worst-case window computation (windows.ts): outputs at a corner, tolerance cases. */
   window: KindWindow<D>;
+  /** Its parts for the BOM, picked from the library by library.ts's rules (partsForStage dispatches here). */
+  parts(stageId: string, design: D, library: LibraryRow[], opts: Partial<PickOptions>): PartPick[];
   /** The open-loop SPICE netlist at one operating point, for a kind that switches (absent: none). */
   netlist?(design: D, op: OperatingPoint): string;
 }
@@ -41,34 +47,42 @@ function kindModule<D extends { kind: StageModelKind }>(m: StageKindModule<D>): 
 export const STAGE_KINDS = {
   'buck': kindModule<BuckDesign>({
     kind: 'buck', label: 'synchronous buck', design: designBuck, evaluate: (d, op) => evaluateBuck(d, op), netlist: (d, op) => buckNetlist(d, op),
+    parts: (id, d, lib, o) => buckParts(id, d, lib, o),
     window: { outputsAt: buckWindowOutputs, cases: () => dividerWindowCases() },
   }),
   'cwbuck': kindModule<CoupledBuckDesign>({
     kind: 'cwbuck', label: 'coupled-winding buck', design: designCoupledBuck, evaluate: (d, op, o) => evaluateCoupledBuck(d, op, o), netlist: (d, op) => coupledBuckNetlist(d, op),
+    parts: (id, d, lib, o) => coupledBuckParts(id, d, lib, o),
     window: { outputsAt: coupledWindowOutputs, cases: () => coupledWindowCases(), rectifierDrop: true, magnetic: { corners: coupledMagneticCorners, draw: drawMagnetic } },
   }),
   'ldo': kindModule<LdoDesign>({
     kind: 'ldo', label: 'LDO', design: designLdo, evaluate: (d, op) => evaluateLdo(d, op),
+    parts: (id, d, lib, o) => ldoParts(id, d, lib, o),
     window: { outputsAt: ldoWindowOutputs, cases: () => ldoWindowCases() },
   }),
   'boost': kindModule<BoostDesign>({
     kind: 'boost', label: 'synchronous boost', design: designBoost, evaluate: (d, op) => evaluateBoost(d, op), netlist: (d, op) => boostNetlist(d, op),
+    parts: (id, d, lib, o) => boostParts(id, d, lib, o),
     window: { outputsAt: boostWindowOutputs, cases: () => dividerWindowCases() },
   }),
   'inverting': kindModule<InvertingDesign>({
     kind: 'inverting', label: 'inverting buck-boost', design: designInverting, evaluate: (d, op) => evaluateInverting(d, op), netlist: (d, op) => invertingNetlist(d, op),
+    parts: (id, d, lib, o) => invertingParts(id, d, lib, o),
     window: { outputsAt: invertingWindowOutputs, cases: () => dividerWindowCases() },
   }),
   'buck-boost-4s': kindModule<FourSwitchDesign>({
     kind: 'buck-boost-4s', label: 'four-switch buck-boost', design: designFourSwitch, evaluate: (d, op) => evaluateFourSwitch(d, op), netlist: (d, op) => fourSwitchNetlist(d, op),
+    parts: (id, d, lib, o) => fourSwitchParts(id, d, lib, o),
     window: { outputsAt: fourSwitchWindowOutputs, cases: () => dividerWindowCases() },
   }),
   'load-switch': kindModule<LoadSwitchDesign>({
     kind: 'load-switch', label: 'load switch', design: designLoadSwitch, evaluate: (d, op) => evaluateLoadSwitch(d, op),
+    parts: (id, d, lib) => loadSwitchParts(id, d, lib),
     window: { outputsAt: loadSwitchWindowOutputs, cases: () => loadSwitchWindowCases() },
   }),
   'iso-module': kindModule<IsoModuleDesign>({
     kind: 'iso-module', label: 'isolated module', design: designIsoModule, evaluate: (d, op) => evaluateIsoModule(d, op),
+    parts: (id, d, lib, o) => isoModuleParts(id, d, lib, o),
     window: { outputsAt: isoModuleWindowOutputs, cases: () => isoModuleWindowCases() },
   }),
 } satisfies { [K in StageModelKind]: StageKindModule<{ kind: K }> & { kind: K } };
