@@ -27,11 +27,26 @@ export type KindDesignResult<D> =
   | { ok: true; design: D; reasons: string[]; flags: StageFlag[] }
   | { ok: false; flags: StageFlag[] };
 
+/** What a stage kind is called: one entry per kind, read by the planner, the window and the drawing. */
+export interface KindNames {
+  /** Title case, as a plan names its stages ("Boost Main 5V"). */
+  title: string;
+  /** The plain trade word in running text ("feeds: buck, LDO, boost"). */
+  noun: string;
+  /** How a reason names a stage of this kind feeding a rail ("an LDO from Main 5V"). */
+  feeding: string;
+  /** The name in full, as the window's inspector shows it ("linear regulator (LDO)"). */
+  full: string;
+}
+
 /** What every stage kind provides from its folder. */
 export interface StageKindModule<D extends { kind: StageModelKind }> {
   kind: D['kind'];
   /** What the kind is called in the tree drawing and the report (lower case, a trade term). */
   label: string;
+  names: KindNames;
+  /** The colour of its side bar and kind line in the tree drawing (the project's own palette). */
+  colour: string;
   design(spec: StageSpec): KindDesignResult<D>;
   evaluate(design: D, op: OperatingPoint, opts?: CoupledEvalOptions): StageEvaluation;
   /** Its part of the worst-case window computation (windows.ts): outputs at a corner, tolerance cases. */
@@ -47,41 +62,49 @@ function kindModule<D extends { kind: StageModelKind }>(m: StageKindModule<D>): 
 export const STAGE_KINDS = {
   'buck': kindModule<BuckDesign>({
     kind: 'buck', label: 'synchronous buck', design: designBuck, evaluate: (d, op) => evaluateBuck(d, op), netlist: (d, op) => buckNetlist(d, op),
+    names: { title: 'Buck', noun: 'buck', feeding: 'its own buck', full: 'synchronous buck' }, colour: '#2f7f8f',
     parts: (id, d, lib, o) => buckParts(id, d, lib, o),
     window: { outputsAt: buckWindowOutputs, cases: () => dividerWindowCases() },
   }),
   'cwbuck': kindModule<CoupledBuckDesign>({
     kind: 'cwbuck', label: 'coupled-winding buck', design: designCoupledBuck, evaluate: (d, op, o) => evaluateCoupledBuck(d, op, o), netlist: (d, op) => coupledBuckNetlist(d, op),
+    names: { title: 'Coupled-winding buck', noun: 'coupled-winding buck', feeding: 'a coupled-winding buck', full: 'coupled-winding buck' }, colour: '#c27a17',
     parts: (id, d, lib, o) => coupledBuckParts(id, d, lib, o),
     window: { outputsAt: coupledWindowOutputs, cases: () => coupledWindowCases(), rectifierDrop: true, magnetic: { corners: coupledMagneticCorners, draw: drawMagnetic } },
   }),
   'ldo': kindModule<LdoDesign>({
     kind: 'ldo', label: 'LDO', design: designLdo, evaluate: (d, op) => evaluateLdo(d, op),
+    names: { title: 'LDO', noun: 'LDO', feeding: 'an LDO', full: 'linear regulator (LDO)' }, colour: '#6a55a8',
     parts: (id, d, lib, o) => ldoParts(id, d, lib, o),
     window: { outputsAt: ldoWindowOutputs, cases: () => ldoWindowCases() },
   }),
   'boost': kindModule<BoostDesign>({
     kind: 'boost', label: 'synchronous boost', design: designBoost, evaluate: (d, op) => evaluateBoost(d, op), netlist: (d, op) => boostNetlist(d, op),
+    names: { title: 'Boost', noun: 'boost', feeding: 'a boost', full: 'synchronous boost' }, colour: '#3f7f3a',
     parts: (id, d, lib, o) => boostParts(id, d, lib, o),
     window: { outputsAt: boostWindowOutputs, cases: () => dividerWindowCases() },
   }),
   'inverting': kindModule<InvertingDesign>({
     kind: 'inverting', label: 'inverting buck-boost', design: designInverting, evaluate: (d, op) => evaluateInverting(d, op), netlist: (d, op) => invertingNetlist(d, op),
+    names: { title: 'Inverting buck-boost', noun: 'inverting buck-boost', feeding: 'an inverting buck-boost', full: 'inverting buck-boost' }, colour: '#8f3f6a',
     parts: (id, d, lib, o) => invertingParts(id, d, lib, o),
     window: { outputsAt: invertingWindowOutputs, cases: () => dividerWindowCases() },
   }),
   'buck-boost-4s': kindModule<FourSwitchDesign>({
     kind: 'buck-boost-4s', label: 'four-switch buck-boost', design: designFourSwitch, evaluate: (d, op) => evaluateFourSwitch(d, op), netlist: (d, op) => fourSwitchNetlist(d, op),
+    names: { title: 'Four-switch buck-boost', noun: 'four-switch buck-boost', feeding: 'a four-switch buck-boost', full: 'four-switch buck-boost' }, colour: '#2f5f9f',
     parts: (id, d, lib, o) => fourSwitchParts(id, d, lib, o),
     window: { outputsAt: fourSwitchWindowOutputs, cases: () => dividerWindowCases() },
   }),
   'load-switch': kindModule<LoadSwitchDesign>({
     kind: 'load-switch', label: 'load switch', design: designLoadSwitch, evaluate: (d, op) => evaluateLoadSwitch(d, op),
+    names: { title: 'Load switch', noun: 'load switch', feeding: 'a load switch', full: 'load switch' }, colour: '#55606b',
     parts: (id, d, lib) => loadSwitchParts(id, d, lib),
     window: { outputsAt: loadSwitchWindowOutputs, cases: () => loadSwitchWindowCases() },
   }),
   'iso-module': kindModule<IsoModuleDesign>({
     kind: 'iso-module', label: 'isolated module', design: designIsoModule, evaluate: (d, op) => evaluateIsoModule(d, op),
+    names: { title: 'Isolated module', noun: 'isolated module', feeding: 'an isolated module', full: 'isolated module' }, colour: '#8a5a44',
     parts: (id, d, lib, o) => isoModuleParts(id, d, lib, o),
     window: { outputsAt: isoModuleWindowOutputs, cases: () => isoModuleWindowCases() },
   }),
@@ -93,3 +116,24 @@ export function kindModuleOf(kind: unknown): StageKindModule<{ kind: StageModelK
     ? (STAGE_KINDS as Record<string, StageKindModule<any>>)[kind] // eslint-disable-line @typescript-eslint/no-explicit-any
     : undefined;
 }
+
+/** A kind's names; a kind no module registers (a saved plan written by hand) by its own word. */
+export function kindNames(kind: string): KindNames {
+  const m = kindModuleOf(kind);
+  return m ? m.names : { title: kind, noun: kind, feeding: kind, full: kind };
+}
+
+/**
+ * How the remedy "allow the … stage kind" names a kind: its trade word, with the kind's own
+ * key in parentheses when the two differ ("coupled-winding buck (cwbuck)"), so the user can
+ * find it in the project's allowed-kinds setting.
+ */
+export function kindSettingName(kind: string): string {
+  const noun = kindNames(kind).noun;
+  return noun.toLowerCase() === kind.toLowerCase() ? noun : `${noun} (${kind})`;
+}
+
+/** Every registered kind's names, as plain data (the window reads them through api/window-shared.ts). */
+export const KIND_NAMES: Readonly<Record<StageModelKind, KindNames>> = Object.fromEntries(
+  Object.values(STAGE_KINDS).map((m) => [m.kind, { ...m.names }]),
+) as Record<StageModelKind, KindNames>;
