@@ -16,12 +16,12 @@
  * reversed at light load, the main switch's body diode does).
  */
 import type { Amps, Celsius, Henries, Ohms, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { bestDivider, nearest } from '../../eseries.ts';
 import { GENERIC_DEFAULTS, diodeVf, type ControllerParams } from '../defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags } from '../common.ts';
 import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitcher, type StagePartRef } from '../part-choice.ts';
-import { feasibility, specErrors, switchingFlags, switchingParts, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
+import { feasibility, specErrors, switchingDesignFields, switchingFlags, switchingParts, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
 import { NETLIST_CAUTION, commentText, spiceNumber as f, transientLines } from '../netlist-text.ts';
 import { inductorStageParts, type LibraryRow, type PartPick, type PickOptions } from '../../library.ts';
 import { setpoint, type OutputSpan, type ToleranceDraw } from '../window-cases.ts';
@@ -32,6 +32,11 @@ export const BOOST_MAX_DUTY = 0.85;
 export const BOOST_DUTY_WARN = 0.8;
 /** Crossover kept below f_RHP/5 [common practice, from memory]. */
 export const RHP_CROSSOVER_SHARE = 0.2;
+
+/** The fields every Boost design carries (registry.ts `designFields`). */
+export function boostDesignFields(): DesignFields<BoostDesign> {
+  return { ...switchingDesignFields(), kind: true, dcr: true, rhpZero: true, crossoverLimit: true };
+}
 
 export interface BoostDesign extends SwitchingDesignBase {
   kind: 'boost';

@@ -5,7 +5,7 @@
  * are common practice (DESIGN.md §4), each reported separately.
  */
 import type { Amps, Celsius, Henries, Hertz, Ohms, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, OutputSpec, OutputWindow, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, OutputSpec, OutputWindow, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { bestDivider, nearest, type DividerChoice } from '../../eseries.ts';
 import { GENERIC_DEFAULTS, diodeVf, type ControllerParams, type DiodeModel, type SwitchParams } from '../defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
@@ -76,6 +76,16 @@ export function switchingParts(d: SwitchingDesignBase, hs: number, ls: number, c
     part('low-side switch', ls, d.thetaJA.lowSide, ta, src),
     part('controller', ctl, d.thetaJA.controller, ta, src),
   ];
+}
+
+/** The fields every switching design carries (each switching kind's design fields add its own). */
+export function switchingDesignFields() {
+  return { vinMin: true, vinNom: true, vinMax: true, outputs: true, fsw: true, inductance: true, isat: true, coreLossFraction: true, cout: true, cin: true, divider: true, highSide: true, lowSide: true, rdsHotFactor: true, bodyDiode: true, controller: true, thetaJA: true, tjMax: true } as const;
+}
+
+/** The fields every buck design carries (registry.ts `designFields`). */
+export function buckDesignFields(): DesignFields<BuckDesign> {
+  return { ...switchingDesignFields(), kind: true, dcr: true };
 }
 
 export interface BuckDesign extends SwitchingDesignBase {

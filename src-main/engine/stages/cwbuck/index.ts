@@ -20,13 +20,13 @@
  * Vsec ≈ n·Vpri − Vf − 2·Llk·fsw·Isec/(1−D)² − R·Isec/(1−D).
  */
 import type { Amps, Henries, Ohms, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, OutputResult, OutputSpec, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, OutputResult, OutputSpec, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import type { IsolationClass } from '../../model.ts';
 import type { LibraryRow } from '../../library.ts';
 import { bestDivider, nearest } from '../../eseries.ts';
 import { GENERIC_DEFAULTS, VT, diodeVf, type ControllerParams, type DiodeModel } from '../defaults.ts';
 import { bankRippleFlags, chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
-import { feasibility, specErrors, switchingFlags, switchingParts, thetaSourceOf, type SwitchingDesignBase } from '../buck/index.ts';
+import { feasibility, specErrors, switchingDesignFields, switchingFlags, switchingParts, thetaSourceOf, type SwitchingDesignBase } from '../buck/index.ts';
 import { chooseCeramicRow, chooseRectifier, chooseSwitcher, diodeFromRow, type StagePartRef } from '../part-choice.ts';
 import { boundingCases, setpoint, type OutputSpan, type ToleranceCase, type ToleranceDraw } from '../window-cases.ts';
 import { coreLossAt, designMagneticCore, temperatureRise, windingCopperLoss, type CoreDesign, type MagneticDemand } from '../../core-design.ts';
@@ -53,6 +53,11 @@ export interface SecondaryWinding {
   /** RC snubber across the rectifier, or absent. */
   snubber?: { r: Ohms; c: number };
   thetaJA: number;
+}
+
+/** The fields every CoupledBuck design carries (registry.ts `designFields`). */
+export function coupledDesignFields(): DesignFields<CoupledBuckDesign> {
+  return { ...switchingDesignFields(), kind: true, primaryTurns: true, primaryResistance: true, secondaries: true, maxSecondaries: true, powerLimit: true, dutyWarn: true, isolation: true };
 }
 
 export interface CoupledBuckDesign extends SwitchingDesignBase {

@@ -13,12 +13,12 @@
  * see Vin + |Vout| when off. The inductor runs from the switch node to ground.
  */
 import type { Amps, Celsius, Henries, Ohms, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { bestDivider, nearest } from '../../eseries.ts';
 import { GENERIC_DEFAULTS, diodeVf, type ControllerParams } from '../defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags } from '../common.ts';
 import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitcher, type StagePartRef } from '../part-choice.ts';
-import { feasibility, specErrors, switchingFlags, switchingParts, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
+import { feasibility, specErrors, switchingDesignFields, switchingFlags, switchingParts, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
 import { NETLIST_CAUTION, commentText, spiceNumber as f, transientLines } from '../netlist-text.ts';
 import { inductorStageParts, type LibraryRow, type PartPick, type PickOptions } from '../../library.ts';
 import { setpoint, type OutputSpan, type ToleranceDraw } from '../window-cases.ts';
@@ -28,6 +28,11 @@ export const INVERTING_MAX_DUTY = 0.85;
 export const INVERTING_DUTY_WARN = 0.8;
 /** Crossover kept below f_RHP/5 [common practice, from memory]. */
 export const RHP_CROSSOVER_SHARE = 0.2;
+
+/** The fields every Inverting design carries (registry.ts `designFields`). */
+export function invertingDesignFields(): DesignFields<InvertingDesign> {
+  return { ...switchingDesignFields(), kind: true, dcr: true, rhpZero: true, crossoverLimit: true };
+}
 
 export interface InvertingDesign extends SwitchingDesignBase {
   kind: 'inverting';

@@ -14,7 +14,7 @@
  * engineer to decide; the module's own certification governs.
  */
 import type { Amps, Celsius, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { ISOLATION_CLASSES, isolationRank, type IsolationClass } from '../../model.ts';
 import { nearest } from '../../eseries.ts';
 import { flag, part, r3, rippleFlags, thermalFlags } from '../common.ts';
@@ -36,6 +36,11 @@ export const GENERIC_ISO_MODULES: LibraryRow[] = [
 
 /** A module may run from its nominal input ± this share [common practice for fixed-ratio modules]. */
 export const INPUT_RANGE_SHARE = 0.1;
+
+/** The fields every IsoModule design carries (registry.ts `designFields`). */
+export function isoModuleDesignFields(): DesignFields<IsoModuleDesign> {
+  return { kind: true, vinMin: true, vinNom: true, vinMax: true, outputs: true, module: true, iRated: true, isolation: true, preload: true, tjMax: true };
+}
 
 export interface IsoModuleDesign {
   kind: 'iso-module';

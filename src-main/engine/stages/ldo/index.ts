@@ -5,13 +5,18 @@
  * Tj = Ta + P·θJA (θJA as JEDEC JESD51-2 defines it: a package comparison figure).
  */
 import type { Amps, Celsius, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, OutputSpec, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, OutputSpec, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { GENERIC_DEFAULTS, type LdoPackage } from '../defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
 import { specErrors } from '../buck/index.ts';
 import { DEFAULT_MARGINS, type StagePartRef } from '../part-choice.ts';
 import type { LibraryRow } from '../../library.ts';
 import { boundingCases, type OutputSpan, type ToleranceCase, type ToleranceDraw } from '../window-cases.ts';
+
+/** The fields every Ldo design carries (registry.ts `designFields`). */
+export function ldoDesignFields(): DesignFields<LdoDesign> {
+  return { kind: true, vinMin: true, vinNom: true, vinMax: true, vinRipple: true, outputs: true, rippleFrequency: true, ratedCurrent: true, dropoutAtRated: true, dropoutFloor: true, iq: true, accuracy: true, psrrDb: true, psrrKnee: true, headroomMargin: true, package: true, thetaSource: true, cin: true, cout: true, tjMax: true };
+}
 
 export interface LdoDesign {
   kind: 'ldo';

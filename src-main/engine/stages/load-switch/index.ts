@@ -8,7 +8,7 @@
  * gated off the switch passes nothing and draws only its off-state current.
  */
 import type { Amps, Celsius, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { flag, part, r3, thermalFlags } from '../common.ts';
 import { specErrors } from '../buck/index.ts';
 import { cheapest, costNote, numParam, strParam, type LibraryRow, type PartPick } from '../../library.ts';
@@ -36,6 +36,11 @@ export const LOAD_SWITCH_DEFAULTS = {
   /** Slew rates offered (V/s): rise times from ~0.1 ms to ~10 ms at a few volts. */
   slewRates: [1e5, 3e4, 1e4, 3e3, 1e3, 300],
 } as const;
+
+/** The fields every LoadSwitch design carries (registry.ts `designFields`). */
+export function loadSwitchDesignFields(): DesignFields<LoadSwitchDesign> {
+  return { kind: true, vinMin: true, vinNom: true, vinMax: true, outputs: true, ron: true, ronTempCoeff: true, iMax: true, ratedVoltage: true, iq: true, iOff: true, thetaJA: true, tjMax: true, slewRate: true, riseTime: true, cload: true, inrush: true, inrushLimit: true, offModes: true };
+}
 
 export interface LoadSwitchDesign {
   kind: 'load-switch';
