@@ -16,21 +16,15 @@
  */
 import type { Amps, Celsius, Volts } from '../units.ts';
 import type { OutputSpec, OutputWindow } from './types.ts';
-import type { BuckDesign } from './buck/index.ts';
-import type { CoupledBuckDesign } from './cwbuck/index.ts';
-import type { LdoDesign } from './ldo/index.ts';
-import type { BoostDesign } from './boost/index.ts';
-import type { InvertingDesign } from './inverting/index.ts';
-import type { FourSwitchDesign } from './buck-boost-4s/index.ts';
-import type { LoadSwitchDesign } from './load-switch/index.ts';
-import type { IsoModuleDesign } from './iso-module/index.ts';
+import type { StageDesign } from './index.ts';
 import type { KindWindow, OutputSpan, ToleranceCase, ToleranceDraw } from './window-cases.ts';
 // The registry imports the kind modules, some of which import this module: each side uses
 // the other only inside functions.
 import { kindModuleOf } from './registry.ts';
 import { mulberry32, r3 } from './common.ts';
 
-export type WindowDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign | InvertingDesign | FourSwitchDesign | LoadSwitchDesign | IsoModuleDesign;
+/** The designs the windows take: every kind's (stages/index.ts StageDesign). */
+export type WindowDesign = StageDesign;
 
 export interface WindowCorners {
   vin: Volts[];
