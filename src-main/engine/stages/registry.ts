@@ -1,9 +1,15 @@
 /**
- * The stage kinds, registered in one list. Each kind module provides its designer, its
- * evaluator, its label in the drawing and, if it switches, its netlist writer; stages/index.ts,
- * layout.ts, the netlist export and the CLI dispatch through this table. (Issue 14 part 1:
- * the window corners, BOM parts and docs are still dispatched in windows.ts, library.ts and
- * the docs.)
+ * The stage kinds, registered in one list. Each kind's folder provides everything the rest of
+ * the program takes from a kind, and its entry here names it: designer, evaluator, names and
+ * drawing colour, mode dependence, design fields, window entry, BOM parts and, if it
+ * switches, netlist writer. stages/index.ts, windows.ts, stage-json.ts, library.ts
+ * (partsForStage), layout.ts, the roll-up, the planner's names and reasons, the netlist
+ * export, the CLI and (through api/window-shared.ts) the window dispatch through this table
+ * (DEVELOPERS.md, "How to add a stage model").
+ *
+ * Kind modules import modules that import this one (windows.ts, library.ts): the entries
+ * reference only the kinds' function declarations, or wrap them, so they are safe to build
+ * while such a cycle is still being loaded.
  */
 import type { StageModelKind } from '../model.ts';
 import type { DesignFields, OperatingPoint, StageEvaluation, StageFlag, StageSpec } from './types.ts';
