@@ -5,9 +5,10 @@
 //    folder of src-main (api, store, export, host, cli, worker, cli.ts), no src-renderer, no
 //    db/ or test/ file. Its package imports (no node:, electron, sqlite, svelte, exceljs,
 //    pdfkit) are checked by test/engine/purity.test.ts with the same scanner;
-// 3. the CLI (src-main/cli.ts and src-main/cli/) imports nothing of the engine: it reaches
-//    it only through src-main/api, the handlers and shared modules the window's requests use
-//    (api/cli-shared.ts re-exports the text rules and types it prints with).
+// 3. the CLI (src-main/cli.ts and src-main/cli/) imports nothing of the engine and nothing of
+//    the exports: it reaches them only through src-main/api, the handlers and shared modules
+//    the window's requests use (api/cli-shared.ts re-exports the text rules and types it
+//    prints with; api/export-files.ts writes the exports to files).
 // Every import form counts: `import … from`, `export … from`, `import '…'`, `import('…')`.
 import { describe, expect, it } from 'vitest';
 import { join, relative, sep } from 'node:path';
@@ -20,6 +21,7 @@ const RENDERER = join(ROOT, 'src-renderer');
 const CLI_DIR = join(MAIN, 'cli');
 const CLI_ENTRY = join(MAIN, 'cli.ts');
 const API = join(MAIN, 'api');
+const EXPORT = join(MAIN, 'export');
 /** The only src-main modules the window may import. */
 const WINDOW_ALLOWED = ['api/contract.ts', 'api/window-shared.ts'].map((p) => join(MAIN, p));
 
@@ -90,13 +92,16 @@ describe('the engine imports nothing outside itself', () => {
   });
 });
 
-describe('the CLI reaches the engine only through src-main/api', () => {
+describe('the CLI reaches the engine and the exports only through src-main/api', () => {
   const files = [CLI_ENTRY, ...sourceFiles(CLI_DIR)];
   it('has CLI sources to check', () => {
     expect(files.length).toBeGreaterThan(5);
   });
   it('imports nothing from src-main/engine', () => {
     expect(violations(files, (t) => inside(t, ENGINE))).toEqual({});
+  });
+  it('imports nothing from src-main/export (the exports are written through api/export-files.ts)', () => {
+    expect(violations(files, (t) => inside(t, EXPORT))).toEqual({});
   });
   it('does import src-main/api (the check above sees the CLI\'s imports)', () => {
     expect(Object.keys(violations(files, (t) => inside(t, API))).length).toBeGreaterThan(3);

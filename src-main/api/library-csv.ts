@@ -6,13 +6,28 @@
  */
 import type { PartLibraryRow } from '../engine/model.ts';
 import { describeProblem, fromStoreRows, rowsToTable, tableToRows } from '../engine/library.ts';
-import { writeCsv } from '../export/csv.ts';
+import { CsvError, readCsv, writeCsv } from '../export/csv.ts';
 
 /** CSV cells (already split) as stored library rows, or every problem by row and column. */
 export function libraryFromTable(table: string[][]): { ok: true; rows: PartLibraryRow[] } | { ok: false; problems: string[] } {
   const r = tableToRows(table);
   // Checked rows are stored rows as they are (tableToRows builds fresh objects).
   return r.ok ? { ok: true, rows: r.rows } : { ok: false, problems: r.problems.map(describeProblem) };
+}
+
+/**
+ * CSV text (as `libraryCsv` writes it, formula-neutralised cells read back) as stored library
+ * rows: the CSV's own syntax error, or every problem by row and column.
+ */
+export function libraryFromCsv(text: string): { ok: true; rows: PartLibraryRow[] } | { ok: false; csvError: string } | { ok: false; problems: string[] } {
+  let table: string[][];
+  try {
+    table = readCsv(text, { unneutralise: true });
+  } catch (e) {
+    if (e instanceof CsvError) return { ok: false, csvError: e.message };
+    throw e;
+  }
+  return libraryFromTable(table);
 }
 
 /** Stored library rows as CSV text. */

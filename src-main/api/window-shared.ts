@@ -9,3 +9,5 @@
 export { formatQuantity, formatTolerance } from '../engine/notation.ts';
 export { CLASS_PARAMS, type PartClass } from '../engine/library.ts';
 export { TABLE_COLUMNS, TABLE_TITLES, currentColumnKey, type ColumnDef } from './tables.ts';
+// What each stage kind is called: its registry entry (engine/stages/registry.ts), as plain data.
+export { KIND_NAMES, type KindNames } from '../engine/stages/registry.ts';

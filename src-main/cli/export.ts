@@ -1,7 +1,8 @@
 /**
  * `railwright export` (BOM, tree, report, netlists, magnetic specifications, library CSV)
  * and `railwright library` (import/export the project's part library as CSV). Thin shells
- * over the store, the planner and the pure exports.
+ * over the store and src-main/api (the planning job, the exports written to files, the
+ * library CSV).
  */
 import { openStore, projectLibrary } from './open-project.ts';
 import { readFileSync } from 'node:fs';
@@ -9,12 +10,10 @@ import { CliError, parseFlags, type CliCommand, type CliIo } from './command.ts'
 import { PROJECT_EXTENSION, ProjectStore, StoreError } from '../store/project-store.ts';
 import type { ElkLike, PlanResult } from '../api/cli-shared.ts';
 import { RollupError } from '../api/cli-shared.ts';
-import { readCsv, CsvError } from '../export/csv.ts';
-import { prepareExport, ExportError } from '../export/bundle.ts';
-import { checkTargets, existsMessage, writeAll, writeFiles, TargetError, TargetExists, type ExportTargets } from '../export/write-all.ts';
+import { checkTargets, existsMessage, writeExportFiles, writeFiles, ExportError, TargetError, TargetExists, type ExportTargets } from '../api/export-files.ts';
 import { existsSync } from 'node:fs';
 import { defaultLibrary } from '../api/default-library.ts';
-import { libraryCsv, libraryFromTable } from '../api/library-csv.ts';
+import { libraryCsv, libraryFromCsv } from '../api/library-csv.ts';
 import { planningProblems, planWithLibrary } from '../api/plan-job.ts';
 
 const CAUTION =
@@ -105,12 +104,12 @@ const exportCmd: CliCommand = {
         if (!m) throw new CliError(`--mode ${modeFlag}: no such operating mode (${req.modes.map((x) => x.name).join(', ')})`, 2);
         modeId = m.id;
       }
-      const bundle = await prepareExport({ req, result, library, elk: await elk(), modeId, replanned });
-      for (const line of await writeAll(bundle, targets, { force, extra })) io.out(line);
-      if (bundle.bom.problems.length) io.err(`note: ${bundle.bom.problems.length} part(s) have no fitting library row; they are listed without cost`);
-      for (const o of bundle.rollup.sourceOverloads) io.err(`note: ${o.text}`);
-      const bad = bundle.rollup.windows.filter((w) => !w.inside);
-      if (bad.length) io.err(`note: ${bad.length} window(s) fall outside their tolerance: ${bad.map((w) => w.name).join(', ')}`);
+      const { lines, notes } = await writeExportFiles({ req, result, library, elk: await elk(), modeId, replanned, targets, force, extra });
+      for (const line of lines) io.out(line);
+      if (notes.partsWithoutRow) io.err(`note: ${notes.partsWithoutRow} part(s) have no fitting library row; they are listed without cost`);
+      for (const o of notes.sourceOverloads) io.err(`note: ${o}`);
+      const bad = notes.windowsOutside;
+      if (bad.length) io.err(`note: ${bad.length} window(s) fall outside their tolerance: ${bad.join(', ')}`);
       io.err(CAUTION);
       return 0;
     } catch (e) {
@@ -162,14 +161,8 @@ const libraryCmd: CliCommand = {
       } catch (e) {
         throw new CliError(`--import ${imp}: cannot read the file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
       }
-      let table: string[][];
-      try {
-        table = readCsv(text, { unneutralise: true });
-      } catch (e) {
-        if (e instanceof CsvError) throw new CliError(`--import ${imp}: ${e.message}; the project is unchanged`);
-        throw e;
-      }
-      const r = libraryFromTable(table);
+      const r = libraryFromCsv(text);
+      if (!r.ok && 'csvError' in r) throw new CliError(`--import ${imp}: ${r.csvError}; the project is unchanged`);
       if (!r.ok) {
         for (const p of r.problems.slice(0, 50)) io.err(`  ${p}`);
         throw new CliError(`--import ${imp}: ${r.problems.length} problem(s); the project is unchanged`);

@@ -31,6 +31,11 @@ export function pctText(r: number): string {
   return String(Number.parseFloat((r * 100).toPrecision(3)));
 }
 
+/** A stage kind's colour in the drawing: its `colour` in stages/registry.ts (a kind no module registers: the buck's). */
+export function kindColour(kind: StageKind): string {
+  return (kindModuleOf(kind) ?? kindModuleOf('buck')!).colour;
+}
+
 /** A stage kind's name in the drawing and the report: its `label` in stages/registry.ts. */
 export function stageKindLabel(kind: StageKind): string {
   // A kind no module registers (a saved plan written by hand) is shown by its own word.

@@ -8,17 +8,14 @@
  */
 
 import { isolationRank, type PartLibraryRow } from './model.ts';
-import { magneticSpec } from './magnetics.ts';
 import { checkText } from './text-rules.ts';
 import { formatUnit } from './notation.ts';
 import type { StageDesign } from './stages/index.ts';
 import type { SwitchingDesignBase } from './stages/buck/index.ts';
 import { rowTopology } from './stages/part-choice.ts';
-import { boostParts } from './stages/boost/index.ts';
-import { invertingParts } from './stages/inverting/index.ts';
-import { fourSwitchParts } from './stages/buck-boost-4s/index.ts';
-import { loadSwitchParts } from './stages/load-switch/index.ts';
-import { isoModuleParts } from './stages/iso-module/index.ts';
+// The registry imports the kind modules, whose parts functions import the pick rules here:
+// each side uses the other only inside functions.
+import { kindModuleOf } from './stages/registry.ts';
 import type { CostModel, PartCounts } from './planner/types.ts';
 import { INVENTED_UNIT_COST, TYPICAL_BUCK_PARTS } from './planner/cost-model.ts';
 
@@ -443,17 +440,22 @@ export interface PickOptions {
 
 const DEFAULT_PICK: PickOptions = { powerDerating: 0.5, electrolyticDerating: 0.8 };
 
+/** The pick options with the defaults filled in (a kind's parts function takes them partial). */
+export function pickOptions(opts: Partial<PickOptions> = {}): PickOptions {
+  return { ...DEFAULT_PICK, ...opts };
+}
+
 /** A part value or rating: the one quantity formatter (engine/notation.ts); not finite: "NaN Ω". */
-function eng(value: number, unit: string, digits = 3): string {
+export function eng(value: number, unit: string, digits = 3): string {
   if (!Number.isFinite(value)) return `${value} ${unit}`;
   return formatUnit(value, unit, digits);
 }
 
-interface CapLike { role: string; value: number; count: number; ratedVoltage: number; workingVoltage: number; rmsCurrent?: number }
+export interface CapLike { role: string; value: number; count: number; ratedVoltage: number; workingVoltage: number; rmsCurrent?: number }
 /** A feedback divider; `tolerance` is the resistor grade the design was analysed with (default 1 %). */
-interface DividerLike { rTop: number; rBottom: number; vout: number; tolerance?: number }
+export interface DividerLike { rTop: number; rBottom: number; vout: number; tolerance?: number }
 
-function pickFromRow(stageId: string, role: string, prefix: PartPick['prefix'], row: LibraryRow, value: string, rating: string, quantity: number, extra: Partial<PartPick> = {}): PartPick {
+export function pickFromRow(stageId: string, role: string, prefix: PartPick['prefix'], row: LibraryRow, value: string, rating: string, quantity: number, extra: Partial<PartPick> = {}): PartPick {
   return {
     stageId, role, prefix, partClass: row.partClass, libraryId: row.id, description: row.name, value, rating,
     package: strParam(row, 'package'), quantity, unitCost: row.cost, costNote: costNote(row),
@@ -461,11 +463,11 @@ function pickFromRow(stageId: string, role: string, prefix: PartPick['prefix'], 
   };
 }
 
-function missing(stageId: string, role: string, prefix: PartPick['prefix'], cls: PartClass, value: string, rating: string, quantity: number, why: string): PartPick {
+export function missing(stageId: string, role: string, prefix: PartPick['prefix'], cls: PartClass, value: string, rating: string, quantity: number, why: string): PartPick {
   return { stageId, role, prefix, partClass: cls, libraryId: null, description: `${role} (no library part)`, value, rating, package: '', quantity, unitCost: 0, costNote: '', problem: why };
 }
 
-function pickCap(lib: LibraryRow[], stageId: string, c: CapLike, o: PickOptions): PartPick {
+export function pickCap(lib: LibraryRow[], stageId: string, c: CapLike, o: PickOptions): PartPick {
   const value = eng(c.value, 'F');
   const ceramic = cheapest(lib, 'cap-ceramic', (r) =>
     numParam(r, 'vRated') >= c.ratedVoltage - 1e-9 && numParam(r, 'cMin') <= c.value * (1 + 1e-9) && numParam(r, 'cMax') >= c.value * (1 - 1e-9));
@@ -489,7 +491,7 @@ export function pickResistorPart(lib: LibraryRow[], stageId: string, role: strin
 }
 
 /** Cheapest resistor of at least the grade (tolerance ≤ `tolerance`, default 1 %) that takes the power. */
-function pickResistor(lib: LibraryRow[], stageId: string, role: string, ohms: number, watts: number, o: PickOptions, quantity = 1, tolerance = 0.01): PartPick {
+export function pickResistor(lib: LibraryRow[], stageId: string, role: string, ohms: number, watts: number, o: PickOptions, quantity = 1, tolerance = 0.01): PartPick {
   const value = eng(ohms, 'Ω');
   const grade = `${+(tolerance * 100).toPrecision(3)} %`;
   const row = cheapest(lib, 'resistor', (r) => numParam(r, 'power') * o.powerDerating >= watts && numParam(r, 'tolerance') <= tolerance + 1e-12);
@@ -497,7 +499,7 @@ function pickResistor(lib: LibraryRow[], stageId: string, role: string, ohms: nu
   return missing(stageId, role, 'R', 'resistor', value, `≥ ${eng(watts / o.powerDerating, 'W')}, ${grade}`, quantity, `no ${grade} resistor in the library takes ${eng(watts, 'W')} within the power derating`);
 }
 
-function pickDivider(lib: LibraryRow[], stageId: string, d: DividerLike, o: PickOptions): PartPick[] {
+export function pickDivider(lib: LibraryRow[], stageId: string, d: DividerLike, o: PickOptions): PartPick[] {
   const i = d.vout / (d.rTop + d.rBottom);
   return [
     pickResistor(lib, stageId, `feedback top (sets ${eng(d.vout, 'V')})`, d.rTop, i * i * d.rTop, o, 1, d.tolerance ?? 0.01),
@@ -505,7 +507,7 @@ function pickDivider(lib: LibraryRow[], stageId: string, d: DividerLike, o: Pick
   ];
 }
 
-interface PartRefLike { role: string; libraryId: string }
+export interface PartRefLike { role: string; libraryId: string }
 
 /**
  * The parts the stage designer chose from the library (design.parts) for some roles, as BOM
@@ -525,7 +527,7 @@ function picksFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[], 
 
 const SWITCHER_ROLES = new Set(['regulator (integrated switches)', 'controller', 'high-side switch', 'low-side switch']);
 
-function switcherFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[] | undefined): PartPick[] | null {
+export function switcherFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[] | undefined): PartPick[] | null {
   if (!refs) return null;
   return picksFromRefs(lib, stageId, refs, (r) => SWITCHER_ROLES.has(r), (ref, row) => row.partClass === 'switch'
     ? { prefix: 'Q', value: '', rating: `${numParam(row, 'vds')} V, ${numParam(row, 'id')} A` }
@@ -542,7 +544,7 @@ function rippleProblem(row: LibraryRow, c: CapLike): string | undefined {
     : undefined;
 }
 
-function capFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[] | undefined, c: CapLike, o: PickOptions): PartPick {
+export function capFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[] | undefined, c: CapLike, o: PickOptions): PartPick {
   const ref = refs?.find((r) => r.role === c.role);
   const row = ref ? lib.find((r) => r.id === ref.libraryId) : undefined;
   if (ref && row) {
@@ -553,7 +555,7 @@ function capFromRefs(lib: LibraryRow[], stageId: string, refs: PartRefLike[] | u
 }
 
 /** Switching stage: one integrated regulator, or a controller plus two external switches, whichever costs less. */
-function pickSwitcher(lib: LibraryRow[], stageId: string, vinMax: number, iNeed: number, needForcedPwm: boolean, ipk: number, topology = 'buck'): PartPick[] {
+export function pickSwitcher(lib: LibraryRow[], stageId: string, vinMax: number, iNeed: number, needForcedPwm: boolean, ipk: number, topology = 'buck'): PartPick[] {
   const options: PartPick[][] = [];
   const okCtl = (r: LibraryRow) => numParam(r, 'vinMax') >= vinMax && (!needForcedPwm || numParam(r, 'forcedPwm') === 1) && rowTopology(r) === topology;
   const integ = cheapest(lib, 'controller', (r) => okCtl(r) && numParam(r, 'integrated') === 1 && numParam(r, 'iMax') >= iNeed);
@@ -607,95 +609,17 @@ export function inductorStageParts(stageId: string, d: SwitchingDesignBase, libr
 
 /**
  * The concrete parts a stage design implies, chosen from the library (cheapest row that
- * fits). A part no row fits is still listed, with `problem` set and no cost.
+ * fits): each kind's own parts function (registry.ts `parts`), with the pick rules above. A
+ * part no row fits is still listed, with `problem` set and no cost.
  */
 export function partsForStage(stageId: string, design: StageDesign | null, library: LibraryRow[], opts: Partial<PickOptions> = {}): PartPick[] {
-  const o = { ...DEFAULT_PICK, ...opts };
-  const picks: PartPick[] = [];
   // A stage without a design, or a saved design without its outputs (plan-types.ts); the
-  // `?.` and `??` below also hold for a saved design that is incomplete.
+  // kinds' parts functions keep `?.` and `??` for a saved design otherwise incomplete.
   const out0 = design?.outputs?.[0];
   if (!design || !out0) return [missing(stageId, 'stage', 'U', 'controller', '', '', 1, 'the stage carries no design')];
-  const d = design;
-  const kind: string = d.kind;
-  if (d.kind === 'buck') return inductorStageParts(stageId, d, library, opts, { vRating: d.vinMax ?? 0, iNeed: out0.currentMax });
-  if (d.kind === 'boost') return boostParts(stageId, d, library, opts);
-  if (d.kind === 'inverting') return invertingParts(stageId, d, library, opts);
-  if (d.kind === 'buck-boost-4s') return fourSwitchParts(stageId, d, library, opts);
-  if (d.kind === 'load-switch') return loadSwitchParts(stageId, d, library);
-  if (d.kind === 'iso-module') return isoModuleParts(stageId, d, library, opts);
-  if (d.kind === 'cwbuck') {
-    const secs = d.secondaries ?? [];
-    // Worst primary peak over the input range and load patterns (engine/magnetics.ts); the
-    // magnetic saturates no lower than that plus the usual 30 % margin.
-    let peak = (d.isat ?? out0.currentMax) / 1.3;
-    try {
-      const spec = magneticSpec(d, { withCore: false });
-      peak = Math.max(peak, ...spec.windings.filter((w) => w.role === 'primary').map((w) => w.peakCurrent));
-    } catch { /* an incomplete design: keep the design's own figure */ }
-    const isat = Math.max(d.isat ?? 0, peak * 1.3);
-    picks.push(...(switcherFromRefs(library, stageId, d.parts) ?? pickSwitcher(library, stageId, d.vinMax ?? 0, peak, true, isat)));
-    const pTotal = (d.outputs ?? []).reduce((a, q) => a + Math.abs(q.voltage) * q.currentMax, 0);
-    const isoOf = [d.isolation, o.isolation].filter((x): x is { class: string; workingVoltage: number } => !!x && x.class !== 'none')
-      .sort((a, b) => isolationRank(b.class) - isolationRank(a.class) || b.workingVoltage - a.workingVoltage)[0] ?? null;
-    const needIso = isolationRank(isoOf?.class);
-    const windings = 1 + secs.length;
-    const mag = cheapest(library, 'magnetic-custom', (r) =>
-      numParam(r, 'maxWindings') >= windings && numParam(r, 'pMax') >= pTotal && numParam(r, 'isolation') >= needIso);
-    const specRef = `magnetic-${stageId.replace(/[^A-Za-z0-9._-]+/g, '_')}.md`;
-    const turns = [d.primaryTurns ?? 0, ...secs.map((s) => s.turns)].join(':');
-    const magValue = `Lp ${eng(d.inductance ?? 0, 'H')}, ${turns} T`;
-    const magRating = `Isat ≥ ${eng(isat, 'A')}${isoOf ? `, ${isoOf.class} isolation ${eng(isoOf.workingVoltage, 'V')}` : ''}`;
-    picks.push(mag
-      ? { ...pickFromRow(stageId, 'coupled-winding magnetic (custom)', 'T', mag, magValue, magRating, 1, { specRef }), unitCost: mag.cost + numParam(mag, 'costPerWinding', 0) * secs.length }
-      : { ...missing(stageId, 'coupled-winding magnetic (custom)', 'T', 'magnetic-custom', magValue, magRating, 1, `no custom-magnetic former in the library takes ${windings} windings, ${eng(pTotal, 'W')}${needIso > 0 ? ` and ${isoOf?.class} isolation` : ''}`), specRef });
-    if (d.cin) picks.push(capFromRefs(library, stageId, d.parts, d.cin, o));
-    if (d.cout) picks.push(capFromRefs(library, stageId, d.parts, d.cout, o));
-    if (d.divider) picks.push(...pickDivider(library, stageId, d.divider, o));
-    secs.forEach((s, k) => {
-      const spec = d.outputs?.find((q) => q.nodeId === s.nodeId);
-      const iAvg = (spec?.currentMax ?? 0) + (s.preload?.current ?? 0);
-      // Rectifier ratings: Vr ≥ reverse voltage / 0.8 and If ≥ 1.5·average (common practice margins).
-      const vr = s.rectifierReverseVoltage / 0.8;
-      const role = `rectifier, winding ${k + 1}`;
-      const rectRef = d.parts?.find((r) => r.role === role);
-      const rect = (rectRef ? library.find((r) => r.id === rectRef.libraryId) : undefined)
-        ?? cheapest(library, 'rectifier', (r) => numParam(r, 'vr') >= vr && numParam(r, 'if') >= 1.5 * iAvg);
-      picks.push(rect
-        ? pickFromRow(stageId, role, 'D', rect, '', `${numParam(rect, 'vr')} V, ${numParam(rect, 'if')} A`, 1)
-        : missing(stageId, role, 'D', 'rectifier', '', `≥ ${eng(vr, 'V')}, ≥ ${eng(1.5 * iAvg, 'A')}`, 1, `no rectifier in the library blocks ${eng(vr, 'V')} and carries ${eng(1.5 * iAvg, 'A')}`));
-      picks.push(capFromRefs(library, stageId, d.parts, s.cout, o));
-      if (s.snubber) {
-        // RC snubber across the rectifier: the capacitor sees the (snubbed) reverse peak, the
-        // resistor dissipates Cs·Vr²·fsw (common practice).
-        const vrs = s.rectifierReverseVoltage;
-        picks.push(pickCap(library, stageId, { role: `snubber capacitor, winding ${k + 1}`, value: s.snubber.c, count: 1, ratedVoltage: vrs / 0.8, workingVoltage: vrs }, o));
-        picks.push(pickResistor(library, stageId, `snubber resistor, winding ${k + 1}`, s.snubber.r, s.snubber.c * vrs * vrs * (d.fsw ?? 0), o));
-      }
-      if (s.preload) {
-        const v = Math.abs(spec?.voltage ?? 0) * 1.1;
-        picks.push(pickResistor(library, stageId, `preload, winding ${k + 1}`, s.preload.resistance, (v * v) / s.preload.resistance, o));
-      }
-    });
-    return picks;
-  }
-  if (d.kind === 'ldo') {
-    const neg = out0.voltage < 0 ? 1 : 0;
-    const vinMax = Math.abs(d.vinMax ?? 0);
-    const fits = (r: LibraryRow) => numParam(r, 'iMax') >= out0.currentMax && numParam(r, 'vinMax') >= vinMax && numParam(r, 'negative', 0) === neg
-      && numParam(r, 'thetaJA') <= (d.package?.thetaJA ?? Infinity) + 1e-9;
-    const ref = d.parts?.find((r) => r.role === 'LDO' || r.role === 'negative LDO');
-    const refRow = ref ? library.find((r) => r.id === ref.libraryId) ?? null : null;
-    const samePkg = refRow ? null : cheapest(library, 'ldo', (r) => fits(r) && strParam(r, 'package') === d.package?.name);
-    const row = refRow ?? samePkg ?? cheapest(library, 'ldo', fits);
-    picks.push(row
-      ? pickFromRow(stageId, neg ? 'negative LDO' : 'LDO', 'U', row, eng(out0.voltage, 'V', 4), `${numParam(row, 'iMax')} A, ${numParam(row, 'vinMax')} V in`, 1)
-      : missing(stageId, 'LDO', 'U', 'ldo', eng(out0.voltage, 'V', 4), `≥ ${eng(out0.currentMax, 'A')}, θJA ≤ ${d.package?.thetaJA ?? '—'} K/W`, 1,
-        `no ${neg ? 'negative ' : ''}LDO in the library carries ${eng(out0.currentMax, 'A')} from ${eng(vinMax, 'V')} with θJA ≤ ${d.package?.thetaJA} K/W`));
-    if (d.cin) picks.push(capFromRefs(library, stageId, d.parts, d.cin, o));
-    if (d.cout) picks.push(capFromRefs(library, stageId, d.parts, d.cout, o));
-    return picks;
-  }
+  const m = kindModuleOf(design.kind);
+  if (m) return m.parts(stageId, design, library, opts);
+  const kind: string = design.kind;
   return [missing(stageId, `stage of kind ${kind}`, 'U', 'controller', '', '', 1, `no part mapping for stage kind ${kind}`)];
 }
 

@@ -18,7 +18,7 @@ import type { Id, Rail, Requirements } from './model.ts';
 import type { Plan, PlanStage } from './plan-types.ts';
 import type { DissipatingPart, OperatingPoint, OutputWindow, StageEvaluation, StageFlag } from './stages/types.ts';
 import type { Amps, Volts } from './units.ts';
-import { evaluateStage, stageWindows, type StageDesign } from './stages/index.ts';
+import { evaluateStage, evaluatesPerMode, stageWindows, type StageDesign } from './stages/index.ts';
 import { batteryRuntime, type BatteryRuntime } from './battery.ts';
 
 /** The stage models the roll-up calls (the real engine satisfies it). */
@@ -270,8 +270,9 @@ function evaluateCase(ctx: Context, modeId: Id, vinCase: VinCase): CaseRollup {
       const design = designOf(st);
       let ev: StageEvaluation;
       try {
-        // The mode matters to a load switch (off in some modes); other kinds ignore it.
-        const mode = design.kind === 'load-switch' ? { mode: modeId } : {};
+        // The mode matters to a kind gated per mode (a load switch, off in some modes); the
+        // others are evaluated without it, so their cached evaluations serve every mode.
+        const mode = evaluatesPerMode(design.kind) ? { mode: modeId } : {};
         ev = evaluateCached(models, design, { vin: vin as Volts, iout, ambient: req.limits.ambient, ...mode });
       } catch (e) {
         throw new RollupError(`stage ${st.id} (${st.name}): ${(e as Error).message}`);

@@ -6,7 +6,7 @@
  * edge that crosses it.
  */
 import { edgeText, entryPoint, groupText, nodeText, type LaidOutTree, type Point, type TextLine } from '../engine/layout.ts';
-import type { StageKind } from '../engine/model.ts';
+import { kindColour } from '../engine/layout.ts';
 
 export type Prim =
   | { t: 'rect'; x: number; y: number; w: number; h: number; r: number; fill: string | null; stroke: string | null; width: number; dash?: number[] }
@@ -34,7 +34,6 @@ export const PALETTE = {
   groupStroke: '#9aa7b6',
   isoFill: '#fbf4ec',
   barrier: '#b5452f',
-  kind: { buck: '#2f7f8f', cwbuck: '#c27a17', ldo: '#6a55a8', boost: '#3f7f3a', inverting: '#8f3f6a', 'buck-boost-4s': '#2f5f9f', 'iso-module': '#8a5a44', 'load-switch': '#55606b' } as Record<StageKind, string>,
 };
 
 export const SAFETY_LINE =
@@ -98,7 +97,7 @@ export function buildScene(tree: LaidOutTree): Scene {
       continue;
     }
     if (n.kind === 'stage') {
-      const c = PALETTE.kind[n.stageKind ?? 'buck'];
+      const c = kindColour(n.stageKind ?? 'buck');
       prims.push({ t: 'rect', x: n.x, y: n.y, w: n.width, h: n.height, r: 3, fill: PALETTE.stageFill, stroke: c, width: 1.4 });
       prims.push({ t: 'rect', x: n.x, y: n.y, w: 5, h: n.height, r: 0, fill: c, stroke: null, width: 0 });
       prims.push(textPrim(name!, PALETTE.ink));

@@ -6,7 +6,7 @@
  */
 import type { QuantityKind } from '../../src-main/api/contract.ts';
 import { q, pct, num } from './fmt.ts';
-import { CLASS_PARAMS, type PartClass } from '../../src-main/api/window-shared.ts';
+import { CLASS_PARAMS, KIND_NAMES, type PartClass } from '../../src-main/api/window-shared.ts';
 
 type Unit = QuantityKind | 'ratio' | 'dB' | 'K/W' | 'turns' | 'factor' | 'plain';
 
@@ -152,12 +152,11 @@ const LOSSES: Record<string, string> = {
   conduction: 'switch conduction (I² × Ron)', 'off-state': 'off-state current', module: 'isolated module',
 };
 
-/** Stage kinds as an engineer names them (our own words; trade terms only). */
-const KINDS: Record<string, string> = {
-  buck: 'synchronous buck', cwbuck: 'coupled-winding buck', ldo: 'linear regulator (LDO)', boost: 'synchronous boost',
-  inverting: 'inverting buck-boost', 'buck-boost-4s': 'four-switch buck-boost', 'load-switch': 'load switch', 'iso-module': 'isolated module',
-};
-export const kindName = (kind: string): string => KINDS[kind] ?? splitWords(kind);
+/** Stage kinds as an engineer names them in full: each kind's registry entry (names.full). */
+const kindEntry = (kind: string) => (Object.prototype.hasOwnProperty.call(KIND_NAMES, kind) ? (KIND_NAMES as Record<string, { full: string; noun: string }>)[kind] : undefined);
+export const kindName = (kind: string): string => kindEntry(kind)?.full ?? splitWords(kind);
+/** A stage kind's plain trade word ("buck", "LDO"): its registry entry (names.noun). */
+export const kindNoun = (kind: string): string => kindEntry(kind)?.noun ?? splitWords(kind);
 export const lossName = (key: string): string => LOSSES[key] ?? splitWords(key);
 /** True when the term has its own name here (tests check the engine's terms are all named). */
 export const isNamedLoss = (key: string): boolean => key in LOSSES;

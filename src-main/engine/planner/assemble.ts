@@ -4,15 +4,11 @@
  */
 import { DEFAULT_WINDOW_MARGIN, STAGE_KINDS, type Id, type Requirements, type StageKind } from '../model.ts';
 import { formatQuantity } from '../notation.ts';
+import { kindNames, kindSettingName } from '../stages/registry.ts';
 import type { Infeasibility, InternalNode, Plan, PlanLabel, PlanStage, Reason } from '../plan-types.ts';
 import { BlockFactory, type Miss } from './candidates.ts';
 import { planScore, type Scorer, type SelectionEval } from './score.ts';
 import type { Block, BlockShape } from './types.ts';
-
-const KIND_NAME: Record<StageKind, string> = {
-  buck: 'its own buck', ldo: 'an LDO', cwbuck: 'a coupled-winding buck',
-  boost: 'a boost', inverting: 'an inverting buck-boost', 'buck-boost-4s': 'a four-switch buck-boost', 'iso-module': 'an isolated module', 'load-switch': 'a load switch',
-};
 
 export function describeShape(f: BlockFactory, s: BlockShape): string {
   const rails = f.ctx.rails;
@@ -21,7 +17,7 @@ export function describeShape(f: BlockFactory, s: BlockShape): string {
     const p = s.primary === null ? `a ${s.busVoltage} V primary bus` : `${rails[s.primary]!.name} as primary`;
     return `a coupled-winding buck from ${from} with ${p} and ${s.secondaries.map((i) => rails[i]!.name).join(', ')} as secondaries`;
   }
-  return `${KIND_NAME[s.kind]} from ${from}`;
+  return `${kindNames(s.kind).feeding} from ${from}`;
 }
 
 export function assemblePlan(
@@ -136,11 +132,6 @@ export interface InfeasibleEntry {
   candidates: RemedyCandidate[];
 }
 
-const KIND_LABEL: Record<StageKind, string> = {
-  cwbuck: 'coupled-winding buck (cwbuck)', buck: 'buck', ldo: 'LDO', boost: 'boost', inverting: 'inverting buck-boost (inverting)',
-  'buck-boost-4s': 'four-switch buck-boost (buck-boost-4s)', 'iso-module': 'isolated module (iso-module)', 'load-switch': 'load switch (load-switch)',
-};
-
 const v3 = (x: number) => formatQuantity(x, 'voltage', 3);
 
 /** Remedies and shortfalls per rail when no plan exists (remedies still to verify). */
@@ -154,7 +145,7 @@ export function explainInfeasible(
   const notAllowed = STAGE_KINDS.filter((k) => !allowed.has(k));
   const loadsOf = (req: Requirements, railId: string) => req.loads.filter((l) => rails.find((x) => x.id === railId)?.loadIds.includes(l.id));
   const allowKind = (k: StageKind): RemedyCandidate => ({
-    text: `allow the ${KIND_LABEL[k] ?? k} stage kind`,
+    text: `allow the ${kindSettingName(k)} stage kind`,
     apply: (req) => { if (!req.preferences.allowedKinds.includes(k)) req.preferences.allowedKinds = [...req.preferences.allowedKinds, k]; },
   });
   for (let r = 0; r < rails.length; r++) {

@@ -25,6 +25,7 @@ import type { StageDesign } from '../stages/index.ts';
 import { addParts, countParts, emptyParts } from './cost-model.ts';
 import { formatQuantity } from '../notation.ts';
 import { GENERIC_DEFAULTS } from '../stages/defaults.ts';
+import { kindNames } from '../stages/registry.ts';
 import type {
   Block, BlockEval, BlockShape, BlockStage, CostModel, FeedInput, PartCounts, PlanContext, Rejection, StageEvaluator,
 } from './types.ts';
@@ -72,11 +73,6 @@ const fmtQ = (v: number) => formatQuantity(v, 'voltage', 3);
 const fmtA = (v: number) => `${Math.round(v * 1e4) / 1e4} A`;
 const fmtW = (v: number) => `${Math.round(v * 1e4) / 1e4} W`;
 
-/** Stage names as the plan shows them ("Boost Main 5V"). */
-const STAGE_NAME: Record<StageKind, string> = {
-  buck: 'Buck', ldo: 'LDO', cwbuck: 'Coupled-winding buck', boost: 'Boost', inverting: 'Inverting buck-boost',
-  'buck-boost-4s': 'Four-switch buck-boost', 'iso-module': 'Isolated module', 'load-switch': 'Load switch',
-};
 /** A buck's largest duty, for the reasons ("a buck cannot reach 12 V below 13.3 V input"). */
 const BUCK_MAX_DUTY = GENERIC_DEFAULTS.controller.maxDuty;
 
@@ -369,7 +365,7 @@ export class BlockFactory {
     if (!run.ok) return run;
     const parts = stageParts(shape.kind, 0);
     const stage: BlockStage = {
-      localId: 's0', kind: shape.kind, name: `${STAGE_NAME[shape.kind]} ${r.name}`,
+      localId: 's0', kind: shape.kind, name: `${kindNames(shape.kind).title} ${r.name}`,
       inputNode: 'input', outputs: [{ nodeId: r.id, role: 'output' }], barriers, design: run.design, spec,
       modeCurrents: run.modeCurrents, lossPerMode: run.perMode.map((e) => e.loss),
     };

@@ -13,6 +13,7 @@
  */
 import { groupRails } from '../rails.ts';
 import type { Rail, Requirements, StageKind } from '../model.ts';
+import { kindNames } from '../stages/registry.ts';
 import type { Infeasibility, Plan, PlanLabel, PlanResult, PlanSpace } from '../plan-types.ts';
 import { assemblePlan, explainInfeasible, type InfeasibleEntry } from './assemble.ts';
 import { BlockFactory, generateBlocks, spaceSize, type GenerationOptions, type Miss } from './candidates.ts';
@@ -467,19 +468,16 @@ export class PlanSolver {
   }
 }
 
-const KIND_WORD: Record<StageKind, string> = { buck: 'buck', ldo: 'LDO', cwbuck: 'coupled-winding buck',
-  boost: 'boost', inverting: 'inverting buck-boost', 'buck-boost-4s': 'four-switch buck-boost', 'iso-module': 'isolated module', 'load-switch': 'load switch' };
-
 /** The decision space in one line (docs/planner.md states it in full). */
 export function spaceSummary(s: PlanSpace, rails: number): string {
-  const kinds = s.kinds.map((k) => KIND_WORD[k]);
+  const kinds = s.kinds.map((k) => kindNames(k).noun);
   const parts = [`${rails} rails`, `feeds: ${kinds.join(', ') || 'none'}`];
   if (s.kinds.includes('cwbuck')) {
     parts.push(`coupled-winding: ${s.primaries} primaries (a rail or an internal bus) × every set of 1–${s.maxSecondaries} secondaries, each direct or tap + LDO`);
   }
   parts.push(s.railFeeds ? 'stages fed from rails allowed' : 'every stage fed from a source');
   parts.push(s.designed >= s.candidates ? `${s.candidates} candidate feeds, all designed` : `${s.designed} of ${s.candidates} candidate feeds designed`);
-  if (s.notModelled.length) parts.push(`not modelled: ${s.notModelled.map((k) => KIND_WORD[k]).join(', ')}`);
+  if (s.notModelled.length) parts.push(`not modelled: ${s.notModelled.map((k) => kindNames(k).noun).join(', ')}`);
   return parts.join('; ');
 }
 

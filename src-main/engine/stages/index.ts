@@ -69,6 +69,11 @@ export function evaluateStage(design: StageDesign, op: OperatingPoint, opts?: Co
   return m.evaluate(design, op, opts);
 }
 
+/** Whether a kind's evaluation depends on the operating mode (registry.ts `perMode`: a load switch). */
+export function evaluatesPerMode(kind: unknown): boolean {
+  return kindModuleOf(kind)?.perMode === true;
+}
+
 /** Whether a kind has a netlist writer (the switching kinds). */
 export function hasStageNetlist(kind: unknown): boolean {
   return kindModuleOf(kind)?.netlist !== undefined;

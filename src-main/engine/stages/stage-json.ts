@@ -8,6 +8,7 @@ import { parseQuantity, parseTolerance } from '../notation.ts';
 import type { QuantityKind } from '../units.ts';
 import type { OperatingPoint, OutputSpec, StageSpec } from './types.ts';
 import type { StageDesign, WindowCorners } from './index.ts';
+import { isStageDesign, missingDesignFields } from './registry.ts';
 import { ISOLATION_CLASSES, STAGE_MODEL_KINDS, type IsolationClass, type StageModelKind } from '../model.ts';
 
 const kindOk = (k: unknown): k is StageModelKind => STAGE_MODEL_KINDS.includes(k as StageModelKind);
@@ -153,7 +154,7 @@ export function parseSpec(v: unknown, path = 'spec'): StageSpec {
 }
 
 /** A design is taken as written (it is the engine's own output); numbers must be finite. */
-function checkDesign(v: unknown, path = 'design'): StageDesign {
+function checkDesign(v: unknown, path = 'design'): Record<string, unknown> {
   const o = obj(v, path);
   if (!kindOk(o.kind)) fail(`${path}.kind`, `one of ${KIND_LIST} (got ${JSON.stringify(o.kind)})`);
   if (!Array.isArray(o.outputs) || o.outputs.length === 0) fail(`${path}.outputs`, 'a non-empty list of outputs is required');
@@ -163,15 +164,25 @@ function checkDesign(v: unknown, path = 'design'): StageDesign {
     if (x && typeof x === 'object') for (const [k, y] of Object.entries(x)) walk(y, Array.isArray(x) ? `${p}[${k}]` : `${p}.${k}`, depth + 1);
   };
   walk(o, path, 0);
-  return o as unknown as StageDesign;
+  return o;
+}
+
+/** A checked design is its kind's design when it carries every field of that kind (registry.ts designFields). */
+function asDesign(o: Record<string, unknown>, path: string): StageDesign {
+  if (!isStageDesign(o)) {
+    const missing = missingDesignFields(o);
+    fail(`${path}.${missing[0]}`, `a ${String(o.kind)} design carries ${missing.length > 1 ? `these fields: ${missing.join(', ')}` : 'this field'} (write the design the engine gave, or give a spec instead)`);
+  }
+  return o;
 }
 
 export function parseStageFile(v: unknown): StageFile {
   const o = obj(v, 'stage file');
   const spec = o.spec !== undefined ? parseSpec(o.spec, 'spec') : null;
-  const design = o.design !== undefined ? checkDesign(o.design, 'design') : null;
-  if (!spec && !design) fail('stage file', 'needs "spec" (what to design) or "design" (a designed stage)');
-  if (spec && design) fail('stage file', 'give "spec" or "design", not both');
+  const raw = o.design !== undefined ? checkDesign(o.design, 'design') : null;
+  if (!spec && !raw) fail('stage file', 'needs "spec" (what to design) or "design" (a designed stage)');
+  if (spec && raw) fail('stage file', 'give "spec" or "design", not both');
+  const design = raw ? asDesign(raw, 'design') : null;
   const n = (spec ?? design)!.outputs.length;
   let operatingPoint: OperatingPoint | null = null;
   if (o.operatingPoint !== undefined) {

@@ -156,3 +156,13 @@ export interface OperatingPoint {
   /** Operating-mode id, for kinds whose state depends on the mode (a load switch gated off). */
   mode?: Id;
 }
+
+/** The keys of T that are not optional. */
+export type RequiredKeys<T> = { [K in keyof T]-?: {} extends Pick<T, K> ? never : K }[keyof T];
+
+/**
+ * Every field a design of a kind always carries, as a record the compiler checks is complete
+ * (a key missing or not a required field of D is an error): a design read from a file is
+ * checked against it before it is taken as that kind's design (stage-json.ts).
+ */
+export type DesignFields<D> = { readonly [K in RequiredKeys<D>]: true };

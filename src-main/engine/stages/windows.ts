@@ -16,18 +16,15 @@
  */
 import type { Amps, Celsius, Volts } from '../units.ts';
 import type { OutputSpec, OutputWindow } from './types.ts';
-import type { DividerChoice } from '../eseries.ts';
-import { buckAtDuty, buckPoint, evaluateBuck, type BuckDesign } from './buck/index.ts';
-import { coupledMagneticCorners, coupledOutputs, magneticTolerance, withMagneticCorner, type CoupledBuckDesign } from './cwbuck/index.ts';
-import { ldoPoint, type LdoDesign } from './ldo/index.ts';
-import { boostWindowAt, type BoostDesign } from './boost/index.ts';
-import { invertingWindowAt, type InvertingDesign } from './inverting/index.ts';
-import { fourSwitchWindowAt, type FourSwitchDesign } from './buck-boost-4s/index.ts';
-import { loadSwitchWindowAt, type LoadSwitchDesign } from './load-switch/index.ts';
-import { isoModuleWindowAt, type IsoModuleDesign } from './iso-module/index.ts';
+import type { StageDesign } from './index.ts';
+import type { KindWindow, OutputSpan, ToleranceCase, ToleranceDraw } from './window-cases.ts';
+// The registry imports the kind modules, some of which import this module: each side uses
+// the other only inside functions.
+import { kindModuleOf } from './registry.ts';
 import { mulberry32, r3 } from './common.ts';
 
-export type WindowDesign = BuckDesign | CoupledBuckDesign | LdoDesign | BoostDesign | InvertingDesign | FourSwitchDesign | LoadSwitchDesign | IsoModuleDesign;
+/** The designs the windows take: every kind's (stages/index.ts StageDesign). */
+export type WindowDesign = StageDesign;
 
 export interface WindowCorners {
   vin: Volts[];
@@ -36,8 +33,9 @@ export interface WindowCorners {
 
 export interface WindowOptions {
   /**
-   * Coupled-winding stages: 'extremes' (default) evaluates the magnetic's tolerance corners
-   * at the operating corners of each output's nominal extremes; 'full' at every corner.
+   * Stages whose magnetic has tolerances (coupled-winding): 'extremes' (default) evaluates the
+   * magnetic's tolerance corners at the operating corners of each output's nominal extremes;
+   * 'full' at every corner.
    */
   magneticSweep?: 'extremes' | 'full';
   monteCarlo?: { runs: number; seed: number };
@@ -45,69 +43,16 @@ export interface WindowOptions {
   ambient?: Celsius;
 }
 
-/** Tolerance draws: each in [−1, 1], scaled by the design's own tolerances. */
-interface Draw {
-  vref: number;
-  rTop: number;
-  rBottom: number;
-  vf: number;
-  accuracy: number;
-}
-
-function setpoint(div: DividerChoice, vrefTol: number, x: Draw): number {
-  const vref = div.vref * (1 + vrefTol * x.vref);
-  const rt = div.rTop * (1 + div.tolerance * x.rTop);
-  const rb = div.rBottom * (1 + div.tolerance * x.rBottom);
-  return vref * (1 + rt / rb);
+/** The kind's window entry (registry.ts); every registered kind has one. */
+function windowOf(d: WindowDesign): KindWindow<WindowDesign> {
+  const w = kindModuleOf(d.kind)?.window;
+  if (!w) throw new RangeError(`kind: "${String(d.kind)}" has no stage model`);
+  return w as KindWindow<WindowDesign>;
 }
 
 /** Signed output values (DC ∓ ripple/2 as [low, high] in magnitude) at one corner. */
-function outputsAt(d: WindowDesign, vin: number, iout: number[], x: Draw): { lo: number; hi: number }[] {
-  const ambient = 25 as Celsius;
-  if (d.kind === 'buck') {
-    const sp = setpoint(d.divider, d.controller.vrefTolerance, x);
-    const io = iout[0] ?? 0;
-    const ev = evaluateBuck(d, { vin: vin as Volts, iout: [io as Amps], ambient });
-    let v = sp;
-    if (buckPoint(d, vin, io, sp).duty > d.controller.maxDuty) {
-      // Out of regulation: the output follows the maximum duty.
-      v = buckAtDuty(d, vin, io, d.controller.maxDuty).vout;
-    }
-    const rp = ev.outputs[0]!.ripplePP as number;
-    return [{ lo: v - rp / 2, hi: v + rp / 2 }];
-  }
-  if (d.kind === 'boost') {
-    // Boost: setpoint from reference and divider; out of regulation (duty limit, or an input
-    // above the setpoint) the output follows the input (stages/boost/index.ts).
-    return [boostWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
-  }
-  if (d.kind === 'iso-module') {
-    // Unregulated: the input's spread and the load-regulation line set the output (magnitudes).
-    return [isoModuleWindowAt(d, vin, iout[0] ?? 0)];
-  }
-  if (d.kind === 'load-switch') {
-    // The input less the hot drop; no reference or divider of its own (the corners' tolerance
-    // cases give the same value).
-    return [loadSwitchWindowAt(d, vin, iout[0] ?? 0)];
-  }
-  if (d.kind === 'buck-boost-4s') {
-    return [fourSwitchWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
-  }
-  if (d.kind === 'inverting') {
-    // Inverting: magnitudes (the caller signs them); the setpoint is on |Vout|.
-    return [invertingWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
-  }
-  if (d.kind === 'cwbuck') {
-    const sp = setpoint(d.divider, d.controller.vrefTolerance, x);
-    const vfScale = 1 + d.secondaries.reduce((a, w) => Math.max(a, w.rectifier.vfSpread), 0) * x.vf;
-    return coupledOutputs(d, vin, iout, { vPrimary: sp, vfScale }).map((o) => {
-      const m = Math.abs(o.voltage);
-      return { lo: m - o.ripplePP / 2, hi: m + o.ripplePP / 2 };
-    });
-  }
-  const set = Math.abs(d.outputs[0]!.voltage) * (1 + d.accuracy * x.accuracy);
-  const p = ldoPoint(d, Math.abs(vin), iout[0] ?? 0, set);
-  return [{ lo: p.vout - p.ripple / 2, hi: p.vout + p.ripple / 2 }];
+function outputsAt(d: WindowDesign, vin: number, iout: number[], x: ToleranceDraw): OutputSpan[] {
+  return windowOf(d).outputsAt(d, vin, iout, x);
 }
 
 /** "min/max/…": which outputs are at their largest current in a corner. */
@@ -142,28 +87,21 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
   const hiAt = new Array<string>(n).fill('');
   // The operating corner (input, loads, tolerance case) of each output's extreme, for the
   // magnetic's corners below.
-  type At = { vin: number; mask: number; iout: number[]; tc: { x: Draw; label: string; design: WindowDesign } };
+  type At = { vin: number; mask: number; iout: number[]; tc: { x: ToleranceDraw; label: string; design: WindowDesign } };
   const loPt = new Array<At | null>(n).fill(null);
   const hiPt = new Array<At | null>(n).fill(null);
-  const tolCases: { x: Draw; label: string; design: WindowDesign }[] = [];
-  const hasVf = d.kind === 'cwbuck';
-  const magnetic = d.kind === 'cwbuck' ? coupledMagneticCorners(d) : null;
-  // Every output rises with the setpoint and falls with the rectifier drop, so two cases
-  // bound them all: setpoint low with the drop high, and setpoint high with the drop low.
-  for (const s of [-1, 1]) {
-    const f = hasVf ? -s : 0;
-    const x: Draw = { vref: s, rTop: s, rBottom: -s, vf: f, accuracy: s };
-    const label = `${d.kind === 'ldo' ? 'accuracy' : 'reference and divider'} ${s < 0 ? 'low' : 'high'}${hasVf ? `, rectifier drop ${f < 0 ? 'low' : 'high'}` : ''}`;
-    // A load switch has no setpoint: its output is the input less the drop, one case.
-    if (d.kind === 'load-switch' || d.kind === 'iso-module') {
-      if (s > 0) tolCases.push({ x, design: d, label: d.kind === 'load-switch' ? 'input less the hot switch drop' : 'ratio and load-regulation line' });
+  const win = windowOf(d);
+  const hasVf = win.rectifierDrop === true;
+  const magnetic = win.magnetic ? win.magnetic.corners(d) : null;
+  // The kind's tolerance cases (registry.ts `window.cases`), each at every magnetic corner
+  // when the sweep is full.
+  const tolCases: { x: ToleranceDraw; label: string; design: WindowDesign }[] = [];
+  for (const c of win.cases(d) as ToleranceCase[]) {
+    if (magnetic && opts.magneticSweep === 'full') {
+      for (const m of magnetic) tolCases.push({ x: c.x, design: m.design, label: m.design === d ? c.label : `${c.label}, ${m.label}` });
       continue;
     }
-    if (d.kind === 'cwbuck' && opts.magneticSweep === 'full') {
-      for (const m of magnetic!) tolCases.push({ x, design: m.design, label: m.design === d ? label : `${label}, ${m.label}` });
-      continue;
-    }
-    tolCases.push({ x, design: d, label });
+    tolCases.push({ x: c.x, design: d, label: c.label });
   }
   // An output whose smallest and largest currents are equal, or an input voltage given twice,
   // repeats corners already evaluated: they cannot set a new (strict) extreme, so skip them.
@@ -190,7 +128,7 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
       }
     }
   }
-  if (d.kind === 'cwbuck' && opts.magneticSweep !== 'full' && magnetic!.length > 1) {
+  if (magnetic && opts.magneticSweep !== 'full' && magnetic.length > 1) {
     // The magnetic's corners at the operating corners where each output reached its nominal
     // extremes (the magnetic moves an output by a small fraction; where it peaks is where
     // the load, input and setpoint put it). Checked against the full sweep, every magnetic
@@ -199,7 +137,7 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
     for (const pt of [...loPt, ...hiPt]) {
       if (!pt || seen.has(pt)) continue;
       seen.add(pt);
-      for (const m of magnetic!) {
+      for (const m of magnetic) {
         if (m.design === d) continue;
         const vals = outputsAt(m.design, pt.vin, pt.iout, pt.tc.x);
         let where: string | null = null;
@@ -216,7 +154,7 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
   }
   // Every corner of the set was evaluated unless the magnetic's corners were taken only at
   // the nominal extremes.
-  const exhaustive = !(d.kind === 'cwbuck' && opts.magneticSweep !== 'full' && magnetic!.length > 1);
+  const exhaustive = !(magnetic && opts.magneticSweep !== 'full' && magnetic.length > 1);
   let mc: { min: number[]; max: number[] } | null = null;
   const runs = opts.monteCarlo ? Math.max(0, Math.min(1e6, Math.floor(opts.monteCarlo.runs))) : 0;
   if (opts.monteCarlo && runs > 0) {
@@ -227,13 +165,9 @@ export function stageWindows(d: WindowDesign, corners: WindowCorners, opts: Wind
     for (let r = 0; r < runs; r++) {
       const vin = vmin + (vmax - vmin) * rnd();
       const iout = corners.iout.map((c) => c.min + (c.max - c.min) * rnd());
-      const x: Draw = { vref: u(), rTop: u(), rBottom: u(), vf: hasVf ? u() : 0, accuracy: u() };
-      // A coupled-winding stage also draws its magnetic inside the tolerances its sheet states.
-      let dd: WindowDesign = d;
-      if (d.kind === 'cwbuck') {
-        const t = magneticTolerance(d);
-        dd = withMagneticCorner(d, 1 + t.inductance * u(), t.leakageLow + (1 - t.leakageLow) * rnd());
-      }
+      const x: ToleranceDraw = { vref: u(), rTop: u(), rBottom: u(), vf: hasVf ? u() : 0, accuracy: u() };
+      // A stage whose magnetic has tolerances also draws it inside the tolerances its sheet states.
+      const dd: WindowDesign = win.magnetic ? win.magnetic.draw(d, u, rnd) : d;
       outputsAt(dd, vin, iout, x).forEach((v, i) => {
         mc!.min[i] = Math.min(mc!.min[i]!, v.lo);
         mc!.max[i] = Math.max(mc!.max[i]!, v.hi);

@@ -16,14 +16,15 @@
  * reversed at light load, the main switch's body diode does).
  */
 import type { Amps, Celsius, Henries, Ohms, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { bestDivider, nearest } from '../../eseries.ts';
 import { GENERIC_DEFAULTS, diodeVf, type ControllerParams } from '../defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags } from '../common.ts';
 import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitcher, type StagePartRef } from '../part-choice.ts';
-import { feasibility, specErrors, switchingFlags, switchingParts, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
+import { feasibility, specErrors, switchingDesignFields, switchingFlags, switchingParts, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
 import { NETLIST_CAUTION, commentText, spiceNumber as f, transientLines } from '../netlist-text.ts';
 import { inductorStageParts, type LibraryRow, type PartPick, type PickOptions } from '../../library.ts';
+import { setpoint, type OutputSpan, type ToleranceDraw } from '../window-cases.ts';
 
 /** Boost controllers stop at a maximum duty of 0.8–0.9 [common practice]: 0.85 by default. */
 export const BOOST_MAX_DUTY = 0.85;
@@ -31,6 +32,11 @@ export const BOOST_MAX_DUTY = 0.85;
 export const BOOST_DUTY_WARN = 0.8;
 /** Crossover kept below f_RHP/5 [common practice, from memory]. */
 export const RHP_CROSSOVER_SHARE = 0.2;
+
+/** The fields every Boost design carries (registry.ts `designFields`). */
+export function boostDesignFields(): DesignFields<BoostDesign> {
+  return { ...switchingDesignFields(), kind: true, dcr: true, rhpZero: true, crossoverLimit: true };
+}
 
 export interface BoostDesign extends SwitchingDesignBase {
   kind: 'boost';
@@ -347,6 +353,14 @@ export function boostWindowAt(d: BoostDesign, vin: number, io: number, setpoint:
   const ev = evaluateBoost(d, { vin: vin as Volts, iout: [io as Amps], ambient: 25 as Celsius });
   const rp = ev.outputs[0]!.ripplePP as number;
   return { lo: point.vout - rp / 2, hi: point.vout + rp / 2 };
+}
+
+/**
+ * The output at one window corner (windows.ts): setpoint from reference and divider; out of
+ * regulation (duty limit, or an input above the setpoint) the output follows the input.
+ */
+export function boostWindowOutputs(d: BoostDesign, vin: number, iout: number[], x: ToleranceDraw): OutputSpan[] {
+  return [boostWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
 }
 
 /** The parts of a boost for the BOM, in the shape of library.ts `partsForStage`. */

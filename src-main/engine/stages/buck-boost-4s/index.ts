@@ -16,14 +16,15 @@
  *   and gate-drive losses add up there (the extra loss of the band).
  */
 import type { Amps, Celsius, Henries, Ohms, Ratio, Volts, Watts } from '../../units.ts';
-import type { DissipatingPart, OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, DissipatingPart, OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { bestDivider, nearest } from '../../eseries.ts';
 import { GENERIC_DEFAULTS, diodeVf, type ControllerParams } from '../defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags } from '../common.ts';
 import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitcher, type StagePartRef } from '../part-choice.ts';
-import { feasibility, specErrors, thetaSourceOf, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
+import { feasibility, specErrors, switchingDesignFields, thetaSourceOf, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
 import { NETLIST_CAUTION, commentText, spiceNumber as f, transientLines } from '../netlist-text.ts';
 import { inductorStageParts, type LibraryRow, type PartPick, type PickOptions } from '../../library.ts';
+import { setpoint, type OutputSpan, type ToleranceDraw } from '../window-cases.ts';
 
 /** Largest duty of the input leg before the output leg starts switching [common practice, from memory]. */
 export const INPUT_LEG_MAX_DUTY = 0.9;
@@ -33,6 +34,11 @@ export const OUTPUT_LEG_MIN_DUTY = 0.1;
 export const OUTPUT_LEG_MAX_DUTY = 0.85;
 
 export type BuckBoostRegion = 'buck' | 'transition' | 'boost';
+
+/** The fields every FourSwitch design carries (registry.ts `designFields`). */
+export function fourSwitchDesignFields(): DesignFields<FourSwitchDesign> {
+  return { ...switchingDesignFields(), kind: true, dcr: true, transitionBand: true, rhpZero: true };
+}
 
 export interface FourSwitchDesign extends SwitchingDesignBase {
   kind: 'buck-boost-4s';
@@ -352,6 +358,11 @@ export function fourSwitchWindowAt(d: FourSwitchDesign, vin: number, io: number,
   const ev = evaluateFourSwitch(d, { vin: vin as Volts, iout: [io as Amps], ambient: 25 as Celsius });
   const rp = ev.outputs[0]!.ripplePP as number;
   return { lo: p.vout - rp / 2, hi: p.vout + rp / 2 };
+}
+
+/** The output at one window corner (windows.ts): the setpoint from reference and divider. */
+export function fourSwitchWindowOutputs(d: FourSwitchDesign, vin: number, iout: number[], x: ToleranceDraw): OutputSpan[] {
+  return [fourSwitchWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
 }
 
 /** BOM parts (library.ts `partsForStage` shape); with external switches each of the pair counts twice. */

@@ -5,7 +5,7 @@
  * are common practice (DESIGN.md §4), each reported separately.
  */
 import type { Amps, Celsius, Henries, Hertz, Ohms, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, OutputSpec, OutputWindow, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, OutputSpec, OutputWindow, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { bestDivider, nearest, type DividerChoice } from '../../eseries.ts';
 import { GENERIC_DEFAULTS, diodeVf, type ControllerParams, type DiodeModel, type SwitchParams } from '../defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
@@ -13,6 +13,7 @@ import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitch
 import type { LibraryRow } from '../../library.ts';
 // windows.ts imports this module too; each side uses the other only inside functions.
 import { stageWindows } from '../windows.ts';
+import { boundingCases, setpoint, type OutputSpan, type ToleranceCase, type ToleranceDraw } from '../window-cases.ts';
 
 export interface ThermalParams {
   highSide: number;
@@ -77,6 +78,16 @@ export function switchingParts(d: SwitchingDesignBase, hs: number, ls: number, c
   ];
 }
 
+/** The fields every switching design carries (each switching kind's design fields add its own). */
+export function switchingDesignFields() {
+  return { vinMin: true, vinNom: true, vinMax: true, outputs: true, fsw: true, inductance: true, isat: true, coreLossFraction: true, cout: true, cin: true, divider: true, highSide: true, lowSide: true, rdsHotFactor: true, bodyDiode: true, controller: true, thetaJA: true, tjMax: true } as const;
+}
+
+/** The fields every buck design carries (registry.ts `designFields`). */
+export function buckDesignFields(): DesignFields<BuckDesign> {
+  return { ...switchingDesignFields(), kind: true, dcr: true };
+}
+
 export interface BuckDesign extends SwitchingDesignBase {
   kind: 'buck';
   /** One output (index 0). */
@@ -136,6 +147,28 @@ export function buckAtDuty(d: BuckDesign, vin: number, io: number, duty: number)
     else lo = mid;
   }
   return buckPoint(d, vin, io, lo);
+}
+
+/**
+ * The output at one window corner (windows.ts): the setpoint from the reference and divider
+ * under the draw; out of regulation (the duty limit) the output follows the maximum duty.
+ */
+export function buckWindowOutputs(d: BuckDesign, vin: number, iout: number[], x: ToleranceDraw): OutputSpan[] {
+  const sp = setpoint(d.divider, d.controller.vrefTolerance, x);
+  const io = iout[0] ?? 0;
+  const ev = evaluateBuck(d, { vin: vin as Volts, iout: [io as Amps], ambient: 25 as Celsius });
+  let v = sp;
+  if (buckPoint(d, vin, io, sp).duty > d.controller.maxDuty) {
+    // Out of regulation: the output follows the maximum duty.
+    v = buckAtDuty(d, vin, io, d.controller.maxDuty).vout;
+  }
+  const rp = ev.outputs[0]!.ripplePP as number;
+  return [{ lo: v - rp / 2, hi: v + rp / 2 }];
+}
+
+/** The tolerance cases of a stage regulated by a reference and a divider (buck, boost, …). */
+export function dividerWindowCases(): ToleranceCase[] {
+  return boundingCases('reference and divider');
 }
 
 export function evaluateBuck(d: BuckDesign, op: OperatingPoint): StageEvaluation {

@@ -20,14 +20,15 @@
  * Vsec ≈ n·Vpri − Vf − 2·Llk·fsw·Isec/(1−D)² − R·Isec/(1−D).
  */
 import type { Amps, Henries, Ohms, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, OutputResult, OutputSpec, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, OutputResult, OutputSpec, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import type { IsolationClass } from '../../model.ts';
 import type { LibraryRow } from '../../library.ts';
 import { bestDivider, nearest } from '../../eseries.ts';
 import { GENERIC_DEFAULTS, VT, diodeVf, type ControllerParams, type DiodeModel } from '../defaults.ts';
 import { bankRippleFlags, chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
-import { feasibility, specErrors, switchingFlags, switchingParts, thetaSourceOf, type SwitchingDesignBase } from '../buck/index.ts';
+import { feasibility, specErrors, switchingDesignFields, switchingFlags, switchingParts, thetaSourceOf, type SwitchingDesignBase } from '../buck/index.ts';
 import { chooseCeramicRow, chooseRectifier, chooseSwitcher, diodeFromRow, type StagePartRef } from '../part-choice.ts';
+import { boundingCases, setpoint, type OutputSpan, type ToleranceCase, type ToleranceDraw } from '../window-cases.ts';
 import { coreLossAt, designMagneticCore, temperatureRise, windingCopperLoss, type CoreDesign, type MagneticDemand } from '../../core-design.ts';
 
 // Module-local bindings for the innermost loops (saves a lookup through the module namespace
@@ -52,6 +53,11 @@ export interface SecondaryWinding {
   /** RC snubber across the rectifier, or absent. */
   snubber?: { r: Ohms; c: number };
   thetaJA: number;
+}
+
+/** The fields every CoupledBuck design carries (registry.ts `designFields`). */
+export function coupledDesignFields(): DesignFields<CoupledBuckDesign> {
+  return { ...switchingDesignFields(), kind: true, primaryTurns: true, primaryResistance: true, secondaries: true, maxSecondaries: true, powerLimit: true, dutyWarn: true, isolation: true };
 }
 
 export interface CoupledBuckDesign extends SwitchingDesignBase {
@@ -148,6 +154,30 @@ export function coupledMagneticCorners(d: CoupledBuckDesign): { design: CoupledB
     }
   }
   return out;
+}
+
+/**
+ * Every output at one window corner (windows.ts), as magnitudes: the primary at the setpoint
+ * under the draw, every rectifier drop scaled by 1 ± its spread.
+ */
+export function coupledWindowOutputs(d: CoupledBuckDesign, vin: number, iout: number[], x: ToleranceDraw): OutputSpan[] {
+  const sp = setpoint(d.divider, d.controller.vrefTolerance, x);
+  const vfScale = 1 + d.secondaries.reduce((a, w) => Math.max(a, w.rectifier.vfSpread), 0) * x.vf;
+  return coupledOutputs(d, vin, iout, { vPrimary: sp, vfScale }).map((o) => {
+    const m = Math.abs(o.voltage);
+    return { lo: m - o.ripplePP / 2, hi: m + o.ripplePP / 2 };
+  });
+}
+
+/** The outputs rise with the setpoint and fall with the rectifier drop: two cases bound them. */
+export function coupledWindowCases(): ToleranceCase[] {
+  return boundingCases('reference and divider', true);
+}
+
+/** A Monte Carlo draw of the magnetic inside the tolerances its sheet states (`u` in [−1, 1], then `rnd` in [0, 1)). */
+export function drawMagnetic(d: CoupledBuckDesign, u: () => number, rnd: () => number): CoupledBuckDesign {
+  const t = magneticTolerance(d);
+  return withMagneticCorner(d, 1 + t.inductance * u(), t.leakageLow + (1 - t.leakageLow) * rnd());
 }
 
 export interface CoupledEvalOptions {

@@ -13,20 +13,26 @@
  * see Vin + |Vout| when off. The inductor runs from the switch node to ground.
  */
 import type { Amps, Celsius, Henries, Ohms, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { bestDivider, nearest } from '../../eseries.ts';
 import { GENERIC_DEFAULTS, diodeVf, type ControllerParams } from '../defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags } from '../common.ts';
 import { chooseCeramicRow, chooseInductor, chooseLibraryInductance, chooseSwitcher, type StagePartRef } from '../part-choice.ts';
-import { feasibility, specErrors, switchingFlags, switchingParts, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
+import { feasibility, specErrors, switchingDesignFields, switchingFlags, switchingParts, type SwitchingDesignBase, type ThermalParams } from '../buck/index.ts';
 import { NETLIST_CAUTION, commentText, spiceNumber as f, transientLines } from '../netlist-text.ts';
 import { inductorStageParts, type LibraryRow, type PartPick, type PickOptions } from '../../library.ts';
+import { setpoint, type OutputSpan, type ToleranceDraw } from '../window-cases.ts';
 
 /** Maximum duty of an inverting controller [common practice 0.8–0.9, from memory]. */
 export const INVERTING_MAX_DUTY = 0.85;
 export const INVERTING_DUTY_WARN = 0.8;
 /** Crossover kept below f_RHP/5 [common practice, from memory]. */
 export const RHP_CROSSOVER_SHARE = 0.2;
+
+/** The fields every Inverting design carries (registry.ts `designFields`). */
+export function invertingDesignFields(): DesignFields<InvertingDesign> {
+  return { ...switchingDesignFields(), kind: true, dcr: true, rhpZero: true, crossoverLimit: true };
+}
 
 export interface InvertingDesign extends SwitchingDesignBase {
   kind: 'inverting';
@@ -302,6 +308,11 @@ export function invertingWindowAt(d: InvertingDesign, vin: number, io: number, s
   const ev = evaluateInverting(d, { vin: vin as Volts, iout: [io as Amps], ambient: 25 as Celsius });
   const rp = ev.outputs[0]!.ripplePP as number;
   return { lo: p.vout - rp / 2, hi: p.vout + rp / 2 };
+}
+
+/** The output at one window corner (windows.ts), as a magnitude: the setpoint is on |Vout|. */
+export function invertingWindowOutputs(d: InvertingDesign, vin: number, iout: number[], x: ToleranceDraw): OutputSpan[] {
+  return [invertingWindowAt(d, vin, iout[0] ?? 0, setpoint(d.divider, d.controller.vrefTolerance, x))];
 }
 
 /** The parts of an inverting stage for the BOM, in the shape of library.ts `partsForStage`. */

@@ -14,13 +14,14 @@
  * engineer to decide; the module's own certification governs.
  */
 import type { Amps, Celsius, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { ISOLATION_CLASSES, isolationRank, type IsolationClass } from '../../model.ts';
 import { nearest } from '../../eseries.ts';
 import { flag, part, r3, rippleFlags, thermalFlags } from '../common.ts';
 import { specErrors } from '../buck/index.ts';
 import { costNote, numParam, pickResistorPart, strParam, type LibraryRow, type PartPick, type PickOptions } from '../../library.ts';
 import type { StagePartRef } from '../part-choice.ts';
+import { singleCase, type OutputSpan, type ToleranceCase } from '../window-cases.ts';
 
 /** A library row's numeric isolation (0–2, isolationRank in engine/model.ts) back to its class. */
 const RANK_NAME = ISOLATION_CLASSES.slice(1) as readonly Exclude<IsolationClass, 'none'>[];
@@ -35,6 +36,11 @@ export const GENERIC_ISO_MODULES: LibraryRow[] = [
 
 /** A module may run from its nominal input ± this share [common practice for fixed-ratio modules]. */
 export const INPUT_RANGE_SHARE = 0.1;
+
+/** The fields every IsoModule design carries (registry.ts `designFields`). */
+export function isoModuleDesignFields(): DesignFields<IsoModuleDesign> {
+  return { kind: true, vinMin: true, vinNom: true, vinMax: true, outputs: true, module: true, iRated: true, isolation: true, preload: true, tjMax: true };
+}
 
 export interface IsoModuleDesign {
   kind: 'iso-module';
@@ -187,6 +193,16 @@ export function isoModuleWindowAt(d: IsoModuleDesign, vin: number, io: number): 
   const ev = evaluateIsoModule(d, { vin: vin as Volts, iout: [io as Amps], ambient: 25 as Celsius });
   const v = Math.abs(ev.outputs[0]!.voltage as number);
   return { lo: v - d.module.ripple / 2, hi: v + d.module.ripple / 2 };
+}
+
+/** The output at one window corner (windows.ts), a magnitude: unregulated, the input's spread and the load-regulation line set it. */
+export function isoModuleWindowOutputs(d: IsoModuleDesign, vin: number, iout: number[]): OutputSpan[] {
+  return [isoModuleWindowAt(d, vin, iout[0] ?? 0)];
+}
+
+/** One tolerance case: the fixed ratio and the load-regulation line (no setpoint). */
+export function isoModuleWindowCases(): ToleranceCase[] {
+  return singleCase('ratio and load-regulation line');
 }
 
 /** BOM parts (library.ts `partsForStage` shape): the module row and the preload resistor. */

@@ -5,12 +5,18 @@
  * Tj = Ta + P·θJA (θJA as JEDEC JESD51-2 defines it: a package comparison figure).
  */
 import type { Amps, Celsius, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, OutputSpec, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, OutputSpec, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { GENERIC_DEFAULTS, type LdoPackage } from '../defaults.ts';
 import { chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
 import { specErrors } from '../buck/index.ts';
 import { DEFAULT_MARGINS, type StagePartRef } from '../part-choice.ts';
 import type { LibraryRow } from '../../library.ts';
+import { boundingCases, type OutputSpan, type ToleranceCase, type ToleranceDraw } from '../window-cases.ts';
+
+/** The fields every Ldo design carries (registry.ts `designFields`). */
+export function ldoDesignFields(): DesignFields<LdoDesign> {
+  return { kind: true, vinMin: true, vinNom: true, vinMax: true, vinRipple: true, outputs: true, rippleFrequency: true, ratedCurrent: true, dropoutAtRated: true, dropoutFloor: true, iq: true, accuracy: true, psrrDb: true, psrrKnee: true, headroomMargin: true, package: true, thetaSource: true, cin: true, cout: true, tjMax: true };
+}
 
 export interface LdoDesign {
   kind: 'ldo';
@@ -56,6 +62,18 @@ export function ldoPsrrAt(psrrDb: number, f: number, loadShare: number): number 
 
 export function ldoDropout(d: LdoDesign, i: number): number {
   return d.dropoutFloor + (d.dropoutAtRated * Math.abs(i)) / d.ratedCurrent;
+}
+
+/** The output at one window corner (windows.ts), a magnitude: the setpoint moves by the stated accuracy. */
+export function ldoWindowOutputs(d: LdoDesign, vin: number, iout: number[], x: ToleranceDraw): OutputSpan[] {
+  const set = Math.abs(d.outputs[0]!.voltage) * (1 + d.accuracy * x.accuracy);
+  const p = ldoPoint(d, Math.abs(vin), iout[0] ?? 0, set);
+  return [{ lo: p.vout - p.ripple / 2, hi: p.vout + p.ripple / 2 }];
+}
+
+/** Accuracy low and high bound the output. */
+export function ldoWindowCases(): ToleranceCase[] {
+  return boundingCases('accuracy');
 }
 
 /** Output magnitude, rejection and headroom at an input magnitude and current. */

@@ -8,11 +8,12 @@
  * gated off the switch passes nothing and draws only its off-state current.
  */
 import type { Amps, Celsius, Ratio, Volts, Watts } from '../../units.ts';
-import type { OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
+import type { DesignFields, OperatingPoint, StageEvaluation, StageFlag, StageSpec } from '../types.ts';
 import { flag, part, r3, thermalFlags } from '../common.ts';
 import { specErrors } from '../buck/index.ts';
 import { cheapest, costNote, numParam, strParam, type LibraryRow, type PartPick } from '../../library.ts';
 import type { StagePartRef } from '../part-choice.ts';
+import { singleCase, type OutputSpan, type ToleranceCase } from '../window-cases.ts';
 
 /** Generic load switches, from memory: Ron at 25 °C (Ω) with their current ratings (A). */
 export const GENERIC_LOAD_SWITCHES = [
@@ -35,6 +36,11 @@ export const LOAD_SWITCH_DEFAULTS = {
   /** Slew rates offered (V/s): rise times from ~0.1 ms to ~10 ms at a few volts. */
   slewRates: [1e5, 3e4, 1e4, 3e3, 1e3, 300],
 } as const;
+
+/** The fields every LoadSwitch design carries (registry.ts `designFields`). */
+export function loadSwitchDesignFields(): DesignFields<LoadSwitchDesign> {
+  return { kind: true, vinMin: true, vinNom: true, vinMax: true, outputs: true, ron: true, ronTempCoeff: true, iMax: true, ratedVoltage: true, iq: true, iOff: true, thetaJA: true, tjMax: true, slewRate: true, riseTime: true, cload: true, inrush: true, inrushLimit: true, offModes: true };
+}
 
 export interface LoadSwitchDesign {
   kind: 'load-switch';
@@ -190,6 +196,19 @@ export function designLoadSwitch(spec: StageSpec): Result {
 export function loadSwitchWindowAt(d: LoadSwitchDesign, vin: number, io: number, ambient = 25): { lo: number; hi: number } {
   const v = (evaluateLoadSwitch(d, { vin: vin as Volts, iout: [io as Amps], ambient: ambient as Celsius }).outputs[0]!.voltage as number);
   return { lo: v, hi: v };
+}
+
+/**
+ * The output at one window corner (windows.ts): the input less the hot drop. It has no
+ * reference or divider of its own, so the draw does not move it.
+ */
+export function loadSwitchWindowOutputs(d: LoadSwitchDesign, vin: number, iout: number[]): OutputSpan[] {
+  return [loadSwitchWindowAt(d, vin, iout[0] ?? 0)];
+}
+
+/** One tolerance case: no setpoint of its own, its output is the input less the drop. */
+export function loadSwitchWindowCases(): ToleranceCase[] {
+  return singleCase('input less the hot switch drop');
 }
 
 /** BOM parts (library.ts `partsForStage` shape): the switch row, or the cheapest that fits. */
