@@ -110,3 +110,33 @@ describe('the CLI reaches the engine and the exports only through src-main/api',
     expect(files.filter((f) => hasComputedImport(readSource(f))).map(rel)).toEqual([]);
   });
 });
+
+// 4. What the window's bundle takes from src-main through api/window-shared.ts is plain data
+//    and formatting: the modules it reaches at run time (type-only imports are erased by the
+//    compiler, so they do not count) never include the stage engine, the planner or the
+//    library's pick rules. A kind's names and the part classes live in data modules
+//    (stages/kind-names.ts, part-classes.ts) for that reason.
+describe('the window bundle reaches no engine code through api/window-shared.ts', () => {
+  /** Relative run-time imports of a file: its source without type-only import/export statements. */
+  const runtimeImports = (f: string): string[] =>
+    importSpecifiers(readSource(f).replace(/\b(import|export)\s+type\s[^;]*?\bfrom\s*['"][^'"]+['"]/gs, ''))
+      .filter((s) => s.startsWith('.'))
+      .map((s) => resolveSpecifier(f, s));
+  const reach = (start: string): string[] => {
+    const seen = new Set<string>([start]);
+    const todo = [start];
+    while (todo.length) for (const t of runtimeImports(todo.pop()!)) if (!seen.has(t)) { seen.add(t); todo.push(t); }
+    return [...seen].map(rel).sort();
+  };
+  const forbidden = (p: string): boolean =>
+    /^src-main\/engine\/(stages\/(registry|index)\.ts|planner\/|library\.ts|rollup\.ts)/.test(p);
+  it('follows run-time imports (the scan sees window-shared.ts reach the engine notation module)', () => {
+    expect(reach(join(API, 'window-shared.ts'))).toContain('src-main/engine/notation.ts');
+  });
+  it('reaches none of the stage registry, the stage kinds\' entry point, the planner, the library checks or the roll-up', () => {
+    expect(reach(join(API, 'window-shared.ts')).filter(forbidden)).toEqual([]);
+  });
+  it('would see a module that reaches the registry (the library checks do)', () => {
+    expect(reach(join(ENGINE, 'library.ts')).filter(forbidden).length).toBeGreaterThan(0);
+  });
+});

@@ -7,7 +7,7 @@
  * Add an export here rather than importing an engine or api module from the window.
  */
 export { formatQuantity, formatTolerance } from '../engine/notation.ts';
-export { CLASS_PARAMS, type PartClass } from '../engine/library.ts';
+export { CLASS_PARAMS, type PartClass } from '../engine/part-classes.ts';
 export { TABLE_COLUMNS, TABLE_TITLES, currentColumnKey, type ColumnDef } from './tables.ts';
 // What each stage kind is called: its registry entry (engine/stages/registry.ts), as plain data.
-export { KIND_NAMES, type KindNames } from '../engine/stages/registry.ts';
+export { KIND_NAMES, type KindNames } from '../engine/stages/kind-names.ts';

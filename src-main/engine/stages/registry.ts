@@ -12,6 +12,7 @@
  * while such a cycle is still being loaded.
  */
 import type { StageModelKind } from '../model.ts';
+import { KIND_WORDS, type KindNames } from './kind-names.ts';
 import type { DesignFields, OperatingPoint, StageEvaluation, StageFlag, StageSpec } from './types.ts';
 import type { StageDesign } from './index.ts';
 import type { KindWindow } from './window-cases.ts';
@@ -33,18 +34,6 @@ import { designIsoModule, evaluateIsoModule, isoModuleDesignFields, isoModulePar
 export type KindDesignResult<D> =
   | { ok: true; design: D; reasons: string[]; flags: StageFlag[] }
   | { ok: false; flags: StageFlag[] };
-
-/** What a stage kind is called: one entry per kind, read by the planner, the window and the drawing. */
-export interface KindNames {
-  /** Title case, as a plan names its stages ("Boost Main 5V"). */
-  title: string;
-  /** The plain trade word in running text ("feeds: buck, LDO, boost"). */
-  noun: string;
-  /** How a reason names a stage of this kind feeding a rail ("an LDO from Main 5V"). */
-  feeding: string;
-  /** The name in full, as the window's inspector shows it ("linear regulator (LDO)"). */
-  full: string;
-}
 
 /** What every stage kind provides from its folder. */
 export interface StageKindModule<D extends { kind: StageModelKind }> {
@@ -75,64 +64,56 @@ function kindModule<D extends { kind: StageModelKind }>(m: StageKindModule<D>): 
 
 export const STAGE_KINDS = {
   'buck': kindModule<BuckDesign>({
-    kind: 'buck', label: 'synchronous buck', design: designBuck, evaluate: (d, op) => evaluateBuck(d, op), netlist: (d, op) => buckNetlist(d, op),
-    names: { title: 'Buck', noun: 'buck', feeding: 'its own buck', full: 'synchronous buck' }, colour: '#2f7f8f',
+    kind: 'buck', ...KIND_WORDS['buck'], design: designBuck, evaluate: (d, op) => evaluateBuck(d, op), netlist: (d, op) => buckNetlist(d, op),
     perMode: false,
     designFields: buckDesignFields,
     parts: (id, d, lib, o) => buckParts(id, d, lib, o),
     window: { outputsAt: buckWindowOutputs, cases: () => dividerWindowCases() },
   }),
   'cwbuck': kindModule<CoupledBuckDesign>({
-    kind: 'cwbuck', label: 'coupled-winding buck', design: designCoupledBuck, evaluate: (d, op, o) => evaluateCoupledBuck(d, op, o), netlist: (d, op) => coupledBuckNetlist(d, op),
-    names: { title: 'Coupled-winding buck', noun: 'coupled-winding buck', feeding: 'a coupled-winding buck', full: 'coupled-winding buck' }, colour: '#c27a17',
+    kind: 'cwbuck', ...KIND_WORDS['cwbuck'], design: designCoupledBuck, evaluate: (d, op, o) => evaluateCoupledBuck(d, op, o), netlist: (d, op) => coupledBuckNetlist(d, op),
     perMode: false,
     designFields: coupledDesignFields,
     parts: (id, d, lib, o) => coupledBuckParts(id, d, lib, o),
     window: { outputsAt: coupledWindowOutputs, cases: () => coupledWindowCases(), rectifierDrop: true, magnetic: { corners: coupledMagneticCorners, draw: drawMagnetic } },
   }),
   'ldo': kindModule<LdoDesign>({
-    kind: 'ldo', label: 'LDO', design: designLdo, evaluate: (d, op) => evaluateLdo(d, op),
-    names: { title: 'LDO', noun: 'LDO', feeding: 'an LDO', full: 'linear regulator (LDO)' }, colour: '#6a55a8',
+    kind: 'ldo', ...KIND_WORDS['ldo'], design: designLdo, evaluate: (d, op) => evaluateLdo(d, op),
     perMode: false,
     designFields: ldoDesignFields,
     parts: (id, d, lib, o) => ldoParts(id, d, lib, o),
     window: { outputsAt: ldoWindowOutputs, cases: () => ldoWindowCases() },
   }),
   'boost': kindModule<BoostDesign>({
-    kind: 'boost', label: 'synchronous boost', design: designBoost, evaluate: (d, op) => evaluateBoost(d, op), netlist: (d, op) => boostNetlist(d, op),
-    names: { title: 'Boost', noun: 'boost', feeding: 'a boost', full: 'synchronous boost' }, colour: '#3f7f3a',
+    kind: 'boost', ...KIND_WORDS['boost'], design: designBoost, evaluate: (d, op) => evaluateBoost(d, op), netlist: (d, op) => boostNetlist(d, op),
     perMode: false,
     designFields: boostDesignFields,
     parts: (id, d, lib, o) => boostParts(id, d, lib, o),
     window: { outputsAt: boostWindowOutputs, cases: () => dividerWindowCases() },
   }),
   'inverting': kindModule<InvertingDesign>({
-    kind: 'inverting', label: 'inverting buck-boost', design: designInverting, evaluate: (d, op) => evaluateInverting(d, op), netlist: (d, op) => invertingNetlist(d, op),
-    names: { title: 'Inverting buck-boost', noun: 'inverting buck-boost', feeding: 'an inverting buck-boost', full: 'inverting buck-boost' }, colour: '#8f3f6a',
+    kind: 'inverting', ...KIND_WORDS['inverting'], design: designInverting, evaluate: (d, op) => evaluateInverting(d, op), netlist: (d, op) => invertingNetlist(d, op),
     perMode: false,
     designFields: invertingDesignFields,
     parts: (id, d, lib, o) => invertingParts(id, d, lib, o),
     window: { outputsAt: invertingWindowOutputs, cases: () => dividerWindowCases() },
   }),
   'buck-boost-4s': kindModule<FourSwitchDesign>({
-    kind: 'buck-boost-4s', label: 'four-switch buck-boost', design: designFourSwitch, evaluate: (d, op) => evaluateFourSwitch(d, op), netlist: (d, op) => fourSwitchNetlist(d, op),
-    names: { title: 'Four-switch buck-boost', noun: 'four-switch buck-boost', feeding: 'a four-switch buck-boost', full: 'four-switch buck-boost' }, colour: '#2f5f9f',
+    kind: 'buck-boost-4s', ...KIND_WORDS['buck-boost-4s'], design: designFourSwitch, evaluate: (d, op) => evaluateFourSwitch(d, op), netlist: (d, op) => fourSwitchNetlist(d, op),
     perMode: false,
     designFields: fourSwitchDesignFields,
     parts: (id, d, lib, o) => fourSwitchParts(id, d, lib, o),
     window: { outputsAt: fourSwitchWindowOutputs, cases: () => dividerWindowCases() },
   }),
   'load-switch': kindModule<LoadSwitchDesign>({
-    kind: 'load-switch', label: 'load switch', design: designLoadSwitch, evaluate: (d, op) => evaluateLoadSwitch(d, op),
-    names: { title: 'Load switch', noun: 'load switch', feeding: 'a load switch', full: 'load switch' }, colour: '#55606b',
+    kind: 'load-switch', ...KIND_WORDS['load-switch'], design: designLoadSwitch, evaluate: (d, op) => evaluateLoadSwitch(d, op),
     perMode: true,
     designFields: loadSwitchDesignFields,
     parts: (id, d, lib) => loadSwitchParts(id, d, lib),
     window: { outputsAt: loadSwitchWindowOutputs, cases: () => loadSwitchWindowCases() },
   }),
   'iso-module': kindModule<IsoModuleDesign>({
-    kind: 'iso-module', label: 'isolated module', design: designIsoModule, evaluate: (d, op) => evaluateIsoModule(d, op),
-    names: { title: 'Isolated module', noun: 'isolated module', feeding: 'an isolated module', full: 'isolated module' }, colour: '#8a5a44',
+    kind: 'iso-module', ...KIND_WORDS['iso-module'], design: designIsoModule, evaluate: (d, op) => evaluateIsoModule(d, op),
     perMode: false,
     designFields: isoModuleDesignFields,
     parts: (id, d, lib, o) => isoModuleParts(id, d, lib, o),
@@ -163,10 +144,7 @@ export function kindSettingName(kind: string): string {
   return noun.toLowerCase() === kind.toLowerCase() ? noun : `${noun} (${kind})`;
 }
 
-/** Every registered kind's names, as plain data (the window reads them through api/window-shared.ts). */
-export const KIND_NAMES: Readonly<Record<StageModelKind, KindNames>> = Object.fromEntries(
-  Object.values(STAGE_KINDS).map((m) => [m.kind, { ...m.names }]),
-) as Record<StageModelKind, KindNames>;
+export { KIND_NAMES, type KindNames } from './kind-names.ts';
 
 /** The fields a value lacks to be a design of its kind (every field, for a kind no module registers). */
 export function missingDesignFields(o: object): string[] {
