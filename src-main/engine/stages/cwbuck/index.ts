@@ -1063,6 +1063,25 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
   // With the rectifier capacitance known, the secondaries are preloaded for continuous
   // conduction at their lightest load (found below on the ideal ratios before the turns).
   let cjPreload: number[] | null = null;
+  // What the template takes from the spec alone (not from the turns or the preloads), chosen
+  // once: the turns search below builds a template for every trial.
+  const secCout = secs.map((o, i) => {
+    const ipk = (2 * (o.currentMax as number)) / Math.max(1 - dMaxEst, 0.05);
+    const esr = GENERIC_DEFAULTS.ceramicEsr;
+    const budget = Math.max((o.rippleLimit as number) * 0.5 - esr * ipk, (o.rippleLimit as number) * 0.1);
+    // Cout ≥ Isec·D/(fsw·ΔV) [common practice], plus the charge lost while a ramping
+    // winding current is still below the load, Isec·(1−D)²/(4·fsw); at least 4.7 µF
+    const need = Math.max(((o.currentMax as number) * (dMaxEst + (1 - dMaxEst) ** 2 / 4)) / (fsw * budget), 4.7e-6);
+    return chooseCeramic(`secondary ${i + 1} output`, need, Math.abs(o.voltage) * (1 + o.tolerance) * 1.1, spec.ceramicDerating);
+  });
+  const secRect = secs.map((_, i) => (rectRows[i] ? diodeFromRow(rectRows[i]!.row, GENERIC_DEFAULTS.rectifier) : rect));
+  // Primary capacitor: the on-time surplus Σn·Isec·D/fsw plus ΔIm/(8·fsw), within half the
+  // ripple limit after the ESR step [common practice]; at least 10 µF.
+  const priCout = chooseCeramic('primary output', Math.max(10e-6,
+    (secs.reduce((a, o, i) => a + n0[i]! * (o.currentMax as number), 0) * dMaxEst + ripple / 8)
+      / (fsw * Math.max((pri.rippleLimit as number) * 0.5 - GENERIC_DEFAULTS.ceramicEsr * (ripple + imFull), (pri.rippleLimit as number) * 0.1))),
+    vpri * (1 + pri.tolerance), spec.ceramicDerating);
+  const cinChoice = chooseCeramic('input', Math.max((imFull * 0.25) / (fsw * 0.01 * spec.vinMin), 1e-6), spec.vinMax, spec.ceramicDerating);
   const template = (turnsP: number, turnsS: number[]): CoupledBuckDesign => ({
     kind: 'cwbuck',
     vinMin: spec.vinMin, vinNom: spec.vinNom, vinMax: spec.vinMax,
@@ -1076,12 +1095,6 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     secondaries: secs.map((o, i) => {
       const ns = turnsS[i]!;
       const n = Math.abs(ns) / turnsP;
-      const ipk = (2 * (o.currentMax as number)) / Math.max(1 - dMaxEst, 0.05);
-      const esr = GENERIC_DEFAULTS.ceramicEsr;
-      const budget = Math.max((o.rippleLimit as number) * 0.5 - esr * ipk, (o.rippleLimit as number) * 0.1);
-      // Cout ≥ Isec·D/(fsw·ΔV) [common practice], plus the charge lost while a ramping
-      // winding current is still below the load, Isec·(1−D)²/(4·fsw); at least 4.7 µF
-      const need = Math.max(((o.currentMax as number) * (dMaxEst + (1 - dMaxEst) ** 2 / 4)) / (fsw * budget), 4.7e-6);
       const ipre = cjPreload ? cjPreload[i]! : preloadFor(o);
       const preload = cjPreload ? (ipre > 0 ? e24Preload(Math.abs(o.voltage), ipre) : null)
         : (o.currentMin as number) < ipre
@@ -1093,20 +1106,15 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
         turns: ns,
         coupling: k,
         resistance: (rp * n * n) as Ohms,
-        rectifier: rectRows[i] ? diodeFromRow(rectRows[i]!.row, GENERIC_DEFAULTS.rectifier) : { ...rect },
+        rectifier: { ...secRect[i]! },
         rectifierReverseVoltage: (n * (spec.vinMax - vpri) + Math.abs(o.voltage)) as Volts,
-        cout: chooseCeramic(`secondary ${i + 1} output`, need, Math.abs(o.voltage) * (1 + o.tolerance) * 1.1, spec.ceramicDerating),
+        cout: { ...secCout[i]! },
         preload,
         thetaJA: rectRows[i] ? (rectRows[i]!.row.params.thetaJA as number) : GENERIC_DEFAULTS.rectifierThetaJA,
       };
     }),
-    // Primary capacitor: the on-time surplus Σn·Isec·D/fsw plus ΔIm/(8·fsw), within half the
-    // ripple limit after the ESR step [common practice]; at least 10 µF.
-    cout: chooseCeramic('primary output', Math.max(10e-6,
-      (secs.reduce((a, o, i) => a + n0[i]! * (o.currentMax as number), 0) * dMaxEst + ripple / 8)
-        / (fsw * Math.max((pri.rippleLimit as number) * 0.5 - GENERIC_DEFAULTS.ceramicEsr * (ripple + imFull), (pri.rippleLimit as number) * 0.1))),
-      vpri * (1 + pri.tolerance), spec.ceramicDerating),
-    cin: chooseCeramic('input', Math.max((imFull * 0.25) / (fsw * 0.01 * spec.vinMin), 1e-6), spec.vinMax, spec.ceramicDerating),
+    cout: { ...priCout },
+    cin: { ...cinChoice },
     divider,
     highSide: { ...switches.highSide },
     lowSide: { ...switches.lowSide },
