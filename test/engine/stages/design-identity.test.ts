@@ -28,3 +28,26 @@ describe('stage designs of the demo candidates are unchanged by the speed work',
     expect(differ).toEqual([]);
   }, 120_000);
 });
+
+describe('the remembered part choice', () => {
+  const need = { vinMin: 18, vinMax: 32, iNeed: 1.2, ipk: 1.4, forcedPwm: true };
+  it('gives what a fresh choice over the same rows gives, and a changed library chooses again', async () => {
+    const { chooseSwitcher, chooseRectifier } = await import('../../../src-main/engine/stages/part-choice.ts');
+    const lib = fixture.libraryRows;
+    const first = chooseSwitcher(lib, need);
+    // A copy of the rows is another library to the memo: chosen from scratch.
+    expect(JSON.stringify(chooseSwitcher([...lib], need))).toBe(JSON.stringify(first));
+    expect(chooseSwitcher(lib, need)).toBe(first);
+    if ('problem' in first) throw new Error('the fixture library has a controller for this need');
+    // Without the chosen controller the cheapest remaining one is picked, not the remembered one.
+    const chosen = new Set(first.refs.map((r) => r.libraryId));
+    const without = lib.filter((r) => !(r.partClass === 'controller' && chosen.has(r.id)));
+    const other = chooseSwitcher(without, need);
+    expect('problem' in other || other.refs.some((r) => !chosen.has(r.libraryId))).toBe(true);
+    const rect = chooseRectifier(lib, 60, 0.2, 'rectifier, winding 1', { ambient: 60, tjMax: 125 });
+    expect(JSON.stringify(chooseRectifier([...lib], 60, 0.2, 'rectifier, winding 1', { ambient: 60, tjMax: 125 }))).toBe(JSON.stringify(rect));
+    // Another thermal limit is another question.
+    const hot = chooseRectifier(lib, 60, 0.2, 'rectifier, winding 1', { ambient: 120, tjMax: 125 });
+    expect(JSON.stringify(hot)).toBe(JSON.stringify(chooseRectifier([...lib], 60, 0.2, 'rectifier, winding 1', { ambient: 120, tjMax: 125 })));
+  });
+});

@@ -201,7 +201,15 @@ export interface SecondaryPoint {
   pRect: number;
   /** Charge the output capacitor gives up each period while the winding delivers less than the load. */
   qdef: number;
+  /**
+   * e^(−t/τ) at the off-time samples t = (m + ½)/OFF_SAMPLES·toff of the pass that sampled the
+   * waveform (the point's τ and toff), so the primary's sums reuse them; null when not sampled.
+   */
+  ex: Float64Array | null;
 }
+
+/** Samples over the off-time for the RMS, loss and ripple sums. */
+const OFF_SAMPLES = 32;
 
 function dt(d: CoupledBuckDesign): number {
   return d.controller.deadTime * d.fsw;
@@ -374,13 +382,15 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
       break;
     }
     // RMS and rectifier loss by sampling the waveform.
-    const N = 32;
+    const N = OFF_SAMPLES;
     let s2 = 0;
     let pr = 0;
     let short = 0;
+    const exs = out.ex ?? (out.ex = new Float64Array(N));
     for (let m = 0; m < N; m++) {
       const t = ((m + 0.5) / N) * toff;
       const ex = Math.exp(-t / tau);
+      exs[m] = ex;
       const i = Math.max(0, alpha * (1 - ex) + beta * t + i0 * ex);
       if (losses) {
         s2 += i * i;
@@ -443,7 +453,7 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
   let duty = vpri / vin;
   const sec: SecondaryPoint[] = d.secondaries.map((w) => ({
     n: Math.abs(w.turns) / d.primaryTurns, llk: 0, isec: 0, iload: 0, ipre: 0,
-    vsec: (Math.abs(w.turns) / d.primaryTurns) * vpri - 0.4, ipk: 0, irms: 0, iinf: 0, i0: 0, tc: 0, beta: 0, tau: 0, pRect: 0, qdef: 0,
+    vsec: (Math.abs(w.turns) / d.primaryTurns) * vpri - 0.4, ipk: 0, irms: 0, iinf: 0, i0: 0, tc: 0, beta: 0, tau: 0, pRect: 0, qdef: 0, ex: null,
   }));
   let im = ipri, dim = 0, iend = 0, voff = vpri, von = vin - vpri, toff = (1 - duty) / d.fsw;
   const MAX_IT = 12;
@@ -522,7 +532,7 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
  */
 export function primaryMeanSquares(p: CoupledPoint): { msOn: number; msOff: number } {
   const msOn = p.im * p.im + (p.dim * p.dim) / 12;
-  const N = 32;
+  const N = OFF_SAMPLES;
   let s2 = 0;
   const slope = p.dim / p.toff;
   for (let m = 0; m < N; m++) {
@@ -530,7 +540,7 @@ export function primaryMeanSquares(p: CoupledPoint): { msOn: number; msOff: numb
     let i = p.impk - slope * t;
     for (const s of p.sec) {
       if (!(s.tau > 0)) continue;
-      const ex = Math.exp(-t / s.tau);
+      const ex = s.ex ? s.ex[m]! : Math.exp(-t / s.tau);
       i -= s.n * Math.max(0, s.iinf * (1 - ex) + s.beta * t + s.i0 * ex);
     }
     s2 += i * i;
@@ -544,7 +554,7 @@ export function primaryMeanSquares(p: CoupledPoint): { msOn: number; msOff: numb
  * ESR step over the winding current's swing.
  */
 export function primaryRipple(p: CoupledPoint, ipri: number, cap: CapacitorChoice, fsw: number): number {
-  const N = 32;
+  const N = OFF_SAMPLES;
   const ton = p.duty / fsw;
   const toff = p.toff;
   let short = 0;
@@ -561,7 +571,7 @@ export function primaryRipple(p: CoupledPoint, ipri: number, cap: CapacitorChoic
     let i = p.impk - slope * t;
     for (const s of p.sec) {
       if (!(s.tau > 0)) continue;
-      const ex = Math.exp(-t / s.tau);
+      const ex = s.ex ? s.ex[m]! : Math.exp(-t / s.tau);
       i -= s.n * Math.max(0, s.iinf * (1 - ex) + s.beta * t + s.i0 * ex);
     }
     short += (Math.max(0, ipri - i) * toff) / N;
