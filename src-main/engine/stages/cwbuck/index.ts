@@ -205,7 +205,7 @@ export interface SecondaryPoint {
    * e^(−t/τ) at the off-time samples t = (m + ½)/OFF_SAMPLES·toff of the pass that sampled the
    * waveform (the point's τ and toff), so the primary's sums reuse them; null when not sampled.
    */
-  ex: Float64Array | null;
+  ex: number[] | null;
 }
 
 /** Samples over the off-time for the RMS, loss and ripple sums. */
@@ -386,7 +386,7 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
     let s2 = 0;
     let pr = 0;
     let short = 0;
-    const exs = out.ex ?? (out.ex = new Float64Array(N));
+    const exs = out.ex ?? (out.ex = new Array<number>(N));
     for (let m = 0; m < N; m++) {
       const t = ((m + 0.5) / N) * toff;
       const ex = Math.exp(-t / tau);
@@ -1179,8 +1179,24 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     errorsSeen.set(key, e);
     return e;
   };
+  // A turns trial differs from the template only in the turns and the winding resistances
+  // that scale with them (n²·Rp), so the trials share one template built once the preloads
+  // are known (the same numbers reach coupledPoint as from a full template per trial).
+  let trialBase: CoupledBuckDesign | null = null;
+  const trial = (turnsP: number, turnsS: number[]): CoupledBuckDesign => {
+    trialBase ??= template(turnsP, turnsS);
+    const base = trialBase;
+    return {
+      ...base,
+      primaryTurns: turnsP,
+      secondaries: base.secondaries.map((w, i) => {
+        const n = Math.abs(turnsS[i]!) / turnsP;
+        return { ...w, turns: turnsS[i]!, resistance: (rp * n * n) as Ohms };
+      }),
+    };
+  };
   const solveErrors = (turnsP: number, turnsS: number[]) => {
-    const dsg = template(turnsP, turnsS);
+    const dsg = trial(turnsP, turnsS);
     // The band's extremes: light load at Vin max (most off-time, least drop) and full load at
     // Vin min (least off-time, most drop).
     const a = coupledPoint(dsg, spec.vinMax as number, light, { detail: 'voltages' });
