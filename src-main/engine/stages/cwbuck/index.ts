@@ -441,7 +441,37 @@ export function mutualLeakage(d: CoupledBuckDesign): number[][] | null {
   return out;
 }
 
+/**
+ * While designCoupledBuck finishes a design it asks for the same operating points several
+ * times (the magnetic's demand, the capacitor passes, the banks' RMS and the feasibility
+ * checks all take Vin min and max, at full load and with the primary light). The points of
+ * that one design are remembered under their inputs and under every value of the design that
+ * coupledPoint reads and the designer still changes (winding resistances, rectifiers,
+ * preloads), so a change is a miss, never a stale point. Points are read, never changed.
+ */
+let finishing: { design: CoupledBuckDesign; points: Map<string, CoupledPoint> } | null = null;
+
+function pointKey(d: CoupledBuckDesign, vin: number, iout: number[], opts: CoupledEvalOptions): string {
+  let k = `${vin}|${iout.join(',')}|${opts.vPrimary}|${opts.vfScale}|${opts.detail}|${d.primaryResistance}|${d.primaryTurns}|${d.inductance}`;
+  for (const w of d.secondaries) {
+    const r = w.rectifier;
+    k += `|${w.turns},${w.coupling},${w.resistance},${r.is},${r.n},${r.rs},${r.cjo},${r.vj},${r.m},${w.preload ? `${w.preload.resistance},${w.preload.current}` : '-'}`;
+  }
+  return k;
+}
+
 export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], opts: CoupledEvalOptions = {}): CoupledPoint {
+  if (finishing === null || finishing.design !== d) return solvePoint(d, vin, iout, opts);
+  const key = pointKey(d, vin, iout, opts);
+  let p = finishing.points.get(key);
+  if (!p) {
+    p = solvePoint(d, vin, iout, opts);
+    finishing.points.set(key, p);
+  }
+  return p;
+}
+
+function solvePoint(d: CoupledBuckDesign, vin: number, iout: number[], opts: CoupledEvalOptions): CoupledPoint {
   const vpri = opts.vPrimary ?? d.divider.vout;
   const vfScale = opts.vfScale ?? 1;
   const detail = opts.detail ?? 'full';
@@ -994,6 +1024,15 @@ export interface CoupledSpecExtras {
 }
 
 export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: true; design: CoupledBuckDesign; reasons: string[]; flags: StageFlag[] } | { ok: false; flags: StageFlag[] } {
+  const outer = finishing;
+  try {
+    return designCoupled(spec);
+  } finally {
+    finishing = outer;
+  }
+}
+
+function designCoupled(spec: StageSpec & CoupledSpecExtras): { ok: true; design: CoupledBuckDesign; reasons: string[]; flags: StageFlag[] } | { ok: false; flags: StageFlag[] } {
   const bad = specErrors(spec);
   if (bad.length) return { ok: false, flags: bad };
   if (spec.outputs.length < 2) return { ok: false, flags: [flag('bad-input', 'error', 'a coupled-winding buck needs the primary output and at least one secondary', { field: 'outputs' })] };
@@ -1254,6 +1293,7 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     };
   }
   const design = template(chosen.np, chosen.ns);
+  finishing = { design, points: new Map() };
   // Rectifier reverse voltage: the turn-on spike at Vin max and full load, not the plateau
   // n·(Vin,max − Vpri) + |Vout| (the grid simulates 2.7–2.95 × the plateau).
   const atMax = coupledPoint(design, spec.vinMax as number, spec.outputs.map((o) => o.currentMax as number), { detail: 'voltages' });
