@@ -42,6 +42,23 @@ const num = (r: LibraryRow, key: string): number => {
 };
 const has = (r: LibraryRow, key: string) => typeof r.params[key] === 'number';
 
+/**
+ * The choices below are pure functions of (library, inputs), and a planner asks for the same
+ * ones across thousands of candidate stages and turns trials: each is remembered per library
+ * (the same rows array) under its exact inputs (JSON prints numbers in their shortest
+ * round-trip form, so equal keys mean equal inputs). Designs that chose the same part share
+ * the returned objects, which no caller changes (as the planner never changes a design).
+ */
+const remembered = new WeakMap<readonly LibraryRow[], Map<string, unknown>>();
+function memo<T>(lib: readonly LibraryRow[], key: string, make: () => T): T {
+  let m = remembered.get(lib);
+  if (!m) { m = new Map(); remembered.set(lib, m); }
+  if (m.has(key)) return m.get(key) as T;
+  const v = make();
+  m.set(key, v);
+  return v;
+}
+
 function cheapestOf(rows: readonly LibraryRow[], cls: LibraryRow['partClass'], fits: (r: LibraryRow) => boolean): LibraryRow | null {
   let best: LibraryRow | null = null;
   for (const r of rows) {
@@ -145,6 +162,10 @@ function switchFrom(r: LibraryRow, fallback: SwitchParams, generic: string[]): S
  * forced PWM where asked; switches Vds and Id with their margins.
  */
 export function chooseSwitcher(lib: readonly LibraryRow[], need: SwitcherNeed): SwitcherChoice | ChoiceMiss {
+  return memo(lib, `switcher ${JSON.stringify(need)}`, () => pickSwitcher(lib, need));
+}
+
+function pickSwitcher(lib: readonly LibraryRow[], need: SwitcherNeed): SwitcherChoice | ChoiceMiss {
   const m = { ...DEFAULT_MARGINS, ...need.margins };
   const vinRating = need.vinMax * (1 + m.controllerInput);
   const okCtl = (r: LibraryRow) => num(r, 'vinMax') >= vinRating - 1e-9
@@ -270,6 +291,10 @@ function rippleCount(row: LibraryRow, rms: number | undefined): number {
  * becomes the row's ESR over the count (when the row states one).
  */
 export function chooseCeramicRow(lib: readonly LibraryRow[], c: CapacitorChoice, electrolyticDerating = 0.8): { ref: StagePartRef; bank: CapacitorChoice; cost: number } | null {
+  return memo(lib, `capacitor ${electrolyticDerating} ${JSON.stringify(c)}`, () => pickCapacitorRow(lib, c, electrolyticDerating));
+}
+
+function pickCapacitorRow(lib: readonly LibraryRow[], c: CapacitorChoice, electrolyticDerating: number): { ref: StagePartRef; bank: CapacitorChoice; cost: number } | null {
   // Ceramic rows offering the part value at the rating: the bank grows to as many parts as its
   // ripple current needs (rating per part × count ≥ RMS current), the cheapest bank wins.
   let row: LibraryRow | null = null;
@@ -350,6 +375,10 @@ export function diodeFromRow(row: LibraryRow, base: { n: number; rs: number; vfS
  * practice) and 1.5 × the average current.
  */
 export function chooseRectifier(lib: readonly LibraryRow[], reverse: number, average: number, role: string, thermal?: { ambient: number; tjMax: number }): { row: LibraryRow; ref: StagePartRef } | ChoiceMiss {
+  return memo(lib, `rectifier ${JSON.stringify([reverse, average, role, thermal ?? null])}`, () => pickRectifier(lib, reverse, average, role, thermal));
+}
+
+function pickRectifier(lib: readonly LibraryRow[], reverse: number, average: number, role: string, thermal?: { ambient: number; tjMax: number }): { row: LibraryRow; ref: StagePartRef } | ChoiceMiss {
   const vr = reverse / 0.8;
   // Junction estimate Ta + Vf·Iavg·θJA with 10 K kept in hand (the model's conduction loss
   // adds the RMS part; the stage's thermal check has the last word).

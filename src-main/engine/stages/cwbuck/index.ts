@@ -231,7 +231,15 @@ export interface SecondaryPoint {
   pRect: number;
   /** Charge the output capacitor gives up each period while the winding delivers less than the load. */
   qdef: number;
+  /**
+   * e^(−t/τ) at the off-time samples t = (m + ½)/OFF_SAMPLES·toff of the pass that sampled the
+   * waveform (the point's τ and toff), so the primary's sums reuse them; null when not sampled.
+   */
+  ex: number[] | null;
 }
+
+/** Samples over the off-time for the RMS, loss and ripple sums. */
+const OFF_SAMPLES = 32;
 
 function dt(d: CoupledBuckDesign): number {
   return d.controller.deadTime * d.fsw;
@@ -404,13 +412,15 @@ function solveSecondary(d: CoupledBuckDesign, w: SecondaryWinding, voff0: number
       break;
     }
     // RMS and rectifier loss by sampling the waveform.
-    const N = 32;
+    const N = OFF_SAMPLES;
     let s2 = 0;
     let pr = 0;
     let short = 0;
+    const exs = out.ex ?? (out.ex = new Array<number>(N));
     for (let m = 0; m < N; m++) {
       const t = ((m + 0.5) / N) * toff;
       const ex = Math.exp(-t / tau);
+      exs[m] = ex;
       const i = Math.max(0, alpha * (1 - ex) + beta * t + i0 * ex);
       if (losses) {
         s2 += i * i;
@@ -461,7 +471,37 @@ export function mutualLeakage(d: CoupledBuckDesign): number[][] | null {
   return out;
 }
 
+/**
+ * While designCoupledBuck finishes a design it asks for the same operating points several
+ * times (the magnetic's demand, the capacitor passes, the banks' RMS and the feasibility
+ * checks all take Vin min and max, at full load and with the primary light). The points of
+ * that one design are remembered under their inputs and under every value of the design that
+ * coupledPoint reads and the designer still changes (winding resistances, rectifiers,
+ * preloads), so a change is a miss, never a stale point. Points are read, never changed.
+ */
+let finishing: { design: CoupledBuckDesign; points: Map<string, CoupledPoint> } | null = null;
+
+function pointKey(d: CoupledBuckDesign, vin: number, iout: number[], opts: CoupledEvalOptions): string {
+  let k = `${vin}|${iout.join(',')}|${opts.vPrimary}|${opts.vfScale}|${opts.detail}|${d.primaryResistance}|${d.primaryTurns}|${d.inductance}`;
+  for (const w of d.secondaries) {
+    const r = w.rectifier;
+    k += `|${w.turns},${w.coupling},${w.resistance},${r.is},${r.n},${r.rs},${r.cjo},${r.vj},${r.m},${w.preload ? `${w.preload.resistance},${w.preload.current}` : '-'}`;
+  }
+  return k;
+}
+
 export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], opts: CoupledEvalOptions = {}): CoupledPoint {
+  if (finishing === null || finishing.design !== d) return solvePoint(d, vin, iout, opts);
+  const key = pointKey(d, vin, iout, opts);
+  let p = finishing.points.get(key);
+  if (!p) {
+    p = solvePoint(d, vin, iout, opts);
+    finishing.points.set(key, p);
+  }
+  return p;
+}
+
+function solvePoint(d: CoupledBuckDesign, vin: number, iout: number[], opts: CoupledEvalOptions): CoupledPoint {
   const vpri = opts.vPrimary ?? d.divider.vout;
   const vfScale = opts.vfScale ?? 1;
   const detail = opts.detail ?? 'full';
@@ -473,7 +513,7 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
   let duty = vpri / vin;
   const sec: SecondaryPoint[] = d.secondaries.map((w) => ({
     n: Math.abs(w.turns) / d.primaryTurns, llk: 0, isec: 0, iload: 0, ipre: 0,
-    vsec: (Math.abs(w.turns) / d.primaryTurns) * vpri - 0.4, ipk: 0, irms: 0, iinf: 0, i0: 0, tc: 0, beta: 0, tau: 0, pRect: 0, qdef: 0,
+    vsec: (Math.abs(w.turns) / d.primaryTurns) * vpri - 0.4, ipk: 0, irms: 0, iinf: 0, i0: 0, tc: 0, beta: 0, tau: 0, pRect: 0, qdef: 0, ex: null,
   }));
   let im = ipri, dim = 0, iend = 0, voff = vpri, von = vin - vpri, toff = (1 - duty) / d.fsw;
   const MAX_IT = 12;
@@ -552,7 +592,7 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
  */
 export function primaryMeanSquares(p: CoupledPoint): { msOn: number; msOff: number } {
   const msOn = p.im * p.im + (p.dim * p.dim) / 12;
-  const N = 32;
+  const N = OFF_SAMPLES;
   let s2 = 0;
   const slope = p.dim / p.toff;
   for (let m = 0; m < N; m++) {
@@ -560,7 +600,7 @@ export function primaryMeanSquares(p: CoupledPoint): { msOn: number; msOff: numb
     let i = p.impk - slope * t;
     for (const s of p.sec) {
       if (!(s.tau > 0)) continue;
-      const ex = Math.exp(-t / s.tau);
+      const ex = s.ex ? s.ex[m]! : Math.exp(-t / s.tau);
       i -= s.n * Math.max(0, s.iinf * (1 - ex) + s.beta * t + s.i0 * ex);
     }
     s2 += i * i;
@@ -574,7 +614,7 @@ export function primaryMeanSquares(p: CoupledPoint): { msOn: number; msOff: numb
  * ESR step over the winding current's swing.
  */
 export function primaryRipple(p: CoupledPoint, ipri: number, cap: CapacitorChoice, fsw: number): number {
-  const N = 32;
+  const N = OFF_SAMPLES;
   const ton = p.duty / fsw;
   const toff = p.toff;
   let short = 0;
@@ -591,7 +631,7 @@ export function primaryRipple(p: CoupledPoint, ipri: number, cap: CapacitorChoic
     let i = p.impk - slope * t;
     for (const s of p.sec) {
       if (!(s.tau > 0)) continue;
-      const ex = Math.exp(-t / s.tau);
+      const ex = s.ex ? s.ex[m]! : Math.exp(-t / s.tau);
       i -= s.n * Math.max(0, s.iinf * (1 - ex) + s.beta * t + s.i0 * ex);
     }
     short += (Math.max(0, ipri - i) * toff) / N;
@@ -1014,6 +1054,15 @@ export interface CoupledSpecExtras {
 }
 
 export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: true; design: CoupledBuckDesign; reasons: string[]; flags: StageFlag[] } | { ok: false; flags: StageFlag[] } {
+  const outer = finishing;
+  try {
+    return designCoupled(spec);
+  } finally {
+    finishing = outer;
+  }
+}
+
+function designCoupled(spec: StageSpec & CoupledSpecExtras): { ok: true; design: CoupledBuckDesign; reasons: string[]; flags: StageFlag[] } | { ok: false; flags: StageFlag[] } {
   const bad = specErrors(spec);
   if (bad.length) return { ok: false, flags: bad };
   if (spec.outputs.length < 2) return { ok: false, flags: [flag('bad-input', 'error', 'a coupled-winding buck needs the primary output and at least one secondary', { field: 'outputs' })] };
@@ -1093,6 +1142,25 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
   // With the rectifier capacitance known, the secondaries are preloaded for continuous
   // conduction at their lightest load (found below on the ideal ratios before the turns).
   let cjPreload: number[] | null = null;
+  // What the template takes from the spec alone (not from the turns or the preloads), chosen
+  // once: the turns search below builds a template for every trial.
+  const secCout = secs.map((o, i) => {
+    const ipk = (2 * (o.currentMax as number)) / Math.max(1 - dMaxEst, 0.05);
+    const esr = GENERIC_DEFAULTS.ceramicEsr;
+    const budget = Math.max((o.rippleLimit as number) * 0.5 - esr * ipk, (o.rippleLimit as number) * 0.1);
+    // Cout ≥ Isec·D/(fsw·ΔV) [common practice], plus the charge lost while a ramping
+    // winding current is still below the load, Isec·(1−D)²/(4·fsw); at least 4.7 µF
+    const need = Math.max(((o.currentMax as number) * (dMaxEst + (1 - dMaxEst) ** 2 / 4)) / (fsw * budget), 4.7e-6);
+    return chooseCeramic(`secondary ${i + 1} output`, need, Math.abs(o.voltage) * (1 + o.tolerance) * 1.1, spec.ceramicDerating);
+  });
+  const secRect = secs.map((_, i) => (rectRows[i] ? diodeFromRow(rectRows[i]!.row, GENERIC_DEFAULTS.rectifier) : rect));
+  // Primary capacitor: the on-time surplus Σn·Isec·D/fsw plus ΔIm/(8·fsw), within half the
+  // ripple limit after the ESR step [common practice]; at least 10 µF.
+  const priCout = chooseCeramic('primary output', Math.max(10e-6,
+    (secs.reduce((a, o, i) => a + n0[i]! * (o.currentMax as number), 0) * dMaxEst + ripple / 8)
+      / (fsw * Math.max((pri.rippleLimit as number) * 0.5 - GENERIC_DEFAULTS.ceramicEsr * (ripple + imFull), (pri.rippleLimit as number) * 0.1))),
+    vpri * (1 + pri.tolerance), spec.ceramicDerating);
+  const cinChoice = chooseCeramic('input', Math.max((imFull * 0.25) / (fsw * 0.01 * spec.vinMin), 1e-6), spec.vinMax, spec.ceramicDerating);
   const template = (turnsP: number, turnsS: number[]): CoupledBuckDesign => ({
     kind: 'cwbuck',
     vinMin: spec.vinMin, vinNom: spec.vinNom, vinMax: spec.vinMax,
@@ -1106,12 +1174,6 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     secondaries: secs.map((o, i) => {
       const ns = turnsS[i]!;
       const n = Math.abs(ns) / turnsP;
-      const ipk = (2 * (o.currentMax as number)) / Math.max(1 - dMaxEst, 0.05);
-      const esr = GENERIC_DEFAULTS.ceramicEsr;
-      const budget = Math.max((o.rippleLimit as number) * 0.5 - esr * ipk, (o.rippleLimit as number) * 0.1);
-      // Cout ≥ Isec·D/(fsw·ΔV) [common practice], plus the charge lost while a ramping
-      // winding current is still below the load, Isec·(1−D)²/(4·fsw); at least 4.7 µF
-      const need = Math.max(((o.currentMax as number) * (dMaxEst + (1 - dMaxEst) ** 2 / 4)) / (fsw * budget), 4.7e-6);
       const ipre = cjPreload ? cjPreload[i]! : preloadFor(o);
       const preload = cjPreload ? (ipre > 0 ? e24Preload(Math.abs(o.voltage), ipre) : null)
         : (o.currentMin as number) < ipre
@@ -1123,20 +1185,15 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
         turns: ns,
         coupling: k,
         resistance: (rp * n * n) as Ohms,
-        rectifier: rectRows[i] ? diodeFromRow(rectRows[i]!.row, GENERIC_DEFAULTS.rectifier) : { ...rect },
+        rectifier: { ...secRect[i]! },
         rectifierReverseVoltage: (n * (spec.vinMax - vpri) + Math.abs(o.voltage)) as Volts,
-        cout: chooseCeramic(`secondary ${i + 1} output`, need, Math.abs(o.voltage) * (1 + o.tolerance) * 1.1, spec.ceramicDerating),
+        cout: { ...secCout[i]! },
         preload,
         thetaJA: rectRows[i] ? (rectRows[i]!.row.params.thetaJA as number) : GENERIC_DEFAULTS.rectifierThetaJA,
       };
     }),
-    // Primary capacitor: the on-time surplus Σn·Isec·D/fsw plus ΔIm/(8·fsw), within half the
-    // ripple limit after the ESR step [common practice]; at least 10 µF.
-    cout: chooseCeramic('primary output', Math.max(10e-6,
-      (secs.reduce((a, o, i) => a + n0[i]! * (o.currentMax as number), 0) * dMaxEst + ripple / 8)
-        / (fsw * Math.max((pri.rippleLimit as number) * 0.5 - GENERIC_DEFAULTS.ceramicEsr * (ripple + imFull), (pri.rippleLimit as number) * 0.1))),
-      vpri * (1 + pri.tolerance), spec.ceramicDerating),
-    cin: chooseCeramic('input', Math.max((imFull * 0.25) / (fsw * 0.01 * spec.vinMin), 1e-6), spec.vinMax, spec.ceramicDerating),
+    cout: { ...priCout },
+    cin: { ...cinChoice },
     divider,
     highSide: { ...switches.highSide },
     lowSide: { ...switches.lowSide },
@@ -1191,8 +1248,24 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     errorsSeen.set(key, e);
     return e;
   };
+  // A turns trial differs from the template only in the turns and the winding resistances
+  // that scale with them (n²·Rp), so the trials share one template built once the preloads
+  // are known (the same numbers reach coupledPoint as from a full template per trial).
+  let trialBase: CoupledBuckDesign | null = null;
+  const trial = (turnsP: number, turnsS: number[]): CoupledBuckDesign => {
+    trialBase ??= template(turnsP, turnsS);
+    const base = trialBase;
+    return {
+      ...base,
+      primaryTurns: turnsP,
+      secondaries: base.secondaries.map((w, i) => {
+        const n = Math.abs(turnsS[i]!) / turnsP;
+        return { ...w, turns: turnsS[i]!, resistance: (rp * n * n) as Ohms };
+      }),
+    };
+  };
   const solveErrors = (turnsP: number, turnsS: number[]) => {
-    const dsg = template(turnsP, turnsS);
+    const dsg = trial(turnsP, turnsS);
     // The band's extremes: light load at Vin max (most off-time, least drop) and full load at
     // Vin min (least off-time, most drop).
     const a = coupledPoint(dsg, spec.vinMax as number, light, { detail: 'voltages' });
@@ -1250,6 +1323,7 @@ export function designCoupledBuck(spec: StageSpec & CoupledSpecExtras): { ok: tr
     };
   }
   const design = template(chosen.np, chosen.ns);
+  finishing = { design, points: new Map() };
   // Rectifier reverse voltage: the turn-on spike at Vin max and full load, not the plateau
   // n·(Vin,max − Vpri) + |Vout| (the grid simulates 2.7–2.95 × the plateau).
   const atMax = coupledPoint(design, spec.vinMax as number, spec.outputs.map((o) => o.currentMax as number), { detail: 'voltages' });
