@@ -60,13 +60,25 @@ export function parseCell(col: ColumnDef, text: string, where: string, req: Requ
       return hit;
     }
     case 'list': {
-      const items = t.split(/[,;\s]+/).filter((x) => x !== '');
-      if (!items.length) throw new ApiFailure(`${where}: list at least one of ${k.options.join(', ')}`, field);
+      // Items are separated by commas or semicolons; an item is an option's key or its label
+      // (case ignored). A piece that is neither is read as keys separated by spaces.
+      const label = (o: string): string => k.labels?.[o] ?? o;
+      const shown = k.options.map(label).join(', ');
+      const match = (x: string): string | undefined => {
+        const lx = x.toLowerCase();
+        return k.options.find((o) => o.toLowerCase() === lx || label(o).toLowerCase() === lx);
+      };
+      const items: string[] = [];
+      for (const piece of t.split(/[,;]/).map((x) => x.trim()).filter((x) => x !== '')) {
+        if (match(piece)) items.push(piece);
+        else items.push(...piece.split(/\s+/));
+      }
+      if (!items.length) throw new ApiFailure(`${where}: list at least one of ${shown}`, field);
       const out: string[] = [];
       for (const it of items) {
-        const hit = k.options.find((o) => o.toLowerCase() === it.toLowerCase());
-        if (!hit) throw new ApiFailure(`${where}: "${it.slice(0, 40)}" is not one of ${k.options.join(', ')}`, field);
-        if (out.includes(hit)) throw new ApiFailure(`${where}: "${hit}" is listed twice`, field);
+        const hit = match(it);
+        if (!hit) throw new ApiFailure(`${where}: "${it.slice(0, 40)}" is not one of ${shown}`, field);
+        if (out.includes(hit)) throw new ApiFailure(`${where}: "${label(hit)}" is listed twice`, field);
         out.push(hit);
       }
       return out;

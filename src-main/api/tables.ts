@@ -6,6 +6,7 @@
 import type { QuantityKind } from '../engine/units.ts';
 import type { TableName } from './contract.ts';
 import { STAGE_KINDS } from '../engine/model.ts';
+import { KIND_NAMES } from '../engine/stages/kind-names.ts';
 
 export type ColumnKind =
   | { type: 'text'; optional?: boolean }
@@ -16,8 +17,14 @@ export type ColumnKind =
   | { type: 'integer'; min: number; max: number }
   | { type: 'number'; min: number; max: number; unit: string }
   | { type: 'enum'; options: readonly string[] | 'domains' }
-  /** A list of options typed comma-separated ("buck, ldo, boost"), at least one, each once. */
-  | { type: 'list'; options: readonly string[] };
+  /**
+   * A list of options typed comma-separated ("buck, LDO, coupled-winding buck"), at least one,
+   * each once. An option is typed as its key or its label; the grid shows each label.
+   */
+  | { type: 'list'; options: readonly string[]; labels?: Readonly<Record<string, string>> };
+
+/** A stage kind as the allowed-kinds cell shows it: its trade word (stages/kind-names.ts). */
+const KIND_LABELS: Readonly<Record<string, string>> = Object.fromEntries(STAGE_KINDS.map((k) => [k, KIND_NAMES[k].noun]));
 
 export interface ColumnDef {
   key: string;
@@ -70,7 +77,7 @@ export const TABLE_COLUMNS: Record<Exclude<TableName, 'library'>, ColumnDef[]> =
     { key: 'weights.loss', label: 'Weight: loss', kind: { type: 'number', min: 0, max: 100, unit: '' }, width: 90, hint: 'objective weight' },
     { key: 'weights.cost', label: 'Weight: cost', kind: { type: 'number', min: 0, max: 100, unit: '' }, width: 90, hint: 'objective weight' },
     { key: 'weights.parts', label: 'Weight: parts', kind: { type: 'number', min: 0, max: 100, unit: '' }, width: 90, hint: 'objective weight' },
-    { key: 'allowedKinds', label: 'Allowed stage kinds', kind: { type: 'list', options: STAGE_KINDS }, width: 260, hint: `comma-separated: ${STAGE_KINDS.join(', ')}` },
+    { key: 'allowedKinds', label: 'Allowed stage kinds', kind: { type: 'list', options: STAGE_KINDS, labels: KIND_LABELS }, width: 300, hint: `comma-separated: ${STAGE_KINDS.map((k) => KIND_LABELS[k]).join(', ')}` },
     { key: 'budgetMs', label: 'Time budget (ms)', kind: { type: 'integer', min: 100, max: 600000 }, width: 100, hint: 'milliseconds the planner may search' },
   ],
 };

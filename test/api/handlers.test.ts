@@ -9,6 +9,7 @@ import { createApi, type Api } from '../../src-main/api/index.ts';
 import { autosave, newProject, openDemo, recoverIfAny } from '../../src-main/api/files.ts';
 import { makePathPolicy } from '../../src-main/host/paths.ts';
 import type { Events, Snapshot } from '../../src-main/api/contract.ts';
+import { TABLE_COLUMNS } from '../../src-main/api/tables.ts';
 
 let dir: string;
 beforeAll(() => { dir = mkdtempSync(join(tmpdir(), 'rw-api-')); });
@@ -53,6 +54,15 @@ describe('cell edits', () => {
     // The allowed stage kinds, typed comma-separated (any case), are the project setting.
     const k = await ok<Snapshot>(api.request('requirements.editCell', { table: 'preferences', rowId: 'project', field: 'allowedKinds', text: 'buck, LDO,boost buck-boost-4s' }));
     expect(k.requirements.preferences.allowedKinds).toEqual(['buck', 'ldo', 'boost', 'buck-boost-4s']);
+    // The cell shows each kind's trade word, and that text typed back is the same setting.
+    const col = TABLE_COLUMNS.preferences.find((c) => c.key === 'allowedKinds')!;
+    const shown = col.kind.type === 'list' ? ['buck', 'cwbuck', 'iso-module'].map((x) => col.kind.type === 'list' ? col.kind.labels?.[x] ?? x : x).join(', ') : '';
+    expect(shown).toBe('buck, coupled-winding buck, isolated module');
+    const w = await ok<Snapshot>(api.request('requirements.editCell', { table: 'preferences', rowId: 'project', field: 'allowedKinds', text: shown }));
+    expect(w.requirements.preferences.allowedKinds).toEqual(['buck', 'cwbuck', 'iso-module']);
+    const bad = await api.request('requirements.editCell', { table: 'preferences', rowId: 'project', field: 'allowedKinds', text: 'buck, flyback' });
+    expect(bad.ok).toBe(false);
+    if (!bad.ok) expect(bad.error.message).toMatch(/"flyback" is not one of .*coupled-winding buck/);
     const sh = await ok<Snapshot>(api.request('requirements.editCell', { table: 'modes', rowId: m.id, field: 'share', text: '70%' }));
     expect(sh.requirements.modes[0]!.share).toBeCloseTo(0.7, 12);
     expect(sh.problems.some((x) => /add up to/.test(x.message))).toBe(true);
@@ -72,7 +82,7 @@ describe('cell edits', () => {
       ['sources', src.id, 'vMin', '100', /V min ≤ V nominal/],
       ['limits', 'project', 'tjMax', '30', /must stay above the ambient/],
       ['modes', api.session.requirements.modes[0]!.id, 'share', '150%', /outside/],
-      ['preferences', 'project', 'allowedKinds', 'buck, flyback', /Allowed stage kinds: "flyback" is not one of buck, cwbuck, ldo, boost/],
+      ['preferences', 'project', 'allowedKinds', 'buck, flyback', /Allowed stage kinds: "flyback" is not one of buck, coupled-winding buck, LDO, boost/],
       ['preferences', 'project', 'allowedKinds', 'buck, buck', /"buck" is listed twice/],
       ['preferences', 'project', 'allowedKinds', ' ', /list at least one of/],
     ];
