@@ -15,7 +15,7 @@ import { groupRails } from '../rails.ts';
 import type { Rail, Requirements, StageKind } from '../model.ts';
 import type { Infeasibility, Plan, PlanLabel, PlanResult, PlanSpace } from '../plan-types.ts';
 import { assemblePlan, explainInfeasible, type InfeasibleEntry } from './assemble.ts';
-import { BlockFactory, generateBlocks, spaceSize, type GenerationOptions, type Miss } from './candidates.ts';
+import { BlockFactory, generateBlocks, MAX_SHARED_TAP_RAILS, spaceSize, type GenerationOptions, type Miss } from './candidates.ts';
 import { inventedCostModel } from './cost-model.ts';
 import { generationOptions, railHasFeed } from './remedies.ts';
 import { makeScorer, OBJECTIVES, type Objective, type Scorer, type SelectionEval } from './score.ts';
@@ -475,7 +475,7 @@ export function spaceSummary(s: PlanSpace, rails: number): string {
   const kinds = s.kinds.map((k) => KIND_WORD[k]);
   const parts = [`${rails} rails`, `feeds: ${kinds.join(', ') || 'none'}`];
   if (s.kinds.includes('cwbuck')) {
-    parts.push(`coupled-winding: ${s.primaries} primaries (a rail or an internal bus) × every set of 1–${s.maxSecondaries} secondaries, each direct or tap + LDO`);
+    parts.push(`coupled-winding: ${s.primaries} primaries (a rail or an internal bus) × every set of 1–${s.maxSecondaries} secondary windings, each direct or tap + LDO, or one tap shared by 2–${MAX_SHARED_TAP_RAILS} rails of an isolated domain`);
   }
   parts.push(s.railFeeds ? 'stages fed from rails allowed' : 'every stage fed from a source');
   parts.push(s.designed >= s.candidates ? `${s.candidates} candidate feeds, all designed` : `${s.designed} of ${s.candidates} candidate feeds designed`);
