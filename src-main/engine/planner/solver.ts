@@ -12,13 +12,13 @@
  * budget gives the same result every time; a cut run returns the incumbent at the cut.
  */
 import { groupRails } from '../rails.ts';
-import type { Rail, Requirements, StageKind } from '../model.ts';
+import { DEFAULT_MAX_MAGNETICS_PER_DOMAIN, type Rail, type Requirements, type StageKind } from '../model.ts';
 import type { Infeasibility, Plan, PlanLabel, PlanResult, PlanSpace } from '../plan-types.ts';
 import { assemblePlan, explainInfeasible, type InfeasibleEntry } from './assemble.ts';
 import { BlockFactory, generateBlocks, MAX_SHARED_TAP_RAILS, spaceSize, type GenerationOptions, type Miss } from './candidates.ts';
 import { inventedCostModel } from './cost-model.ts';
 import { generationOptions, railHasFeed } from './remedies.ts';
-import { makeScorer, OBJECTIVES, type Objective, type Scorer, type SelectionEval } from './score.ts';
+import { blockCrossings, makeScorer, OBJECTIVES, type Objective, type Scorer, type SelectionEval } from './score.ts';
 import { branchAndBound, exactCoverExists, MAX_RAILS, type SearchOutcome } from './search.ts';
 import type { Block, CostModel, StageEvaluator } from './types.ts';
 
@@ -141,7 +141,11 @@ export class PlanSolver {
     if (this.reachableAt !== this.blocks.length) {
       this.reachableAt = this.blocks.length;
       // An unknown answer (node cap) counts as reachable: the search then decides.
-      this.reachable = exactCoverExists(this.rails.length, this.blocks.map((b) => b.covers)) !== false;
+      // Only covers within the magnetics-per-domain limit count (a tree must keep it).
+      const ids = this.req.domains.map((d) => d.id);
+      const domains = this.blocks.map((b) => (b.shape.kind === 'cwbuck' || b.shape.kind === 'iso-module' ? blockCrossings(b).map((d) => ids.indexOf(d)) : []));
+      const limit = this.req.limits.maxMagneticsPerIsolatedDomain ?? DEFAULT_MAX_MAGNETICS_PER_DOMAIN;
+      this.reachable = exactCoverExists(this.rails.length, this.blocks.map((b) => b.covers), undefined, { domains, limit }) !== false;
     }
     return this.reachable;
   }
