@@ -1183,6 +1183,22 @@ export function* generateBlocks(
   for (const s of coupled(1)) { if (skip(s)) continue; design(s); yield; }
   // A shared tap alone (one winding, an LDO per rail) is a one-winding block too.
   for (const s of shared(true)) { if (skip(s)) continue; design(s); yield; }
+  // Under the magnetics-per-domain limit (default one) an isolated domain's rails must share
+  // few magnetics, so the sets whose secondaries all lie in one isolated domain go next, so
+  // that a budget cut still leaves a tree within the limit. This only orders the work.
+  const inOneIsolatedDomain = (s: BlockShape) => s.kind === 'cwbuck' && s.secondaries.every((r) => f.isolated(r) && f.ctx.rails[r]!.domainId === f.ctx.rails[s.secondaries[0]!]!.domainId);
+  for (let size = 2; size <= opts.maxSecondaries; size++) {
+    for (const s of coupled(size)) {
+      if (designed.has(key(s)) || skip(s) || !inOneIsolatedDomain(s)) continue;
+      design(s);
+      yield;
+    }
+  }
+  for (const s of shared(false)) {
+    if (designed.has(key(s)) || skip(s) || !inOneIsolatedDomain(s)) continue;
+    design(s);
+    yield;
+  }
   for (let size = 2; size <= Math.min(3, opts.maxSecondaries); size++) {
     for (const s of coupled(size)) {
       if (designed.has(key(s)) || !servesUncovered(s)) continue;
@@ -1205,7 +1221,7 @@ export function* generateBlocks(
     }
   }
   // A shared tap beside other windings, last: every one of them is designed when the budget allows.
-  for (const s of shared(false)) { if (skip(s)) continue; design(s); yield; }
+  for (const s of shared(false)) { if (designed.has(key(s)) || skip(s)) continue; design(s); yield; }
   return { blocks, misses };
 }
 
