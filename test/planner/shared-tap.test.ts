@@ -212,5 +212,10 @@ describe('magnetics per isolated domain (design limit)', () => {
     expect(raised.best).not.toBeNull();
     const crossing = raised.best!.stages.filter((s) => s.barriers.some((b) => b.toDomainId === 'isoB'));
     expect(crossing).toHaveLength(2);
+    // Within the limit of one, three windings per magnetic give a tree: one magnetic serves
+    // both isolated domains (Iso A and Iso B each crossed once).
+    const wider = plan({ ...req, preferences: { ...req.preferences, maxSecondaries: 3 } });
+    expect(wider.best).not.toBeNull();
+    for (const d of ['isoA', 'isoB']) expect(wider.best!.stages.filter((s) => s.barriers.some((b) => b.toDomainId === d)), d).toHaveLength(1);
   }, 120_000);
 });
