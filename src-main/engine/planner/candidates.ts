@@ -1161,7 +1161,7 @@ export function* generateBlocks(
     for (const r of covers) covered.add(r);
     return true;
   };
-  const { singles, coupled, shared } = enumerateShapes(f, opts);
+  const { singles, coupled, shared, primaries, groups } = enumerateShapes(f, opts);
   for (const s of singles) { if (skip(s)) continue; add(s); yield; }
   // Every winding set from 1 to maxSecondaries secondaries on every primary. No set is
   // skipped: a set whose subsets all miss can still be feasible (a ±12 V pair on a 5 V primary
@@ -1186,16 +1186,8 @@ export function* generateBlocks(
   // Under the magnetics-per-domain limit (default one) an isolated domain's rails must share
   // few magnetics, so the sets whose secondaries all lie in one isolated domain go next, so
   // that a budget cut still leaves a tree within the limit. This only orders the work.
-  const inOneIsolatedDomain = (s: BlockShape) => s.kind === 'cwbuck' && s.secondaries.every((r) => f.isolated(r) && f.ctx.rails[r]!.domainId === f.ctx.rails[s.secondaries[0]!]!.domainId);
-  for (let size = 2; size <= opts.maxSecondaries; size++) {
-    for (const s of coupled(size)) {
-      if (designed.has(key(s)) || skip(s) || !inOneIsolatedDomain(s)) continue;
-      design(s);
-      yield;
-    }
-  }
-  for (const s of shared(false)) {
-    if (designed.has(key(s)) || skip(s) || !inOneIsolatedDomain(s)) continue;
+  for (const s of withinIsolatedDomains(f, opts, primaries, groups)) {
+    if (designed.has(key(s)) || skip(s)) continue;
     design(s);
     yield;
   }
@@ -1221,8 +1213,47 @@ export function* generateBlocks(
     }
   }
   // A shared tap beside other windings, last: every one of them is designed when the budget allows.
-  for (const s of shared(false)) { if (designed.has(key(s)) || skip(s)) continue; design(s); yield; }
+  // (Passed-over shapes also yield now and then, so that a caller keeps its clock.)
+  let passed = 0;
+  for (const s of shared(false)) {
+    if (designed.has(key(s)) || skip(s)) { if (++passed % 2000 === 0) yield; continue; }
+    design(s);
+    yield;
+  }
   return { blocks, misses };
+}
+
+/**
+ * The winding sets whose rails all lie in one isolated domain: 2…m one-rail windings, and a
+ * shared tap with 1…m − 1 further windings of the same domain, on every primary (generated
+ * from each domain's rails, not filtered from every set).
+ */
+function* withinIsolatedDomains(
+  f: BlockFactory, opts: GenerationOptions, primaries: { primary: number | null; busVoltage?: number; source: Source }[], groups: number[][],
+): Generator<BlockShape> {
+  const byDomain = new Map<Id, number[]>();
+  f.ctx.rails.forEach((r, i) => { if (f.isolated(i)) byDomain.set(r.domainId, [...(byDomain.get(r.domainId) ?? []), i]); });
+  const combos = function* (xs: number[], k: number): Generator<number[]> {
+    if (k > xs.length || k < 1) return;
+    const idx = Array.from({ length: k }, (_, q) => q);
+    for (;;) {
+      yield idx.map((q) => xs[q]!);
+      let q = k - 1;
+      while (q >= 0 && idx[q] === xs.length - k + q) q--;
+      if (q < 0) return;
+      idx[q]!++;
+      for (let z = q + 1; z < k; z++) idx[z] = idx[z - 1]! + 1;
+    }
+  };
+  for (let size = 2; size <= opts.maxSecondaries; size++) {
+    for (const p of primaries) for (const list of byDomain.values()) for (const c of combos(list, size)) yield cw(p, c);
+  }
+  for (const p of primaries) {
+    for (const g of groups) {
+      const rest = (byDomain.get(f.ctx.rails[g[0]!]!.domainId) ?? []).filter((x) => !g.includes(x));
+      for (let k = 1; k <= opts.maxSecondaries - 1; k++) for (const c of combos(rest, k)) yield cw(p, [...g, ...c].sort((a, b) => a - b), g);
+    }
+  }
 }
 
 /** Run generateBlocks to the end. */

@@ -35,16 +35,24 @@ export function railHasFeed(
     if (s.kind !== 'cwbuck' && s.rail === idx && tryShape(s)) return 'yes';
     if (now() > deadline) return 'unknown';
   }
+  let passed = 0;
   for (let k = 1; k <= opts.maxSecondaries; k++) {
     for (const s of coupled(k)) {
-      if (s.kind !== 'cwbuck' || (s.primary !== idx && !s.secondaries.includes(idx))) continue;
+      // Sets without the rail are passed over; the clock is read now and then here too.
+      if (s.kind !== 'cwbuck' || (s.primary !== idx && !s.secondaries.includes(idx))) {
+        if (++passed % 2000 === 0 && now() > deadline) return 'unknown';
+        continue;
+      }
       if (tryShape(s)) return 'yes';
       if (now() > deadline) return 'unknown';
     }
   }
   for (const alone of [true, false]) {
     for (const s of shared(alone)) {
-      if (s.kind !== 'cwbuck' || (s.primary !== idx && !s.secondaries.includes(idx))) continue;
+      if (s.kind !== 'cwbuck' || (s.primary !== idx && !s.secondaries.includes(idx))) {
+        if (++passed % 2000 === 0 && now() > deadline) return 'unknown';
+        continue;
+      }
       if (tryShape(s)) return 'yes';
       if (now() > deadline) return 'unknown';
     }

@@ -145,7 +145,11 @@ export class PlanSolver {
       const ids = this.req.domains.map((d) => d.id);
       const domains = this.blocks.map((b) => (b.shape.kind === 'cwbuck' || b.shape.kind === 'iso-module' ? blockCrossings(b).map((d) => ids.indexOf(d)) : []));
       const limit = this.req.limits.maxMagneticsPerIsolatedDomain ?? DEFAULT_MAX_MAGNETICS_PER_DOMAIN;
-      this.reachable = exactCoverExists(this.rails.length, this.blocks.map((b) => b.covers), undefined, { domains, limit }) !== false;
+      // The plain cover first (memoised on the open rails alone, fast); the limit's counts make
+      // the states many, so that check gets a smaller node cap (unknown counts as reachable).
+      const covers = this.blocks.map((b) => b.covers);
+      this.reachable = exactCoverExists(this.rails.length, covers) !== false &&
+        exactCoverExists(this.rails.length, covers, 5_000, { domains, limit }) !== false;
     }
     return this.reachable;
   }
@@ -378,6 +382,8 @@ export class PlanSolver {
     const each = total / count;
     for (const e of entries) {
       for (const c of e.candidates) {
+        // No check starts after the deadline (each one designs at least one shape first).
+        if (this.now() >= deadline) { this.trace.push(`remedy "${c.text}" for ${e.inf.railId || 'the tree'}: not checked within the budget, not offered`); continue; }
         const req = structuredClone(this.req);
         c.apply(req);
         const until = Math.min(deadline, this.now() + each);
