@@ -104,6 +104,10 @@ describe('design goes on past the design share while no tree can be formed', () 
     for (const step of [10, 14, 20]) {
       const req = demoDocument().requirements;
       req.sources[0]!.vMin = 16 as never;
+      // The late-design rule is under test here, with the magnetics-per-domain limit lifted:
+      // under the default of one (or two), the first 300 designs hold no tree of this demo, a
+      // known limit (docs/planner.md, Known limits; the limit is tested in shared-tap.test.ts).
+      req.limits.maxMagneticsPerIsolatedDomain = 8;
       let t = 0;
       const r = new PlanSolver(req, { evaluator: engineEvaluator(), budgetMs: 3000, now: () => (t += step), verifyRemedies: false }).solve();
       expect(r.best, `step ${step} ms: ${r.infeasible.map((i) => i.text).join('; ')}`).not.toBeNull();

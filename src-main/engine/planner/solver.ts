@@ -145,11 +145,12 @@ export class PlanSolver {
       const ids = this.req.domains.map((d) => d.id);
       const domains = this.blocks.map((b) => (b.shape.kind === 'cwbuck' || b.shape.kind === 'iso-module' ? blockCrossings(b).map((d) => ids.indexOf(d)) : []));
       const limit = this.req.limits.maxMagneticsPerIsolatedDomain ?? DEFAULT_MAX_MAGNETICS_PER_DOMAIN;
-      // The plain cover first (memoised on the open rails alone, fast); the limit's counts make
-      // the states many, so that check gets a smaller node cap (unknown counts as reachable).
+      // The plain cover first (memoised on the open rails alone, fast), then the covers within
+      // the limit (the counts make the states many; past the cap the answer is unknown, which
+      // counts as reachable).
       const covers = this.blocks.map((b) => b.covers);
       this.reachable = exactCoverExists(this.rails.length, covers) !== false &&
-        exactCoverExists(this.rails.length, covers, 5_000, { domains, limit }) !== false;
+        exactCoverExists(this.rails.length, covers, 50_000, { domains, limit }) !== false;
     }
     return this.reachable;
   }
