@@ -105,7 +105,7 @@ describe('design goes on past the design share while no tree can be formed', () 
       const req = demoDocument().requirements;
       req.sources[0]!.vMin = 16 as never;
       // The late-design rule is under test here, with the magnetics-per-domain limit lifted:
-      // under the default of one (or two), the first 300 designs hold no tree of this demo, a
+      // under the default of one, the 20 ms step (68 designs) holds no tree of this demo, a
       // known limit (docs/planner.md, Known limits; the limit is tested in shared-tap.test.ts).
       req.limits.maxMagneticsPerIsolatedDomain = 8;
       let t = 0;

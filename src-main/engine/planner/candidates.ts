@@ -1181,16 +1181,17 @@ export function* generateBlocks(
   // is still designed when the budget allows.
   const design = (s: BlockShape) => { designed.add(key(s)); if (add(s)) feasible.add(key(s)); };
   for (const s of coupled(1)) { if (skip(s)) continue; design(s); yield; }
-  // A shared tap alone (one winding, an LDO per rail) is a one-winding block too.
-  for (const s of shared(true)) { if (skip(s)) continue; design(s); yield; }
   // Under the magnetics-per-domain limit (default one) an isolated domain's rails must share
-  // few magnetics, so the sets whose secondaries all lie in one isolated domain go next, so
-  // that a budget cut still leaves a tree within the limit. This only orders the work.
+  // few magnetics, so the sets whose secondaries all lie in one isolated domain go next
+  // (largest first: one magnetic then serves most of the domain), so that a budget cut still
+  // leaves a tree within the limit. This only orders the work.
   for (const s of withinIsolatedDomains(f, opts, primaries, groups)) {
     if (designed.has(key(s)) || skip(s)) continue;
     design(s);
     yield;
   }
+  // A shared tap alone (one winding, an LDO per rail) is a one-winding block too.
+  for (const s of shared(true)) { if (designed.has(key(s)) || skip(s)) continue; design(s); yield; }
   for (let size = 2; size <= Math.min(3, opts.maxSecondaries); size++) {
     for (const s of coupled(size)) {
       if (designed.has(key(s)) || !servesUncovered(s)) continue;
@@ -1245,7 +1246,7 @@ function* withinIsolatedDomains(
       for (let z = q + 1; z < k; z++) idx[z] = idx[z - 1]! + 1;
     }
   };
-  for (let size = 2; size <= opts.maxSecondaries; size++) {
+  for (let size = opts.maxSecondaries; size >= 2; size--) {
     for (const p of primaries) for (const list of byDomain.values()) for (const c of combos(list, size)) yield cw(p, c);
   }
   for (const p of primaries) {
