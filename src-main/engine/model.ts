@@ -129,6 +129,12 @@ export interface DesignLimits {
   maxTurnsRatio?: number;
   /** Largest reverse voltage a secondary's rectifier may see (at Vin max). */
   maxRectifierVoltage?: Volts;
+  /**
+   * Most magnetics that may cross the barrier into one isolated domain: coupled-winding
+   * magnetics with a secondary there and isolated modules feeding a rail there each count one.
+   * Absent in older projects: DEFAULT_MAX_MAGNETICS_PER_DOMAIN applies.
+   */
+  maxMagneticsPerIsolatedDomain?: number;
 }
 
 /**
@@ -143,6 +149,14 @@ export const DEFAULT_MAX_TURNS_RATIO = 10;
  * voltages (common practice, from memory; a judgement, editable per project).
  */
 export const DEFAULT_MAX_RECTIFIER_VOLTAGE = 250 as Volts;
+
+/**
+ * Default: one magnetic crosses into each isolated domain. Every crossing is another
+ * insulation path to qualify and another interwinding capacitance from the primary side into
+ * the domain: their common-mode (touch and leakage) currents add, and the domain's reference
+ * is tied to the primary side through each of them (common practice, a judgement; editable).
+ */
+export const DEFAULT_MAX_MAGNETICS_PER_DOMAIN = 1;
 
 /** Default window margin: 10 % of a rail's band half-width (common practice, a judgement). */
 export const DEFAULT_WINDOW_MARGIN = 0.1 as Ratio;

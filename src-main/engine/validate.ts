@@ -228,6 +228,11 @@ export function validateRequirements(req: Requirements): Problem[] {
     if (lim[k] !== undefined && (!isNum(lim[k]) || !(lim[k]! > 0))) add(`limits.${k}`, `${k} must be a positive number (got ${String(lim[k])})`);
   }
 
+  const mm = lim.maxMagneticsPerIsolatedDomain;
+  if (mm !== undefined && (!isNum(mm) || !Number.isInteger(mm) || mm < 1 || mm > 8)) {
+    add('limits.maxMagneticsPerIsolatedDomain', `magnetics per isolated domain must be a whole number from 1 to 8 (got ${String(mm)})`);
+  }
+
   // Planner preferences.
   const pref = req.preferences;
   const w = pref.weights ?? { loss: NaN, cost: NaN, parts: NaN };

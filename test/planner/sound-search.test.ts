@@ -58,7 +58,7 @@ describe('sound winding-set search', () => {
     const space = result.stats.space!;
     expect(space.designed).toBe(space.candidates);
     expect(space.maxSecondaries).toBe(3);
-    expect(space.summary).toMatch(/every set of 1–3 secondaries/);
+    expect(space.summary).toMatch(/every set of 1–3 secondary windings/);
   }, 120_000);
 
   it('does not claim a proof when the budget cuts the candidate designs, and says why', () => {

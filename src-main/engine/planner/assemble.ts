@@ -2,7 +2,7 @@
  * Turn a selection of blocks into a complete Plan (stages in upstream-first order, internal
  * nodes, score, reasons), and explain infeasibility when no plan exists.
  */
-import { DEFAULT_WINDOW_MARGIN, STAGE_KINDS, type Id, type Requirements, type StageKind } from '../model.ts';
+import { DEFAULT_MAX_MAGNETICS_PER_DOMAIN, DEFAULT_WINDOW_MARGIN, STAGE_KINDS, type Id, type Requirements, type StageKind } from '../model.ts';
 import { formatQuantity } from '../notation.ts';
 import { kindNames, kindSettingName } from '../stages/registry.ts';
 import type { Infeasibility, InternalNode, Plan, PlanLabel, PlanStage, Reason } from '../plan-types.ts';
@@ -15,7 +15,8 @@ export function describeShape(f: BlockFactory, s: BlockShape): string {
   const from = s.input.kind === 'source' ? (f.req.sources.find((x) => x.id === (s.input as { id: Id }).id)?.name ?? 'the source') : rails[s.input.rail]!.name;
   if (s.kind === 'cwbuck') {
     const p = s.primary === null ? `a ${s.busVoltage} V primary bus` : `${rails[s.primary]!.name} as primary`;
-    return `a coupled-winding buck from ${from} with ${p} and ${s.secondaries.map((i) => rails[i]!.name).join(', ')} as secondaries`;
+    const tap = s.sharedTap ? ` (${s.sharedTap.map((i) => rails[i]!.name).join(', ')} through LDOs on one shared tap winding)` : '';
+    return `a coupled-winding buck from ${from} with ${p} and ${s.secondaries.map((i) => rails[i]!.name).join(', ')} as secondaries${tap}`;
   }
   return `${kindNames(s.kind).feeding} from ${from}`;
 }
@@ -218,6 +219,15 @@ export function explainInfeasible(
           const lim = +(s.currentLimit + v.example.shortfall * 1.05).toPrecision(3);
           cands.push({ text: `raise the current limit of ${s.name} to ${formatQuantity(lim, 'current', 3)} (now ${formatQuantity(s.currentLimit, 'current', 3)})`, apply: (req) => { const x = req.sources.find((y) => y.id === s.id); if (x && x.currentLimit < lim) x.currentLimit = lim as never; } });
         }
+      } else if (k === 'magnetics-per-domain') {
+        // The count the failing trees needed: the limit plus the excess of the example.
+        const now = f.req.limits.maxMagneticsPerIsolatedDomain ?? DEFAULT_MAX_MAGNETICS_PER_DOMAIN;
+        const want = now + Math.max(1, Math.round(v.example.shortfall));
+        const dom = v.example.railIndex !== undefined ? f.req.domains.find((d) => d.id === rails[v.example.railIndex!]!.domainId) : undefined;
+        cands.push({
+          text: `allow ${want} magnetics into each isolated domain${dom ? ` (${dom.name} needs them)` : ''} in the design limits (now ${now})`,
+          apply: (req) => { req.limits.maxMagneticsPerIsolatedDomain = want; },
+        });
       } else {
         const m = f.req.preferences.maxSecondaries;
         cands.push({ text: `raise maxSecondaries to ${m + 1} (now ${m})`, apply: (req) => { req.preferences.maxSecondaries = m + 1; } });

@@ -11,6 +11,8 @@
  *   source-connected domain or an internal primary bus; each secondary is a rail of any
  *   domain (a barrier when that domain is isolated) fed directly, or an internal tap winding
  *   followed by an LDO when the direct winding misses the rail's window or ripple limit;
+ *   several rails of one isolated domain and sign may share one tap winding, each through its
+ *   own LDO (the tap set for the highest rail);
  * - a quiet rail is never fed directly by a switching output: it ends behind an LDO (common
  *   practice: switching spikes and cross-regulation residue are not in the ripple estimate);
  *   and a quiet rail feeds nothing but other quiet rails through LDOs;
@@ -53,6 +55,12 @@ export const TAP_RIPPLE_SHARE = 0.05;
  * the 30–40 dB an LDO rejects at a few hundred kHz with headroom (from memory).
  */
 export const TAP_RIPPLE_FACTOR = 20;
+/**
+ * Most rails one shared tap winding feeds (each through its own LDO): a policy bounding the
+ * space (docs/planner.md); beyond a few LDOs on one winding a separate winding or a rail-fed
+ * LDO is the usual layout.
+ */
+export const MAX_SHARED_TAP_RAILS = 4;
 
 export interface GenerationOptions {
   allowRailFeeds: boolean;
@@ -136,7 +144,7 @@ export class BlockFactory {
   /** Canonical key of a shape (also the block's id stem). */
   static shapeKey(s: BlockShape): string {
     const inp = s.input.kind === 'source' ? `s:${s.input.id}` : `r${s.input.rail}`;
-    if (s.kind === 'cwbuck') return `cw[${inp}|p${s.primary ?? `bus${s.busVoltage}`}|${s.secondaries.join(',')}]`;
+    if (s.kind === 'cwbuck') return `cw[${inp}|p${s.primary ?? `bus${s.busVoltage}`}|${s.secondaries.join(',')}${s.sharedTap ? `|t${s.sharedTap.join(',')}` : ''}]`;
     return `${s.kind}[${inp}>${s.rail}]`;
   }
 
@@ -465,31 +473,47 @@ export class BlockFactory {
     return best;
   }
 
-  /** Tap + LDO for one secondary: pick the lowest tap voltage whose LDO is feasible. */
-  private designTap(rail: number, currents: number[], variant: { tolerance: number; headroom: number }): {
-    ok: true; tapV: number; spec: StageSpec; design: StageDesign; perMode: StageEvaluation[]; modeCurrents: number[][]; window: OutputWindow; tapOutput: OutputSpec; iinPerMode: number[];
-  } | { ok: false; rejections: Rejection[] } {
-    const r = this.ctx.rails[rail]!;
-    const a = Math.abs(r.voltage);
+  /**
+   * One tap winding and the LDO behind it of each rail it feeds (one rail, or a shared tap's
+   * group). The tap is set for the highest |V| of the group, `(|V| + headroom) / (1 − tolerance)`
+   * rounded up to 0.1 V, so that rail's LDO has its headroom at the tap's lowest voltage and
+   * every lower rail more; its ripple is held to TAP_RIPPLE_FACTOR × the smallest ripple limit
+   * of the group; the winding carries the sum of the LDOs' input currents.
+   */
+  private designTap(group: readonly number[], currentsOf: (s: number) => number[], variant: { tolerance: number; headroom: number }): TapRun | { ok: false; rejections: Rejection[] } {
+    const rails = this.ctx.rails;
+    const lead = tapLead(rails, group);
+    const r = rails[lead]!;
     const tapTol = variant.tolerance;
-    const tapMag = Math.ceil(((a + variant.headroom) / (1 - tapTol)) * 10) / 10;
-    const tapRipple = Math.min(tapMag * TAP_RIPPLE_SHARE, r.rippleLimit * TAP_RIPPLE_FACTOR);
-    const ldoVin = { min: tapMag * (1 - tapTol), nom: tapMag, max: tapMag * (1 + tapTol), ripple: tapRipple, sign: Math.sign(r.voltage) || 1 };
-    const spec = this.baseSpec('ldo', ldoVin, [this.railOutput(rail, currents)]);
-    const mirror = 1;
-    const run = this.runStage(spec, currents.map((c) => [c]), () => rail, mirror);
-    if (!run.ok) return run;
-    const iinPerMode = run.perMode.map((e) => Math.abs(e.iin));
+    const tapMag = Math.ceil(((Math.abs(r.voltage) + variant.headroom) / (1 - tapTol)) * 10) / 10;
+    const tapRipple = Math.min(tapMag * TAP_RIPPLE_SHARE, Math.min(...group.map((g) => rails[g]!.rippleLimit)) * TAP_RIPPLE_FACTOR);
+    const sign = Math.sign(r.voltage) || 1;
+    const ldoVin = { min: tapMag * (1 - tapTol), nom: tapMag, max: tapMag * (1 + tapTol), ripple: tapRipple, sign };
+    const ldos = new Map<number, TapLdo>();
+    const nModes = this.ctx.modeIds.length;
+    const iinPerMode = new Array<number>(nModes).fill(0);
+    let peak = 0;
+    for (const g of group) {
+      const currents = currentsOf(g);
+      const spec = this.baseSpec('ldo', ldoVin, [this.railOutput(g, currents)]);
+      const run = this.runStage(spec, currents.map((c) => [c]), () => g, 1);
+      if (!run.ok) return { ok: false, rejections: run.rejections.map((x) => ({ ...x, rail: g })) };
+      const iin = run.perMode.map((e) => Math.abs(e.iin));
+      iin.forEach((x, m) => { iinPerMode[m]! += x; });
+      peak += Math.max(...iin, Math.abs(run.atMin.iin));
+      const w = run.windows[0]!;
+      ldos.set(g, { spec, design: run.design, perMode: run.perMode, modeCurrents: run.modeCurrents, window: { ...w, min: Math.min(w.min, w.max) as Volts, max: Math.max(w.min, w.max) as Volts }, headroom: ldoVin.min - Math.abs(rails[g]!.voltage) });
+    }
     const tapOutput: OutputSpec = {
       nodeId: `tap:${r.id}`,
-      voltage: (Math.sign(r.voltage || 1) * tapMag) as Volts,
+      voltage: (sign * tapMag) as Volts,
       tolerance: tapTol as Ratio,
       currentMin: Math.min(...iinPerMode) as Amps,
-      currentMax: Math.max(...iinPerMode, Math.abs(run.atMin.iin)) as Amps,
+      // Every LDO at its largest input current at once: the winding's design current (conservative).
+      currentMax: Math.max(...iinPerMode, peak) as Amps,
       rippleLimit: tapRipple as Volts,
     };
-    const w = run.windows[0]!;
-    return { ok: true, tapV: tapMag * Math.sign(r.voltage || 1), spec, design: run.design, perMode: run.perMode, modeCurrents: run.modeCurrents, window: { ...w, min: Math.min(mirror * w.min, mirror * w.max) as Volts, max: Math.max(mirror * w.min, mirror * w.max) as Volts }, tapOutput, iinPerMode };
+    return { ok: true, tapV: tapMag * sign, tapLow: ldoVin.min, lead, rails: [...group], variant, tapOutput, iinPerMode, ldos };
   }
 
   private evalCoupled(shape: BlockShape & { kind: 'cwbuck' }, extra?: ReadonlyMap<number, readonly number[]>): BlockResult {
@@ -497,31 +521,42 @@ export class BlockFactory {
     const vin = this.inputWindow(shape.input);
     const nModes = this.ctx.modeIds.length;
     const primaryName = shape.primary === null ? `primary bus ${fmtV(shape.busVoltage ?? 0)}` : this.ctx.rails[shape.primary]!.name;
-    // Which secondaries go through a tap + LDO: quiet rails always; others after a direct miss.
-    const useTap = new Map<number, number>(); // rail → index into TAP_TOLERANCES
+    const windings = windingsOf(this.ctx.rails, shape);
+    const byLead = new Map(windings.map((w) => [w.lead, w]));
+    // Which windings are a tap + LDO (keyed by the winding's lead rail): a shared tap and
+    // quiet rails always; others after a direct miss.
+    const useTap = new Map<number, number>(); // lead rail → index into TAP_VARIANTS
     const directMiss = new Map<number, Rejection>();
     const primaryKey = `${shape.input.id}|${shape.primary ?? `bus${shape.busVoltage}`}`;
-    // Start each secondary from what it needed on this primary before (its pair block):
-    // saves the engine the designs of choices already known to miss.
-    for (const s of shape.secondaries) {
-      const h = this.tapHints.get(`${primaryKey}|${s}`);
-      if (h !== undefined && h >= 0) useTap.set(s, h);
-      else if (this.ctx.rails[s]!.noiseClass === 'quiet') useTap.set(s, 0);
+    // Start each one-rail winding from what it needed on this primary before (its one-secondary
+    // block): saves the engine the designs of choices already known to miss. A shared tap
+    // starts from the first tap choice.
+    for (const w of windings) {
+      if (w.shared) { useTap.set(w.lead, 0); continue; }
+      const h = this.tapHints.get(`${primaryKey}|${w.lead}`);
+      if (h !== undefined && h >= 0) useTap.set(w.lead, h);
+      else if (this.ctx.rails[w.lead]!.noiseClass === 'quiet') useTap.set(w.lead, 0);
     }
+    const currentsOf = (s: number) => this.railCurrents(s, extra?.get(s));
     for (let attempt = 0; attempt < 2 + 2 * TAP_VARIANTS.length; attempt++) {
-      const taps = new Map<number, ReturnType<BlockFactory['designTap']> & { ok: true }>();
+      const taps = new Map<number, TapRun>();
       let tapFail: Rejection[] | null = null;
-      for (const [s, ti] of useTap) {
-        // The LDO behind a tap fails on its own: try the next tap choice for that rail.
-        let t = this.designTap(s, this.railCurrents(s, extra?.get(s)), TAP_VARIANTS[ti]!);
+      for (const [lead, ti] of useTap) {
+        const w = byLead.get(lead)!;
+        // An LDO behind a tap fails on its own: try the next tap choice for that winding.
+        let t = this.designTap(w.rails, currentsOf, TAP_VARIANTS[ti]!);
         let k = ti;
         while (!t.ok && k + 1 < TAP_VARIANTS.length) {
           k++;
-          t = this.designTap(s, this.railCurrents(s, extra?.get(s)), TAP_VARIANTS[k]!);
+          t = this.designTap(w.rails, currentsOf, TAP_VARIANTS[k]!);
         }
-        useTap.set(s, k);
-        if (!t.ok) { tapFail = t.rejections.map((x) => ({ ...x, rail: s, text: `behind a tap winding, ${x.text}` })); break; }
-        taps.set(s, t);
+        useTap.set(lead, k);
+        if (!t.ok) {
+          const where = w.shared ? 'behind the shared tap winding' : 'behind a tap winding';
+          tapFail = t.rejections.map((x) => ({ ...x, rail: x.rail ?? lead, text: `${where}, ${x.text}` }));
+          break;
+        }
+        taps.set(lead, t);
       }
       if (tapFail) return { ok: false, rejections: tapFail };
       const outputs: OutputSpec[] = [];
@@ -533,22 +568,22 @@ export class BlockFactory {
         railOf.push(undefined);
         for (let m = 0; m < nModes; m++) modeCurrents[m]!.push(0);
       } else {
-        const c = this.railCurrents(shape.primary, extra?.get(shape.primary));
+        const c = currentsOf(shape.primary);
         outputs.push(this.railOutput(shape.primary, c));
         railOf.push(shape.primary);
         for (let m = 0; m < nModes; m++) modeCurrents[m]!.push(c[m]!);
       }
-      for (const s of shape.secondaries) {
-        const t = taps.get(s);
+      for (const w of windings) {
+        const t = taps.get(w.lead);
         if (t) {
           outputs.push(t.tapOutput);
           for (let m = 0; m < nModes; m++) modeCurrents[m]!.push(t.iinPerMode[m]!);
         } else {
-          const c = this.railCurrents(s, extra?.get(s));
-          outputs.push(this.railOutput(s, c));
+          const c = currentsOf(w.lead);
+          outputs.push(this.railOutput(w.lead, c));
           for (let m = 0; m < nModes; m++) modeCurrents[m]!.push(c[m]!);
         }
-        railOf.push(s);
+        railOf.push(w.lead);
       }
       // The engine records the barrier on the magnetic and checks the winding count.
       const iso = this.strongestIsolation(shape.secondaries);
@@ -558,12 +593,12 @@ export class BlockFactory {
       });
       const run = this.runStage(spec, modeCurrents, (i) => railOf[i], 1);
       if (!run.ok) {
-        // Secondaries that missed their window or ripple directly get a tap + LDO next time;
+        // Windings that missed their window or ripple directly get a tap + LDO next time;
         // a tap that missed gets the looser tap tolerance.
         let changed = false;
         for (const rj of run.rejections) {
           const s = rj.rail;
-          if (s === undefined || s === shape.primary || !shape.secondaries.includes(s)) continue;
+          if (s === undefined || s === shape.primary || !byLead.has(s)) continue;
           if (rj.constraint !== 'window' && rj.constraint !== 'ripple') continue;
           const cur = useTap.get(s);
           if (cur === undefined) { useTap.set(s, 0); directMiss.set(s, rj); changed = true; }
@@ -584,10 +619,10 @@ export class BlockFactory {
       // The hint is the choice of the unloaded one-secondary block only (a loaded evaluation
       // must not change where later sets start: the design of a block is a function of it).
       const loaded = !!extra && [...extra.values()].some((e) => e.some((x) => x > 0));
-      if (shape.secondaries.length === 1 && !loaded) {
+      if (shape.secondaries.length === 1 && !shape.sharedTap && !loaded) {
         for (const s of shape.secondaries) this.tapHints.set(`${primaryKey}|${s}`, useTap.get(s) ?? -1);
       }
-      return { ok: true, eval: this.assembleCoupled(shape, src, vin, spec, run, taps, directMiss, primaryName) };
+      return { ok: true, eval: this.assembleCoupled(shape, src, vin, spec, run, windings, taps, directMiss, primaryName) };
     }
     return { ok: false, rejections: [{ constraint: 'window', shortfall: 0, unit: 'V', text: 'no tap voltage keeps every secondary inside its window' }] };
   }
@@ -631,7 +666,7 @@ export class BlockFactory {
     shape: BlockShape & { kind: 'cwbuck' }, src: Source, vin: { min: number; nom: number; max: number },
     spec: StageSpec,
     run: { design: StageDesign; perMode: StageEvaluation[]; atMin: StageEvaluation; windows: OutputWindow[]; modeCurrents: number[][] },
-    taps: Map<number, { tapV: number; spec: StageSpec; design: StageDesign; perMode: StageEvaluation[]; modeCurrents: number[][]; window: OutputWindow; iinPerMode: number[] }>,
+    windings: readonly Winding[], taps: ReadonlyMap<number, TapRun>,
     directMiss: Map<number, Rejection>, primaryName: string,
   ): BlockEval {
     const rails = this.ctx.rails;
@@ -649,49 +684,56 @@ export class BlockFactory {
       outputs.push({ nodeId: rails[shape.primary]!.id, role: 'primary', ...(turns[0] !== undefined ? { turns: turns[0] } : {}) });
     }
     const barriers: Barrier[] = [];
-    shape.secondaries.forEach((s, k) => {
-      const r = rails[s]!;
-      const t = taps.get(s);
-      const nodeId = t ? `tap:${r.id}` : r.id;
+    windings.forEach((w, k) => {
+      const t = taps.get(w.lead);
+      const nodeId = t ? t.tapOutput.nodeId : rails[w.lead]!.id;
       const tk = turns[k + 1];
       outputs.push({ nodeId, role: 'secondary', ...(tk !== undefined ? { turns: tk } : {}) });
-      const dom = this.domainOf(s);
-      if (dom && dom.isolation !== 'none' && !barriers.some((b) => b.toDomainId === dom.id)) {
-        barriers.push({ fromDomainId: srcDomain, toDomainId: dom.id, isolation: dom.isolation, workingVoltage: dom.workingVoltage });
+      for (const s of w.rails) {
+        const dom = this.domainOf(s);
+        if (dom && dom.isolation !== 'none' && !barriers.some((b) => b.toDomainId === dom.id)) {
+          barriers.push({ fromDomainId: srcDomain, toDomainId: dom.id, isolation: dom.isolation, workingVoltage: dom.workingVoltage });
+        }
       }
     });
     stages.push({
       localId: 's0', kind: 'cwbuck', name: `Coupled-winding buck ${primaryName}`, inputNode: 'input', outputs, barriers, design: run.design, spec,
       modeCurrents: run.modeCurrents, lossPerMode: run.perMode.map((e) => e.loss),
     });
-    let parts = stageParts('cwbuck', shape.secondaries.length);
+    let parts = stageParts('cwbuck', windings.length);
     parts.barrier = barriers.length;
     const lossPerMode: number[] = run.perMode.map((e) => e.loss);
     const windows: OutputWindow[] = [];
-    run.windows.forEach((w, i) => { if (i === 0 ? shape.primary !== null : !taps.has(shape.secondaries[i - 1]!)) windows.push(w); });
-    for (const [s, t] of taps) {
-      const r = rails[s]!;
-      internalNodes.push({ id: `tap:${r.id}`, name: `Tap ${fmtV(t.tapV)} for ${r.name}`, domainId: r.domainId, voltage: t.tapV as Volts, kind: 'tap' });
-      stages.push({
-        localId: `ldo:${s}`, kind: 'ldo', name: `LDO ${r.name}`, inputNode: `tap:${r.id}`, outputs: [{ nodeId: r.id, role: 'output' }], barriers: [], design: t.design, spec: t.spec,
-        modeCurrents: t.modeCurrents, lossPerMode: t.perMode.map((e) => e.loss),
-      });
-      parts = addParts(parts, stageParts('ldo', 0));
-      for (let m = 0; m < nModes; m++) lossPerMode[m]! += t.perMode[m]!.loss;
-      windows.push(t.window);
+    run.windows.forEach((w, i) => { if (i === 0 ? shape.primary !== null : !taps.has(windings[i - 1]!.lead)) windows.push(w); });
+    for (const t of taps.values()) {
+      const nodeId = t.tapOutput.nodeId;
+      const names = t.rails.map((g) => rails[g]!.name);
+      internalNodes.push({ id: nodeId, name: `Tap ${fmtV(t.tapV)} for ${names.join(', ')}`, domainId: rails[t.lead]!.domainId, voltage: t.tapV as Volts, kind: 'tap' });
+      for (const g of t.rails) {
+        const l = t.ldos.get(g)!;
+        stages.push({
+          localId: `ldo:${g}`, kind: 'ldo', name: `LDO ${rails[g]!.name}`, inputNode: nodeId, outputs: [{ nodeId: rails[g]!.id, role: 'output' }], barriers: [], design: l.design, spec: l.spec,
+          modeCurrents: l.modeCurrents, lossPerMode: l.perMode.map((e) => e.loss),
+        });
+        parts = addParts(parts, stageParts('ldo', 0));
+        for (let m = 0; m < nModes; m++) lossPerMode[m]! += l.perMode[m]!.loss;
+        windows.push(l.window);
+      }
     }
     const loss = this.weighted(lossPerMode);
     const pinPerMode = run.perMode.map((e) => Math.abs(e.pin));
     const iinPerMode = run.perMode.map((e) => Math.abs(e.iin));
     const secNames = shape.secondaries.map((s) => rails[s]!.name);
     const isoDomains = barriers.map((b) => this.domains.get(b.toDomainId)?.name ?? b.toDomainId);
+    const shared = windings.find((w) => w.shared);
     reasons.push({
       code: 'shared-magnetic',
       subjectId: shape.primary === null ? 'bus' : rails[shape.primary]!.id,
       text: `${secNames.join(', ')} ${secNames.length === 1 ? 'shares' : 'share'} one coupled-winding magnetic with the ${primaryName} primary (from ${src.name}): ` +
         `duty ${pct(run.atMin.duty)} at Vin min ${fmtV(vin.min)}, turns ${turns.length ? turns.join(':') : 'n/a'}, mode-weighted loss ${fmtW(loss)}` +
+        (shared ? `; ${windings.length} secondary winding${windings.length === 1 ? '' : 's'}, ${shared.rails.map((g) => rails[g]!.name).join(' and ')} on one shared tap winding` : '') +
         (isoDomains.length ? `; the windings cross the barrier into ${isoDomains.join(', ')}` : ''),
-      data: { loss, secondaries: shape.secondaries.length, duty: run.atMin.duty ?? NaN },
+      data: { loss, secondaries: windings.length, duty: run.atMin.duty ?? NaN },
     });
     for (const b of barriers) {
       reasons.push({
@@ -701,26 +743,47 @@ export class BlockFactory {
         data: { workingVoltage: b.workingVoltage, isolation: b.isolation },
       });
     }
-    shape.secondaries.forEach((s, k) => {
-      const r = rails[s]!;
-      const t = taps.get(s);
+    windings.forEach((wd, k) => {
+      const t = taps.get(wd.lead);
       const w = run.windows[k + 1];
       if (!t) {
+        const r = rails[wd.lead]!;
         reasons.push({
           code: 'winding-direct', subjectId: r.id,
           text: `${r.name} is a secondary winding (${turns[k + 1] ?? '?'} turns): window ${fmtV(w?.min ?? NaN)}…${fmtV(w?.max ?? NaN)} stays inside ±${+(r.tolerance * 100).toFixed(2)} %, so no LDO is needed`,
           data: { windowMin: w?.min ?? NaN, windowMax: w?.max ?? NaN },
         });
-      } else {
-        const miss = directMiss.get(s);
+        return;
+      }
+      if (!wd.shared) {
+        const r = rails[wd.lead]!;
+        const l = t.ldos.get(wd.lead)!;
+        const miss = directMiss.get(wd.lead);
         const why = r.noiseClass === 'quiet'
           ? 'it is a quiet rail, which never takes a switching output directly'
           : miss ? `the direct winding missed: ${miss.text}` : 'the direct winding misses its window';
-        const pLdo = this.weighted(t.perMode.map((e) => e.loss));
+        const pLdo = this.weighted(l.perMode.map((e) => e.loss));
         reasons.push({
           code: 'winding-tap-ldo', subjectId: r.id,
-          text: `${r.name} is an LDO behind a ${fmtV(t.tapV)} tap winding (${turns[k + 1] ?? '?'} turns) because ${why}; LDO loss ${fmtW(pLdo)}, window ${fmtV(t.window.min)}…${fmtV(t.window.max)}`,
+          text: `${r.name} is an LDO behind a ${fmtV(t.tapV)} tap winding (${turns[k + 1] ?? '?'} turns) because ${why}; LDO loss ${fmtW(pLdo)}, window ${fmtV(l.window.min)}…${fmtV(l.window.max)}`,
           data: { tap: t.tapV, ldoLoss: pLdo },
+        });
+        return;
+      }
+      // A shared tap: one winding, one LDO per rail; the tap is set for the highest rail.
+      const lead = rails[t.lead]!;
+      const peak = t.tapOutput.currentMax;
+      for (const g of t.rails) {
+        const r = rails[g]!;
+        const l = t.ldos.get(g)!;
+        const others = t.rails.filter((x) => x !== g).map((x) => rails[x]!.name);
+        const pLdo = this.weighted(l.perMode.map((e) => e.loss));
+        reasons.push({
+          code: 'winding-tap-ldo', subjectId: r.id,
+          text: `${r.name} is an LDO behind a ${fmtV(t.tapV)} tap winding (${turns[k + 1] ?? '?'} turns) shared with ${others.join(', ')}: ` +
+            `the tap is set for ${lead.name} (${fmtV(Math.abs(lead.voltage))} plus ${fmtV(t.variant.headroom)} headroom at the tap's lowest ${fmtV(t.tapLow)}, ±${+(t.variant.tolerance * 100).toFixed(0)} % tap tolerance), ` +
+            `one winding instead of ${t.rails.length} carries the LDOs' sum (${fmtA(peak)} design current); this LDO has ${fmtV(l.headroom)} headroom at the tap's lowest, loss ${fmtW(pLdo)}, window ${fmtV(l.window.min)}…${fmtV(l.window.max)}`,
+          data: { tap: t.tapV, ldoLoss: pLdo, shared: t.rails.length, headroom: l.headroom },
         });
       }
     });
@@ -730,9 +793,37 @@ export class BlockFactory {
       pinPerMode,
       ...this.price(parts, 'cwbuck', stages), partCounts: parts,
       stages, internalNodes, windows, reasons,
-      notes: { duty: run.atMin.duty ?? NaN, taps: taps.size },
+      notes: { duty: run.atMin.duty ?? NaN, taps: taps.size, windings: windings.length },
     };
   }
+}
+
+/** One LDO behind a tap winding. */
+interface TapLdo { spec: StageSpec; design: StageDesign; perMode: StageEvaluation[]; modeCurrents: number[][]; window: OutputWindow; headroom: number }
+/** A designed tap winding: its output spec on the magnetic and the LDO of each rail it feeds. */
+interface TapRun {
+  ok: true; tapV: number; tapLow: number; lead: number; rails: number[]; variant: { tolerance: number; headroom: number };
+  tapOutput: OutputSpec; iinPerMode: number[]; ldos: Map<number, TapLdo>;
+}
+/** One secondary winding: a rail (direct or tap + LDO), or a shared tap's rails (led by the highest |V|). */
+interface Winding { lead: number; rails: number[]; shared: boolean }
+
+/** The rail a tap is set for: the highest |V| of its group (the lowest index on a tie). */
+function tapLead(rails: readonly Rail[], group: readonly number[]): number {
+  let best = group[0]!;
+  for (const g of group) if (Math.abs(rails[g]!.voltage) > Math.abs(rails[best]!.voltage)) best = g;
+  return best;
+}
+
+/** The windings of a coupled-winding shape in secondaries order (a shared tap at its first rail's place). */
+function windingsOf(rails: readonly Rail[], shape: BlockShape & { kind: 'cwbuck' }): Winding[] {
+  const group = shape.sharedTap ?? [];
+  const out: Winding[] = [];
+  for (const s of shape.secondaries) {
+    if (!group.includes(s)) out.push({ lead: s, rails: [s], shared: false });
+    else if (s === group[0]) out.push({ lead: tapLead(rails, group), rails: [...group], shared: true });
+  }
+  return out;
 }
 
 /** Round a current up (gridUp) or down (gridDown) to two significant digits. */
@@ -790,7 +881,11 @@ export function stageParts(kind: StageKind, secondaries: number): PartCounts {
 }
 
 /** Enumerate the candidate shapes of a requirements set (before evaluation). */
-export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { singles: BlockShape[]; coupled: (size: number) => Generator<BlockShape>; primaries: { primary: number | null; busVoltage?: number; source: Source }[] } {
+export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): {
+  singles: BlockShape[]; coupled: (size: number) => Generator<BlockShape>; primaries: { primary: number | null; busVoltage?: number; source: Source }[];
+  /** Shapes with a shared tap: `alone` the tap winding only, else with 1…m − 1 other secondaries. */
+  shared: (alone: boolean) => Generator<BlockShape>; groups: number[][];
+} {
   const rails = f.ctx.rails;
   const req = f.req;
   const singles: BlockShape[] = [];
@@ -865,7 +960,56 @@ export function enumerateShapes(f: BlockFactory, opts: GenerationOptions): { sin
       }
     }
   };
-  return { singles, coupled, primaries };
+  const groups = opts.allowed.has('ldo') ? sharedTapGroups(f) : [];
+  /** Every shared-tap shape on each primary: the group's winding and 1…m − 1 other windings (or none when `alone`). */
+  const shared = function* (alone: boolean): Generator<BlockShape> {
+    if (opts.maxSecondaries < 1 || !groups.length) return;
+    for (const p of primaries) {
+      for (const g of groups) {
+        if (alone) { yield cw(p, g, g); continue; }
+        const cand: number[] = [];
+        for (let j = 0; j < n; j++) if (j !== p.primary && !g.includes(j)) cand.push(j);
+        for (let size = 1; size <= Math.min(opts.maxSecondaries - 1, cand.length); size++) {
+          const idx = Array.from({ length: size }, (_, k) => k);
+          for (;;) {
+            yield cw(p, [...g, ...idx.map((k) => cand[k]!)].sort((a, b) => a - b), g);
+            let k = size - 1;
+            while (k >= 0 && idx[k] === cand.length - size + k) k--;
+            if (k < 0) break;
+            idx[k]!++;
+            for (let q = k + 1; q < size; q++) idx[q] = idx[q - 1]! + 1;
+          }
+        }
+      }
+    }
+  };
+  return { singles, coupled, primaries, shared, groups };
+}
+
+/**
+ * The rail sets that may share one tap winding: 2…MAX_SHARED_TAP_RAILS rails of one isolated
+ * domain with the same sign (docs/planner.md). Each rail gets its own LDO from the tap, which
+ * is set for the highest of them; the engine decides whether each LDO holds (headroom, Tj).
+ */
+export function sharedTapGroups(f: BlockFactory): number[][] {
+  const rails = f.ctx.rails;
+  const byKey = new Map<string, number[]>();
+  rails.forEach((r, i) => {
+    if (!f.isolated(i) || r.voltage === 0) return;
+    const k = `${r.domainId}|${Math.sign(r.voltage)}`;
+    byKey.set(k, [...(byKey.get(k) ?? []), i]);
+  });
+  const out: number[][] = [];
+  for (const list of byKey.values()) {
+    const m = list.length;
+    if (m < 2) continue;
+    for (let bits = 1; bits < 1 << m; bits++) {
+      const g = list.filter((_, k) => (bits >> k) & 1);
+      if (g.length >= 2 && g.length <= MAX_SHARED_TAP_RAILS) out.push(g);
+    }
+  }
+  // Smaller groups first, then by rail index: a stable order.
+  return out.sort((a, b) => a.length - b.length || a.join(',').localeCompare(b.join(','), 'en', { numeric: true }));
 }
 
 /**
@@ -935,12 +1079,19 @@ function newKindShapes(f: BlockFactory, opts: GenerationOptions, i: number): Blo
 
 /** Size of the decision space: candidate feeds and coupled-winding primaries (counted, not listed). */
 export function spaceSize(f: BlockFactory, opts: GenerationOptions): { candidates: number; primaries: number } {
-  const { singles, primaries } = enumerateShapes(f, opts);
+  const { singles, primaries, groups } = enumerateShapes(f, opts);
   const n = f.ctx.rails.length;
   let candidates = singles.length;
   for (const p of primaries) {
     const m = n - (p.primary === null ? 0 : 1);
     for (let k = 1; k <= Math.min(opts.maxSecondaries, m); k++) candidates += binomial(m, k);
+    // A shared tap's winding and 0…m − 1 other secondaries.
+    if (opts.maxSecondaries >= 1) {
+      for (const g of groups) {
+        const others = m - g.length;
+        for (let k = 0; k <= Math.min(opts.maxSecondaries - 1, others); k++) candidates += binomial(others, k);
+      }
+    }
   }
   return { candidates, primaries: primaries.length };
 }
@@ -951,10 +1102,11 @@ function binomial(m: number, k: number): number {
   return Math.round(c);
 }
 
-function cw(p: { primary: number | null; busVoltage?: number; source: Source }, secondaries: number[]): BlockShape {
+function cw(p: { primary: number | null; busVoltage?: number; source: Source }, secondaries: number[], sharedTap?: number[]): BlockShape {
   return {
     kind: 'cwbuck', input: { kind: 'source', id: p.source.id }, primary: p.primary,
     ...(p.busVoltage !== undefined ? { busVoltage: p.busVoltage } : {}), secondaries,
+    ...(sharedTap ? { sharedTap: [...sharedTap] } : {}),
   };
 }
 
@@ -1005,7 +1157,7 @@ export function* generateBlocks(
     for (const r of covers) covered.add(r);
     return true;
   };
-  const { singles, coupled } = enumerateShapes(f, opts);
+  const { singles, coupled, shared, primaries, groups } = enumerateShapes(f, opts);
   for (const s of singles) { if (skip(s)) continue; add(s); yield; }
   // Every winding set from 1 to maxSecondaries secondaries on every primary. No set is
   // skipped: a set whose subsets all miss can still be feasible (a ±12 V pair on a 5 V primary
@@ -1025,6 +1177,17 @@ export function* generateBlocks(
   // is still designed when the budget allows.
   const design = (s: BlockShape) => { designed.add(key(s)); if (add(s)) feasible.add(key(s)); };
   for (const s of coupled(1)) { if (skip(s)) continue; design(s); yield; }
+  // Under the magnetics-per-domain limit (default one) an isolated domain's rails must share
+  // few magnetics, so the sets whose secondaries all lie in one isolated domain go next
+  // (largest first: one magnetic then serves most of the domain), so that a budget cut still
+  // leaves a tree within the limit. This only orders the work.
+  for (const s of withinIsolatedDomains(f, opts, primaries, groups)) {
+    if (designed.has(key(s)) || skip(s)) continue;
+    design(s);
+    yield;
+  }
+  // A shared tap alone (one winding, an LDO per rail) is a one-winding block too.
+  for (const s of shared(true)) { if (designed.has(key(s)) || skip(s)) continue; design(s); yield; }
   for (let size = 2; size <= Math.min(3, opts.maxSecondaries); size++) {
     for (const s of coupled(size)) {
       if (designed.has(key(s)) || !servesUncovered(s)) continue;
@@ -1046,7 +1209,48 @@ export function* generateBlocks(
       yield;
     }
   }
+  // A shared tap beside other windings, last: every one of them is designed when the budget allows.
+  // (Passed-over shapes also yield now and then, so that a caller keeps its clock.)
+  let passed = 0;
+  for (const s of shared(false)) {
+    if (designed.has(key(s)) || skip(s)) { if (++passed % 2000 === 0) yield; continue; }
+    design(s);
+    yield;
+  }
   return { blocks, misses };
+}
+
+/**
+ * The winding sets whose rails all lie in one isolated domain: 2…m one-rail windings, and a
+ * shared tap with 1…m − 1 further windings of the same domain, on every primary (generated
+ * from each domain's rails, not filtered from every set).
+ */
+function* withinIsolatedDomains(
+  f: BlockFactory, opts: GenerationOptions, primaries: { primary: number | null; busVoltage?: number; source: Source }[], groups: number[][],
+): Generator<BlockShape> {
+  const byDomain = new Map<Id, number[]>();
+  f.ctx.rails.forEach((r, i) => { if (f.isolated(i)) byDomain.set(r.domainId, [...(byDomain.get(r.domainId) ?? []), i]); });
+  const combos = function* (xs: number[], k: number): Generator<number[]> {
+    if (k > xs.length || k < 1) return;
+    const idx = Array.from({ length: k }, (_, q) => q);
+    for (;;) {
+      yield idx.map((q) => xs[q]!);
+      let q = k - 1;
+      while (q >= 0 && idx[q] === xs.length - k + q) q--;
+      if (q < 0) return;
+      idx[q]!++;
+      for (let z = q + 1; z < k; z++) idx[z] = idx[z - 1]! + 1;
+    }
+  };
+  for (let size = opts.maxSecondaries; size >= 2; size--) {
+    for (const p of primaries) for (const list of byDomain.values()) for (const c of combos(list, size)) yield cw(p, c);
+  }
+  for (const p of primaries) {
+    for (const g of groups) {
+      const rest = (byDomain.get(f.ctx.rails[g[0]!]!.domainId) ?? []).filter((x) => !g.includes(x));
+      for (let k = 1; k <= opts.maxSecondaries - 1; k++) for (const c of combos(rest, k)) yield cw(p, [...g, ...c].sort((a, b) => a - b), g);
+    }
+  }
 }
 
 /** Run generateBlocks to the end. */

@@ -3,11 +3,12 @@
  * outside check with a general-purpose MILP solver (tests and bench use the `highs` package).
  * One binary variable per candidate block with the weighted score the engine computed for it;
  * each rail covered exactly once; each source within its current limit at its lowest voltage
- * in every mode (a knapsack-type conflict constraint). The objective is additive only when no
+ * in every mode (a knapsack-type conflict constraint); at most maxMagneticsPerIsolatedDomain
+ * blocks crossing the barrier into each isolated domain. The objective is additive only when no
  * block draws from another rail (plan with allowRailFeeds: false), which is when the MILP
  * optimum must equal the planner's best.
  */
-import type { Requirements } from '../model.ts';
+import { DEFAULT_MAX_MAGNETICS_PER_DOMAIN, type Requirements } from '../model.ts';
 import type { Scorer } from './score.ts';
 import type { Block } from './types.ts';
 
@@ -26,6 +27,13 @@ export function setPartitionLp(req: Requirements, railCount: number, blocks: rea
       const t = blocks.filter((b) => b.shape.input.kind === 'source' && b.shape.input.id === s.id).map((b) => `${num(b.base.iinAtMin[m]!)} x${b.index}`);
       if (t.length) lines.push(` src${si}m${m}: ${t.join(' + ')} <= ${num(s.currentLimit)}`);
     });
+  });
+  const limit = req.limits.maxMagneticsPerIsolatedDomain ?? DEFAULT_MAX_MAGNETICS_PER_DOMAIN;
+  req.domains.forEach((d, di) => {
+    if (d.isolation === 'none') return;
+    // A block crosses into d when one of its stages has a barrier to it (a magnetic or a module).
+    const t = blocks.filter((b) => b.base.stages.some((st) => st.barriers.some((x) => x.toDomainId === d.id))).map((b) => `x${b.index}`);
+    if (t.length > limit) lines.push(` mag${di}: ${t.join(' + ')} <= ${limit}`);
   });
   lines.push('Binary');
   for (let i = 0; i < blocks.length; i += 16) lines.push(' ' + blocks.slice(i, i + 16).map((b) => `x${b.index}`).join(' '));

@@ -29,15 +29,30 @@ export function railHasFeed(
   if (idx < 0) return 'unknown';
   const f = new BlockFactory(req, rails, evaluator, costModel);
   const opts = generationOptions(req, allowRailFeeds);
-  const { singles, coupled } = enumerateShapes(f, opts);
+  const { singles, coupled, shared } = enumerateShapes(f, opts);
   const tryShape = (s: Parameters<BlockFactory['evaluate']>[0]): boolean => f.evaluate(s).ok;
   for (const s of singles) {
     if (s.kind !== 'cwbuck' && s.rail === idx && tryShape(s)) return 'yes';
     if (now() > deadline) return 'unknown';
   }
+  let passed = 0;
   for (let k = 1; k <= opts.maxSecondaries; k++) {
     for (const s of coupled(k)) {
-      if (s.kind !== 'cwbuck' || (s.primary !== idx && !s.secondaries.includes(idx))) continue;
+      // Sets without the rail are passed over; the clock is read now and then here too.
+      if (s.kind !== 'cwbuck' || (s.primary !== idx && !s.secondaries.includes(idx))) {
+        if (++passed % 2000 === 0 && now() > deadline) return 'unknown';
+        continue;
+      }
+      if (tryShape(s)) return 'yes';
+      if (now() > deadline) return 'unknown';
+    }
+  }
+  for (const alone of [true, false]) {
+    for (const s of shared(alone)) {
+      if (s.kind !== 'cwbuck' || (s.primary !== idx && !s.secondaries.includes(idx))) {
+        if (++passed % 2000 === 0 && now() > deadline) return 'unknown';
+        continue;
+      }
       if (tryShape(s)) return 'yes';
       if (now() > deadline) return 'unknown';
     }

@@ -10,7 +10,7 @@
  * w.loss + w.cost + w.parts. The normalisers depend only on the requirements, so the score of a
  * plan is the sum of its blocks' scores (additive) for a fixed downstream load.
  */
-import type { Requirements } from '../model.ts';
+import { DEFAULT_MAX_MAGNETICS_PER_DOMAIN, type Id, type Requirements } from '../model.ts';
 import type { PlanScore } from '../plan-types.ts';
 import type { Watts } from '../units.ts';
 import type { BlockFactory } from './candidates.ts';
@@ -94,6 +94,11 @@ export function evaluateSelection(f: BlockFactory, sel: readonly Block[], opts: 
     if (coverOf[r] === -1 && !opts.partial) return fail('cover', `${f.ctx.rails[r]!.name} is not fed`, 0, '', r);
     if (coverOf[r] === -2) return fail('cover', `${f.ctx.rails[r]!.name} is fed twice`, 0, '', r);
   }
+  // At most maxMagneticsPerIsolatedDomain magnetics cross into each isolated domain (a design
+  // limit). A partial selection that exceeds it cannot be completed within it (crossings only
+  // grow as blocks are added), so the check is exact in partial mode too, not a bound.
+  const over = magneticsOverLimit(f, sel);
+  if (over) return fail('magnetics-per-domain', over.text, over.shortfall, '', over.railIndex);
   // In a partial selection a block whose feeding rail is not chosen yet is treated as a root:
   // its load reaches the feeder later, so the partial score is a lower bound of the final one.
   const parent = sel.map((b) => (b.shape.input.kind === 'rail' ? Math.max(-1, coverOf[b.shape.input.rail]!) : -1));
@@ -152,6 +157,45 @@ export function evaluateSelection(f: BlockFactory, sel: readonly Block[], opts: 
   let loss = 0, cost = 0, parts = 0;
   for (const e of evals) { loss += e!.loss; cost += e!.cost; parts += e!.parts; }
   return { ok: true, evals: evals as BlockEval[], order, parent, loss, cost, parts };
+}
+
+/** The isolated domains a block's stages cross into (a coupled-winding magnetic's or an isolated module's barrier). */
+export function blockCrossings(b: Block): Id[] {
+  const out: Id[] = [];
+  for (const st of b.base.stages) for (const br of st.barriers) if (!out.includes(br.toDomainId)) out.push(br.toDomainId);
+  return out;
+}
+
+/**
+ * The first isolated domain that more magnetics cross into than the design limit allows
+ * (limits.maxMagneticsPerIsolatedDomain, default DEFAULT_MAX_MAGNETICS_PER_DOMAIN), with the
+ * count and the stages that cross, or null. Each block is one magnetic or one module.
+ */
+export function magneticsOverLimit(f: BlockFactory, sel: readonly Block[]): { text: string; shortfall: number; railIndex?: number } | null {
+  const limit = f.req.limits.maxMagneticsPerIsolatedDomain ?? DEFAULT_MAX_MAGNETICS_PER_DOMAIN;
+  let by: Map<Id, Block[]> | null = null;
+  for (const b of sel) {
+    if (b.shape.kind !== 'cwbuck' && b.shape.kind !== 'iso-module') continue;
+    for (const d of blockCrossings(b)) {
+      by ??= new Map();
+      const list = by.get(d) ?? [];
+      list.push(b);
+      by.set(d, list);
+    }
+  }
+  if (!by) return null;
+  for (const [d, list] of by) {
+    if (list.length <= limit) continue;
+    const dom = f.req.domains.find((x) => x.id === d);
+    const names = list.map((b) => b.base.stages[0]?.name ?? b.key);
+    const railIndex = f.ctx.rails.findIndex((r) => r.domainId === d);
+    return {
+      text: `${dom?.name ?? d} would be reached through ${list.length} magnetics (${names.join(', ')}), above the limit of ${limit} per isolated domain in the design limits`,
+      shortfall: list.length - limit,
+      ...(railIndex >= 0 ? { railIndex } : {}),
+    };
+  }
+  return null;
 }
 
 export function planScore(s: { loss: number; cost: number; parts: number }, scorer: Scorer): PlanScore {

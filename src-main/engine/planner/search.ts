@@ -190,9 +190,14 @@ export function railMask(covers: readonly number[]): number {
  * Whether some set of the blocks feeds every one of `n` rails exactly once (the cover alone:
  * no scores, no coupling). Depth first on the lowest open rail, remembering the open sets
  * already shown to have no cover. `nodeCap` bounds the work: past it the answer is `null`
- * (unknown), which a caller treats as "maybe".
+ * (unknown), which a caller treats as "maybe". With `crossings` (per block, the isolated
+ * domains it crosses into, as small integers) a cover counts only when no domain is crossed
+ * more than `limit` times (the magnetics-per-domain design limit).
  */
-export function exactCoverExists(n: number, covers: readonly (readonly number[])[], nodeCap = 50_000): boolean | null {
+export function exactCoverExists(
+  n: number, covers: readonly (readonly number[])[], nodeCap = 50_000,
+  crossings?: { domains: readonly (readonly number[])[]; limit: number },
+): boolean | null {
   if (n === 0) return true;
   if (n > MAX_RAILS) throw new RangeError(`the search handles up to ${MAX_RAILS} rails (got ${n})`);
   const lo = covers.map((c) => c.reduce((m, r) => (r < 32 ? (m | (1 << r)) >>> 0 : m), 0));
@@ -204,15 +209,21 @@ export function exactCoverExists(n: number, covers: readonly (readonly number[])
   let nodes = 0;
   let capped = false;
   const lowBit = (m: number) => 31 - Math.clz32(m & -m);
+  const count: number[] = [];
   const go = (rem: number, remHi: number): boolean => {
     if (rem === 0 && remHi === 0) return true;
-    const k = `${rem}:${remHi}`;
+    const k = crossings ? `${rem}:${remHi}:${count.join(',')}` : `${rem}:${remHi}`;
     if (dead.has(k)) return false;
     if (++nodes > nodeCap) { capped = true; return false; }
     const r = rem ? lowBit(rem) : 32 + lowBit(remHi);
     for (const i of byRail[r]!) {
       if ((lo[i]! & rem) >>> 0 !== lo[i]! || (hi[i]! & remHi) >>> 0 !== hi[i]!) continue;
-      if (go((rem & ~lo[i]!) >>> 0, (remHi & ~hi[i]!) >>> 0)) return true;
+      const ds = crossings?.domains[i] ?? [];
+      if (crossings && ds.some((d) => (count[d] ?? 0) + 1 > crossings.limit)) continue;
+      for (const d of ds) count[d] = (count[d] ?? 0) + 1;
+      const ok = go((rem & ~lo[i]!) >>> 0, (remHi & ~hi[i]!) >>> 0);
+      for (const d of ds) count[d]!--;
+      if (ok) return true;
       if (capped) return false;
     }
     dead.add(k);

@@ -12,14 +12,14 @@
  * budget gives the same result every time; a cut run returns the incumbent at the cut.
  */
 import { groupRails } from '../rails.ts';
-import type { Rail, Requirements, StageKind } from '../model.ts';
+import { DEFAULT_MAX_MAGNETICS_PER_DOMAIN, type Rail, type Requirements, type StageKind } from '../model.ts';
 import { kindNames } from '../stages/registry.ts';
 import type { Infeasibility, Plan, PlanLabel, PlanResult, PlanSpace } from '../plan-types.ts';
 import { assemblePlan, explainInfeasible, type InfeasibleEntry } from './assemble.ts';
-import { BlockFactory, generateBlocks, spaceSize, type GenerationOptions, type Miss } from './candidates.ts';
+import { BlockFactory, generateBlocks, MAX_SHARED_TAP_RAILS, spaceSize, type GenerationOptions, type Miss } from './candidates.ts';
 import { inventedCostModel } from './cost-model.ts';
 import { generationOptions, railHasFeed } from './remedies.ts';
-import { makeScorer, OBJECTIVES, type Objective, type Scorer, type SelectionEval } from './score.ts';
+import { blockCrossings, makeScorer, OBJECTIVES, type Objective, type Scorer, type SelectionEval } from './score.ts';
 import { branchAndBound, exactCoverExists, MAX_RAILS, type SearchOutcome } from './search.ts';
 import type { Block, CostModel, StageEvaluator } from './types.ts';
 
@@ -142,7 +142,16 @@ export class PlanSolver {
     if (this.reachableAt !== this.blocks.length) {
       this.reachableAt = this.blocks.length;
       // An unknown answer (node cap) counts as reachable: the search then decides.
-      this.reachable = exactCoverExists(this.rails.length, this.blocks.map((b) => b.covers)) !== false;
+      // Only covers within the magnetics-per-domain limit count (a tree must keep it).
+      const ids = this.req.domains.map((d) => d.id);
+      const domains = this.blocks.map((b) => (b.shape.kind === 'cwbuck' || b.shape.kind === 'iso-module' ? blockCrossings(b).map((d) => ids.indexOf(d)) : []));
+      const limit = this.req.limits.maxMagneticsPerIsolatedDomain ?? DEFAULT_MAX_MAGNETICS_PER_DOMAIN;
+      // The plain cover first (memoised on the open rails alone, fast), then the covers within
+      // the limit (the counts make the states many; past the cap the answer is unknown, which
+      // counts as reachable).
+      const covers = this.blocks.map((b) => b.covers);
+      this.reachable = exactCoverExists(this.rails.length, covers) !== false &&
+        exactCoverExists(this.rails.length, covers, 50_000, { domains, limit }) !== false;
     }
     return this.reachable;
   }
@@ -375,6 +384,8 @@ export class PlanSolver {
     const each = total / count;
     for (const e of entries) {
       for (const c of e.candidates) {
+        // No check starts after the deadline (each one designs at least one shape first).
+        if (this.now() >= deadline) { this.trace.push(`remedy "${c.text}" for ${e.inf.railId || 'the tree'}: not checked within the budget, not offered`); continue; }
         const req = structuredClone(this.req);
         c.apply(req);
         const until = Math.min(deadline, this.now() + each);
@@ -473,7 +484,7 @@ export function spaceSummary(s: PlanSpace, rails: number): string {
   const kinds = s.kinds.map((k) => kindNames(k).noun);
   const parts = [`${rails} rails`, `feeds: ${kinds.join(', ') || 'none'}`];
   if (s.kinds.includes('cwbuck')) {
-    parts.push(`coupled-winding: ${s.primaries} primaries (a rail or an internal bus) × every set of 1–${s.maxSecondaries} secondaries, each direct or tap + LDO`);
+    parts.push(`coupled-winding: ${s.primaries} primaries (a rail or an internal bus) × every set of 1–${s.maxSecondaries} secondary windings, each direct or tap + LDO, or one tap shared by 2–${MAX_SHARED_TAP_RAILS} rails of an isolated domain`);
   }
   parts.push(s.railFeeds ? 'stages fed from rails allowed' : 'every stage fed from a source');
   parts.push(s.designed >= s.candidates ? `${s.candidates} candidate feeds, all designed` : `${s.designed} of ${s.candidates} candidate feeds designed`);

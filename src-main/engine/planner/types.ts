@@ -75,7 +75,14 @@ export type BlockShape =
       /** Rail index of the regulated primary, or null for an internal primary bus. */
       primary: number | null;
       busVoltage?: number;
+      /** Every rail the magnetic's secondary windings serve (directly, or through an LDO behind a tap). */
       secondaries: number[];
+      /**
+       * Rails (2…MAX_SHARED_TAP_RAILS of `secondaries`, ascending, one isolated domain, one sign)
+       * that share one tap winding, each through its own LDO. The magnetic then has
+       * secondaries.length − sharedTap.length + 1 windings.
+       */
+      sharedTap?: number[];
     };
 
 /** One stage a block builds (the main stage and any LDO behind a tap winding). */

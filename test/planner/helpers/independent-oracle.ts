@@ -8,7 +8,9 @@
  * weighted score. It re-implements the documented per-block design rules (design currents
  * rounded outward to two significant digits, tap + LDO after a direct miss, tap choices in
  * order; the turns-ratio and rectifier-voltage limits; every block must also design without
- * its downstream load) from the text, not from
+ * its downstream load; one tap winding shared by 2–4 rails of one isolated domain and sign,
+ * each through its own LDO, the tap set for the highest; at most
+ * limits.maxMagneticsPerIsolatedDomain magnetics into each isolated domain) from the text, not from
  * the planner's code. Small cases only (≤ 6 rails).
  *
  * Shared with the planner only what defines the problem: the requirements, the rails
@@ -17,7 +19,7 @@
  */
 import { designStage, evaluateStage, stageWindows, type StageDesign } from '../../../src-main/engine/stages/index.ts';
 import type { OutputSpec, OutputWindow, StageEvaluation, StageSpec } from '../../../src-main/engine/stages/types.ts';
-import { DEFAULT_MAX_RECTIFIER_VOLTAGE, DEFAULT_MAX_TURNS_RATIO, type Domain, type Rail, type Requirements, type StageKind } from '../../../src-main/engine/model.ts';
+import { DEFAULT_MAX_MAGNETICS_PER_DOMAIN, DEFAULT_MAX_RECTIFIER_VOLTAGE, DEFAULT_MAX_TURNS_RATIO, type Domain, type Rail, type Requirements, type StageKind } from '../../../src-main/engine/model.ts';
 import { groupRails } from '../../../src-main/engine/rails.ts';
 import { makeScorer, type Objective } from '../../../src-main/engine/planner/score.ts';
 import { TAP_VARIANTS } from '../../../src-main/engine/planner/candidates.ts';
@@ -39,7 +41,12 @@ type Feed =
   | { kind: 'step-rail'; stage: StepKind; from: number }
   | { kind: 'primary'; mag: number }
   /** `group`: which of the magnetics on an internal bus (a bus primary may carry several). */
-  | { kind: 'secondary'; mag: number; group: number };
+  | { kind: 'secondary'; mag: number; group: number }
+  /** Behind the magnetic's one shared tap winding, through an LDO of its own. */
+  | { kind: 'shared'; mag: number; group: number };
+
+/** Largest number of rails on one shared tap winding [the stated space, docs/planner.md]. */
+const SHARED_TAP_MAX = 4;
 
 type StepKind = 'boost' | 'buck-boost-4s' | 'inverting';
 /** Largest duty of the generic buck controller [the planner's stated space, docs/planner.md]. */
@@ -133,10 +140,19 @@ export class IndependentOracle {
         } else if (r.voltage < 0 && this.kinds.has('inverting')) add('inverting', x);
       }
     }
+    // A rail of an isolated domain may also sit behind a magnetic's shared tap (LDOs needed).
+    const canShare = this.iso(r) && r.voltage !== 0 && this.kinds.has('ldo');
     this.mags.forEach((m, k) => {
       if (m.primary === i) out.push({ kind: 'primary', mag: k });
-      else if (m.primary !== null) out.push({ kind: 'secondary', mag: k, group: 0 });
-      else for (let g = 0; g < this.rails.length; g++) out.push({ kind: 'secondary', mag: k, group: g });
+      else if (m.primary !== null) {
+        out.push({ kind: 'secondary', mag: k, group: 0 });
+        if (canShare) out.push({ kind: 'shared', mag: k, group: 0 });
+      } else {
+        for (let g = 0; g < this.rails.length; g++) {
+          out.push({ kind: 'secondary', mag: k, group: g });
+          if (canShare) out.push({ kind: 'shared', mag: k, group: g });
+        }
+      }
     });
     return out;
   }
@@ -159,30 +175,40 @@ export class IndependentOracle {
         // A tree: each used magnetic has its primary rail (if any) and 1…maxSecondaries secondaries.
         // Magnetic instances: (magnetic, group); bus groups must be numbered in order of first
         // appearance (each partition of the bus's secondaries counted once).
-        const secs = new Map<string, { mag: number; rails: number[] }>();
+        const secs = new Map<string, { mag: number; rails: number[]; shared: number[] }>();
         const prims = new Set<number>();
         const nextGroup = new Map<number, number>();
         for (let r = 0; r < n; r++) {
           const f = assign[r]!;
-          if (f.kind === 'secondary') {
+          if (f.kind === 'secondary' || f.kind === 'shared') {
             const key = `${f.mag}|${f.group}`;
             if (!secs.has(key)) {
               const g = nextGroup.get(f.mag) ?? 0;
               if (f.group !== g) return;
               nextGroup.set(f.mag, g + 1);
-              secs.set(key, { mag: f.mag, rails: [] });
+              secs.set(key, { mag: f.mag, rails: [], shared: [] });
             }
             secs.get(key)!.rails.push(r);
+            if (f.kind === 'shared') secs.get(key)!.shared.push(r);
           }
           if (f.kind === 'primary') prims.add(f.mag);
         }
         const usedMags = new Set<number>();
-        for (const { mag, rails } of secs.values()) {
+        const perDomain = new Map<string, number>();
+        for (const { mag, rails, shared } of secs.values()) {
           const m = this.mags[mag]!;
           usedMags.add(mag);
-          if (rails.length > maxSec) return;
+          // Windings: each direct or tapped rail one, the shared tap one for all its rails.
+          const windings = rails.length - shared.length + (shared.length ? 1 : 0);
+          if (windings > maxSec) return;
+          if (shared.length === 1 || shared.length > SHARED_TAP_MAX) return;
+          if (shared.some((x) => this.rails[x]!.domainId !== this.rails[shared[0]!]!.domainId || Math.sign(this.rails[x]!.voltage) !== Math.sign(this.rails[shared[0]!]!.voltage))) return;
           if (m.primary !== null && !prims.has(mag)) return;
+          for (const d of new Set(rails.filter((x) => this.iso(this.rails[x]!)).map((x) => this.rails[x]!.domainId))) perDomain.set(d, (perDomain.get(d) ?? 0) + 1);
         }
+        // At most maxMagneticsPerIsolatedDomain magnetics into each isolated domain.
+        const magLimit = this.req.limits.maxMagneticsPerIsolatedDomain ?? DEFAULT_MAX_MAGNETICS_PER_DOMAIN;
+        for (const c of perDomain.values()) if (c > magLimit) return;
         for (const k of prims) if (!usedMags.has(k)) return;
         // No feed loops (rail feeds).
         const state = new Array<number>(n).fill(0);
@@ -224,7 +250,7 @@ export class IndependentOracle {
   }
 
   /** Score of one tree with every stage designed for the load it carries, or Infinity. */
-  private scoreTree(assign: Feed[], secs: Map<string, { mag: number; rails: number[] }>, score: (e: { loss: number; cost: number; parts: number }) => number): number {
+  private scoreTree(assign: Feed[], secs: Map<string, { mag: number; rails: number[]; shared: number[] }>, score: (e: { loss: number; cost: number; parts: number }) => number): number {
     const n = this.rails.length;
     const nm = this.modeIds.length;
     // Downstream input current on each rail, per mode: filled from the leaves up.
@@ -256,11 +282,12 @@ export class IndependentOracle {
       account(res);
       for (let m = 0; m < nm; m++) sourceI[f.source]![m]! += res.iinAtMin[m]!;
     }
-    for (const { mag, rails } of secs.values()) {
+    for (const { mag, rails, shared } of secs.values()) {
       const m = this.mags[mag]!;
       const sorted = rails.slice().sort((a, b) => a - b);
-      const res = this.coupled(m, sorted, (r) => this.currents(r, extra[r]!));
-      if (!res || !this.coupled(m, sorted, (r) => this.own(r))) return Infinity;
+      const group = shared.slice().sort((a, b) => a - b);
+      const res = this.coupled(m, sorted, (r) => this.currents(r, extra[r]!), group);
+      if (!res || !this.coupled(m, sorted, (r) => this.own(r), group)) return Infinity;
       account(res);
       for (let q = 0; q < nm; q++) sourceI[m.source]![q]! += res.iinAtMin[q]!;
     }
@@ -370,19 +397,36 @@ export class IndependentOracle {
     return v;
   }
 
-  /** Tap winding + LDO for a secondary with tap choice `v`: the LDO's evaluations and the tap's output spec. */
-  private tap(r: number, currents: number[], v: number): { perMode: StageEvaluation[]; out: OutputSpec; iin: number[]; tapV: number } | null {
-    const rail = this.rails[r]!;
+  /**
+   * One tap winding with tap choice `v` and an LDO per rail it feeds (one rail, or a shared
+   * tap's rails): the tap is (highest |V| + headroom) / (1 − tolerance), rounded up to 0.1 V;
+   * its ripple limit the smaller of 5 % of the tap and 20 × the tightest ripple limit; its
+   * current per mode the sum of the LDOs' input currents, its design maximum at least every
+   * LDO at its full-load input current at once. Null when an LDO fails.
+   */
+  private tap(group: number[], currentsOf: (r: number) => number[], v: number): { perMode: StageEvaluation[][]; out: OutputSpec; iin: number[]; tapV: number } | null {
+    let top = group[0]!;
+    for (const g of group) if (Math.abs(this.rails[g]!.voltage) > Math.abs(this.rails[top]!.voltage)) top = g;
+    const rail = this.rails[top]!;
     const { tolerance: tol, headroom } = TAP_VARIANTS[v]!;
     const mag = Math.ceil(((Math.abs(rail.voltage) + headroom) / (1 - tol)) * 10) / 10;
-    const ripple = Math.min(mag * 0.05, rail.rippleLimit * 20);
+    const ripple = Math.min(mag * 0.05, Math.min(...group.map((g) => this.rails[g]!.rippleLimit)) * 20);
     const sign = Math.sign(rail.voltage) || 1;
-    const res = this.run(this.spec('ldo', { min: mag * (1 - tol), nom: mag, max: mag * (1 + tol), ripple, sign }, [this.out(r, currents)]), currents.map((c) => [c]));
-    if (!res.ok) return null;
-    const iin = res.perMode.map((e) => Math.abs(e.iin));
+    const iin = this.modeIds.map(() => 0);
+    let full = 0;
+    const perMode: StageEvaluation[][] = [];
+    for (const g of group) {
+      const c = currentsOf(g);
+      const res = this.run(this.spec('ldo', { min: mag * (1 - tol), nom: mag, max: mag * (1 + tol), ripple, sign }, [this.out(g, c)]), c.map((x) => [x]));
+      if (!res.ok) return null;
+      const gi = res.perMode.map((e) => Math.abs(e.iin));
+      gi.forEach((x, q) => { iin[q]! += x; });
+      full += Math.max(...gi, Math.abs(res.atMin.iin));
+      perMode.push(res.perMode);
+    }
     return {
-      perMode: res.perMode, iin, tapV: mag,
-      out: { nodeId: `tap:${rail.id}`, voltage: (sign * mag) as Volts, tolerance: tol as Ratio, currentMin: Math.min(...iin) as Amps, currentMax: Math.max(...iin, Math.abs(res.atMin.iin)) as Amps, rippleLimit: ripple as Volts },
+      perMode, iin, tapV: mag,
+      out: { nodeId: `tap:${rail.id}`, voltage: (sign * mag) as Volts, tolerance: tol as Ratio, currentMin: Math.min(...iin) as Amps, currentMax: Math.max(...iin, full) as Amps, rippleLimit: ripple as Volts },
     };
   }
 
@@ -393,15 +437,24 @@ export class IndependentOracle {
    * takes the next choice whose tolerance covers the miss (and no smaller headroom); an LDO
    * that fails behind a tap takes the next choice in order.
    */
-  private coupled(m: Magnetic, secondaries: number[], currentsOf: (r: number) => number[]): StageResult | null {
+  private coupled(m: Magnetic, secondaries: number[], currentsOf: (r: number) => number[], shared: number[] = []): StageResult | null {
     const cs = new Map<number, number[]>();
     for (const r of [...secondaries, ...(m.primary !== null ? [m.primary] : [])]) cs.set(r, currentsOf(r));
     const unloaded = [...cs].every(([r, c]) => c.every((x, i) => x === (this.rails[r]!.current[this.modeIds[i]!] ?? 0)));
-    const key = `cw|${m.source}|${m.primary}|${secondaries.join(',')}|${[...cs].map(([r, c]) => `${r}:${c.join(',')}`).join(';')}`;
+    const key = `cw|${m.source}|${m.primary}|${secondaries.join(',')}|t${shared.join(',')}|${[...cs].map(([r, c]) => `${r}:${c.join(',')}`).join(';')}`;
     if (this.blockCache.has(key)) return this.blockCache.get(key)!;
     const mk = `${m.source}|${m.primary}`;
-    const choice = new Map<number, number>();
+    // The windings, in secondaries order: a rail each, and the shared tap (its rails) at the
+    // place of its first rail, named by that first rail.
+    const wind = new Map<number, number[]>();
     for (const s of secondaries) {
+      if (!shared.includes(s)) wind.set(s, [s]);
+      else if (s === shared[0]) wind.set(s, shared);
+    }
+    const choice = new Map<number, number>();
+    if (shared.length) choice.set(shared[0]!, 0);
+    for (const s of secondaries) {
+      if (shared.includes(s)) continue;
       if (!this.hint.has(`${mk}|${s}`) && (secondaries.length > 1 || !unloaded)) {
         // The hint is the unloaded one-secondary block's settled choice: design it first.
         this.coupled(m, [s], (r) => this.currents(r, this.modeIds.map(() => 0)));
@@ -419,8 +472,9 @@ export class IndependentOracle {
       let failed = false;
       for (const [s, v0] of choice) {
         let v = v0;
-        let t = this.tap(s, cs.get(s)!, v);
-        while (!t && v + 1 < TAP_VARIANTS.length) { v++; t = this.tap(s, cs.get(s)!, v); }
+        const g = wind.get(s)!;
+        let t = this.tap(g, (r) => cs.get(r)!, v);
+        while (!t && v + 1 < TAP_VARIANTS.length) { v++; t = this.tap(g, (r) => cs.get(r)!, v); }
         choice.set(s, v);
         if (!t) { failed = true; break; }
         taps.set(s, t);
@@ -436,7 +490,7 @@ export class IndependentOracle {
         outputs.push(this.out(m.primary, c));
         for (let q = 0; q < nm; q++) modeCurrents[q]!.push(c[q]!);
       }
-      for (const s of secondaries) {
+      for (const s of wind.keys()) {
         const t = taps.get(s);
         const c = t ? t.iin : cs.get(s)!;
         outputs.push(t ? t.out : this.out(s, c));
@@ -456,7 +510,7 @@ export class IndependentOracle {
       const res = this.run(spec, modeCurrents);
       if (!res.ok) {
         let changed = false;
-        secondaries.forEach((s, k) => {
+        [...wind.keys()].forEach((s, k) => {
           const miss = res.misses.get(k + 1);
           if (!miss || miss.what === 'other') return;
           const cur = choice.get(s);
@@ -476,17 +530,19 @@ export class IndependentOracle {
       const maxRatio = this.req.limits.maxTurnsRatio ?? DEFAULT_MAX_TURNS_RATIO;
       const maxVr = this.req.limits.maxRectifierVoltage ?? DEFAULT_MAX_RECTIFIER_VOLTAGE;
       if (cw.secondaries.some((w, k) => Math.abs(w.turns) / cw.primaryTurns > maxRatio * (1 + 1e-9) || steady(w, k) > maxVr * (1 + 1e-9))) break;
-      const p = this.parts('cwbuck', secondaries.length);
+      const p = this.parts('cwbuck', wind.size);
       p.barrier = isoDomains.size;
       const ldoP = this.parts('ldo');
       const loss: number[] = res.perMode.map((e) => e.loss as number);
       for (const t of taps.values()) {
-        for (const k of Object.keys(ldoP) as (keyof PartCounts)[]) p[k] += ldoP[k];
-        t.perMode.forEach((e, q) => { loss[q]! += e.loss; });
+        for (const ldo of t.perMode) {
+          for (const k of Object.keys(ldoP) as (keyof PartCounts)[]) p[k] += ldoP[k];
+          ldo.forEach((e, q) => { loss[q]! += e.loss; });
+        }
       }
       const iin = res.perMode.map((e) => Math.abs(e.iin));
       result = { loss, iin, iinAtMin: iin.map((i) => i * (vin.nom / Math.max(vin.min, 1e-9))), cost: this.costModel.cost(p, 'cwbuck'), parts: countParts(p) };
-      if (secondaries.length === 1 && unloaded) this.hint.set(`${mk}|${secondaries[0]}`, choice.get(secondaries[0]!) ?? -1);
+      if (secondaries.length === 1 && !shared.length && unloaded) this.hint.set(`${mk}|${secondaries[0]}`, choice.get(secondaries[0]!) ?? -1);
       break;
     }
     this.blockCache.set(key, result);
