@@ -28,6 +28,7 @@ import { GENERIC_DEFAULTS, VT, diodeVf, type ControllerParams, type DiodeModel }
 import { bankRippleFlags, chooseCeramic, flag, part, r3, rippleFlags, thermalFlags, type CapacitorChoice } from '../common.ts';
 import { feasibility, specErrors, switchingFlags, switchingParts, thetaSourceOf, type SwitchingDesignBase } from '../buck/index.ts';
 import { chooseCeramicRow, chooseRectifier, chooseSwitcher, diodeFromRow, type StagePartRef } from '../part-choice.ts';
+import { solvePss, type PssCircuit, type PssResult } from './pss.ts';
 import { coreLossAt, designMagneticCore, temperatureRise, windingCopperLoss, type CoreDesign, type MagneticDemand } from '../../core-design.ts';
 
 // Module-local bindings for the innermost loops (saves a lookup through the module namespace
@@ -514,6 +515,37 @@ export function coupledPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
     duty0 = duty;
   }
   return { vpri, duty, im, dim, impk: im + dim / 2, iend, voff, von, toff, sec };
+}
+
+/**
+ * The switching cycle as the numerical periodic steady state reads it (pss.ts): the design's
+ * inductance matrix (Lp; Ls = n²·Lp/k²; mutuals k·√(La·Lb), secondary pairs from
+ * secondaryCoupling or k_i·k_j), its switches, body diodes, resistances and rectifiers, at the
+ * closed-form point p (its duty and secondary voltages are the starting values).
+ */
+export function pssCircuit(d: CoupledBuckDesign, vin: number, iout: number[], p: CoupledPoint, vfScale = 1): PssCircuit {
+  const lp = d.inductance as number;
+  const ws = d.secondaries;
+  const ls = ws.map((w) => ((w.turns / d.primaryTurns) ** 2 * lp) / (w.coupling * w.coupling));
+  const kss = d.secondaryCoupling;
+  const L = [lp, ...ls].map((_, a) => [lp, ...ls].map((__, b) => {
+    if (a === b) return a === 0 ? lp : ls[a - 1]!;
+    if (a === 0 || b === 0) { const j = Math.max(a, b) - 1; return ws[j]!.coupling * Math.sqrt(lp * ls[j]!); }
+    const i = a - 1, j = b - 1;
+    const k = kss?.[i]?.[j] ?? ws[i]!.coupling * ws[j]!.coupling;
+    return k * Math.sqrt(ls[i]! * ls[j]!);
+  }));
+  return {
+    vin, vpri: p.vpri, ipri: Math.max(0, Math.abs(iout[0] ?? 0)), fsw: d.fsw as number, duty: p.duty,
+    deadTime: d.controller.deadTime, rhs: d.highSide.rdsOn * d.rdsHotFactor, rls: d.lowSide.rdsOn * d.rdsHotFactor,
+    rp: d.primaryResistance as number, body: d.bodyDiode, L,
+    windings: ws.map((w, i) => ({
+      r: w.resistance as number, rect: w.rectifier, vfScale,
+      ...(w.snubber ? { snubber: { r: w.snubber.r as number, c: w.snubber.c } } : {}),
+      iload: Math.abs(iout[i + 1] ?? 0), gpre: w.preload ? 1 / (w.preload.resistance as number) : 0,
+      vguess: p.sec[i]!.vsec,
+    })),
+  };
 }
 
 /**
