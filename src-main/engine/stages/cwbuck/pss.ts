@@ -85,6 +85,11 @@ export interface PssSecondary {
   vrMax: number;
   /** Loss in the snubber resistor. */
   pSnubber: number;
+  /**
+   * Share of the period's charge passed by conduction that restarts after the rectifier has
+   * stopped within a sub-interval: the leakage ring touching forward (peak charging).
+   */
+  ringShare: number;
 }
 
 export interface PssResult {
@@ -136,7 +141,10 @@ const A6 = [9017 / 3168, -355 / 33, 46732 / 5247, 49 / 176, -5103 / 18656];
 const B = [35 / 384, 0, 500 / 1113, 125 / 192, -2187 / 6784, 11 / 84];
 const E = [71 / 57600, 0, -71 / 16695, 71 / 1920, -17253 / 339200, 22 / 525, -1 / 40];
 
-type Seg = 0 | 1 | 2; // 0 high side on, 1 dead time, 2 low side on
+type Seg = 0 | 1 | 2;
+
+/** The solve ran out of integration steps (a stiff or chattering orbit): reported as not converged. */
+class PssBudget extends Error {} // 0 high side on, 1 dead time, 2 low side on
 
 /**
  * One solver instance per circuit: the matrices and work arrays are made once and reused by
@@ -170,7 +178,9 @@ class Cycle {
   readonly vscale: number;
   hlast: number;
   /** Local error tolerance of the integration (relative to each state's scale). */
-  tol = 1e-5;
+  tol = 3e-6;
+  /** Steps left for the whole solve. */
+  budget = 1e6;
   vrMin: Float64Array;
   ipk: Float64Array;
   onTime: Float64Array;
@@ -201,6 +211,8 @@ class Cycle {
     this.ipk = new Float64Array(this.S);
     this.onTime = new Float64Array(this.S);
     this.gs = new Float64Array(this.S + 1);
+    this.ringOff = new Uint8Array(this.S);
+    this.ringQ = new Float64Array(this.S);
   }
 
   /** Junction capacitance at forward voltage v (negative in reverse). */
@@ -358,6 +370,7 @@ class Cycle {
     if (this.on[j]) {
       this.on[j] = 0;
       x[this.m + j] = 0;
+      this.ringOff[j] = 1;
     } else {
       this.on[j] = 1;
       const vd = x[this.m + j]!;
@@ -378,6 +391,9 @@ class Cycle {
 
   trace: number[][] | null = null;
   t0 = 0;
+  /** Per rectifier: it has turned off once in the present sub-interval, and the charge it passed since. */
+  ringOff: Uint8Array;
+  ringQ: Float64Array;
   private track(x: Float64Array, h: number): void {
     if (this.trace) { this.t0 += h; this.trace.push([this.t0, ...Array.from(x.subarray(0, this.nx)), ...Array.from(this.on)]); }
     for (let j = 0; j < this.S; j++) {
@@ -386,7 +402,10 @@ class Cycle {
       if (!this.on[j]) {
         const vd = x[this.m + j]!;
         if (vd < this.vrMin[j]!) this.vrMin[j] = vd;
-      } else this.onTime[j] = this.onTime[j]! + h;
+      } else {
+        this.onTime[j] = this.onTime[j]! + h;
+        if (this.ringOff[j]) this.ringQ[j] = this.ringQ[j]! + Math.max(0, iw) * h;
+      }
     }
   }
 
@@ -412,6 +431,8 @@ class Cycle {
     const m = this.m;
     const gs = this.gs;
     this.float = false;
+    // Conduction after a rectifier has stopped once within a sub-interval is the ring's.
+    this.ringOff.fill(0);
     if (seg === 1) {
       this.pSign = x[0]! >= 0 ? 1 : -1;
       if (x[0] === 0) this.float = true;
@@ -420,9 +441,8 @@ class Cycle {
     let t = 0;
     let h = Math.min(this.hlast, dur);
     let fresh = true;
-    let guard = 0;
     while (t < dur * (1 - 1e-12)) {
-      if (++guard > 400000) throw new Error('periodic steady state: step budget exhausted');
+      if (--this.budget < 0) throw new PssBudget();
       // A mode that no longer holds at the start of the step (a second crossing in the last
       // step, or a state set from outside) toggles before stepping.
       let flipped = false;
@@ -469,8 +489,8 @@ class Cycle {
         const th = g0 - g1 > 0 ? g0 / (g0 - g1) : 0;
         if (th < theta) { theta = th; which = j; }
       }
-      if (which >= 0 && theta < 0.98 && h > 2e-12) {
-        h = Math.max(h * theta * 1.002, 1e-12);
+      if (which >= 0 && theta < 0.995 && h > 2e-12) {
+        h = Math.max(h * theta * 1.0005, 1e-12);
         continue;
       }
       for (let i = 0; i < n; i++) x[i] = y[i]!;
@@ -497,6 +517,8 @@ export interface PssOptions {
   maxPeriods?: number;
   /** Hold the outputs at these magnitudes instead of solving their charge balance (checks). */
   fixedVout?: number[];
+  /** Integration steps allowed for the whole solve (default 1e6). */
+  maxSteps?: number;
   /** Local error tolerance of the integration (default 1e-5). */
   tolInt?: number;
 }
@@ -534,13 +556,24 @@ function solveLinear(a0: Float64Array, b0: Float64Array, n: number): Float64Arra
 }
 
 export function solvePss(c: PssCircuit, opts: PssOptions = {}): PssResult {
+  try {
+    return solveOrbit(c, opts);
+  } catch (e) {
+    if (!(e instanceof PssBudget)) throw e;
+    return { converged: false, periods: NaN, duty: c.duty, residual: Infinity, energyIn: NaN, energyOut: NaN,
+      sec: c.windings.map(() => ({ vout: NaN, isec: NaN, iavg: NaN, irms: NaN, ipk: NaN, pRect: NaN, conduction: NaN, vrMax: NaN, pSnubber: NaN, ringShare: NaN })) };
+  }
+}
+
+function solveOrbit(c: PssCircuit, opts: PssOptions): PssResult {
   const cy = new Cycle(c);
+  if (opts.maxSteps) cy.budget = opts.maxSteps;
   if (opts.tolInt) cy.tol = opts.tolInt;
   const { m, S } = cy;
   const T = 1 / c.fsw;
   const td = c.deadTime;
   const tol = opts.tol ?? 2e-4;
-  const maxPeriods = opts.maxPeriods ?? 600;
+  const maxPeriods = opts.maxPeriods ?? 300;
   const n = cy.nx + cy.nq;
   const x = new Float64Array(n);
   let duty = c.duty;
@@ -561,7 +594,10 @@ export function solvePss(c: PssCircuit, opts: PssOptions = {}): PssResult {
   const hist: Float64Array[] = [];
   const period = (): void => {
     for (let i = cy.nx; i < n; i++) x[i] = 0;
-    cy.vrMin.fill(0); cy.ipk.fill(-Infinity); cy.onTime.fill(0);
+    cy.vrMin.fill(0); cy.ipk.fill(-Infinity); cy.onTime.fill(0); cy.ringQ.fill(0);
+    // Every period starts from the same step size, so the same start state gives the same
+    // period to the last bit (the finite-difference Jacobian depends on it).
+    cy.hlast = T / 400;
     for (let j = 0; j < S; j++) cy.vo[j] = vo[j]!;
     const ton = duty * T;
     cy.run(x, ton, 0);
@@ -735,6 +771,7 @@ export function solvePss(c: PssCircuit, opts: PssOptions = {}): PssResult {
     conduction: cy.onTime[j]!,
     vrMax: -cy.vrMin[j]!,
     pSnubber: 0,
+    ringShare: Math.abs(x[qb + j]!) > 0 ? cy.ringQ[j]! / Math.abs(x[qb + j]!) : 0,
   }));
   const psn = x[qb + 3 * S + 2]! / T;
   if (S > 0 && psn > 0) {
