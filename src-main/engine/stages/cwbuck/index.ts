@@ -605,6 +605,8 @@ function closedFormMiss(d: CoupledBuckDesign, p: CoupledPoint, i: number): { why
  * grid's few such windings read up to 6 % off).
  */
 export const PSS_CONDUCTION = 0.99;
+/** Integration steps one numerical solve may take before it reports no result. */
+export const PSS_STEP_BUDGET = 3e5;
 /** Largest energy-balance error over the converged period for the numbers to be used. */
 export const PSS_ENERGY_LIMIT = 0.005;
 
@@ -622,7 +624,7 @@ export function numericPoint(d: CoupledBuckDesign, vin: number, iout: number[], 
   for (let i = 0; i < S; i++) if (closedFormMiss(d, p, i)) miss = true;
   if (!miss) return;
   if (!d.secondaries.every((w) => (w.rectifier.cjo ?? 0) > 0 || w.snubber)) return;
-  const base = solvePss(pssCircuit(d, vin, iout, p, vfScale));
+  const base = solvePss(pssCircuit(d, vin, iout, p, vfScale), { maxSteps: PSS_STEP_BUDGET });
   const energyError = Math.abs(base.energyOut / base.energyIn - 1);
   const converged = base.converged && energyError < PSS_ENERGY_LIMIT;
   const check: NumericCheck = {
@@ -989,7 +991,7 @@ export function regionFlags(d: CoupledBuckDesign, p: CoupledPoint): StageFlag[] 
     if (!miss) continue;
     const nc = p.numeric;
     const numeric = !nc ? ((w.rectifier.cjo ?? 0) > 0 || w.snubber ? '' : '; the numerical switching-cycle model needs every rectifier\'s capacitance (rectifier.cjo), which is not given')
-      : !nc.converged ? `; the numerical switching-cycle model did not settle (${Number.isFinite(nc.periods) ? `${nc.periods} periods` : 'step budget'}, energy balance ${r3(nc.energyError * 100)} %)`
+      : !nc.converged ? `; the numerical switching-cycle model did not settle (${Number.isFinite(nc.periods) ? `${nc.periods} periods, energy balance ${r3(nc.energyError * 100)} %` : `its ${PSS_STEP_BUDGET.toExponential(0)} integration steps ran out`})`
       : `; the numerical switching-cycle model gives ${r3(nc.vout[i]!)} V, but ${nc.why[i]}`;
     out.push(flag('outside-validated-region', 'warning',
       `${w.nodeId}: ${r3(s.vsec)} V at ${r3(s.iload * 1e3)} mA is outside the region the coupled-winding model was checked in, because ${miss.why}${numeric}; a larger load or preload brings it back`,

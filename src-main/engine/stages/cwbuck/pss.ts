@@ -389,13 +389,10 @@ class Cycle {
     x[0] = 0;
   }
 
-  trace: number[][] | null = null;
-  t0 = 0;
   /** Per rectifier: it has turned off once in the present sub-interval, and the charge it passed since. */
   ringOff: Uint8Array;
   ringQ: Float64Array;
   private track(x: Float64Array, h: number): void {
-    if (this.trace) { this.t0 += h; this.trace.push([this.t0, ...Array.from(x.subarray(0, this.nx)), ...Array.from(this.on)]); }
     for (let j = 0; j < this.S; j++) {
       const iw = x[1 + j]!;
       if (iw > this.ipk[j]!) this.ipk[j] = iw;
@@ -759,7 +756,6 @@ function solveOrbit(c: PssCircuit, opts: PssOptions): PssResult {
     residual = norm(r.subarray(nxz + 1));
   }
   // Leave the state of the converged start (x holds the end of the last period).
-  if ((opts as { trace?: number[][] }).trace) { cy.trace = (opts as { trace?: number[][] }).trace!; cy.t0 = 0; }
   F(z);
   const sec: PssSecondary[] = c.windings.map((w, j) => ({
     vout: vo[j]!,
