@@ -81,6 +81,8 @@ export interface GridRow {
   flags: StageFlag[];
   /** No secondary flagged outside the region the model claims. */
   validated: boolean;
+  /** Secondaries whose numbers came from the numerical switching-cycle model (pss.ts), not the closed form. */
+  numeric: number[];
 }
 
 export function compareGrid(p: GridPoint, sim: GridSimulated): GridRow {
@@ -91,7 +93,8 @@ export function compareGrid(p: GridPoint, sim: GridSimulated): GridRow {
   const etaEngine = (ev.pout as number) / ((ev.pout as number) + modelled);
   const pout = iout.reduce((a, i, k) => a + i * Math.abs(sim.v[k]!), 0);
   const etaSim = pout / (sim.iin * p.vin);
-  const cp = coupledPoint(d, p.vin, iout, { vPrimary: sim.v[0]! });
+  const cp = coupledPoint(d, p.vin, iout, { vPrimary: sim.v[0]!, numeric: false });
+  const numeric = p.sec.map((_, i) => i).filter((i) => Math.abs(ev.outputs[i + 1]!.voltage as number) !== cp.sec[i]!.vsec);
   return {
     name: p.name, vin: p.vin, duty: p.duty, arrangement: p.arrangement,
     outputs: p.sec.map((s, i) => {
@@ -103,7 +106,7 @@ export function compareGrid(p: GridPoint, sim: GridSimulated): GridRow {
         vrEngine: rectifierPeakReverse(d, cp, i), vrSim: sim.vrMax[i]!,
       };
     }),
-    etaEngine, etaSim, flags: ev.flags, validated: !ev.flags.some((f) => f.code === 'outside-validated-region'),
+    etaEngine, etaSim, flags: ev.flags, validated: !ev.flags.some((f) => f.code === 'outside-validated-region'), numeric,
   };
 }
 
@@ -114,11 +117,13 @@ export function formatGridTable(rows: GridRow[]): string {
     '',
     '| point | Vin (V) | D | n | k | load share | Cj (pF) | rectifier | arrangement | engine (V) | ngspice (V) | error % | Vr peak engine / ngspice (V) | η engine | η ngspice | Δη (pt) | validated |',
     '|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|',
+    // validated: no outside-validated-region flag on the point; (numerical): this secondary's
+    // numbers are the numerical switching-cycle model's (pss.ts), the closed form's otherwise.
   ];
   for (const r of rows) {
     r.outputs.forEach((o, i) => {
       const first = i === 0;
-      lines.push(`| ${first ? r.name : ''} | ${first ? r.vin : ''} | ${first ? r.duty : ''} | ${o.n} | ${o.k} | ${(o.share * 100).toFixed(0)} % | ${(o.cj * 1e12).toFixed(0)} | ${o.diode} | ${first ? r.arrangement : ''} | ${o.engine.toFixed(3)} | ${o.sim.toFixed(3)} | ${o.errorPct.toFixed(2)} | ${o.vrEngine.toFixed(0)} / ${o.vrSim.toFixed(0)} | ${first ? (r.etaEngine * 100).toFixed(1) : ''} | ${first ? (r.etaSim * 100).toFixed(1) : ''} | ${first ? ((r.etaEngine - r.etaSim) * 100).toFixed(1) : ''} | ${first ? (r.validated ? 'yes' : 'flagged') : ''} |`);
+      lines.push(`| ${first ? r.name : ''} | ${first ? r.vin : ''} | ${first ? r.duty : ''} | ${o.n} | ${o.k} | ${(o.share * 100).toFixed(0)} % | ${(o.cj * 1e12).toFixed(0)} | ${o.diode} | ${first ? r.arrangement : ''} | ${o.engine.toFixed(3)} | ${o.sim.toFixed(3)} | ${o.errorPct.toFixed(2)} | ${o.vrEngine.toFixed(0)} / ${o.vrSim.toFixed(0)} | ${first ? (r.etaEngine * 100).toFixed(1) : ''} | ${first ? (r.etaSim * 100).toFixed(1) : ''} | ${first ? ((r.etaEngine - r.etaSim) * 100).toFixed(1) : ''} | ${first ? (r.validated ? 'yes' : 'flagged') : ''}${r.numeric.includes(i) ? ' (numerical)' : ''} |`);
     });
   }
   return lines.join('\n');
