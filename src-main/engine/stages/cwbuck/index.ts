@@ -690,8 +690,13 @@ export const PSS_ENERGY_LIMIT = 0.005;
 export function numericPoint(d: CoupledBuckDesign, vin: number, iout: number[], p: CoupledPoint, vfScale = 1): void {
   const S = d.secondaries.length;
   if (!S) return;
+  // Solve only where it can help: some secondary the closed form misses must be one the
+  // numerical model could cover (no reverse recovery, no snubber: not validated there).
   let miss = false;
-  for (let i = 0; i < S; i++) if (closedFormMiss(d, p, i)) miss = true;
+  for (let i = 0; i < S; i++) {
+    const w = d.secondaries[i]!;
+    if (closedFormMiss(d, p, i) && !((w.rectifier.tt ?? 0) > 0) && !w.snubber) miss = true;
+  }
   if (!miss) return;
   if (!d.secondaries.every((w) => (w.rectifier.cjo ?? 0) > 0 || w.snubber)) return;
   const base = solvePss(pssCircuit(d, vin, iout, p, vfScale), { maxSteps: PSS_STEP_BUDGET });
@@ -1061,7 +1066,7 @@ export function regionFlags(d: CoupledBuckDesign, p: CoupledPoint): StageFlag[] 
     if (!miss) continue;
     const nc = p.numeric;
     const numeric = !nc ? ((w.rectifier.cjo ?? 0) > 0 || w.snubber ? '' : '; the numerical switching-cycle model needs every rectifier\'s capacitance (rectifier.cjo), which is not given')
-      : !nc.converged ? `; the numerical switching-cycle model did not settle (${Number.isFinite(nc.periods) ? `${nc.periods} periods, energy balance ${r3(nc.energyError * 100)} %` : `its ${PSS_STEP_BUDGET.toExponential(0)} integration steps ran out`})`
+      : !nc.converged ? `; the numerical switching-cycle model did not settle (${Number.isFinite(nc.periods) ? `${nc.periods} periods, ${Number.isFinite(nc.energyError) ? `energy balance ${r3(nc.energyError * 100)} %` : 'no energy balance'}` : `its ${PSS_STEP_BUDGET.toExponential(0)} integration steps ran out`})`
       : `; the numerical switching-cycle model gives ${r3(nc.vout[i]!)} V, but ${nc.why[i]}`;
     out.push(flag('outside-validated-region', 'warning',
       `${w.nodeId}: ${r3(s.vsec)} V at ${r3(s.iload * 1e3)} mA is outside the region the coupled-winding model was checked in, because ${miss.why}${numeric}; a larger load or preload brings it back`,
