@@ -175,6 +175,35 @@ const UNIT_KIND: Record<string, QuantityKind> = {
   V: 'voltage', A: 'current', 'Ω': 'resistance', F: 'capacitance', H: 'inductance', s: 'time', W: 'power', C: 'charge', 'K/W': 'thermal-resistance',
 };
 
+/**
+ * Library parameters as an engineer writes them in a parts table (trade symbols; common
+ * practice). A key not listed here is split into words.
+ */
+const PARAM_LABELS: Record<string, string> = {
+  package: 'package', manufacturer: 'manufacturer', partNumber: 'part number',
+  iMax: 'I out max', vinMax: 'V in max', vinMin: 'V in min', vinNom: 'V in nom', iq: 'I q', tonMin: 't on min', dMax: 'duty max',
+  integrated: 'switches inside', forcedPwm: 'forced PWM', rdsHs: 'Rds(on) high side', rdsLs: 'Rds(on) low side',
+  negLimit: 'negative current limit', thetaJA: 'θJA', uvlo: 'UVLO rising', vref: 'V ref', vrefTolerance: 'V ref tolerance',
+  iLimit: 'peak current limit', topology: 'topology',
+  vds: 'Vds max', id: 'Id max', rdsOn: 'Rds(on) at 25 °C', qg: 'Qg', coss: 'Coss', tr: 't rise', tf: 't fall', rdsTempFactor: 'Rds(on) hot / 25 °C',
+  dropout: 'dropout at I max', psrrDb: 'PSRR', negative: 'negative regulator', accuracy: 'accuracy', dropoutFloor: 'dropout at no load',
+  vr: 'Vrrm', if: 'If avg max', vf: 'Vf', cj: 'Cj', trr: 't rr',
+  dielectric: 'dielectric', vRated: 'V rated', cMin: 'C min', cMax: 'C max', esr: 'ESR', iRipple: 'ripple current rating',
+  power: 'power rating', tolerance: 'tolerance',
+  lMin: 'L min', lMax: 'L max', iSat: 'I sat', dcr: 'DCR', iRms: 'I rms rating',
+  maxWindings: 'windings max', pMax: 'P max', costPerWinding: 'cost per winding', isolation: 'isolation class',
+  ron: 'R on', ratio: 'voltage ratio', pRated: 'P rated', loadReg: 'load regulation', minLoad: 'minimum load',
+  etaFull: 'efficiency at full load', pNoLoad: 'no-load loss', workingVoltage: 'working voltage', ripple: 'output ripple',
+};
+
+/** Part classes as the library's class filter names them. */
+const CLASS_WORDS: Record<string, string> = {
+  controller: 'controllers and regulators', switch: 'switches (MOSFETs)', ldo: 'linear regulators (LDO)', rectifier: 'rectifier diodes',
+  'cap-ceramic': 'ceramic capacitors', 'cap-aluminium': 'aluminium electrolytic capacitors', 'cap-polymer': 'polymer capacitors',
+  resistor: 'resistors', inductor: 'inductors', 'magnetic-custom': 'custom magnetics', 'load-switch': 'load switches', 'iso-module': 'isolated modules',
+};
+export const partClassName = (key: string): string => CLASS_WORDS[key] ?? splitWords(key);
+
 /** What a library column means: the parameter's own description and its unit, where known. */
 export function libraryColumn(key: string, partClass?: string): { label: string; hint: string; kind: QuantityKind | null; unit: string } {
   if (!key.startsWith('params.')) return { label: key === 'partClass' ? 'class' : key === 'cost' ? 'cost estimate' : splitWords(key), hint: '', kind: null, unit: '' };
@@ -182,7 +211,7 @@ export function libraryColumn(key: string, partClass?: string): { label: string;
   const classes = (partClass ? [partClass] : Object.keys(CLASS_PARAMS)) as PartClass[];
   const spec = classes.map((c) => CLASS_PARAMS[c]?.find((p) => p.key === k)).find((p) => p) ?? Object.values(CLASS_PARAMS).flat().find((p) => p.key === k);
   const unit = spec?.unit ?? '';
-  return { label: splitWords(k) + (unit ? ` (${unit})` : ''), hint: spec?.doc ?? '', kind: UNIT_KIND[unit] ?? null, unit };
+  return { label: (PARAM_LABELS[k] ?? splitWords(k)) + (unit ? ` (${unit})` : ''), hint: spec?.doc ?? '', kind: UNIT_KIND[unit] ?? null, unit };
 }
 
 /** A library value as the grid shows it: engineering notation with its unit. */

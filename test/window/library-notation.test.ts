@@ -12,12 +12,22 @@ describe('library values in engineering notation', () => {
 
   it('shows a minimum on-time as nanoseconds, not 8e-8', () => {
     const col = libraryColumn('params.tonMin', 'controller');
-    expect(col.label).toBe('ton min (s)');
+    expect(col.label).toBe('t on min (s)');
     expect(col.hint).toBe('minimum on-time');
     expect(libraryValue(8e-8, col)).toBe('80 ns');
     for (const c of view.columns) for (const r of view.rows) {
       const shown = libraryValue(r[c.key], libraryColumn(c.key, String(r.partClass)));
       expect(shown, `${c.key} ${shown}`).not.toMatch(/\de-\d/);
+    }
+  });
+
+  it('names every parameter of the default library in trade words, not as a code key', () => {
+    // Headers read as a parts table does (common practice): no camel-case keys.
+    expect(libraryColumn('params.rdsOn', 'switch').label).toBe('Rds(on) at 25 °C (Ω)');
+    expect(libraryColumn('params.thetaJA', 'ldo').label).toBe('θJA (K/W)');
+    for (const c of view.columns.filter((x) => x.key.startsWith('params.'))) {
+      const label = libraryColumn(c.key).label.replace(/ \([^)]*\)$/, '');
+      expect(label, c.key).not.toMatch(/[a-z][A-Z]/);
     }
   });
 
