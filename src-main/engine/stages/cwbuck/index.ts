@@ -690,15 +690,16 @@ export const PSS_ENERGY_LIMIT = 0.005;
 export function numericPoint(d: CoupledBuckDesign, vin: number, iout: number[], p: CoupledPoint, vfScale = 1): void {
   const S = d.secondaries.length;
   if (!S) return;
+  // The cheap test first: the numerical model needs every rectifier's capacitance.
+  if (!d.secondaries.every((w) => (w.rectifier.cjo ?? 0) > 0 || w.snubber)) return;
   // Solve only where it can help: some secondary the closed form misses must be one the
   // numerical model could cover (no reverse recovery, no snubber: not validated there).
   let miss = false;
-  for (let i = 0; i < S; i++) {
+  for (let i = 0; i < S && !miss; i++) {
     const w = d.secondaries[i]!;
-    if (closedFormMiss(d, p, i) && !((w.rectifier.tt ?? 0) > 0) && !w.snubber) miss = true;
+    if (!((w.rectifier.tt ?? 0) > 0) && !w.snubber && closedFormMiss(d, p, i)) miss = true;
   }
   if (!miss) return;
-  if (!d.secondaries.every((w) => (w.rectifier.cjo ?? 0) > 0 || w.snubber)) return;
   const base = solvePss(pssCircuit(d, vin, iout, p, vfScale), { maxSteps: PSS_STEP_BUDGET });
   const energyError = Math.abs(base.energyOut / base.energyIn - 1);
   const converged = base.converged && energyError < PSS_ENERGY_LIMIT;
